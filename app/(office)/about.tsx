@@ -1,0 +1,1 @@
+export { AboutScreen as default } from '../../components/features/about/about-screen';

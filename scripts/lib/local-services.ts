@@ -1,0 +1,47 @@
+/**
+ * The two local set-ups: `npm start` (demo data) and `npm test` (throw-away data).
+ * They use different data folders and ports, so both can run at the same time.
+ */
+import path from 'node:path';
+import type { ClusterSpec } from './pg';
+
+export const projectRoot = path.resolve(__dirname, '..', '..');
+
+/** Addresses one set-up uses. */
+export interface LocalSetup {
+  cluster: ClusterSpec;
+  smtpPort: number;
+  mailWebPort: number;
+  httpPort: number;
+  maildevDir: string;
+}
+
+/** The start command's services (DESIGN.md section 10 defaults). */
+export const startSetup: LocalSetup = {
+  cluster: {
+    dataDir: path.join(projectRoot, '.pg', 'data'),
+    port: Number(process.env.PLUMBLINE_PG_PORT ?? 54329),
+    database: 'plumbline',
+    user: 'plumbline',
+    password: 'plumbline-local',
+  },
+  smtpPort: Number(process.env.SMTP_PORT ?? 1025),
+  mailWebPort: Number(process.env.MAILDEV_WEB_PORT ?? 1080),
+  httpPort: Number(process.env.PORT ?? 8080),
+  maildevDir: path.join(projectRoot, '.data', 'maildev'),
+};
+
+/** The test command's services: own data folder and ports, never the demo data. */
+export const testSetup: LocalSetup = {
+  cluster: {
+    dataDir: path.join(projectRoot, '.pg-test', 'data'),
+    port: 54339,
+    database: 'plumbline_test',
+    user: 'plumbline',
+    password: 'plumbline-local',
+  },
+  smtpPort: 1026,
+  mailWebPort: 1081,
+  httpPort: 8089,
+  maildevDir: path.join(projectRoot, '.data', 'maildev-test'),
+};

@@ -1,0 +1,75 @@
+/**
+ * createApp(): the Express application without listen(), so tests drive it with supertest
+ * and main.ts serves it.
+ */
+import express, { type Express } from 'express';
+import fs from 'node:fs';
+import path from 'node:path';
+import helmet from 'helmet';
+import type PgBoss from 'pg-boss';
+import type { DataSource } from 'typeorm';
+import type { Config } from './config';
+import { healthRoutes } from './health/health.routes';
+import { apiNotFound, errorHandler } from './http/errors';
+import type { Mailer } from './mail/mailer';
+
+/** What the app is built from; every piece is created by the caller (main or a test). */
+export interface AppDeps {
+  config: Config;
+  dataSource: DataSource;
+  boss: PgBoss | null;
+  mailer: Mailer;
+}
+
+/** Builds the application. */
+export function createApp(deps: AppDeps): Express {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: true,
+        directives: {
+          // react-native-web writes inline styles; scripts stay same-origin only.
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'img-src': ["'self'", 'data:', 'blob:'],
+          'font-src': ["'self'", 'data:'],
+          'upgrade-insecure-requests': null,
+        },
+      },
+    }),
+  );
+  app.use('/api', express.json({ limit: '1mb' }));
+
+  const api = express.Router();
+  api.use(healthRoutes(deps));
+  app.use('/api', api);
+  app.use('/api', apiNotFound);
+
+  serveWebBuild(app, deps.config.WEB_DIST);
+  app.use(errorHandler);
+  return app;
+}
+
+/**
+ * Serves the exported web app and, for any other GET, its index.html (single-page
+ * output: the router runs in the browser). Express 5 has no bare `*`, hence app.use.
+ */
+function serveWebBuild(app: Express, dist: string): void {
+  const index = path.join(dist, 'index.html');
+  app.use(express.static(dist, { index: false, maxAge: '1h', setHeaders: noCacheForHtml }));
+  app.use((req, res, next) => {
+    if (req.method !== 'GET' && req.method !== 'HEAD') return next();
+    if (!fs.existsSync(index)) {
+      res.status(503).type('text/plain').send('The web app has not been built yet. Run `npm start` (it builds it) or `npm run build:web`.');
+      return;
+    }
+    res.setHeader('Cache-Control', 'no-cache');
+    res.sendFile(index);
+  });
+}
+
+function noCacheForHtml(res: express.Response, file: string) {
+  if (file.endsWith('.html')) res.setHeader('Cache-Control', 'no-cache');
+}

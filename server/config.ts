@@ -1,0 +1,41 @@
+/**
+ * Server and worker configuration, read from the environment once at start-up and
+ * validated with zod so a wrong setting stops the process with a clear message.
+ */
+import path from 'node:path';
+import { z } from 'zod';
+
+const ConfigSchema = z.object({
+  DATABASE_URL: z
+    .string({ error: 'is required, e.g. postgres://plumbline:…@127.0.0.1:54329/plumbline' })
+    .regex(/^postgres(ql)?:\/\//, 'must be a postgres:// connection string'),
+  PORT: z.coerce.number().int().min(1).max(65535).default(8080),
+  HOST: z.string().default('127.0.0.1'),
+  SMTP_HOST: z.string().default('127.0.0.1'),
+  SMTP_PORT: z.coerce.number().int().min(1).max(65535).default(1025),
+  MAIL_FROM: z.string().default('Aldermere Revenue Office <examinations@revenue.aldermere.example>'),
+  SESSION_SECRET: z.string().min(16, 'must be at least 16 characters').default('plumbline-local-development-secret'),
+  WEB_DIST: z.string().default(path.resolve(__dirname, '..', 'dist')),
+  PUBLIC_URL: z.string().url('must be a full URL such as http://127.0.0.1:8080').optional(),
+  NODE_ENV: z.enum(['development', 'test', 'production']).default('development'),
+});
+
+/** Validated settings. */
+export type Config = z.infer<typeof ConfigSchema> & { publicUrl: string };
+
+/** Thrown when the environment does not describe a usable configuration. */
+export class ConfigError extends Error {}
+
+/**
+ * Reads and checks the configuration; lists every problem at once.
+ * @throws ConfigError naming each variable, what is wrong and how to fix it.
+ */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const parsed = ConfigSchema.safeParse(env);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.') || '(env)'}: ${i.message}`);
+    throw new ConfigError(`Configuration is not valid:\n${lines.join('\n')}\nSet these environment variables and start again.`);
+  }
+  const c = parsed.data;
+  return { ...c, publicUrl: c.PUBLIC_URL ?? `http://${c.HOST}:${c.PORT}` };
+}

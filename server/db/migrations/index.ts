@@ -1,0 +1,7 @@
+/**
+ * Every migration, in order. Listed by hand (not globbed) so tsx, jest and the built
+ * server all load the same classes. Add new ones at the end.
+ */
+import { Foundation1764600000000 } from './1764600000000-foundation';
+
+export const migrations = [Foundation1764600000000];

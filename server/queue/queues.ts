@@ -1,0 +1,38 @@
+/**
+ * The job queue (pg-boss 10 in the application database, schema `pgboss`).
+ * pg-boss 10 needs a queue to exist before `send`: a send to a missing queue returns null,
+ * so every process calls {@link ensureQueues} right after `start()`.
+ */
+import PgBoss from 'pg-boss';
+
+/** Queue names, one place. */
+export const QUEUES = {
+  /** Score every return of one accepted filing batch: data {batchId}. */
+  scoreBatch: 'score-batch',
+} as const;
+export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
+
+/** Creates (does not start) a pg-boss instance for this database. */
+export function createBoss(url: string, role: 'server' | 'worker'): PgBoss {
+  return new PgBoss({
+    connectionString: url,
+    schema: 'pgboss',
+    application_name: `plumbline-${role}`,
+    // Only the worker runs maintenance; the server just sends and reads.
+    supervise: role === 'worker',
+    schedule: role === 'worker',
+    max: role === 'worker' ? 6 : 3,
+  });
+}
+
+/** Creates every queue if missing (idempotent). */
+export async function ensureQueues(boss: PgBoss): Promise<void> {
+  for (const name of Object.values(QUEUES)) {
+    const existing = await boss.getQueue(name);
+    if (!existing) {
+      // retryLimit: a batch job that fails (e.g. the worker was killed) is retried; the
+      // scoring job is idempotent, so a retry finishes the work and scores nothing twice.
+      await boss.createQueue(name, { name, retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInMinutes: 60 });
+    }
+  }
+}

@@ -1,0 +1,59 @@
+import type { Browser } from 'playwright-core';
+import { launchBrowser, screenshot, VIEWPORTS } from '../helpers/browser';
+import { startServer, type RunningProcess } from '../helpers/processes';
+import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
+
+jest.setTimeout(120_000);
+
+describe('status screen in the browser (built web app served by the real server)', () => {
+  let db: TestDatabase;
+  let server: RunningProcess & { baseUrl: string };
+  let browser: Browser;
+
+  beforeAll(async () => {
+    db = await createTestDatabase();
+    server = await startServer(db.url);
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await server?.stop();
+    await db?.drop();
+  });
+
+  for (const [name, viewport] of Object.entries(VIEWPORTS)) {
+    it(`shows the database as up in the shipped font (${name} ${viewport.width}×${viewport.height})`, async () => {
+      const page = await browser.newPage({ viewport });
+      const errors: string[] = [];
+      page.on('pageerror', (e) => errors.push(e.message));
+      await page.goto(server.baseUrl + '/', { waitUntil: 'networkidle' });
+      await page.getByTestId('health-database-state').waitFor();
+      expect(await page.getByTestId('health-database-state').textContent()).toBe('Up');
+      expect(await page.getByTestId('health-overall').textContent()).toBe('All services are up.');
+
+      // The heading is set in the shipped typeface, and the browser really loaded it.
+      const heading = page.getByRole('heading', { name: 'System status' });
+      const family = await heading.evaluate((el) => getComputedStyle(el).fontFamily);
+      expect(family).toContain('AtkinsonHyperlegible');
+      const loaded = await page.evaluate(async () => {
+        await document.fonts.ready;
+        return [...document.fonts].filter((f) => f.status === 'loaded').map((f) => f.family.replace(/"/g, ''));
+      });
+      expect(loaded).toEqual(expect.arrayContaining(['AtkinsonHyperlegible', 'AtkinsonHyperlegible-Bold']));
+
+      await screenshot(page, `status-${name}`);
+      expect(errors).toEqual([]);
+      await page.close();
+    });
+  }
+
+  it('shows the cautions on the about page', async () => {
+    const page = await browser.newPage({ viewport: VIEWPORTS.phone });
+    await page.goto(server.baseUrl + '/about', { waitUntil: 'networkidle' });
+    const cautions = page.getByTestId('cautions');
+    await cautions.waitFor();
+    expect(await cautions.textContent()).toMatch(/prove nothing alone/);
+    await screenshot(page, 'about-phone');
+    await page.close();
+  });
+});

@@ -1,0 +1,87 @@
+/**
+ * Real server and worker processes for tests that need them (browser tests, worker
+ * crash tests). Output is collected so a failing test can show it.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import net from 'node:net';
+import path from 'node:path';
+
+const root = path.join(__dirname, '..', '..');
+const TSX = path.join(root, 'node_modules', '.bin', 'tsx');
+
+/** A running child with its collected output. */
+export interface RunningProcess {
+  child: ChildProcess;
+  output(): string;
+  /** Resolves with the exit code once it has exited. */
+  exited: Promise<number | null>;
+  stop(signal?: NodeJS.Signals): Promise<number | null>;
+  kill9(): Promise<void>;
+}
+
+/** A free loopback port. */
+export function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = net.createServer();
+    s.once('error', reject);
+    s.listen(0, '127.0.0.1', () => {
+      const port = (s.address() as net.AddressInfo).port;
+      s.close(() => resolve(port));
+    });
+  });
+}
+
+/** Starts `tsx <entry>` with the given environment and waits for a line matching `ready`. */
+export async function startTsx(entry: string, env: Record<string, string>, ready: RegExp, timeoutMs = 60_000): Promise<RunningProcess> {
+  const child = spawn(TSX, [entry], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  let out = '';
+  child.stdout!.on('data', (d) => (out += d.toString()));
+  child.stderr!.on('data', (d) => (out += d.toString()));
+  const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
+  await new Promise<void>((resolve, reject) => {
+    const timer = setTimeout(() => reject(new Error(`${entry} not ready within ${timeoutMs} ms:\n${out}`)), timeoutMs);
+    const onData = () => {
+      if (ready.test(out)) {
+        clearTimeout(timer);
+        resolve();
+      }
+    };
+    child.stdout!.on('data', onData);
+    child.stderr!.on('data', onData);
+    void exited.then((code) => {
+      clearTimeout(timer);
+      reject(new Error(`${entry} exited with ${code} before it was ready:\n${out}`));
+    });
+  });
+  return {
+    child,
+    output: () => out,
+    exited,
+    async stop(signal = 'SIGTERM') {
+      if (child.exitCode === null && child.signalCode === null) child.kill(signal);
+      return exited;
+    },
+    async kill9() {
+      if (child.exitCode === null && child.signalCode === null) child.kill('SIGKILL');
+      await exited;
+    },
+  };
+}
+
+/** Environment for a server or worker on the given database and the test MailDev. */
+export function processEnv(databaseUrl: string, port?: number): Record<string, string> {
+  return {
+    DATABASE_URL: databaseUrl,
+    SMTP_PORT: process.env.PLUMBLINE_TEST_SMTP_PORT ?? '1026',
+    NODE_ENV: 'test',
+    SESSION_SECRET: 'test-secret-test-secret-test-secret',
+    ...(port ? { PORT: String(port) } : {}),
+  };
+}
+
+/** The real server on a free port. */
+export async function startServer(databaseUrl: string): Promise<RunningProcess & { baseUrl: string }> {
+  const port = await freePort();
+  const p = await startTsx('server/main.ts', processEnv(databaseUrl, port), /listening on/);
+  return { ...p, baseUrl: `http://127.0.0.1:${port}` };
+}
