@@ -9,7 +9,13 @@ import helmet from 'helmet';
 import type PgBoss from 'pg-boss';
 import type { DataSource } from 'typeorm';
 import type { Config } from './config';
+import { accessLogRoutes } from './access-log/access-log.routes';
+import { authRoutes } from './auth/auth.routes';
+import { csrfProtection } from './auth/csrf';
+import { createPassport, sessionMiddleware } from './auth/session';
+import { LoginThrottle } from './auth/throttle';
 import { healthRoutes } from './health/health.routes';
+import { userRoutes } from './users/user.routes';
 import { apiNotFound, errorHandler } from './http/errors';
 import type { Mailer } from './mail/mailer';
 
@@ -19,6 +25,8 @@ export interface AppDeps {
   dataSource: DataSource;
   boss: PgBoss | null;
   mailer: Mailer;
+  /** Sign-in throttle; tests pass their own to control time. */
+  throttle?: LoginThrottle;
 }
 
 /** Builds the application. */
@@ -41,9 +49,19 @@ export function createApp(deps: AppDeps): Express {
     }),
   );
   app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', express.urlencoded({ extended: false, limit: '100kb' }));
 
+  const passport = createPassport(deps.dataSource);
+  const throttle = deps.throttle ?? new LoginThrottle();
   const api = express.Router();
-  api.use(healthRoutes(deps));
+  api.use(sessionMiddleware(deps.config, deps.dataSource));
+  api.use(passport.initialize());
+  api.use(passport.session());
+  api.use(csrfProtection);
+  // Feature routers: each built with secureRouter(), paths are full paths under /api.
+  const features = [healthRoutes, userRoutes, accessLogRoutes];
+  api.use(authRoutes({ ...deps, throttle, passport }));
+  for (const feature of features) api.use(feature(deps));
   app.use('/api', api);
   app.use('/api', apiNotFound);
 

@@ -15,6 +15,8 @@ const ConfigSchema = z.object({
   SMTP_PORT: z.coerce.number().int().min(1).max(65535).default(1025),
   MAIL_FROM: z.string().default('Aldermere Revenue Office <examinations@revenue.aldermere.example>'),
   SESSION_SECRET: z.string().min(16, 'must be at least 16 characters').default('plumbline-local-development-secret'),
+  /** Idle time after which a session ends (rolling: each request restarts the clock). */
+  SESSION_TTL_SECONDS: z.coerce.number().int().min(1).default(8 * 60 * 60),
   WEB_DIST: z.string().default(path.resolve(__dirname, '..', 'dist')),
   PUBLIC_URL: z.string().url('must be a full URL such as http://127.0.0.1:8080').optional(),
   NODE_ENV: z.enum(['development', 'test', 'production']).default('development'),
@@ -30,7 +32,7 @@ export class ConfigError extends Error {}
  * Reads and checks the configuration; lists every problem at once.
  * @throws ConfigError naming each variable, what is wrong and how to fix it.
  */
-export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+export function loadConfig(env: Record<string, string | undefined> = process.env): Config {
   const parsed = ConfigSchema.safeParse(env);
   if (!parsed.success) {
     const lines = parsed.error.issues.map((i) => `  ${i.path.join('.') || '(env)'}: ${i.message}`);

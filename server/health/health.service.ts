@@ -21,10 +21,11 @@ async function timed(fn: () => Promise<{ ok: boolean; detail: string }>): Promis
 }
 
 function withTimeout<T>(p: Promise<T>, ms: number, what: string): Promise<T> {
-  return Promise.race([
-    p,
-    new Promise<T>((_, rej) => setTimeout(() => rej(new Error(`${what} did not answer within ${ms} ms`)), ms).unref()),
-  ]);
+  let timer: ReturnType<typeof setTimeout> | undefined;
+  const timeout = new Promise<T>((_, rej) => {
+    timer = setTimeout(() => rej(new Error(`${what} did not answer within ${ms} ms`)), ms);
+  });
+  return Promise.race([p, timeout]).finally(() => clearTimeout(timer));
 }
 
 /** Database: reachable, and every migration applied. */

@@ -1,0 +1,20 @@
+/**
+ * Where each role may go (DESIGN.md sections 1 and 10): navigation shows only these.
+ * Add a feature's screen here with the roles that may use it.
+ */
+import type { Role } from '../../../shared/roles';
+import type { NavItem } from '../../ui/app-shell';
+
+interface RoleNavItem extends NavItem {
+  roles: readonly Role[] | 'all';
+}
+
+export const NAV_ITEMS: readonly RoleNavItem[] = [
+  { href: '/', label: 'Status', roles: 'all' },
+  { href: '/about', label: 'About', roles: 'all' },
+];
+
+/** The navigation for one role, in order. */
+export function navFor(role: Role): NavItem[] {
+  return NAV_ITEMS.filter((n) => n.roles === 'all' || n.roles.includes(role)).map(({ href, label }) => ({ href, label }));
+}

@@ -1,0 +1,14 @@
+import { AccessLogQuerySchema, type AccessLogQuery } from '../../shared/access-log';
+import type { AppDeps } from '../app';
+import { allow, secureRouter } from '../auth/access';
+import { validate } from '../http/validate';
+import { listAccessLog } from './access-log.service';
+
+/** `GET /api/access-log` (admin): filter by user, taxpayer, date and action. */
+export function accessLogRoutes(deps: AppDeps) {
+  const r = secureRouter();
+  r.get('/access-log', allow('readAccessLog'), validate(AccessLogQuerySchema, 'query'), async (_req, res) => {
+    res.json(await listAccessLog(deps.dataSource, res.locals.query as AccessLogQuery));
+  });
+  return r;
+}

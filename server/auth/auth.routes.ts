@@ -1,0 +1,71 @@
+import type { Request } from 'express';
+import type { PassportStatic } from 'passport';
+import { LoginRequestSchema, type SessionResponse } from '../../shared/auth';
+import { ROLES } from '../../shared/roles';
+import { recordAccess } from '../access-log/access-log.service';
+import type { AppDeps } from '../app';
+import { HttpError } from '../http/errors';
+import { validate } from '../http/validate';
+import { access, publicAccess, secureRouter, type SessionUser } from './access';
+import { verifyCredentials } from './auth.service';
+import { csrfTokenFor } from './csrf';
+import { SESSION_COOKIE } from './session';
+import type { LoginThrottle } from './throttle';
+
+/** Any signed-in staff member. */
+export const signedIn = access(...ROLES);
+
+function logIn(req: Request, user: SessionUser): Promise<void> {
+  // passport regenerates the session on login, so a fixed session id cannot be reused.
+  return new Promise((resolve, reject) => req.logIn(user, (err) => (err ? reject(err) : resolve())));
+}
+
+function answer(req: Request): SessionResponse {
+  return { user: req.user!, csrfToken: csrfTokenFor(req) };
+}
+
+/** Sign-in, sign-out and `me`. */
+export function authRoutes(deps: AppDeps & { throttle: LoginThrottle; passport: PassportStatic }) {
+  const r = secureRouter();
+  const ds = deps.dataSource;
+
+  r.post('/auth/login', publicAccess, validate(LoginRequestSchema), async (req, res) => {
+    const { username, password } = req.body as { username: string; password: string };
+    const address = req.ip ?? 'unknown';
+    const blocked = deps.throttle.check(username, address);
+    if (blocked) {
+      const minutes = Math.ceil(blocked.retryAfterSeconds / 60);
+      res.setHeader('Retry-After', String(blocked.retryAfterSeconds));
+      throw new HttpError(
+        429,
+        blocked.scope === 'account'
+          ? `Too many failed sign-ins for this account. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or ask an administrator to reset the password.`
+          : `Too many failed sign-ins from this computer. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}.`,
+      );
+    }
+    const check = await verifyCredentials(ds, username, password);
+    if (!check.ok) {
+      deps.throttle.fail(username, address);
+      await recordAccess(ds, null, { action: 'sign-in-refused', route: 'POST /api/auth/login', detail: `user name "${username.slice(0, 64)}": ${check.reason === 'inactive' ? 'account deactivated' : 'wrong user name or password'}` });
+      throw new HttpError(401, check.reason === 'inactive' ? 'This account is deactivated. Ask an administrator.' : 'The user name or password is wrong.');
+    }
+    deps.throttle.succeed(username);
+    await logIn(req, check.user);
+    await recordAccess(ds, check.user, { action: 'sign-in', route: 'POST /api/auth/login', recordType: 'user', recordId: check.user.id });
+    res.json(answer(req));
+  });
+
+  r.post('/auth/logout', signedIn, async (req, res) => {
+    const user = req.user!;
+    await recordAccess(ds, user, { action: 'sign-out', route: 'POST /api/auth/logout', recordType: 'user', recordId: user.id });
+    await new Promise<void>((resolve, reject) => req.logout((err) => (err ? reject(err) : resolve())));
+    await new Promise<void>((resolve) => req.session.destroy(() => resolve()));
+    res.clearCookie(SESSION_COOKIE);
+    res.status(204).end();
+  });
+
+  r.get('/auth/me', signedIn, (req, res) => {
+    res.json(answer(req));
+  });
+  return r;
+}

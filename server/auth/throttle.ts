@@ -1,0 +1,59 @@
+/**
+ * Sign-in throttling: failed attempts counted per account and per client address in a
+ * sliding window. In memory, because one server process serves an office; a restart
+ * clears it (documented in DEVELOPERS.md).
+ *
+ * Limits: 5 failures per account or 20 per address in 15 minutes (common practice, no
+ * source; in line with the usual advice to limit online guessing).
+ */
+
+/** Throttle settings. */
+export interface ThrottleLimits {
+  perAccount: number;
+  perAddress: number;
+  windowMs: number;
+}
+
+export const DEFAULT_LIMITS: ThrottleLimits = { perAccount: 5, perAddress: 20, windowMs: 15 * 60 * 1000 };
+
+/** Counts failures and tells when a key is locked. */
+export class LoginThrottle {
+  private failures = new Map<string, number[]>();
+
+  constructor(
+    private readonly limits: ThrottleLimits = DEFAULT_LIMITS,
+    private readonly now: () => number = Date.now,
+  ) {}
+
+  private recent(key: string): number[] {
+    const cutoff = this.now() - this.limits.windowMs;
+    const list = (this.failures.get(key) ?? []).filter((t) => t > cutoff);
+    if (list.length) this.failures.set(key, list);
+    else this.failures.delete(key);
+    return list;
+  }
+
+  /** Null when a sign-in may be tried; otherwise which limit holds and for how long. */
+  check(username: string, address: string): { scope: 'account' | 'address'; retryAfterSeconds: number } | null {
+    const acc = this.recent(`u:${username.toLowerCase()}`);
+    if (acc.length >= this.limits.perAccount) return { scope: 'account', retryAfterSeconds: this.wait(acc) };
+    const addr = this.recent(`a:${address}`);
+    if (addr.length >= this.limits.perAddress) return { scope: 'address', retryAfterSeconds: this.wait(addr) };
+    return null;
+  }
+
+  private wait(list: number[]): number {
+    return Math.max(1, Math.ceil((list[0] + this.limits.windowMs - this.now()) / 1000));
+  }
+
+  /** Counts one failed attempt. */
+  fail(username: string, address: string): void {
+    const t = this.now();
+    for (const key of [`u:${username.toLowerCase()}`, `a:${address}`]) this.failures.set(key, [...this.recent(key), t]);
+  }
+
+  /** A successful sign-in clears the account's count (not the address's). */
+  succeed(username: string): void {
+    this.failures.delete(`u:${username.toLowerCase()}`);
+  }
+}
