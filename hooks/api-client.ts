@@ -25,7 +25,13 @@ export class ApiError extends Error {
   }
 }
 
+/** The current CSRF token (for XMLHttpRequest uploads that cannot use apiSend). */
+export function getCsrfToken(): string | null {
+  return csrfToken;
+}
+
 async function parseOrThrow<T>(res: Response, schema: z.ZodType<T>): Promise<T> {
+  if (res.status === 204) return schema.parse(undefined);
   const text = await res.text();
   let body: unknown = null;
   try {

@@ -1,15 +1,25 @@
-import { Slot } from 'expo-router';
+import { Redirect, Slot } from 'expo-router';
+import { ActivityIndicator, View } from 'react-native';
+import { navFor } from '../../components/features/nav/nav-items';
+import { UserBadge } from '../../components/features/auth/user-badge';
+import { colours } from '../../components/theme';
 import { AppShell } from '../../components/ui/app-shell';
+import { useSession } from '../../hooks/use-session';
 
-/** Signed-in area frame. (Sign-in redirects arrive with the sign-in feature.) */
+/** Signed-in area: signed-out visitors go to sign-in; navigation shows only the role's screens. */
 export default function OfficeLayout() {
+  const session = useSession();
+  if (session.isPending) {
+    return (
+      <View style={{ flex: 1, alignItems: 'center', justifyContent: 'center', backgroundColor: colours.paper }}>
+        <ActivityIndicator color={colours.ink} />
+      </View>
+    );
+  }
+  if (!session.data) return <Redirect href="/sign-in" />;
+  const { user } = session.data;
   return (
-    <AppShell
-      nav={[
-        { href: '/', label: 'Status' },
-        { href: '/about', label: 'About' },
-      ]}
-    >
+    <AppShell nav={navFor(user.role)} accessory={<UserBadge user={user} />}>
       <Slot />
     </AppShell>
   );

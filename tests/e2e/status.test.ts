@@ -1,24 +1,21 @@
 import type { Browser } from 'playwright-core';
-import { launchBrowser, screenshot, VIEWPORTS } from '../helpers/browser';
-import { startServer, type RunningProcess } from '../helpers/processes';
-import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
+import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
+import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS } from '../helpers/browser';
+import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
 
 jest.setTimeout(120_000);
 
 describe('status screen in the browser (built web app served by the real server)', () => {
-  let db: TestDatabase;
-  let server: RunningProcess & { baseUrl: string };
+  let s: SeededServer;
   let browser: Browser;
 
   beforeAll(async () => {
-    db = await createTestDatabase();
-    server = await startServer(db.url);
+    s = await startSeededServer();
     browser = await launchBrowser();
   });
   afterAll(async () => {
     await browser?.close();
-    await server?.stop();
-    await db?.drop();
+    await s?.close();
   });
 
   for (const [name, viewport] of Object.entries(VIEWPORTS)) {
@@ -26,7 +23,8 @@ describe('status screen in the browser (built web app served by the real server)
       const page = await browser.newPage({ viewport });
       const errors: string[] = [];
       page.on('pageerror', (e) => errors.push(e.message));
-      await page.goto(server.baseUrl + '/', { waitUntil: 'networkidle' });
+      await signInThroughUi(page, s.server.baseUrl, 'supervisor', DEMO_PASSWORD);
+      await page.goto(s.server.baseUrl + '/', { waitUntil: 'networkidle' });
       await page.getByTestId('health-database-state').waitFor();
       expect(await page.getByTestId('health-database-state').textContent()).toBe('Up');
       expect(await page.getByTestId('health-overall').textContent()).toBe('All services are up.');
@@ -49,7 +47,8 @@ describe('status screen in the browser (built web app served by the real server)
 
   it('shows the cautions on the about page', async () => {
     const page = await browser.newPage({ viewport: VIEWPORTS.phone });
-    await page.goto(server.baseUrl + '/about', { waitUntil: 'networkidle' });
+    await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
+    await page.goto(s.server.baseUrl + '/about', { waitUntil: 'networkidle' });
     const cautions = page.getByTestId('cautions');
     await cautions.waitFor();
     expect(await cautions.textContent()).toMatch(/prove nothing alone/);

@@ -37,3 +37,12 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   await page.screenshot({ path: file, fullPage: true });
   return file;
 }
+
+/** Signs in through the sign-in screen and waits until the app has left it. */
+export async function signInThroughUi(page: Page, baseUrl: string, username: string, password: string): Promise<void> {
+  await page.goto(baseUrl + '/sign-in', { waitUntil: 'networkidle' });
+  await page.getByTestId('sign-in-username').fill(username);
+  await page.getByTestId('sign-in-password').fill(password);
+  await page.getByTestId('sign-in-submit').click();
+  await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 20_000 });
+}

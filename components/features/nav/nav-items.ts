@@ -11,6 +11,8 @@ interface RoleNavItem extends NavItem {
 
 export const NAV_ITEMS: readonly RoleNavItem[] = [
   { href: '/', label: 'Status', roles: 'all' },
+  { href: '/users', label: 'Users', roles: ['admin'] },
+  { href: '/access-log', label: 'Access log', roles: ['admin'] },
   { href: '/about', label: 'About', roles: 'all' },
 ];
 

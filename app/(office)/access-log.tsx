@@ -1,0 +1,1 @@
+export { AccessLogScreen as default } from '../../components/features/access-log/access-log-screen';

@@ -1,0 +1,1 @@
+export { UsersScreen as default } from '../../components/features/users/users-screen';

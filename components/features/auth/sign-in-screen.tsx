@@ -1,0 +1,89 @@
+import { zodResolver } from '@hookform/resolvers/zod';
+import { Redirect } from 'expo-router';
+import { Controller, useForm } from 'react-hook-form';
+import { ScrollView, View } from 'react-native';
+import { useSession, useSignIn } from '../../../hooks/use-session';
+import { LoginRequestSchema, type LoginRequest } from '../../../shared/auth';
+import { colours, space } from '../../theme';
+import { Button } from '../../ui/button';
+import { Card } from '../../ui/card';
+import { Field } from '../../ui/field';
+import { PlumbMark } from '../../ui/plumb-mark';
+import { Txt } from '../../ui/text';
+import { START_PATH } from '../nav/start-path';
+
+/** Staff sign-in. Taxpayers never sign in; they use the one-time link in their letter. */
+export function SignInScreen() {
+  const session = useSession();
+  const signIn = useSignIn();
+  const form = useForm<LoginRequest>({ resolver: zodResolver(LoginRequestSchema), defaultValues: { username: '', password: '' } });
+
+  if (session.data) return <Redirect href={START_PATH[session.data.user.role] as never} />;
+
+  const submit = form.handleSubmit((values) => signIn.mutate(values));
+  return (
+    <ScrollView style={{ flex: 1, backgroundColor: colours.ink }} contentContainerStyle={{ flexGrow: 1, justifyContent: 'center', padding: space.lg }}>
+      <View style={{ width: '100%', maxWidth: 420, alignSelf: 'center', gap: space.lg }}>
+        <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.sm }}>
+          <PlumbMark size={40} />
+          <View>
+            <Txt variant="display" bold tone="white" accessibilityRole="header">
+              Plumbline
+            </Txt>
+            <Txt variant="small" style={{ color: '#B9C8C6' }}>
+              Aldermere Revenue Office · examinations
+            </Txt>
+          </View>
+        </View>
+        <Card style={{ gap: space.lg, padding: space.xl }}>
+          <Txt variant="title" bold>
+            Sign in
+          </Txt>
+          <Controller
+            control={form.control}
+            name="username"
+            render={({ field, fieldState }) => (
+              <Field
+                testID="sign-in-username"
+                label="User name"
+                autoCapitalize="none"
+                autoComplete="username"
+                value={field.value}
+                onChangeText={field.onChange}
+                onBlur={field.onBlur}
+                error={fieldState.error?.message}
+                onSubmitEditing={submit}
+              />
+            )}
+          />
+          <Controller
+            control={form.control}
+            name="password"
+            render={({ field, fieldState }) => (
+              <Field
+                testID="sign-in-password"
+                label="Password"
+                secureTextEntry
+                autoComplete="current-password"
+                value={field.value}
+                onChangeText={field.onChange}
+                onBlur={field.onBlur}
+                error={fieldState.error?.message}
+                onSubmitEditing={submit}
+              />
+            )}
+          />
+          {signIn.error && (
+            <Txt tone="alert" testID="sign-in-error" accessibilityRole="alert">
+              {signIn.error.message}
+            </Txt>
+          )}
+          <Button testID="sign-in-submit" label="Sign in" onPress={submit} busy={signIn.isPending} />
+          <Txt variant="caption" tone="faint">
+            Every view of taxpayer data is recorded in the access log. Use only your own account.
+          </Txt>
+        </Card>
+      </View>
+    </ScrollView>
+  );
+}
