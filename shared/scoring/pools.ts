@@ -1,0 +1,45 @@
+/**
+ * Pooled digit figures: many amounts from one preparer's clients, one taxpayer's years, or
+ * one line code across a batch. Only here, with N large, do the fixed published MAD
+ * thresholds apply (Nigrini 2012; METHODS.md "Small samples"); below
+ * `pooledFixedThresholdMinN` amounts the size-aware figure decides instead, because the
+ * fixed lines fail most honest samples of a few hundred (P(MAD > 0.015) = 0.33 at N = 300).
+ */
+import { profileCents, type Conformity, type SizeAwareVerdict } from '../digits';
+import { clamp01 } from './format';
+
+/** What a pool's digits say, and how strongly that points at its returns. */
+export interface PooledDigits {
+  n: number;
+  mad: number | null;
+  /** Fixed-threshold conformity of the first digit; 'too_few' below the pooled minimum. */
+  conformity: Conformity;
+  /** Size-aware verdict of the first digit. */
+  verdict: SizeAwareVerdict;
+  zScore: number | null;
+  /** 0–1: 1 for nonconformity (or a high size-aware z), 0.5 for marginal (or elevated). */
+  strength: number;
+  /** Which rule decided: the fixed thresholds (large N) or the size-aware figure. */
+  judgedBy: 'fixed' | 'size-aware' | 'none';
+}
+
+/** Digit-pattern strength from a size-aware z (z < 1.5 gives 0; z >= 4 gives 1). */
+export function strengthFromZ(z: number | null): number {
+  return z === null ? 0 : clamp01((z - 1.5) / 2.5);
+}
+
+/** Judges one pool of amounts (signed integer cents; zeros are left out by the profile). */
+export function judgePool(cents: ArrayLike<number>, fixedMinN: number): PooledDigits {
+  const p = profileCents(cents, { top: 0 });
+  const fd = p.firstDigit;
+  const sa = p.sizeAware;
+  if (fd.n >= fixedMinN) {
+    const c = fd.conformity;
+    const strength = c === 'nonconformity' ? 1 : c === 'marginal' ? 0.5 : 0;
+    return { n: fd.n, mad: fd.mad, conformity: c, verdict: sa.verdict, zScore: sa.zScore, strength, judgedBy: 'fixed' };
+  }
+  if (sa.verdict === 'too_few') {
+    return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: 'too_few', zScore: null, strength: 0, judgedBy: 'none' };
+  }
+  return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: sa.verdict, zScore: sa.zScore, strength: strengthFromZ(sa.zScore), judgedBy: 'size-aware' };
+}
