@@ -9,6 +9,8 @@ import PgBoss from 'pg-boss';
 export const QUEUES = {
   /** Score every return of one accepted filing batch: data {batchId}. */
   scoreBatch: 'score-batch',
+  /** Score one slice of a batch's returns: data {runId, fromId, toId}. Any worker may take it. */
+  scoreChunk: 'score-chunk',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -32,7 +34,7 @@ export async function ensureQueues(boss: PgBoss): Promise<void> {
     if (!existing) {
       // retryLimit: a batch job that fails (e.g. the worker was killed) is retried; the
       // scoring job is idempotent, so a retry finishes the work and scores nothing twice.
-      await boss.createQueue(name, { name, retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInMinutes: 60 });
+      await boss.createQueue(name, { name, retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInMinutes: 15 });
     }
   }
 }

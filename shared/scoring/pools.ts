@@ -5,7 +5,7 @@
  * `pooledFixedThresholdMinN` amounts the size-aware figure decides instead, because the
  * fixed lines fail most honest samples of a few hundred (P(MAD > 0.015) = 0.33 at N = 300).
  */
-import { profileCents, type Conformity, type SizeAwareVerdict } from '../digits';
+import { DigitCounter, evaluateDigitTest, sizeAwareFigure, type Conformity, type SizeAwareVerdict } from '../digits';
 import { clamp01 } from './format';
 
 /** What a pool's digits say, and how strongly that points at its returns. */
@@ -28,11 +28,13 @@ export function strengthFromZ(z: number | null): number {
   return z === null ? 0 : clamp01((z - 1.5) / 2.5);
 }
 
-/** Judges one pool of amounts (signed integer cents; zeros are left out by the profile). */
-export function judgePool(cents: ArrayLike<number>, fixedMinN: number): PooledDigits {
-  const p = profileCents(cents, { top: 0 });
-  const fd = p.firstDigit;
-  const sa = p.sizeAware;
+/**
+ * Judges a pool from its first-digit counts (digits 1..9), so large pools can be counted in
+ * SQL without bringing every amount into memory.
+ */
+export function judgeFirstDigitCounts(counts: ArrayLike<number>, fixedMinN: number): PooledDigits {
+  const fd = evaluateDigitTest('firstDigit', counts);
+  const sa = sizeAwareFigure('firstDigit', fd.n, fd.mad);
   if (fd.n >= fixedMinN) {
     const c = fd.conformity;
     const strength = c === 'nonconformity' ? 1 : c === 'marginal' ? 0.5 : 0;
@@ -42,4 +44,11 @@ export function judgePool(cents: ArrayLike<number>, fixedMinN: number): PooledDi
     return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: 'too_few', zScore: null, strength: 0, judgedBy: 'none' };
   }
   return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: sa.verdict, zScore: sa.zScore, strength: strengthFromZ(sa.zScore), judgedBy: 'size-aware' };
+}
+
+/** Judges one pool of amounts (signed integer cents; zeros are left out). */
+export function judgePool(cents: ArrayLike<number>, fixedMinN: number): PooledDigits {
+  const counter = new DigitCounter();
+  counter.addAll(cents);
+  return judgeFirstDigitCounts(counter.counts('firstDigit'), fixedMinN);
 }

@@ -1,0 +1,331 @@
+/**
+ * Scoring a filing batch: one run per batch and profile version. The run's batch-wide
+ * context (peer percentiles, preparer pools, line-code pools) is computed once and stored;
+ * the returns are then scored in id-ordered slices ("chunks"), each its own pg-boss job and
+ * its own transaction, so two workers share the work and a crash loses at most the slice
+ * in flight, which is retried. Every score insert is `ON CONFLICT DO NOTHING` on
+ * (return, profile version), so nothing is ever scored twice.
+ */
+import type PgBoss from 'pg-boss';
+import type { DataSource, EntityManager } from 'typeorm';
+import type { StatementKind } from '../../shared/returns/line-codes';
+import type { ScoreBreakdown } from '../../shared/scoring/breakdown';
+import { incomeBand, type PeerBands, type ReturnFacts } from '../../shared/scoring/factors';
+import { judgeFirstDigitCounts, type PooledDigits } from '../../shared/scoring/pools';
+import { scoreReturn, type ScoreContext } from '../../shared/scoring/score-return';
+import { ScoringSettingsSchema, type ScoringSettings } from '../../shared/scoring/settings';
+import { QUEUES } from '../queue/queues';
+import {
+  activeProfileVersion,
+  batchDeductionFigures,
+  batchReturnIds,
+  historyOf,
+  lineCodeDigitCounts,
+  linesOf,
+  preparerDigitCounts,
+  preparerSharedAmounts,
+  statementsOf,
+  taxpayerDigitCounts,
+  unscoredReturns,
+} from './scoring.repository';
+
+/** Returns per chunk job (env SCORING_CHUNK_SIZE). Large enough that a chunk outlasts pg-boss's 0.5 s polling gap. */
+export const CHUNK_SIZE = Number(process.env.SCORING_CHUNK_SIZE ?? 500);
+
+/** What a chunk job carries. */
+export interface ChunkJob {
+  runId: string;
+  fromId: string;
+  toId: string;
+}
+
+/** The stored batch-wide context of a run (JSON). */
+export interface RunContext {
+  peerLimits: PeerBands['limits'];
+  preparers: Record<string, PooledDigits & { firstDigitCounts: number[] }>;
+  shared: Record<string, number[]>;
+  lineCodes: Record<string, PooledDigits & { firstDigitCounts: number[] }>;
+}
+
+async function loadSettings(db: DataSource | EntityManager, version: number): Promise<ScoringSettings> {
+  const r = await db.query(`SELECT settings FROM scoring_profile WHERE version = $1`, [version]);
+  if (!r.length) throw new Error(`Scoring profile version ${version} does not exist.`);
+  return ScoringSettingsSchema.parse(r[0].settings);
+}
+
+function percentile(xs: number[], q: number): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s[Math.min(s.length - 1, Math.floor(q * s.length))];
+}
+
+/** Batch-wide context: computed once per run. */
+export async function computeRunContext(ds: DataSource, batchId: string, settings: ScoringSettings): Promise<RunContext> {
+  const p = settings.params;
+  const figures = await batchDeductionFigures(ds, batchId);
+  const bands = new Map<string, { charity: number[]; medical: number[] }>();
+  for (const f of figures) {
+    if (f.income <= 0) continue;
+    const b = incomeBand(f.income);
+    const s = bands.get(b) ?? { charity: [], medical: [] };
+    s.charity.push(f.charity / f.income);
+    s.medical.push(f.medical / f.income);
+    bands.set(b, s);
+  }
+  const peerLimits: PeerBands['limits'] = {};
+  for (const [b, s] of bands) {
+    const enough = s.charity.length >= p.deductionMinPeers;
+    peerLimits[b] = { charity: enough ? percentile(s.charity, p.deductionPercentile) : null, medical: enough ? percentile(s.medical, p.deductionPercentile) : null, n: s.charity.length };
+  }
+  const preparers: RunContext['preparers'] = {};
+  for (const [id, counts] of await preparerDigitCounts(ds, batchId)) preparers[id] = { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts };
+  const shared: RunContext['shared'] = {};
+  for (const [id, list] of await preparerSharedAmounts(ds, batchId, p.repeatMinCents)) shared[id] = list;
+  const lineCodes: RunContext['lineCodes'] = {};
+  for (const [code, counts] of await lineCodeDigitCounts(ds, batchId)) lineCodes[code] = { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts };
+  return { peerLimits, preparers, shared, lineCodes };
+}
+
+/** Creates the run for (batch, version) once, and returns it with the batch's return ids. */
+async function ensureRun(ds: DataSource, batchId: string, version?: number): Promise<{ runId: string; done: number; ids: string[] }> {
+  const v = version ?? (await activeProfileVersion(ds));
+  const settings = await loadSettings(ds, v);
+  const find = () =>
+    ds.query(`SELECT id, scored, failed, finished_at FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [batchId, v]) as Promise<
+      { id: string; scored: number; failed: number; finished_at: Date | null }[]
+    >;
+  let run = await find();
+  const ids = await batchReturnIds(ds, batchId);
+  if (!run.length) {
+    const context = await computeRunContext(ds, batchId, settings);
+    await ds.query(
+      `INSERT INTO scoring_run (batch_id, profile_version, total, context) VALUES ($1, $2, $3, $4::jsonb) ON CONFLICT (batch_id, profile_version) DO NOTHING`,
+      [batchId, v, ids.length, JSON.stringify(context)],
+    );
+    run = await find();
+  }
+  const runId = String(run[0].id);
+  const done = run[0].scored + run[0].failed;
+  // A finished run leaves the batch as it is (a retried job, or a second call).
+  if (!run[0].finished_at) {
+    await ds.query(`UPDATE filing_batch SET state = 'scoring', scored_count = $2, updated_at = now() WHERE id = $1 AND state IN ('queued', 'scored')`, [batchId, done]);
+    if (ids.length === 0) await finishIfDone(ds, runId);
+  }
+  return { runId, done, ids };
+}
+
+/** Splits id-ordered return ids into chunk jobs. */
+function chunkJobs(runId: string, ids: string[]): ChunkJob[] {
+  const jobs: ChunkJob[] = [];
+  for (let i = 0; i < ids.length; i += CHUNK_SIZE) jobs.push({ runId, fromId: ids[i], toId: ids[Math.min(ids.length, i + CHUNK_SIZE) - 1] });
+  return jobs;
+}
+
+/**
+ * Starts (or resumes) scoring a batch under a profile version: creates the run once, marks
+ * the batch as scoring, and sends one job per slice. Safe to call again: the run is reused
+ * and slices already scored are skipped by their jobs.
+ *
+ * @returns the run id and how many chunk jobs were sent
+ */
+export async function startScoringRun(ds: DataSource, boss: PgBoss, batchId: string, version?: number): Promise<{ runId: string; chunks: number }> {
+  const { runId, ids } = await ensureRun(ds, batchId, version);
+  const jobs = chunkJobs(runId, ids);
+  for (let i = 0; i < jobs.length; i++) {
+    // singletonKey: a retried batch job does not queue the same slice twice while it waits.
+    await boss.send(QUEUES.scoreChunk, jobs[i], { singletonKey: `${runId}:${i}` });
+  }
+  return { runId, chunks: jobs.length };
+}
+
+/**
+ * Scores a whole batch in this process, slice by slice, without the queue: the same code the
+ * worker runs, for the demo seed, benchmarks and tests.
+ */
+export async function scoreBatchNow(ds: DataSource, batchId: string, version?: number): Promise<{ runId: string; scored: number; failed: number }> {
+  const { runId, ids } = await ensureRun(ds, batchId, version);
+  let scored = 0;
+  let failed = 0;
+  for (const job of chunkJobs(runId, ids)) {
+    const r = await scoreChunk(ds, job);
+    scored += r.scored;
+    failed += r.failed;
+  }
+  return { runId, scored, failed };
+}
+
+/** TypeORM answers UPDATE … RETURNING with [rows, affected]; INSERT … RETURNING with rows. */
+function returnedRows<T>(result: unknown): T[] {
+  if (Array.isArray(result) && result.length === 2 && Array.isArray(result[0]) && typeof result[1] === 'number') return result[0] as T[];
+  return result as T[];
+}
+
+async function finishIfDone(db: DataSource | EntityManager, runId: string): Promise<boolean> {
+  const r = returnedRows<{ batch_id: string }>(await db.query(
+    `UPDATE scoring_run SET finished_at = now() WHERE id = $1 AND finished_at IS NULL AND scored + failed >= total RETURNING batch_id`,
+    [runId],
+  ));
+  if (!r.length) return false;
+  await db.query(`UPDATE filing_batch SET state = 'scored', updated_at = now() WHERE id = $1 AND state = 'scoring'`, [r[0].batch_id]);
+  return true;
+}
+
+function toHistoryTotals(h: Awaited<ReturnType<typeof historyOf>>[number]) {
+  return {
+    wages: h.wages,
+    interest: h.interest,
+    receipts: h.receipts,
+    businessExpenses: h.expenses,
+    income: h.income,
+    charity: 0,
+    medical: 0,
+    deductions: h.deductions,
+    taxable: h.taxable,
+    tax: h.tax,
+    withheld: h.withheld,
+    refund: h.refund,
+    reported: { income: null, deductions: null, refund: null },
+  };
+}
+
+/** One scored (or failed) return, ready to store. */
+interface Outcome {
+  returnId: string;
+  taxpayerId: string;
+  status: 'scored' | 'failed';
+  riskScore: number | null;
+  stakeCents: number | null;
+  priority: number | null;
+  breakdown: ScoreBreakdown | null;
+  reason: string | null;
+}
+
+/**
+ * Scores one slice of a run. Idempotent: returns already scored under the run's version are
+ * skipped, and the slice's scores, cases and progress commit together or not at all.
+ *
+ * @returns how many returns this call scored and how many failed
+ */
+export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ scored: number; failed: number; skipped: boolean }> {
+  const runRows: { batch_id: string; profile_version: number; context: RunContext }[] = await ds.query(`SELECT batch_id, profile_version, context FROM scoring_run WHERE id = $1`, [job.runId]);
+  if (!runRows.length) throw new Error(`scoring run ${job.runId} does not exist`);
+  const { batch_id: batchId, profile_version: version, context } = runRows[0];
+  const settings = await loadSettings(ds, version);
+  const todo = await unscoredReturns(ds, batchId, version, job.fromId, job.toId);
+  if (!todo.length) {
+    await finishIfDone(ds, job.runId);
+    return { scored: 0, failed: 0, skipped: true };
+  }
+
+  const ids = todo.map((r) => r.id);
+  const taxpayerIds = [...new Set(todo.map((r) => r.taxpayerId))];
+  const [lines, statements, history, tpCounts] = await Promise.all([
+    linesOf(ds, ids),
+    statementsOf(ds, [...new Set(todo.map((r) => r.tin))]),
+    historyOf(ds, taxpayerIds),
+    taxpayerDigitCounts(ds, taxpayerIds),
+  ]);
+  const historyByTaxpayer = new Map<string, typeof history>();
+  for (const h of history) historyByTaxpayer.set(h.taxpayerId, [...(historyByTaxpayer.get(h.taxpayerId) ?? []), h]);
+  const peers: PeerBands = { bandOf: incomeBand, limits: context.peerLimits };
+  const sharedSets = new Map<string, Set<number>>();
+
+  const outcomes: Outcome[] = todo.map((r) => {
+    try {
+      const own = lines.get(r.id) ?? [];
+      if (own.length === 0) throw new Error('the return has no line items on file');
+      const others = (historyByTaxpayer.get(r.taxpayerId) ?? []).filter((h) => h.returnId !== r.id && h.taxYear !== r.taxYear);
+      const facts: ReturnFacts = {
+        taxYear: r.taxYear,
+        activityCode: r.activityCode,
+        lines: own,
+        statements: (statements.get(r.tin) ?? []).filter((s) => s.taxYear === r.taxYear).map((s) => ({ kind: s.kind as StatementKind, cents: s.cents })),
+        history: others.map((h) => ({ taxYear: h.taxYear, totals: toHistoryTotals(h) })),
+      };
+      let shared = r.preparerId ? sharedSets.get(r.preparerId) : undefined;
+      if (r.preparerId && !shared) {
+        shared = new Set(context.shared[r.preparerId] ?? []);
+        sharedSets.set(r.preparerId, shared);
+      }
+      const historyCounts = others.length ? tpCounts.get(r.taxpayerId) : undefined;
+      const ctx: ScoreContext = {
+        settings,
+        peers,
+        preparer: r.preparerId ? (context.preparers[r.preparerId] ?? null) : null,
+        history: historyCounts ? judgeFirstDigitCounts(historyCounts, settings.params.pooledFixedThresholdMinN) : null,
+        sharedWithClients: shared ?? new Set(),
+      };
+      const s = scoreReturn(facts, ctx);
+      return { returnId: r.id, taxpayerId: r.taxpayerId, status: 'scored', riskScore: s.riskScore, stakeCents: s.amountAtStakeCents, priority: s.priority, breakdown: s.breakdown, reason: null };
+    } catch (e) {
+      return { returnId: r.id, taxpayerId: r.taxpayerId, status: 'failed', riskScore: null, stakeCents: null, priority: null, breakdown: null, reason: e instanceof Error ? e.message : String(e) };
+    }
+  });
+
+  return ds.transaction(async (m) => {
+    const inserted: { id: string; return_id: string }[] = await m.query(
+      `INSERT INTO return_score (return_id, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown, failure_reason)
+       SELECT u.return_id, $1, $2, u.status, u.risk_score, u.stake / 100.0, u.priority, u.breakdown, u.reason
+         FROM unnest($3::uuid[], $4::text[], $5::numeric[], $6::bigint[], $7::numeric[], $8::jsonb[], $9::text[])
+              AS u(return_id, status, risk_score, stake, priority, breakdown, reason)
+       ON CONFLICT (return_id, profile_version) DO NOTHING
+       RETURNING id, return_id`,
+      [
+        batchId,
+        version,
+        outcomes.map((o) => o.returnId),
+        outcomes.map((o) => o.status),
+        outcomes.map((o) => o.riskScore),
+        outcomes.map((o) => o.stakeCents),
+        outcomes.map((o) => o.priority),
+        outcomes.map((o) => (o.breakdown ? JSON.stringify(o.breakdown) : null)),
+        outcomes.map((o) => o.reason),
+      ],
+    );
+    const scoreIdOf = new Map(inserted.map((r) => [r.return_id, r.id]));
+    const fresh = outcomes.filter((o) => scoreIdOf.has(o.returnId));
+    const selected = fresh.filter((o) => o.status === 'scored' && o.breakdown!.selected);
+    if (selected.length) await openCases(m, batchId, version, selected, scoreIdOf);
+    const scored = fresh.filter((o) => o.status === 'scored').length;
+    const failed = fresh.length - scored;
+    const run = returnedRows<{ scored: number; failed: number }>(
+      await m.query(`UPDATE scoring_run SET scored = scored + $2, failed = failed + $3 WHERE id = $1 RETURNING scored, failed`, [job.runId, scored, failed]),
+    );
+    await m.query(`UPDATE filing_batch SET scored_count = $2, updated_at = now() WHERE id = $1`, [batchId, run[0].scored + run[0].failed]);
+    await finishIfDone(m, job.runId);
+    return { scored, failed, skipped: false };
+  });
+}
+
+/**
+ * Opens a case for each newly selected return; a return that already has a case (scored
+ * before under another version) keeps its case, which takes the newer score's figures.
+ */
+async function openCases(m: EntityManager, batchId: string, version: number, selected: Outcome[], scoreIdOf: Map<string, string>): Promise<void> {
+  const rows: { id: string; inserted: boolean }[] = await m.query(
+    `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority)
+     SELECT u.return_id, u.taxpayer_id, $1, u.score_id, u.risk_score, u.stake / 100.0, u.priority
+       FROM unnest($2::uuid[], $3::uuid[], $4::bigint[], $5::numeric[], $6::bigint[], $7::numeric[])
+            AS u(return_id, taxpayer_id, score_id, risk_score, stake, priority)
+     ON CONFLICT (return_id) DO UPDATE
+       SET score_id = EXCLUDED.score_id, risk_score = EXCLUDED.risk_score,
+           amount_at_stake = EXCLUDED.amount_at_stake, priority = EXCLUDED.priority, updated_at = now()
+     RETURNING id, (xmax = 0) AS inserted`,
+    [
+      batchId,
+      selected.map((o) => o.returnId),
+      selected.map((o) => o.taxpayerId),
+      selected.map((o) => scoreIdOf.get(o.returnId)),
+      selected.map((o) => o.riskScore),
+      selected.map((o) => o.stakeCents),
+      selected.map((o) => o.priority),
+    ],
+  );
+  const opened = rows.filter((r) => r.inserted).map((r) => r.id);
+  const rescored = rows.filter((r) => !r.inserted).map((r) => r.id);
+  if (opened.length) {
+    await m.query(`INSERT INTO case_event (case_id, kind, to_state, detail) SELECT id, 'opened', 'open', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [opened, version]);
+  }
+  if (rescored.length) {
+    await m.query(`INSERT INTO case_event (case_id, kind, detail) SELECT id, 'rescored', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [rescored, version]);
+  }
+}

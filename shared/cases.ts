@@ -1,0 +1,69 @@
+/**
+ * Examination cases (DESIGN.md section 2): states and the moves between them.
+ * open → assigned → in_review → awaiting_reply → (referred | closed_no_change | closed_adjusted)
+ */
+import { z } from 'zod';
+
+export const CASE_STATES = ['open', 'assigned', 'in_review', 'awaiting_reply', 'referred', 'closed_no_change', 'closed_adjusted'] as const;
+export const CaseStateSchema = z.enum(CASE_STATES);
+export type CaseState = z.infer<typeof CaseStateSchema>;
+
+/** Words for each state on screen. */
+export const CASE_STATE_LABELS: Record<CaseState, string> = {
+  open: 'Open',
+  assigned: 'Assigned',
+  in_review: 'In review',
+  awaiting_reply: 'Awaiting reply',
+  referred: 'Referred',
+  closed_no_change: 'Closed, no change',
+  closed_adjusted: 'Closed, adjusted',
+};
+
+/** States from which a case may be finished. */
+export const FINAL_STATES: readonly CaseState[] = ['referred', 'closed_no_change', 'closed_adjusted'];
+
+/**
+ * The moves a case may make (DESIGN.md section 2). `open → assigned` happens only by claim
+ * or assignment; `in_review → awaiting_reply` only by sending a document request.
+ */
+export const CASE_TRANSITIONS: Readonly<Record<CaseState, readonly CaseState[]>> = {
+  open: ['assigned'],
+  assigned: ['in_review', 'open'],
+  in_review: ['awaiting_reply', 'referred', 'closed_no_change', 'closed_adjusted'],
+  awaiting_reply: ['in_review', 'referred', 'closed_no_change', 'closed_adjusted'],
+  referred: [],
+  closed_no_change: [],
+  closed_adjusted: [],
+};
+
+/** True when `from → to` is a move the workflow allows. */
+export function canTransition(from: CaseState, to: CaseState): boolean {
+  return CASE_TRANSITIONS[from].includes(to);
+}
+
+/** Body of `POST /api/cases/:id/transition`. */
+export const TransitionRequestSchema = z
+  .object({
+    to: CaseStateSchema,
+    outcome: z.string().trim().max(2000).optional(),
+    /** Adjusted amount of tax, decimal text with at most 2 decimals (required for closed_adjusted). */
+    adjustedAmount: z
+      .string()
+      .regex(/^\d{1,12}(\.\d{1,2})?$/, 'Give the adjusted amount as a number with at most 2 decimals, e.g. 1250.00')
+      .optional(),
+  })
+  .superRefine((v, ctx) => {
+    if (v.to === 'closed_adjusted' && !v.adjustedAmount) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Closing as adjusted needs the adjusted amount' });
+    if (v.to === 'closed_adjusted' && v.adjustedAmount && Number(v.adjustedAmount) <= 0) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'The adjusted amount must be more than 0' });
+    if (v.to !== 'closed_adjusted' && v.adjustedAmount) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Only a case closed as adjusted has an adjusted amount' });
+    if ((v.to === 'closed_no_change' || v.to === 'closed_adjusted' || v.to === 'referred') && !v.outcome) ctx.addIssue({ code: 'custom', path: ['outcome'], message: 'Say in a sentence what was found or why the case moves on' });
+  });
+export type TransitionRequest = z.infer<typeof TransitionRequestSchema>;
+
+/** Body of `POST /api/cases/:id/assign`. */
+export const AssignRequestSchema = z.object({ assigneeId: z.uuid('Choose an examiner') });
+export type AssignRequest = z.infer<typeof AssignRequestSchema>;
+
+/** Body of `POST /api/cases/:id/notes`. */
+export const NoteRequestSchema = z.object({ text: z.string().trim().min(1, 'Write the note first').max(10_000, 'Keep a note under 10,000 characters') });
+export type NoteRequest = z.infer<typeof NoteRequestSchema>;

@@ -1,0 +1,59 @@
+import { createTestContext, type TestContext } from '../helpers/test-app';
+import { loadGeneratedBatch } from '../helpers/scored-batch';
+import { scoreBatchNow } from '../../server/scoring/scoring.service';
+import { ScoreBreakdownSchema } from '../../shared/scoring/breakdown';
+
+jest.setTimeout(60_000);
+
+describe('scoring a batch (in-process, the code the worker runs)', () => {
+  let ctx: TestContext;
+  beforeAll(async () => {
+    ctx = await createTestContext();
+  });
+  afterAll(async () => {
+    await ctx.close();
+  });
+
+  it('scores every return once, opens cases at the cut, marks the batch scored, and a second run changes nothing', async () => {
+    const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-1', returns: 400, plantShare: 0.1 });
+    const first = await scoreBatchNow(ctx.dataSource, b.batchId);
+    expect(first.scored + first.failed).toBe(400);
+    const again = await scoreBatchNow(ctx.dataSource, b.batchId);
+    expect(again).toMatchObject({ scored: 0, failed: 0 });
+    const [{ n, distinct }] = await ctx.dataSource.query(`SELECT count(*)::int AS n, count(DISTINCT return_id)::int AS distinct FROM return_score WHERE batch_id = $1`, [b.batchId]);
+    expect({ n, distinct }).toEqual({ n: 400, distinct: 400 });
+    const batch = (await ctx.dataSource.query(`SELECT state, scored_count FROM filing_batch WHERE id = $1`, [b.batchId]))[0];
+    expect(batch).toEqual({ state: 'scored', scored_count: 400 });
+    const [{ selected }] = await ctx.dataSource.query(`SELECT count(*)::int AS selected FROM return_score WHERE batch_id = $1 AND (breakdown->>'selected')::boolean`, [b.batchId]);
+    const [{ cases }] = await ctx.dataSource.query(`SELECT count(*)::int AS cases FROM exam_case WHERE batch_id = $1`, [b.batchId]);
+    expect(cases).toBe(selected);
+    expect(cases).toBeGreaterThan(0);
+    const opened = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM case_event WHERE kind = 'opened'`);
+    expect(opened[0].n).toBe(cases);
+    const one = (await ctx.dataSource.query(`SELECT breakdown FROM return_score WHERE batch_id = $1 LIMIT 1`, [b.batchId]))[0];
+    expect(() => ScoreBreakdownSchema.parse(one.breakdown)).not.toThrow();
+  });
+
+  it('records a return that cannot be scored, with the reason, and finishes the batch', async () => {
+    const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-2', returns: 60, plantShare: 0 });
+    const victim = [...b.returnIdOf.values()][7];
+    await ctx.dataSource.query(`DELETE FROM line_item WHERE return_id = $1`, [victim]);
+    const r = await scoreBatchNow(ctx.dataSource, b.batchId);
+    expect(r).toMatchObject({ scored: 59, failed: 1 });
+    const row = (await ctx.dataSource.query(`SELECT status, failure_reason, risk_score FROM return_score WHERE return_id = $1`, [victim]))[0];
+    expect(row).toEqual({ status: 'failed', failure_reason: 'the return has no line items on file', risk_score: null });
+    expect((await ctx.dataSource.query(`SELECT state FROM filing_batch WHERE id = $1`, [b.batchId]))[0].state).toBe('scored');
+  });
+
+  it('re-scoring under a new profile version keeps the old scores', async () => {
+    const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-3', returns: 80, plantShare: 0.1 });
+    await scoreBatchNow(ctx.dataSource, b.batchId);
+    const before = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 1 ORDER BY return_id`, [b.batchId]);
+    await ctx.dataSource.query(`INSERT INTO scoring_profile (version, settings, note) SELECT 2, jsonb_set(settings, '{weights,cashHeavy}', '40'), 'test' FROM scoring_profile WHERE version = 1`);
+    await scoreBatchNow(ctx.dataSource, b.batchId, 2);
+    const after = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 1 ORDER BY return_id`, [b.batchId]);
+    expect(after).toEqual(before);
+    const v2 = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM return_score WHERE batch_id = $1 AND profile_version = 2`, [b.batchId]);
+    expect(v2[0].n).toBe(80);
+  });
+});
