@@ -17,8 +17,35 @@ import { connectionString, recreateDatabase, startCluster, stopCluster } from '.
 import { isPortFree, startMaildev, stopProcess, waitForPort, type Managed } from './lib/processes';
 import { ensureWebBuild } from './lib/web-build';
 
-export const TEMPLATE_DB = 'plumbline_template';
+// One template per run, so two `npm test` runs at once (a developer and a helper, say) never
+// rebuild each other's template.
+export const TEMPLATE_DB = `plumbline_template_${process.pid}`;
 const log = (m: string) => console.log(`test   | ${m}`);
+
+/** Live test runs register here; the last one to finish stops the shared test cluster. */
+const runsDir = path.join(path.dirname(T.cluster.dataDir), 'runs');
+
+function otherLiveRuns(): number[] {
+  if (!fs.existsSync(runsDir)) return [];
+  return fs
+    .readdirSync(runsDir)
+    .map(Number)
+    .filter((pid) => pid !== process.pid && Number.isInteger(pid))
+    .filter((pid) => {
+      try {
+        process.kill(pid, 0);
+        return true;
+      } catch {
+        fs.rmSync(path.join(runsDir, String(pid)), { force: true });
+        return false;
+      }
+    });
+}
+
+async function freePortFrom(start: number): Promise<number> {
+  for (let p = start; p < start + 200; p++) if (await isPortFree(p)) return p;
+  throw new Error(`no free port near ${start}`);
+}
 
 async function prepareTemplate(): Promise<void> {
   await recreateDatabase(T.cluster, TEMPLATE_DB);
@@ -38,17 +65,20 @@ async function main(): Promise<number> {
   const t0 = Date.now();
   const jestArgs = process.argv.slice(2);
   let maildev: Managed | null = null;
+  fs.mkdirSync(runsDir, { recursive: true });
+  fs.writeFileSync(path.join(runsDir, String(process.pid)), '');
   try {
     await startCluster(T.cluster, log);
     await prepareTemplate();
     log('template database migrated');
-    if (!(await isPortFree(T.smtpPort))) {
-      throw new Error(`Port ${T.smtpPort} (test MailDev) is in use: is another \`npm test\` running? Wait for it to finish.`);
-    }
-    fs.rmSync(T.maildevDir, { recursive: true, force: true });
-    maildev = startMaildev(T.smtpPort, T.mailWebPort, T.maildevDir, true);
-    await waitForPort(T.smtpPort);
-    await waitForPort(T.mailWebPort);
+    // The usual ports when free; others when another run holds them.
+    const smtpPort = await freePortFrom(T.smtpPort);
+    const mailWebPort = await freePortFrom(smtpPort === T.smtpPort ? T.mailWebPort : T.mailWebPort + 100 + (process.pid % 50));
+    const mailDir = `${T.maildevDir}-${process.pid}`;
+    fs.rmSync(mailDir, { recursive: true, force: true });
+    maildev = startMaildev(smtpPort, mailWebPort, mailDir, true);
+    await waitForPort(smtpPort);
+    await waitForPort(mailWebPort);
     if (!process.env.PLUMBLINE_SKIP_WEB_BUILD) ensureWebBuild(log);
 
     const env = {
@@ -56,8 +86,8 @@ async function main(): Promise<number> {
       NODE_ENV: 'test' as const,
       PLUMBLINE_TEST_CLUSTER: JSON.stringify(T.cluster),
       PLUMBLINE_TEST_TEMPLATE: TEMPLATE_DB,
-      PLUMBLINE_TEST_SMTP_PORT: String(T.smtpPort),
-      PLUMBLINE_TEST_MAIL_WEB_PORT: String(T.mailWebPort),
+      PLUMBLINE_TEST_SMTP_PORT: String(smtpPort),
+      PLUMBLINE_TEST_MAIL_WEB_PORT: String(mailWebPort),
     };
     const jest = path.join(projectRoot, 'node_modules', '.bin', 'jest');
     const args = ['--maxWorkers=2', ...(process.env.CI ? ['--ci'] : []), ...jestArgs];
@@ -76,8 +106,20 @@ async function main(): Promise<number> {
     return 1;
   } finally {
     if (maildev) await stopProcess(maildev);
+    fs.rmSync(`${T.maildevDir}-${process.pid}`, { recursive: true, force: true });
+    fs.rmSync(path.join(runsDir, String(process.pid)), { force: true });
     try {
-      stopCluster(T.cluster, log);
+      const { Client } = await import('pg');
+      const c = new Client({ connectionString: connectionString(T.cluster, 'postgres') });
+      await c.connect();
+      await c.query(`DROP DATABASE IF EXISTS "${TEMPLATE_DB}" WITH (FORCE)`);
+      await c.end();
+    } catch {
+      // the cluster may already be down
+    }
+    try {
+      if (otherLiveRuns().length === 0) stopCluster(T.cluster, log);
+      else log('another test run is using the test database; leaving it running');
     } catch (e) {
       console.error(e);
     }

@@ -184,6 +184,8 @@ export async function startCluster(spec: ClusterSpec, log: (m: string) => void =
       ['-D', spec.dataDir, '-l', path.join(spec.dataDir, 'server.log'), '-o', `-p ${spec.port}`, '-w', '-t', '60', 'start'],
       { check: false },
     );
+    // Another process (a second test run) may be starting the same cluster right now.
+    if (r.status !== 0) await waitReady(bin, spec, 15_000).catch(() => undefined);
     if (r.status !== 0 && !isReady(bin, spec)) {
       const logTail = readTail(path.join(spec.dataDir, 'server.log'));
       throw new Error(`pg_ctl start failed (exit ${r.status}). ${r.stderr}\nLast server log lines:\n${logTail}`);

@@ -24,6 +24,9 @@ export function createBoss(url: string, role: 'server' | 'worker'): PgBoss {
     supervise: role === 'worker',
     schedule: role === 'worker',
     max: role === 'worker' ? 6 : 3,
+    // How often the worker looks for jobs whose worker died (expired) and retries them.
+    // QUEUE_MAINTENANCE_SECONDS lets tests shorten the wait; pg-boss's own default is 120 s.
+    ...(role === 'worker' ? { maintenanceIntervalSeconds: Number(process.env.QUEUE_MAINTENANCE_SECONDS ?? 30) } : {}),
   });
 }
 
@@ -34,7 +37,9 @@ export async function ensureQueues(boss: PgBoss): Promise<void> {
     if (!existing) {
       // retryLimit: a batch job that fails (e.g. the worker was killed) is retried; the
       // scoring job is idempotent, so a retry finishes the work and scores nothing twice.
-      await boss.createQueue(name, { name, retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInMinutes: 15 });
+      // A chunk takes about a second; two minutes without an answer means its worker died.
+      const expireInSeconds = name === QUEUES.scoreChunk ? 120 : 15 * 60;
+      await boss.createQueue(name, { name, retryLimit: 5, retryDelay: 2, retryBackoff: true, expireInSeconds });
     }
   }
 }

@@ -1,0 +1,405 @@
+/**
+ * Digit profile of one column of amounts (DESIGN.md section 10):
+ *
+ *   npm run --silent digits -- FILE [--column NAME] [--json]
+ *
+ * FILE is a text file with one amount a line (blank lines skipped), or a CSV or XLSX file
+ * (by extension) whose column NAME holds the amounts. Without --column, a file with one
+ * column uses it, otherwise a column called "amount" (any case). CSV and XLSX files have a
+ * header row, except that a one-column file whose first cell is an amount is read as
+ * amounts throughout. In XLSX, the first sheet having the column is read.
+ *
+ * Amounts: an optional minus sign, digits, at most 2 decimals after a point (shared/digits
+ * parse.ts). Surrounding spaces are trimmed. XLSX number cells are read like the batch
+ * intake reads them (server/batches/intake/cell-text.ts): Excel keeps doubles, so a number
+ * within a millionth of a cent of a cent amount is that amount.
+ *
+ * --json prints the profile object (shared/digits/profile.ts, schema in schema.ts) as one
+ * line; otherwise a readable table. Any problem: one line on stderr, exit code 2.
+ */
+
+import fs from 'node:fs';
+import path from 'node:path';
+import readline from 'node:readline';
+import { parse as parseCsv } from 'csv-parse';
+import ExcelJS from 'exceljs';
+import {
+  AmountParseError,
+  DIGIT_LABELS,
+  MIN_N_FOR_CONFORMITY,
+  centsFromNumber,
+  centsFromString,
+  profileCents,
+  type DigitProfile,
+  type DigitTestName,
+  type DigitTestResult,
+  type SizeAwareResult,
+} from '../shared/digits';
+
+/** A problem to report as one line on stderr, exit code 2. */
+class UsageError extends Error {}
+
+const USAGE = 'usage: npm run --silent digits -- FILE [--column NAME] [--json]';
+
+interface Options {
+  file: string;
+  column: string | null;
+  json: boolean;
+}
+
+function parseArgs(argv: string[]): Options | 'help' {
+  let file: string | null = null;
+  let column: string | null = null;
+  let json = false;
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    if (a === '--help' || a === '-h') return 'help';
+    if (a === '--json') json = true;
+    else if (a === '--column') {
+      const v = argv[++i];
+      if (v === undefined || v === '') throw new UsageError(`--column needs a column name; ${USAGE}`);
+      column = v;
+    } else if (a.startsWith('--column=')) {
+      column = a.slice('--column='.length);
+      if (column === '') throw new UsageError(`--column needs a column name; ${USAGE}`);
+    } else if (a.startsWith('-') && a !== '-') throw new UsageError(`unknown option ${a}; ${USAGE}`);
+    else if (file === null) file = a;
+    else throw new UsageError(`one FILE only (got ${file} and ${a}); ${USAGE}`);
+  }
+  if (file === null) throw new UsageError(`no FILE given; ${USAGE}`);
+  return { file, column, json };
+}
+
+/** Growable array of cents: files are read as streams, their length is not known up front. */
+class CentsBuffer {
+  private data = new Float64Array(1024);
+  length = 0;
+
+  push(c: number): void {
+    if (this.length === this.data.length) {
+      const bigger = new Float64Array(this.data.length * 2);
+      bigger.set(this.data);
+      this.data = bigger;
+    }
+    this.data[this.length++] = c;
+  }
+
+  values(): Float64Array {
+    return this.data.subarray(0, this.length);
+  }
+}
+
+async function readTextFile(file: string, out: CentsBuffer): Promise<string> {
+  const rl = readline.createInterface({ input: fs.createReadStream(file), crlfDelay: Infinity });
+  let line = 0;
+  for await (const raw of rl) {
+    line++;
+    const text = (line === 1 ? raw.replace(/^\uFEFF/, '') : raw).trim();
+    if (text === '') continue;
+    out.push(centsFromString(text, `line ${line}`));
+  }
+  return 'one amount a line';
+}
+
+/** Which column of a header row holds the amounts; null = the file has no header row. */
+function chooseColumn(header: string[], wanted: string | null, where: string): number | null {
+  const names = header.map((h) => h.trim());
+  if (wanted !== null) {
+    let i = names.indexOf(wanted);
+    if (i < 0) i = names.findIndex((h) => h.toLowerCase() === wanted.toLowerCase());
+    if (i < 0) throw new UsageError(`${where} has no column "${wanted}" (columns: ${names.map((n) => `"${n}"`).join(', ')})`);
+    return i;
+  }
+  if (names.length === 1) {
+    return isAmountText(names[0]) ? null : 0;
+  }
+  const i = names.findIndex((h) => h.toLowerCase() === 'amount');
+  if (i >= 0) return i;
+  throw new UsageError(
+    `${where} has several columns (${names.map((n) => `"${n}"`).join(', ')}); choose one with --column NAME`,
+  );
+}
+
+function isAmountText(text: string): boolean {
+  try {
+    centsFromString(text.trim(), '');
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+async function readCsvFile(file: string, wanted: string | null, out: CentsBuffer): Promise<string> {
+  const parser = fs
+    .createReadStream(file)
+    .pipe(parseCsv({ bom: true, info: true, skip_empty_lines: true, relax_column_count: true }));
+  let index = -1; // column of the amounts, -1 until the first row is read
+  let name = '';
+  for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
+    const { record, info } = item;
+    if (index < 0) {
+      const col = chooseColumn(record, wanted, path.basename(file));
+      if (col !== null) {
+        index = col;
+        name = record[col].trim();
+        continue;
+      }
+      index = 0; // no header: this row is an amount too
+    }
+    const position = name ? `line ${info.lines}, column "${name}"` : `line ${info.lines}`;
+    const cell = record[index];
+    if (cell === undefined) throw new AmountParseError(undefined, position, 'is missing (the row is too short)');
+    out.push(centsFromString(cell.trim(), position));
+  }
+  if (index < 0) return 'empty CSV file';
+  return name ? `column "${name}"` : 'one column, no header';
+}
+
+interface StreamedWorksheet extends AsyncIterable<ExcelJS.Row> {
+  name?: string;
+}
+
+/** An XLSX cell as cents, under the batch intake's reading rules (see the module comment). */
+function cellCents(v: unknown, position: string): number {
+  if (typeof v === 'number') {
+    const c = Math.round(v * 100);
+    if (Number.isFinite(v) && Math.abs(v * 100 - c) < 1e-6) return centsFromNumber(c / 100, position);
+    return centsFromNumber(v, position);
+  }
+  if (typeof v === 'string') return centsFromString(v.trim(), position);
+  if (v === null || v === undefined) throw new AmountParseError('', position, 'is empty');
+  if (typeof v === 'object' && !(v instanceof Date)) {
+    const o = v as Record<string, unknown>;
+    if ('formula' in o || 'sharedFormula' in o) {
+      if (o.result === undefined || o.result === null) {
+        throw new AmountParseError('a formula', position, 'has no saved value; open the workbook in Excel and save it');
+      }
+      return cellCents(o.result, position);
+    }
+    if (Array.isArray(o.richText)) {
+      return cellCents((o.richText as { text?: string }[]).map((r) => r.text ?? '').join(''), position);
+    }
+    if (typeof o.text === 'string') return cellCents(o.text, position);
+  }
+  throw new AmountParseError(v, position, 'is not a number or a decimal amount');
+}
+
+function cellHeader(v: unknown): string {
+  if (typeof v === 'string') return v;
+  if (typeof v === 'number') return String(v);
+  if (v && typeof v === 'object' && Array.isArray((v as { richText?: unknown }).richText)) {
+    return ((v as { richText: { text?: string }[] }).richText).map((r) => r.text ?? '').join('');
+  }
+  return v === null || v === undefined ? '' : String(v);
+}
+
+async function readXlsxFile(file: string, wanted: string | null, out: CentsBuffer): Promise<string> {
+  const input = fs.createReadStream(file);
+  const reader = new ExcelJS.stream.xlsx.WorkbookReader(input, {
+    worksheets: 'emit',
+    sharedStrings: 'cache',
+    hyperlinks: 'ignore',
+    styles: 'ignore',
+    entries: 'ignore',
+  });
+  const skipped: string[] = [];
+  try {
+    for await (const ws of reader as unknown as AsyncIterable<StreamedWorksheet>) {
+      const sheet = ws.name ?? `sheet ${skipped.length + 1}`;
+      let index = -1; // column of the amounts (0-based), -1 until the first row is read
+      let name = '';
+      for await (const row of ws) {
+        const values = row.values as unknown[];
+        if (index < 0) {
+          const header = values.slice(1).map(cellHeader);
+          let col: number | null;
+          try {
+            col = chooseColumn(header, wanted, `sheet "${sheet}"`);
+          } catch (e) {
+            if (!(e instanceof UsageError)) throw e;
+            break; // the column is not on this sheet: look at the next one
+          }
+          if (col !== null) {
+            index = col;
+            name = header[col].trim();
+            continue;
+          }
+          index = 0; // no header: this row is an amount too
+        }
+        const position = `sheet "${sheet}" cell ${columnLetter(index + 1)}${row.number}`;
+        out.push(cellCents(values[index + 1], position));
+      }
+      if (index >= 0) {
+        return name ? `sheet "${sheet}", column "${name}"` : `sheet "${sheet}", one column, no header`;
+      }
+      skipped.push(`"${sheet}"`);
+    }
+  } finally {
+    input.destroy();
+  }
+  const sheets = skipped.join(', ') || 'none';
+  if (wanted !== null) throw new UsageError(`${path.basename(file)}: no sheet has a column "${wanted}" (sheets: ${sheets})`);
+  throw new UsageError(
+    `${path.basename(file)}: no sheet has a single column or an "amount" column (sheets: ${sheets}); choose one with --column NAME`,
+  );
+}
+
+function columnLetter(n: number): string {
+  let s = '';
+  for (let k = n; k > 0; k = Math.floor((k - 1) / 26)) s = String.fromCharCode(65 + ((k - 1) % 26)) + s;
+  return s;
+}
+
+// ---------------------------------------------------------------------------------------
+// The readable table
+
+const TEST_TITLE: Record<DigitTestName, string> = {
+  firstDigit: 'First digit',
+  secondDigit: 'Second digit',
+  firstTwo: 'First two digits',
+  lastTwo: 'Last two digits',
+};
+
+function int(n: number): string {
+  return n.toLocaleString('en-US');
+}
+
+function pct(x: number | null): string {
+  return x === null ? '—' : `${(100 * x).toFixed(1)} %`;
+}
+
+function fixed(x: number | null, digits: number): string {
+  return x === null ? '—' : x.toFixed(digits);
+}
+
+function pValue(p: number | null): string {
+  if (p === null) return '—';
+  return p < 0.0001 ? '< 0.0001' : p.toFixed(4);
+}
+
+function label(test: DigitTestName, bin: number): string {
+  const d = DIGIT_LABELS[test][bin];
+  return test === 'lastTwo' ? String(d).padStart(2, '0') : String(d);
+}
+
+function summaryLine(test: DigitTestName, r: DigitTestResult): string {
+  const level = r.conformity === 'too_few' ? `too few amounts for the fixed thresholds (need ${int(MIN_N_FOR_CONFORMITY[test])})` : r.conformity;
+  const chi = `chi-square ${fixed(r.chiSquare, 2)}, df ${r.df}, p ${pValue(r.pValue)}${r.chiSquareValid || r.n === 0 ? '' : ' (expected counts below 5)'}`;
+  return `  MAD ${fixed(r.mad, 5)}: ${level} · ${chi} · KS ${fixed(r.ks, 4)}`;
+}
+
+function fullTable(test: DigitTestName, r: DigitTestResult): string[] {
+  const lines = [`${TEST_TITLE[test]} (n = ${int(r.n)})`, '  digit      count   observed   expected       Z'];
+  r.counts.forEach((c, i) => {
+    const obs = r.n > 0 ? c / r.n : null;
+    lines.push(
+      `  ${label(test, i).padStart(5)}  ${int(c).padStart(9)}  ${pct(obs).padStart(9)}  ${pct(r.expected[i]).padStart(9)}  ${fixed(r.z[i], 2).padStart(6)}`,
+    );
+  });
+  lines.push(summaryLine(test, r));
+  return lines;
+}
+
+function shortTable(test: DigitTestName, r: DigitTestResult): string[] {
+  const lines = [`${TEST_TITLE[test]} (n = ${int(r.n)}; ${r.counts.length} groups)`, summaryLine(test, r)];
+  if (r.n > 0) {
+    const top = r.z
+      .map((z, i) => ({ z: z ?? 0, i }))
+      .sort((a, b) => b.z - a.z || a.i - b.i)
+      .slice(0, 5)
+      .map(({ z, i }) => `${label(test, i)} ${pct(r.counts[i] / r.n)} vs ${pct(r.expected[i])} (Z ${z.toFixed(2)})`);
+    lines.push(`  largest deviations: ${top.join(' · ')}`);
+  }
+  return lines;
+}
+
+function sizeLine(s: SizeAwareResult): string {
+  if (s.n === 0 || s.expectedMad === null) return `${TEST_TITLE[s.test]}: no amounts`;
+  const verdict = s.verdict === 'too_few' ? `too few amounts (n = ${s.n})` : s.verdict;
+  return `${TEST_TITLE[s.test]} (n = ${int(s.n)}): MAD ${fixed(s.mad, 4)} vs ${fixed(s.expectedMad, 4)} ± ${fixed(
+    s.sdMad,
+    4,
+  )} expected, excess ${fixed(s.excessMad, 4)}, z ${fixed(s.zScore, 2)}: ${verdict}`;
+}
+
+function renderTable(p: DigitProfile, source: string): string {
+  const ex = p.excluded.map((e) => `${e.reason.replace('_', ' ')}: ${int(e.count)}`).join(' · ');
+  const lines: string[] = [
+    `Digit profile of ${source}`,
+    `${int(p.count)} amounts (${int(p.positives.count)} positive, ${int(p.negatives.count)} negative); left out: ${ex}`,
+    '',
+    ...fullTable('firstDigit', p.firstDigit),
+    '',
+    ...fullTable('secondDigit', p.secondDigit),
+    '',
+    ...shortTable('firstTwo', p.firstTwo),
+    '',
+    ...shortTable('lastTwo', p.lastTwo),
+    '',
+    'Size-aware (MAD against its expected value for this n; the figure for one return):',
+    `  ${sizeLine(p.sizeAware)}`,
+    ...(['secondDigit', 'firstTwo', 'lastTwo'] as const).map((t) => `  ${sizeLine(p.sizeAwareByTest[t])}`),
+    '',
+    `Round amounts (>= 100 ending in 00): ${int(p.roundShare.count)} of ${int(p.roundShare.n)} = ${pct(
+      p.roundShare.share,
+    )}, expected 1.0 %, P(at least this many) ${pValue(p.roundShare.pValue)}`,
+    `Repeated amounts: ${p.duplicates.length === 0 ? 'none' : p.duplicates.map((d) => `${d.amount} ×${d.count}`).join(' · ')}`,
+    `Summation (share of the total by first two digits, 1.1 % each expected): ${
+      p.summation.largest.length === 0 ? '—' : p.summation.largest.map((g) => `${g.digits} ${pct(g.share)}`).join(' · ')
+    }; MAD ${fixed(p.summation.mad, 5)}`,
+    `Second order (differences of sorted amounts, n = ${int(p.secondOrder.n)}): MAD ${fixed(p.secondOrder.mad, 5)}`,
+    `Distortion factor: ${p.distortionFactor.value === null ? '—' : pct(p.distortionFactor.value)} (mean ${fixed(
+      p.distortionFactor.mean,
+      2,
+    )}, expected ${fixed(p.distortionFactor.expectedMean, 2)})`,
+    `Positive amounts: first digit MAD ${fixed(p.positives.firstDigit.mad, 4)}, ${p.positives.sizeAware.verdict} · ` +
+      `negative amounts: first digit MAD ${fixed(p.negatives.firstDigit.mad, 4)}, ${p.negatives.sizeAware.verdict}`,
+    '',
+    'Digit tests point to amounts worth a closer look; they prove nothing by themselves.',
+    '',
+  ];
+  return lines.join('\n');
+}
+
+// ---------------------------------------------------------------------------------------
+
+async function main(): Promise<void> {
+  const opts = parseArgs(process.argv.slice(2));
+  if (opts === 'help') {
+    process.stdout.write(`${USAGE}\n`);
+    return;
+  }
+  const { file, column, json } = opts;
+  let stat: fs.Stats;
+  try {
+    stat = fs.statSync(file);
+  } catch {
+    throw new UsageError(`cannot read ${file}: no such file`);
+  }
+  if (!stat.isFile()) throw new UsageError(`${file} is not a file`);
+  const ext = path.extname(file).toLowerCase();
+  if (ext === '.xls') throw new UsageError(`${path.basename(file)}: old .xls workbooks are not read; save it as .xlsx`);
+  if (column !== null && ext !== '.csv' && ext !== '.xlsx') {
+    throw new UsageError('--column applies to CSV and XLSX files; a text file has one amount a line');
+  }
+  const cents = new CentsBuffer();
+  let what: string;
+  try {
+    if (ext === '.csv') what = await readCsvFile(file, column, cents);
+    else if (ext === '.xlsx') what = await readXlsxFile(file, column, cents);
+    else what = await readTextFile(file, cents);
+  } catch (e) {
+    if (e instanceof AmountParseError) throw new UsageError(`${path.basename(file)}: ${e.message}`);
+    if (e instanceof UsageError) throw e;
+    throw new UsageError(`${path.basename(file)}: cannot be read: ${e instanceof Error ? e.message : String(e)}`);
+  }
+  const profile = profileCents(cents.values());
+  if (json) process.stdout.write(`${JSON.stringify(profile)}\n`);
+  else process.stdout.write(renderTable(profile, `${path.basename(file)} (${what})`));
+}
+
+main().catch((e: unknown) => {
+  const message = e instanceof Error ? e.message : String(e);
+  process.stderr.write(`digits: ${message.replace(/\s*\n\s*/g, ' ')}\n`);
+  process.exitCode = 2;
+});

@@ -1,0 +1,417 @@
+/**
+ * The digit profile of a set of amounts: the JSON object of DESIGN.md section 10, printed by
+ * `npm run digits -- FILE --json` and answered by POST /api/analyses/digits.
+ *
+ * Entry points:
+ *  - {@link profileAmounts}: numbers / decimal strings (or integer cents) → profile;
+ *  - {@link profileCents}: signed integer cents already parsed → profile;
+ *  - {@link summarizeCounter}: per-return fast path from a reused {@link DigitCounter}
+ *    (counts, MAD and size-aware figures, no duplicates / summation / second order).
+ */
+
+import { DigitCounter, POW10, decimalDigitCount, type SignSelection } from './counter';
+import { DIGIT_TESTS, EXPECTED, type DigitTestName } from './expected';
+import { formatCents, parseAmounts, type AmountUnit } from './parse';
+import { sizeAwareFigure, type SizeAwareResult } from './size-aware';
+import { sortIntegerKeys } from './sort';
+import { binomialUpperTail } from './stats';
+import { evaluateDigitTest, type DigitTestResult } from './tests';
+
+// Math functions bound once: a global `Math` lookup in a hot loop is slow under jest's vm
+// sandbox (about 150 ns a call), and the local binding costs nothing under plain node.
+const { floor, abs } = Math;
+
+/** Why amounts were left out of a test. */
+export type ExclusionReason = 'zero' | 'below_10' | 'below_100';
+
+/** Amounts left out for one reason. */
+export interface Exclusion {
+  /** The reason code. */
+  reason: ExclusionReason;
+  /** Plain-words reason. */
+  description: string;
+  /** How many amounts. */
+  count: number;
+  /** The tests that left them out. */
+  tests: DigitTestName[];
+}
+
+/** Share of round amounts (whole-unit part ending in 00) among amounts >= 100. */
+export interface RoundShare {
+  /** Amounts >= 100 (those the last-two test takes). */
+  n: number;
+  /** Of those, amounts whose whole-unit part ends in 00. */
+  count: number;
+  /** count / n. */
+  share: number | null;
+  /** Share expected when last two digits are uniform: 0.01. */
+  expected: number;
+  /** P(X >= count) for X ~ Binomial(n, 0.01) (METHODS.md risk factor "excess round amounts"). */
+  pValue: number | null;
+}
+
+/** An amount that occurs more than once. */
+export interface DuplicateAmount {
+  /** The exact amount, 2 decimals ("1234.50", "-80.00"). */
+  amount: string;
+  /** How many times it occurs. */
+  count: number;
+}
+
+/** Summation test (Nigrini 2011, Forensic Analytics): amounts summed by first two digits. */
+export interface Summation {
+  /** Amounts >= 10 (those with two significant digits before the point). */
+  n: number;
+  /** Sum of their absolute values, currency units. */
+  total: number;
+  /** Sum per first-two group 10..99, currency units. */
+  sums: number[];
+  /** Each group's share of the total, 10..99 (null entries when total is 0). */
+  proportions: (number | null)[];
+  /** Expected share of each group: 1/90. */
+  expected: number;
+  /** (1/90) sum |share - 1/90|. */
+  mad: number | null;
+  /** The (up to) five groups with the largest non-zero shares, largest first. */
+  largest: { digits: number; share: number }[];
+}
+
+/** Second-order test (Nigrini & Miller 2009): first two digits of differences of sorted amounts. */
+export interface SecondOrder {
+  /** Non-zero differences counted. */
+  n: number;
+  /** Differences of zero (repeated absolute amounts), left out. */
+  zeroDifferences: number;
+  /** Counts of first two digits 10..99 of the differences (a one-digit difference d counts as d0). */
+  counts: number[];
+  /** MAD against the Benford first-two proportions. */
+  mad: number | null;
+}
+
+/** Distortion factor (Nigrini 1996; formula from memory, METHODS.md). */
+export interface DistortionFactor {
+  /** Amounts >= 10 collapsed into [10, 100). */
+  n: number;
+  /** Mean of the collapsed amounts. */
+  mean: number | null;
+  /** Expected mean EM = 90 / (n (10^(1/n) - 1)). */
+  expectedMean: number | null;
+  /** DF = (mean - EM) / EM; negative means amounts are understated in their leading digits. */
+  value: number | null;
+}
+
+/** The digit tests of the amounts of one sign. */
+export interface SideProfile {
+  /** Non-zero amounts of this sign. */
+  count: number;
+  /** First-digit test. */
+  firstDigit: DigitTestResult;
+  /** Second-digit test. */
+  secondDigit: DigitTestResult;
+  /** First-two-digit test. */
+  firstTwo: DigitTestResult;
+  /** Last-two-digit test. */
+  lastTwo: DigitTestResult;
+  /** Size-aware figure of the first digit. */
+  sizeAware: SizeAwareResult;
+}
+
+/** The full digit profile (DESIGN.md section 10, plus the documented extra fields). */
+export interface DigitProfile {
+  /** Amounts given, zeros included. */
+  count: number;
+  /** Amounts left out, by reason. */
+  excluded: Exclusion[];
+  /** First-digit test (every non-zero amount). */
+  firstDigit: DigitTestResult;
+  /** Second-digit test (amounts >= 10). */
+  secondDigit: DigitTestResult;
+  /** First-two-digit test (amounts >= 10). */
+  firstTwo: DigitTestResult;
+  /** Last-two-digit test (amounts >= 100; whole-unit part). */
+  lastTwo: DigitTestResult;
+  /** Size-aware figure of the first-digit test: the one a single return is judged by. */
+  sizeAware: SizeAwareResult;
+  /** Size-aware figures of all four tests. */
+  sizeAwareByTest: Record<DigitTestName, SizeAwareResult>;
+  /** Round-number share. */
+  roundShare: RoundShare;
+  /** Most repeated non-zero amounts (count >= 2), most frequent first, then larger first. */
+  duplicates: DuplicateAmount[];
+  /** Summation test. */
+  summation: Summation;
+  /** Second-order test. */
+  secondOrder: SecondOrder;
+  /** Distortion factor. */
+  distortionFactor: DistortionFactor;
+  /** The tests on positive amounts alone. */
+  positives: SideProfile;
+  /** The tests on negative amounts alone (absolute values). */
+  negatives: SideProfile;
+}
+
+/** Options of the profile functions. */
+export interface ProfileOptions {
+  /** How many repeated amounts to list (default 10). */
+  top?: number;
+}
+
+/** Options of {@link profileAmounts}. */
+export interface ProfileAmountsOptions extends ProfileOptions {
+  /** 'amount' (default): currency units; 'cents': integer cents. */
+  unit?: AmountUnit;
+  /** Names value i in error messages (default `index ${i}`). */
+  positionOf?: (index: number) => string;
+}
+
+/**
+ * Profile a list of amounts.
+ *
+ * @param amounts numbers or decimal strings (at most 2 decimals), or integer cents with unit 'cents'
+ * @param options unit, duplicates to list, position names for errors
+ * @returns the digit profile
+ * @throws AmountParseError naming the first value that is not an amount and its position
+ */
+export function profileAmounts(amounts: ArrayLike<unknown>, options: ProfileAmountsOptions = {}): DigitProfile {
+  return profileCents(parseAmounts(amounts, options), options);
+}
+
+/**
+ * Profile amounts given as signed integer cents (from parse.ts; not re-checked).
+ *
+ * @param cents signed integer cents, |cents| < 10^15
+ * @param options duplicates to list
+ * @returns the digit profile
+ */
+export function profileCents(cents: ArrayLike<number>, options: ProfileOptions = {}): DigitProfile {
+  const counter = new DigitCounter();
+  const keys = new Float64Array(cents.length);
+  const maxKey = counter.addAllWithKeys(cents, keys);
+  const ordered = orderedScan(keys.subarray(0, counter.nonZero()), maxKey, options.top ?? 10);
+
+  const tests = {} as Record<DigitTestName, DigitTestResult>;
+  const sizeAwareByTest = {} as Record<DigitTestName, SizeAwareResult>;
+  for (const t of DIGIT_TESTS) {
+    tests[t] = evaluateDigitTest(t, counter.counts(t));
+    sizeAwareByTest[t] = sizeAwareFigure(t, tests[t].n, tests[t].mad);
+  }
+  const lastN = tests.lastTwo.n;
+  const roundCount = tests.lastTwo.counts[0];
+  return {
+    count: cents.length,
+    excluded: exclusions(counter),
+    firstDigit: tests.firstDigit,
+    secondDigit: tests.secondDigit,
+    firstTwo: tests.firstTwo,
+    lastTwo: tests.lastTwo,
+    sizeAware: sizeAwareByTest.firstDigit,
+    sizeAwareByTest,
+    roundShare: {
+      n: lastN,
+      count: roundCount,
+      share: lastN > 0 ? roundCount / lastN : null,
+      expected: 0.01,
+      pValue: lastN > 0 ? binomialUpperTail(roundCount, lastN, 0.01) : null,
+    },
+    duplicates: ordered.duplicates,
+    summation: summation(counter),
+    secondOrder: ordered.secondOrder,
+    distortionFactor: distortionFactor(counter),
+    positives: sideProfile(counter, 'positive'),
+    negatives: sideProfile(counter, 'negative'),
+  };
+}
+
+/** Per-return figures from a counter, without the list-based tests. */
+export interface DigitSummary {
+  /** Amounts each test took. */
+  n: Record<DigitTestName, number>;
+  /** MAD of each test (NaN when the test has no amounts). */
+  mad: Record<DigitTestName, number>;
+  /** Size-aware figure of each test. */
+  sizeAware: Record<DigitTestName, SizeAwareResult>;
+  /** The size-aware verdict of the first digit (the one a return is judged by). */
+  verdict: SizeAwareResult['verdict'];
+}
+
+/**
+ * Cheap per-return figures: feed a reused counter (reset, addAll(cents)) and read this.
+ * Allocates a few small objects per call and nothing per amount.
+ *
+ * @param counter a counter holding the return's amounts
+ * @param sign which amounts (default both signs)
+ * @returns n, MAD and size-aware figure per test, and the first-digit verdict
+ */
+export function summarizeCounter(counter: DigitCounter, sign: SignSelection = 'all'): DigitSummary {
+  const n = {} as Record<DigitTestName, number>;
+  const mad = {} as Record<DigitTestName, number>;
+  const sizeAware = {} as Record<DigitTestName, SizeAwareResult>;
+  for (const t of DIGIT_TESTS) {
+    n[t] = counter.n(t, sign);
+    mad[t] = counter.madWith(t, EXPECTED[t], sign);
+    sizeAware[t] = sizeAwareFigure(t, n[t], mad[t]);
+  }
+  return { n, mad, sizeAware, verdict: sizeAware.firstDigit.verdict };
+}
+
+function exclusions(counter: DigitCounter): Exclusion[] {
+  return [
+    {
+      reason: 'zero',
+      description: 'zero amounts (no significant digit)',
+      count: counter.zeros,
+      tests: ['firstDigit', 'secondDigit', 'firstTwo', 'lastTwo'],
+    },
+    {
+      reason: 'below_10',
+      description: 'non-zero amounts below 10 (fewer than two digits before the point)',
+      count: counter.belowTen(),
+      tests: ['secondDigit', 'firstTwo'],
+    },
+    {
+      reason: 'below_100',
+      description: 'non-zero amounts below 100, those below 10 included (no last two whole-unit digits)',
+      count: counter.belowHundred(),
+      tests: ['lastTwo'],
+    },
+  ];
+}
+
+function sideProfile(counter: DigitCounter, sign: SignSelection): SideProfile {
+  const t = (test: DigitTestName) => evaluateDigitTest(test, counter.counts(test, sign));
+  const firstDigit = t('firstDigit');
+  return {
+    count: counter.nonZero(sign),
+    firstDigit,
+    secondDigit: t('secondDigit'),
+    firstTwo: t('firstTwo'),
+    lastTwo: t('lastTwo'),
+    sizeAware: sizeAwareFigure('firstDigit', firstDigit.n, firstDigit.mad),
+  };
+}
+
+/**
+ * Summation test: share of the total of each first-two group against 1/90
+ * (Nigrini 2011, Forensic Analytics; METHODS.md).
+ */
+function summation(counter: DigitCounter): Summation {
+  const sums: number[] = [];
+  let totalCents = 0;
+  for (let d = 10; d <= 99; d++) {
+    const s = counter.sums[d] + counter.sums[100 + d];
+    sums.push(s / 100);
+    totalCents += s;
+  }
+  const n = counter.n('firstTwo');
+  const expected = 1 / 90;
+  if (totalCents === 0) {
+    return { n, total: 0, sums, proportions: sums.map(() => null), expected, mad: null, largest: [] };
+  }
+  const proportions = sums.map((s) => (s * 100) / totalCents);
+  let mad = 0;
+  for (const p of proportions) mad += abs(p - expected);
+  const largest = proportions
+    .map((share, i) => ({ digits: i + 10, share }))
+    .filter((g) => g.share > 0)
+    .sort((a, b) => b.share - a.share || a.digits - b.digits)
+    .slice(0, 5);
+  return { n, total: totalCents / 100, sums, proportions, expected, mad: mad / 90, largest };
+}
+
+/**
+ * Distortion factor (Nigrini 1996, JATA; formula from memory, METHODS.md): amounts >= 10
+ * collapsed into [10, 100) by moving the point; DF = (mean - EM) / EM with
+ * EM = 90 / (n (10^(1/n) - 1)), which tends to 90 / ln 10 = 39.09 for large n.
+ */
+function distortionFactor(counter: DigitCounter): DistortionFactor {
+  const n = counter.n('firstTwo');
+  if (n === 0) return { n, mean: null, expectedMean: null, value: null };
+  const mean = counter.collapsedSum() / n;
+  // expm1 keeps precision where 10^(1/n) - 1 is tiny (large n).
+  const expectedMean = 90 / (n * Math.expm1(Math.LN10 / n));
+  return { n, mean, expectedMean, value: (mean - expectedMean) / expectedMean };
+}
+
+/**
+ * One sort serves two tests. Keys are 2|c| + (c < 0 ? 1 : 0) (written by the counting pass):
+ * sorted keys put equal exact amounts next to each other (number duplication, Nigrini 2011)
+ * and list absolute values in ascending order (second-order test, Nigrini & Miller 2009).
+ * Zeros have no key and are left out of both.
+ */
+function orderedScan(
+  keys: Float64Array,
+  maxKey: number,
+  top: number,
+): { duplicates: DuplicateAmount[]; secondOrder: SecondOrder } {
+  const sorted = sortIntegerKeys(keys, maxKey);
+  // Imported bindings as locals: module loaders (tsx, jest) compile them to getter calls.
+  const digitCount = decimalDigitCount;
+  const pow10 = POW10;
+
+  const topCount = new Float64Array(top);
+  const topKey = new Float64Array(top);
+  let topLen = 0;
+  const soCounts = new Float64Array(100);
+  let zeroDiffs = 0;
+  let prevSize = -1;
+  let runKey = -1;
+  let runLen = 0;
+  const n = sorted.length;
+  for (let i = 0; i <= n; i++) {
+    const key = i < n ? sorted[i] : -2;
+    if (key === runKey) {
+      runLen++;
+    } else {
+      if (runLen >= 2 && top > 0) offer(runKey, runLen);
+      runKey = key;
+      runLen = 1;
+    }
+    if (i === n) break;
+    const size = floor(key / 2); // |cents|
+    if (prevSize >= 0) {
+      const d = size - prevSize;
+      if (d === 0) zeroDiffs++;
+      else {
+        const nd = digitCount(d);
+        soCounts[nd === 1 ? d * 10 : floor(d / pow10[nd - 2])]++;
+      }
+    }
+    prevSize = size;
+  }
+
+  const duplicates: DuplicateAmount[] = [];
+  for (let i = 0; i < topLen; i++) {
+    const key = topKey[i];
+    const size = floor(key / 2);
+    duplicates.push({ amount: formatCents(key % 2 === 1 ? -size : size), count: topCount[i] });
+  }
+  const counts = Array.from(soCounts.subarray(10, 100));
+  const soN = n > 0 ? n - 1 - zeroDiffs : 0;
+  let mad: number | null = null;
+  if (soN > 0) {
+    let s = 0;
+    for (let d = 0; d < 90; d++) s += abs(counts[d] / soN - EXPECTED.firstTwo[d]);
+    mad = s / 90;
+  }
+  return { duplicates, secondOrder: { n: soN, zeroDifferences: zeroDiffs, counts, mad } };
+
+  /** Keep the `top` most repeated: count desc, then larger absolute amount, then positive first. */
+  function offer(key: number, count: number): void {
+    const size = floor(key / 2);
+    let at = topLen;
+    while (at > 0) {
+      const c = topCount[at - 1];
+      if (count > c || (count === c && size > floor(topKey[at - 1] / 2))) at--;
+      else break;
+    }
+    if (at >= top) return;
+    const end = Math.min(topLen, top - 1);
+    for (let m = end; m > at; m--) {
+      topCount[m] = topCount[m - 1];
+      topKey[m] = topKey[m - 1];
+    }
+    topCount[at] = count;
+    topKey[at] = key;
+    if (topLen < top) topLen++;
+  }
+}
