@@ -9,7 +9,7 @@ import { createDataSource, runMigrations } from '../server/db/data-source';
 import { seedDemo } from '../server/seed/demo-seed';
 import { startSetup as S } from './lib/local-services';
 import { connectionString, startCluster, stopCluster } from './lib/pg';
-import { isPortFree, startMaildev, startProcess, stopProcess, TSX, waitForPort, type Managed } from './lib/processes';
+import { isPortFree, startMaildev, startProcess, stopProcess, tsxArgs, waitForPort, type Managed } from './lib/processes';
 import { ensureWebBuild } from './lib/web-build';
 
 const log = (m: string) => console.log(`start  | ${m}`);
@@ -64,8 +64,8 @@ async function main() {
       SMTP_PORT: String(S.smtpPort),
       NODE_ENV: 'development' as const,
     };
-    children.push(startProcess('worker', TSX, ['worker/main.ts'], { env }));
-    const server = startProcess('server', TSX, ['server/main.ts'], { env });
+    children.push(startProcess('worker', ...tsxArgs('worker/main.ts'), { env }));
+    const server = startProcess('server', ...tsxArgs('server/main.ts'), { env });
     children.push(server);
     for (const c of children) {
       void c.exited.then((code) => {

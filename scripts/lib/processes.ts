@@ -75,8 +75,13 @@ export function isPortFree(port: number, host = '127.0.0.1'): Promise<boolean> {
   });
 }
 
-/** The tsx binary of this project (never npx: no network, no prompts). */
-export const TSX = path.join(projectRoot, 'node_modules', '.bin', 'tsx');
+/**
+ * Runs a TypeScript entry point as one node process (`node --import tsx`): never npx (no
+ * network, no prompts), and no tsx wrapper process between us and the program.
+ */
+export function tsxArgs(entry: string): [string, string[]] {
+  return [process.execPath, ['--import', 'tsx', entry]];
+}
 
 /** Starts MailDev on loopback (ESM-only package: run its bin with node). */
 export function startMaildev(smtpPort: number, webPort: number, mailDir: string, quiet = false): Managed {

@@ -7,7 +7,6 @@ import net from 'node:net';
 import path from 'node:path';
 
 const root = path.join(__dirname, '..', '..');
-const TSX = path.join(root, 'node_modules', '.bin', 'tsx');
 
 /** A running child with its collected output. */
 export interface RunningProcess {
@@ -33,7 +32,9 @@ export function freePort(): Promise<number> {
 
 /** Starts `tsx <entry>` with the given environment and waits for a line matching `ready`. */
 export async function startTsx(entry: string, env: Record<string, string>, ready: RegExp, timeoutMs = 60_000): Promise<RunningProcess> {
-  const child = spawn(TSX, [entry], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  // `node --import tsx` keeps it one process: the tsx wrapper would put a second node
+  // under it, which a SIGKILL of the wrapper leaves running.
+  const child = spawn(process.execPath, ['--import', 'tsx', entry], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
   let out = '';
   child.stdout!.on('data', (d) => (out += d.toString()));
   child.stderr!.on('data', (d) => (out += d.toString()));
