@@ -83,7 +83,8 @@ export function incomeBelowStatements(f: ReturnFacts, p: Params): FactorResult {
     const tolerance = Math.max(p.statementShortfallMinCents, Math.round(p.statementShortfallShare * stated));
     if (shortfall <= tolerance) continue;
     found.push(`${kind} reported ${money(reported)} against ${money(stated)} on statements (short by ${money(shortfall)}, ${pct(shortfall / stated)})`);
-    strength = Math.max(strength, clamp01(0.5 + shortfall / stated));
+    // Third-party figures are hard evidence: a 10 % shortfall already counts strongly.
+    strength = Math.max(strength, clamp01(0.6 + (2 * shortfall) / stated));
     stake += shortfall;
   }
   if (!found.length) return none('Reported income matches the third-party statements.');
@@ -158,7 +159,9 @@ export function deductionsLarge(t: ReturnTotals, peers: PeerBands, p: Params): F
     const share = amount / t.income;
     if (share <= limit) continue;
     found.push(`${label} are ${pct(share, 1)} of income; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${lim.n} peers with income ${band} is ${pct(limit, 1)}`);
-    strength = Math.max(strength, clamp01(0.4 + (share / Math.max(limit, 0.001) - 1) / 2));
+    // Just above the percentile is where 5 % of honest peers sit by construction, and honest
+    // medical bills have a long tail: strength grows with the log of the excess, full at 8×.
+    strength = Math.max(strength, clamp01(Math.log(share / Math.max(limit, 0.0001)) / Math.log(8)));
     stake += amount - Math.round(limit * t.income);
   }
   if (!found.length) return none(`Deductions are within the usual range for income ${band}.`);
@@ -179,7 +182,7 @@ export function expensesNearReceipts(t: ReturnTotals, p: Params): FactorResult {
   const ratio = t.businessExpenses / t.receipts;
   if (ratio < p.expenseRatio) return none(`Business expenses are ${pct(ratio)} of receipts (threshold ${pct(p.expenseRatio)}).`);
   return {
-    strength: clamp01(0.5 + (ratio - p.expenseRatio) / 0.4),
+    strength: clamp01(0.25 + (ratio - p.expenseRatio) / 0.4),
     evidence: `Business expenses are ${pct(ratio)} of receipts (threshold ${pct(p.expenseRatio)}): ${money(t.businessExpenses)} against ${money(t.receipts)}.`,
     stakeIncomeCents: Math.max(0, t.businessExpenses - Math.round(p.typicalExpenseRatio * t.receipts)),
     stakeTaxCents: 0,
@@ -279,22 +282,30 @@ export function incomeDrop(f: ReturnFacts, t: ReturnTotals, p: Params): FactorRe
     const ratio = Math.log(Math.max(now, 1) / before);
     if (-ratio <= p.incomeDropLogRatio) continue;
     found.push(`${label} fell from ${money(before)} in ${f.taxYear - 1} to ${money(now)} (${pct(1 - Math.max(now, 0) / before)} lower)`);
-    strength = Math.max(strength, clamp01(0.4 + (-ratio - p.incomeDropLogRatio) / (2 * p.incomeDropLogRatio)));
+    strength = Math.max(strength, clamp01(0.25 + (-ratio - p.incomeDropLogRatio) / (2 * p.incomeDropLogRatio)));
     stake = Math.max(stake, Math.round((before - Math.max(now, 0)) / 2));
   }
   if (!found.length) return none(`No sharp drop from ${f.taxYear - 1}.`);
   return { strength, evidence: `${found.join('; ')}.`, stakeIncomeCents: stake, stakeTaxCents: 0 };
 }
 
-/** Refund large against tax withheld. */
+/**
+ * Refund large against tax withheld. When the return's own lines give that refund (no tax
+ * due, say, on a low income) it is noted at a quarter of the strength: large, but what the
+ * rules give.
+ */
 export function refundLarge(t: ReturnTotals, p: Params): FactorResult {
   const refund = t.reported.refund ?? t.refund;
   if (refund <= 0 || t.withheld <= 0) return none('No refund claimed.');
   const ratio = refund / t.withheld;
   if (ratio <= p.refundRatio) return none(`Refund is ${pct(ratio)} of tax withheld (threshold ${pct(p.refundRatio)}).`);
+  const supported = refund <= t.refund + p.totalsToleranceCents;
+  const strength = clamp01(0.5 + (ratio - p.refundRatio) / (2 * (1 - p.refundRatio + 0.01)));
   return {
-    strength: clamp01(0.5 + (ratio - p.refundRatio) / (2 * (1 - p.refundRatio + 0.01))),
-    evidence: `Refund of ${money(refund)} is ${pct(ratio)} of tax withheld ${money(t.withheld)} (threshold ${pct(p.refundRatio)}).`,
+    strength: supported ? strength / 4 : strength,
+    evidence:
+      `Refund of ${money(refund)} is ${pct(ratio)} of tax withheld ${money(t.withheld)} (threshold ${pct(p.refundRatio)})` +
+      (supported ? '; the return\'s lines give this refund (tax due is low).' : `; the lines give ${money(t.refund)}.`),
     stakeIncomeCents: 0,
     stakeTaxCents: 0,
   };
@@ -317,8 +328,9 @@ export function repeatedAmounts(amounts: readonly number[], sharedWithClients: R
   const parts: string[] = [];
   if (repeated.length) parts.push(`on this return: ${repeated.slice(0, 4).map(([a, n]) => `${money(a)} × ${n}`).join(', ')}${repeated.length > 4 ? ` and ${repeated.length - 4} more` : ''}`);
   if (shared.length) parts.push(`also on other clients' returns of the same preparer: ${shared.slice(0, 4).map(money).join(', ')}${shared.length > 4 ? ` and ${shared.length - 4} more` : ''}`);
-  const extra = repeated.reduce((s, [, n]) => s + n - 1, 0) + shared.length;
-  return { strength: clamp01(0.3 + 0.15 * extra), evidence: `Repeated amounts ${parts.join('; ')}.`, stakeIncomeCents: 0, stakeTaxCents: 0 };
+  // A repeat on this return weighs twice a coincidence with another client's return.
+  const extra = repeated.reduce((s, [, n]) => s + n - 1, 0);
+  return { strength: clamp01(0.2 * extra + 0.1 * shared.length), evidence: `Repeated amounts ${parts.join('; ')}.`, stakeIncomeCents: 0, stakeTaxCents: 0 };
 }
 
 export { computeTotals };

@@ -23,9 +23,12 @@ export interface PooledDigits {
   judgedBy: 'fixed' | 'size-aware' | 'none';
 }
 
-/** Digit-pattern strength from a size-aware z (z < 1.5 gives 0; z >= 4 gives 1). */
+/**
+ * Digit-pattern strength from a size-aware z: 0 below z = 2 (about 3 % of honest samples
+ * reach it, shared/digits/size-aware.ts), rising to 1 at z = 4.5.
+ */
 export function strengthFromZ(z: number | null): number {
-  return z === null ? 0 : clamp01((z - 1.5) / 2.5);
+  return z === null ? 0 : clamp01((z - 2) / 2.5);
 }
 
 /**
