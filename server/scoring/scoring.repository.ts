@@ -30,9 +30,11 @@ export async function batchReturnIds(db: Db, batchId: string): Promise<string[]>
 export async function batchDeductionFigures(db: Db, batchId: string): Promise<{ income: number; charity: number; medical: number }[]> {
   const rows: { income: string; charity: string; medical: string }[] = await db.query(
     `SELECT (r.computed_income * 100)::bigint AS income,
-            coalesce((SELECT sum(li.amount) FROM line_item li WHERE li.return_id = r.id AND li.line_code = 'ded.charity'), 0) * 100 AS charity,
-            coalesce((SELECT sum(li.amount) FROM line_item li WHERE li.return_id = r.id AND li.line_code = 'ded.medical'), 0) * 100 AS medical
-       FROM tax_return r WHERE r.batch_id = $1`,
+            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.charity'), 0) * 100 AS charity,
+            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.medical'), 0) * 100 AS medical
+       FROM tax_return r LEFT JOIN line_item li ON li.return_id = r.id AND li.line_code IN ('ded.charity', 'ded.medical')
+      WHERE r.batch_id = $1
+      GROUP BY r.id`,
     [batchId],
   );
   return rows.map((r) => ({ income: Number(r.income), charity: Math.round(Number(r.charity)), medical: Math.round(Number(r.medical)) }));
@@ -78,6 +80,7 @@ export async function lineCodeDigitCounts(db: Db, batchId: string): Promise<Map<
 
 /** Amounts (absolute cents, >= min) that appear on returns of two or more clients of one preparer. */
 export async function preparerSharedAmounts(db: Db, batchId: string, minCents: number): Promise<Map<string, number[]>> {
+  // min <> max instead of count(DISTINCT): a hash aggregate, no sort of every amount.
   const rows: { preparer_id: string; cents: string }[] = await db.query(
     `WITH p AS (SELECT DISTINCT preparer_id FROM tax_return WHERE batch_id = $1 AND preparer_id IS NOT NULL)
      SELECT r.preparer_id, (abs(li.amount) * 100)::bigint AS cents
@@ -85,7 +88,7 @@ export async function preparerSharedAmounts(db: Db, batchId: string, minCents: n
        JOIN line_item li ON li.return_id = r.id
       WHERE ${ITEMISED_SQL} AND abs(li.amount) >= $2
       GROUP BY 1, 2
-     HAVING count(DISTINCT r.taxpayer_id) >= 2`,
+     HAVING min(r.taxpayer_id::text) <> max(r.taxpayer_id::text)`,
     [batchId, minCents / 100],
   );
   const out = new Map<string, number[]>();

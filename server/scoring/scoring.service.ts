@@ -58,10 +58,26 @@ function percentile(xs: number[], q: number): number {
   return s[Math.min(s.length - 1, Math.floor(q * s.length))];
 }
 
-/** Batch-wide context: computed once per run. */
+/**
+ * Runs one aggregate in its own transaction with more sort/hash memory than the default
+ * 4 MB, so the batch-wide aggregates over a million line items stay in memory.
+ */
+function withWorkMem<T>(ds: DataSource, fn: (m: EntityManager) => Promise<T>): Promise<T> {
+  return ds.transaction(async (m) => {
+    await m.query(`SET LOCAL work_mem = '64MB'`);
+    return fn(m);
+  });
+}
+
+/** Batch-wide context: computed once per run; the four aggregates run side by side. */
 export async function computeRunContext(ds: DataSource, batchId: string, settings: ScoringSettings): Promise<RunContext> {
   const p = settings.params;
-  const figures = await batchDeductionFigures(ds, batchId);
+  const [figures, preparerCounts, sharedAmounts, lineCodeCounts] = await Promise.all([
+    withWorkMem(ds, (m) => batchDeductionFigures(m, batchId)),
+    withWorkMem(ds, (m) => preparerDigitCounts(m, batchId)),
+    withWorkMem(ds, (m) => preparerSharedAmounts(m, batchId, p.repeatMinCents)),
+    withWorkMem(ds, (m) => lineCodeDigitCounts(m, batchId)),
+  ]);
   const bands = new Map<string, { charity: number[]; medical: number[] }>();
   for (const f of figures) {
     if (f.income <= 0) continue;
@@ -77,11 +93,11 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
     peerLimits[b] = { charity: enough ? percentile(s.charity, p.deductionPercentile) : null, medical: enough ? percentile(s.medical, p.deductionPercentile) : null, n: s.charity.length };
   }
   const preparers: RunContext['preparers'] = {};
-  for (const [id, counts] of await preparerDigitCounts(ds, batchId)) preparers[id] = { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts };
+  for (const [id, counts] of preparerCounts) preparers[id] = { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts };
   const shared: RunContext['shared'] = {};
-  for (const [id, list] of await preparerSharedAmounts(ds, batchId, p.repeatMinCents)) shared[id] = list;
+  for (const [id, list] of sharedAmounts) shared[id] = list;
   const lineCodes: RunContext['lineCodes'] = {};
-  for (const [code, counts] of await lineCodeDigitCounts(ds, batchId)) lineCodes[code] = { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts };
+  for (const [code, counts] of lineCodeCounts) lineCodes[code] = { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts };
   return { peerLimits, preparers, shared, lineCodes };
 }
 
@@ -216,6 +232,8 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     return { scored: 0, failed: 0, skipped: true };
   }
 
+  const trace = process.env.PLUMBLINE_TRACE ? (what: string, t: number) => console.log(`[trace] ${what} ${(performance.now() - t).toFixed(0)} ms`) : () => undefined;
+  let t = performance.now();
   const ids = todo.map((r) => r.id);
   const taxpayerIds = [...new Set(todo.map((r) => r.taxpayerId))];
   const [lines, statements, history, tpCounts] = await Promise.all([
@@ -224,6 +242,8 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     historyOf(ds, taxpayerIds),
     taxpayerDigitCounts(ds, taxpayerIds),
   ]);
+  trace('load', t);
+  t = performance.now();
   const historyByTaxpayer = new Map<string, typeof history>();
   for (const h of history) historyByTaxpayer.set(h.taxpayerId, [...(historyByTaxpayer.get(h.taxpayerId) ?? []), h]);
   const peers: PeerBands = { bandOf: incomeBand, limits: context.peerLimits };
@@ -261,6 +281,8 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     }
   });
 
+  trace('score', t);
+  t = performance.now();
   return ds.transaction(async (m) => {
     const inserted: { id: string; return_id: string }[] = await m.query(
       `INSERT INTO return_score (return_id, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown, failure_reason)
@@ -292,6 +314,7 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     );
     await m.query(`UPDATE filing_batch SET scored_count = $2, updated_at = now() WHERE id = $1`, [batchId, run[0].scored + run[0].failed]);
     await finishIfDone(m, job.runId);
+    trace('store', t);
     return { scored, failed, skipped: false };
   });
 }

@@ -1,0 +1,1 @@
+export { ScoringScreen as default } from '../../components/features/scoring/scoring-screen';

@@ -1,0 +1,93 @@
+import { QUEUES } from '../../server/queue/queues';
+import { scoreBatchNow } from '../../server/scoring/scoring.service';
+import { PerformanceSchema, ProfileListSchema } from '../../shared/scoring/profile-api';
+import { DEFAULT_SCORING_SETTINGS } from '../../shared/scoring/settings';
+import { signIn, type SignedIn } from '../helpers/auth';
+import { loadScoredBatch } from '../helpers/scored-batch';
+import { createTestContext, type TestContext } from '../helpers/test-app';
+
+jest.setTimeout(60_000);
+
+describe('scoring profiles', () => {
+  let ctx: TestContext;
+  let sup: SignedIn;
+  let ex: SignedIn;
+  beforeAll(async () => {
+    ctx = await createTestContext();
+    sup = await signIn(ctx, 'supervisor');
+    ex = await signIn(ctx, 'examiner');
+  });
+  afterAll(async () => {
+    await ctx.close();
+  });
+
+  it('starts with version 1 from the migration, active, readable by examiners', async () => {
+    const res = await ex.agent.get('/api/scoring/profiles');
+    const list = ProfileListSchema.parse(res.body);
+    expect(list.items.map((p) => [p.version, p.active])).toEqual([[1, true]]);
+    expect(list.items[0].settings.selectionCut).toBe(DEFAULT_SCORING_SETTINGS.selectionCut);
+  });
+
+  it('adds a new version (the old one stays, inactive) and refuses bad settings with every path named', async () => {
+    const settings = { ...DEFAULT_SCORING_SETTINGS, weights: { ...DEFAULT_SCORING_SETTINGS.weights, cashHeavy: 0 } };
+    const res = await sup.agent.post('/api/scoring/profiles').set('X-CSRF-Token', sup.csrf).send({ settings, note: 'cash-heavy off for the pilot' });
+    expect(res.status).toBe(201);
+    expect(res.body).toMatchObject({ version: 2, active: true, note: 'cash-heavy off for the pilot' });
+    const list = ProfileListSchema.parse((await sup.agent.get('/api/scoring/profiles')).body);
+    expect(list.items.map((p) => [p.version, p.active])).toEqual([
+      [2, true],
+      [1, false],
+    ]);
+    const bad = await sup.agent
+      .post('/api/scoring/profiles')
+      .set('X-CSRF-Token', sup.csrf)
+      .send({ settings: { ...settings, selectionCut: 140, weights: { ...settings.weights, digits: -1 } }, note: 'x' });
+    expect(bad.status).toBe(422);
+    expect(bad.body.issues.map((i: { path: string }) => i.path).sort()).toEqual(['note', 'settings.selectionCut', 'settings.weights.digits']);
+    const back = await sup.agent.post('/api/scoring/profiles/1/activate').set('X-CSRF-Token', sup.csrf);
+    expect(back.status).toBe(204);
+    expect((await ctx.dataSource.query(`SELECT version FROM scoring_profile WHERE active`))[0].version).toBe(1);
+  });
+
+  it('learns from closed cases: rates per factor and a bounded suggested weight', async () => {
+    const b = await loadScoredBatch(ctx.dataSource, { seed: 'perf', returns: 600, plantShare: 0.15 });
+    // Close every case: adjusted when its score flagged totals that do not add up, else no change.
+    await ctx.dataSource.query(
+      `UPDATE exam_case c SET state = CASE WHEN EXISTS (
+          SELECT 1 FROM return_score s, jsonb_array_elements(s.breakdown->'components') comp
+           WHERE s.id = c.score_id AND comp->>'key' = 'totalsMismatch' AND (comp->>'points')::numeric > 0)
+        THEN 'closed_adjusted' ELSE 'closed_no_change' END, closed_at = now()
+       WHERE batch_id = $1`,
+      [b.batchId],
+    );
+    const perf = PerformanceSchema.parse((await sup.agent.get('/api/scoring/performance')).body);
+    expect(perf.closedCases).toBeGreaterThan(0);
+    const totals = perf.factors.find((f) => f.key === 'totalsMismatch')!;
+    expect(totals.adjustedRate).toBe(1);
+    if (totals.flagged >= perf.minEvidence) {
+      expect(totals.suggestedWeight).toBeGreaterThan(totals.weight);
+      expect(totals.suggestedWeight).toBeLessThanOrEqual(Math.min(100, 2 * totals.weight));
+    }
+    for (const f of perf.factors) {
+      expect(f.suggestedWeight).toBeGreaterThanOrEqual(f.weight / 2 - 1e-9);
+      expect(f.suggestedWeight).toBeLessThanOrEqual(Math.min(100, f.weight * 2) + 1e-9);
+      if (f.flagged < perf.minEvidence) expect(f.suggestedWeight).toBe(f.weight);
+    }
+  });
+
+  it('queues a re-score of a scored batch under another version, once', async () => {
+    const b = await loadScoredBatch(ctx.dataSource, { seed: 'rescore', returns: 50, plantShare: 0.1 });
+    const before = await ctx.boss.getQueueSize(QUEUES.scoreBatch);
+    const res = await sup.agent.post(`/api/batches/${b.batchId}/rescore`).set('X-CSRF-Token', sup.csrf).send({ version: 2 });
+    expect(res.status).toBe(202);
+    expect(await ctx.boss.getQueueSize(QUEUES.scoreBatch)).toBe(before + 1);
+    await scoreBatchNow(ctx.dataSource, b.batchId, 2);
+    const again = await sup.agent.post(`/api/batches/${b.batchId}/rescore`).set('X-CSRF-Token', sup.csrf).send({ version: 2 });
+    expect(again.status).toBe(409);
+    const [{ v1, v2 }] = await ctx.dataSource.query(
+      `SELECT count(*) FILTER (WHERE profile_version = 1)::int AS v1, count(*) FILTER (WHERE profile_version = 2)::int AS v2 FROM return_score WHERE batch_id = $1`,
+      [b.batchId],
+    );
+    expect({ v1, v2 }).toEqual({ v1: 50, v2: 50 });
+  });
+});

@@ -1,0 +1,44 @@
+import type { Browser } from 'playwright-core';
+import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
+import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS } from '../helpers/browser';
+import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
+
+jest.setTimeout(120_000);
+
+describe('scoring profile screen (supervisor, browser)', () => {
+  let s: SeededServer;
+  let browser: Browser;
+  beforeAll(async () => {
+    s = await startSeededServer();
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await s?.close();
+  });
+
+  it('saves changed weights as a new version and shows it active', async () => {
+    const page = await browser.newPage({ viewport: VIEWPORTS.wide });
+    await signInThroughUi(page, s.server.baseUrl, 'supervisor', DEMO_PASSWORD);
+    await page.goto(s.server.baseUrl + '/scoring', { waitUntil: 'networkidle' });
+    await page.getByTestId('weight-cashHeavy').fill('2');
+    await page.getByTestId('profile-note').fill('Less weight on cash-heavy trades');
+    await page.getByTestId('save-profile').click();
+    await page.getByText('Saved as version 2; new batches are scored with it.').waitFor();
+    const versions = await page.getByTestId('profile-versions').textContent();
+    expect(versions).toContain('v2');
+    expect(versions).toContain('Less weight on cash-heavy trades');
+    await screenshot(page, 'scoring-wide');
+    await page.close();
+  });
+
+  it('refuses an empty note with the reason, on a phone', async () => {
+    const page = await browser.newPage({ viewport: VIEWPORTS.phone });
+    await signInThroughUi(page, s.server.baseUrl, 'supervisor', DEMO_PASSWORD);
+    await page.goto(s.server.baseUrl + '/scoring', { waitUntil: 'networkidle' });
+    await page.getByTestId('save-profile').click();
+    await page.getByText('Say in a few words why the weights change').waitFor();
+    await screenshot(page, 'scoring-phone');
+    await page.close();
+  });
+});
