@@ -20,6 +20,10 @@ const ConfigSchema = z.object({
   WEB_DIST: z.string().default(path.resolve(__dirname, '..', 'dist')),
   PUBLIC_URL: z.string().url('must be a full URL such as http://127.0.0.1:8080').optional(),
   NODE_ENV: z.enum(['development', 'test', 'production']).default('development'),
+  /** Largest file a batch upload may contain, in MB (intake, issue 4). */
+  BATCH_MAX_FILE_MB: z.coerce.number().positive('must be a positive number of megabytes').default(100),
+  /** Most data rows in one batch file or sheet; the default is what one Excel sheet holds under its header. */
+  BATCH_MAX_ROWS: z.coerce.number().int().positive('must be a positive whole number').default(1_048_575),
 });
 
 /** Validated settings. */

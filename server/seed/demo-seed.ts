@@ -1,11 +1,19 @@
 /**
  * Demo data for `npm start`: the Aldermere staff accounts (password `plumbline-demo`, for
- * demonstration only) and, once intake exists, a demo filing batch. Idempotent.
+ * demonstration only) and, on first run, the Aldermere demo filing batch. Idempotent.
  */
 import bcrypt from 'bcryptjs';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import type { DataSource } from 'typeorm';
+import { DEMO_YEARS, type GenerateOptions } from '../../shared/demo/aldermere';
+import { DEFAULT_INTAKE_LIMITS } from '../../shared/returns/batch-rows';
 import type { Role } from '../../shared/roles';
+import { ingestUpload } from '../batches/batch.service';
+import { createBoss, ensureQueues } from '../queue/queues';
 import { User } from '../users/user.entity';
+import { writeAnswers, writeCsvBatch } from './batch-files';
 
 /** The demo password (README says: demo only, change before real use). */
 export const DEMO_PASSWORD = 'plumbline-demo';
@@ -33,8 +41,51 @@ export async function seedDemoAccounts(ds: DataSource): Promise<number> {
   return created;
 }
 
+/** The demo batch: a few thousand Aldermere returns, 2022–2025, about 5 % planted. */
+export const DEMO_BATCH: GenerateOptions = { seed: 'aldermere-demo', returns: 3000, plantShare: 0.05, years: DEMO_YEARS };
+
+/** Where the demo's answer file (the planted returns) is written, outside the batch. */
+export const DEMO_ANSWERS_DIR = path.resolve(__dirname, '..', '..', '.data', 'demo');
+
+/**
+ * On first run (no batch on file yet), generates the Aldermere demo batch as CSV files and
+ * loads it through the same intake service as an upload, as the demo clerk, then sends
+ * its scoring job so the queue is not empty. Writes the answer file to {@link DEMO_ANSWERS_DIR}.
+ * @returns a line for the start command, or null when a batch was already there
+ */
+export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO_BATCH): Promise<string | null> {
+  const [{ n }] = await ds.query(`SELECT count(*)::int AS n FROM filing_batch`);
+  if (n > 0) return null;
+  const clerk = await ds.getRepository(User).findOneBy({ username: 'clerk' });
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-demo-'));
+  const url = (ds.options as { url?: string }).url;
+  const boss = url ? createBoss(url, 'server') : null;
+  try {
+    const t0 = Date.now();
+    const written = await writeCsvBatch(dir, opts);
+    writeAnswers(DEMO_ANSWERS_DIR, opts, written.labels);
+    if (boss) {
+      await boss.start();
+      await ensureQueues(boss);
+    }
+    const file = (t: 'returns' | 'line_items' | 'statements') => ({ originalName: `aldermere-demo-${t}.csv`, path: written.files[t]!, size: fs.statSync(written.files[t]!).size });
+    const outcome = await ingestUpload(
+      { dataSource: ds, boss, limits: DEFAULT_INTAKE_LIMITS },
+      { format: 'csv', parts: { returns: file('returns'), line_items: file('line_items'), statements: file('statements') } },
+      clerk ? { id: clerk.id } : null,
+    );
+    if (outcome.kind !== 'accepted') throw new Error(`the demo batch was not accepted: ${JSON.stringify(outcome.body).slice(0, 1000)}`);
+    const c = outcome.batch.counts;
+    return `loaded the Aldermere demo batch: ${c.returns} returns, ${c.lineItems} line items, ${c.statements} statements in ${((Date.now() - t0) / 1000).toFixed(1)} s; ${written.labels.length} planted returns listed in ${path.relative(process.cwd(), DEMO_ANSWERS_DIR)}/answers.json`;
+  } finally {
+    await boss?.stop({ graceful: false, wait: true }).catch(() => undefined);
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
+
 /** Everything the demo needs. Returns a line for the start command to print. */
 export async function seedDemo(ds: DataSource): Promise<string> {
   const accounts = await seedDemoAccounts(ds);
-  return accounts ? `created ${accounts} demo accounts` : 'demo accounts present';
+  const batch = await seedDemoBatch(ds);
+  return [accounts ? `created ${accounts} demo accounts` : 'demo accounts present', batch ?? 'demo batch present'].join('; ');
 }

@@ -54,6 +54,9 @@ export async function createTestContext(overrides: Record<string, string> = {}):
     mailer,
     async close() {
       mailer.close();
+      // Dropping the database ends any connection pg-boss still holds; its 'error' event then
+      // has nobody to tell and would fail the suite after every test passed.
+      boss.on('error', () => undefined);
       await boss.stop({ graceful: false, wait: true }).catch(() => undefined);
       if (dataSource.isInitialized) await dataSource.destroy();
       await db.drop();

@@ -1,0 +1,1 @@
+export { BatchScreen as default } from '../../../components/features/batches/batch-screen';

@@ -1,0 +1,1 @@
+export { BatchesScreen as default } from '../../../components/features/batches/batches-screen';

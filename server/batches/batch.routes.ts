@@ -1,0 +1,134 @@
+/**
+ * Batches API (DESIGN.md section 10):
+ *  - `POST /api/batches` (clerk), multipart: `file` (one XLSX workbook) or `returns` +
+ *    `line_items` (+ `statements`) CSV parts → 201 {id, state, counts, amendedReturns},
+ *    422 {error, batchId, errorCount, errors: [{file, row, column, message, value}]},
+ *    409 {error, batchId} for a file seen before, 413 for a file over the size limit;
+ *  - `GET /api/batches?page=&pageSize=` and `GET /api/batches/:id` (clerk, supervisor);
+ *  - `GET /api/batches/:id/report.xlsx` (clerk, supervisor): the validation report.
+ */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import type { RequestHandler } from 'express';
+import multer from 'multer';
+import { BatchListQuerySchema, sizeText, type BatchRejected, type BatchTable } from '../../shared/returns/batch-rows';
+import { recordAccess } from '../access-log/access-log.service';
+import type { AppDeps } from '../app';
+import { allow, secureRouter } from '../auth/access';
+import { HttpError } from '../http/errors';
+import { validate } from '../http/validate';
+import { getBatch, ingestUpload, listBatches, uploadFromParts, writeBatchReport, type IntakeDeps } from './batch.service';
+import type { UploadedFile } from './intake/sources';
+
+const PARTS = ['file', 'returns', 'line_items', 'statements'] as const;
+type Part = (typeof PARTS)[number];
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/** Limits from the configuration. */
+export function intakeLimits(config: AppDeps['config']) {
+  return { maxFileBytes: Math.round(config.BATCH_MAX_FILE_MB * 1024 * 1024), maxRows: config.BATCH_MAX_ROWS };
+}
+
+/**
+ * Receives the multipart upload onto disk (never whole into memory), with the size limit,
+ * and turns multer's own errors into the batch error format.
+ */
+function receiveUpload(maxFileBytes: number): RequestHandler {
+  const dir = path.join(os.tmpdir(), 'plumbline-uploads');
+  fs.mkdirSync(dir, { recursive: true });
+  const mw = multer({
+    storage: multer.diskStorage({ destination: dir }),
+    limits: { fileSize: maxFileBytes, files: PARTS.length, fields: 10, parts: 20 },
+    defParamCharset: 'utf8',
+  }).fields(PARTS.map((name) => ({ name, maxCount: 1 })));
+  return (req, res, next) => {
+    mw(req, res, (err: unknown) => {
+      if (!err) return next();
+      if (err instanceof multer.MulterError) {
+        const file = (err as { filename?: string }).filename ?? err.field ?? '';
+        const problem = (status: number, message: string) => {
+          const body: BatchRejected = { error: message, batchId: null, errorCount: 1, errors: [{ file, row: null, column: null, message }] };
+          res.status(status).json(body);
+        };
+        if (err.code === 'LIMIT_FILE_SIZE') return problem(413, `The file is larger than the ${sizeText(maxFileBytes)} a batch file may be. Split the batch into smaller batches.`);
+        if (err.code === 'LIMIT_UNEXPECTED_FILE') {
+          return problem(422, `Unexpected upload part "${err.field}". Send one XLSX workbook as "file", or CSV files as "returns", "line_items" and optionally "statements".`);
+        }
+        return problem(422, `The upload could not be read (${err.message}). Send one XLSX workbook, or the CSV files of one batch.`);
+      }
+      next(err);
+    });
+  };
+}
+
+function removeUploads(files: Record<string, Express.Multer.File[]> | undefined): void {
+  for (const list of Object.values(files ?? {})) for (const f of list) fs.rm(f.path, { force: true }, () => undefined);
+}
+
+/** The batch routes. */
+export function batchRoutes(deps: AppDeps) {
+  const r = secureRouter();
+  const limits = intakeLimits(deps.config);
+  const intake: IntakeDeps = { dataSource: deps.dataSource, boss: deps.boss, limits };
+
+  r.post('/batches', allow('uploadBatches'), receiveUpload(limits.maxFileBytes), async (req, res) => {
+    const files = req.files as Record<string, Express.Multer.File[]> | undefined;
+    try {
+      const parts: Partial<Record<Part, UploadedFile>> = {};
+      for (const p of PARTS) {
+        const f = files?.[p]?.[0];
+        if (f) parts[p] = { originalName: f.originalname || `${p}${p === 'file' ? '.xlsx' : '.csv'}`, path: f.path, size: f.size };
+      }
+      const made = uploadFromParts(parts as Partial<Record<'file' | BatchTable, UploadedFile>>);
+      if ('issues' in made) {
+        const body: BatchRejected = { error: made.issues[0].message, batchId: null, errorCount: made.issues.length, errors: made.issues };
+        res.status(422).json(body);
+        return;
+      }
+      const outcome = await ingestUpload(intake, made.upload, req.user!);
+      const batchId = outcome.kind === 'accepted' ? outcome.batch.id : outcome.body.batchId;
+      if (outcome.kind !== 'duplicate' && batchId) {
+        await recordAccess(deps.dataSource, req.user!, {
+          action: 'change',
+          route: 'POST /api/batches',
+          recordType: 'filing_batch',
+          recordId: batchId,
+          detail:
+            outcome.kind === 'accepted'
+              ? `batch accepted: ${outcome.batch.counts.returns} returns, ${outcome.batch.counts.lineItems} line items, ${outcome.batch.counts.statements} statements`
+              : `batch rejected: ${outcome.body.errorCount} errors`,
+        });
+      }
+      if (outcome.kind === 'accepted') res.status(201).json(outcome.batch);
+      else if (outcome.kind === 'duplicate') res.status(409).json(outcome.body);
+      else res.status(422).json(outcome.body);
+    } finally {
+      removeUploads(files);
+    }
+  });
+
+  r.get('/batches', allow('readBatches'), validate(BatchListQuerySchema, 'query'), async (_req, res) => {
+    res.json(await listBatches(deps.dataSource, res.locals.query));
+  });
+
+  r.get('/batches/:id', allow('readBatches'), async (req, res) => {
+    const id = String(req.params.id);
+    const batch = UUID.test(id) ? await getBatch(deps.dataSource, id) : null;
+    if (!batch) throw new HttpError(404, `There is no batch ${id}.`);
+    res.json(batch);
+  });
+
+  r.get('/batches/:id/report.xlsx', allow('readBatches'), async (req, res) => {
+    const id = String(req.params.id);
+    const batch = UUID.test(id) ? await getBatch(deps.dataSource, id) : null;
+    if (!batch) throw new HttpError(404, `There is no batch ${id}.`);
+    await recordAccess(deps.dataSource, req.user!, { action: 'export', route: 'GET /api/batches/:id/report.xlsx', recordType: 'filing_batch', recordId: id, detail: 'validation report' });
+    res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
+    res.setHeader('Content-Disposition', `attachment; filename="batch-${id.slice(0, 8)}-report.xlsx"`);
+    res.setHeader('Cache-Control', 'no-store');
+    await writeBatchReport(deps.dataSource, id, res);
+  });
+
+  return r;
+}

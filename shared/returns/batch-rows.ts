@@ -1,0 +1,391 @@
+/**
+ * The batch file format (DESIGN.md section 4) as zod 4 schemas, and the batch API's
+ * answers (DESIGN.md section 10). One contract for the server's intake, the demo
+ * generator, the tests and the Batches screen.
+ *
+ * Row schemas take one row as `{ column: text }`: every cell already turned into trimmed
+ * text (a blank or missing cell is ""), whether it came from a CSV file or an XLSX sheet,
+ * so both formats are judged by exactly the same rules. Each message says what is wrong
+ * with the value and how to fix it; the intake adds the file, row and column.
+ */
+import { z } from 'zod';
+import { ACTIVITY_CODES, LINE_CODE_DEFS, LINE_CODES, STATEMENT_KINDS, type ActivityCode, type LineCode, type StatementKind } from './line-codes';
+import { centsFromDecimal, DECIMAL_PROBLEM_TEXT, decimalProblem } from './money';
+
+// ---------------------------------------------------------------------------------------
+// Files and columns
+
+/** The three tables of a batch, by their file/sheet name. */
+export const BATCH_TABLES = ['returns', 'line_items', 'statements'] as const;
+export type BatchTable = (typeof BATCH_TABLES)[number];
+
+/** Columns of each table, in the documented order; `required` ones must be in the header. */
+export const BATCH_COLUMNS = {
+  returns: {
+    required: ['return_ref', 'tin', 'tax_year', 'taxpayer_name', 'activity_code', 'preparer_id'],
+    optional: ['email', 'postal_address'],
+  },
+  line_items: { required: ['return_ref', 'line_code', 'amount'], optional: [] },
+  statements: { required: ['tin', 'tax_year', 'kind', 'payer', 'amount'], optional: [] },
+} as const satisfies Record<BatchTable, { required: readonly string[]; optional: readonly string[] }>;
+
+/** Every column a table may have. */
+export function columnsOf(table: BatchTable): readonly string[] {
+  return [...BATCH_COLUMNS[table].required, ...BATCH_COLUMNS[table].optional];
+}
+
+/**
+ * A header cell as the intake reads it: trimmed, lower case, spaces and hyphens as
+ * underscores, so "Return Ref" and "return-ref" both mean `return_ref`.
+ */
+export function normaliseHeader(h: string): string {
+  return h.trim().toLowerCase().replace(/[\s-]+/g, '_');
+}
+
+/** Limits an upload must keep; the server's configuration may lower or raise them. */
+export interface IntakeLimits {
+  /** Largest single file, in bytes. */
+  maxFileBytes: number;
+  /** Most data rows in one file or sheet (the header not counted). */
+  maxRows: number;
+}
+
+/**
+ * Defaults. 1,048,575 data rows is what one Excel sheet can hold under its header, so a
+ * batch that opens in Excel is never refused for its length; 100 MB covers that many line
+ * items as CSV (about 40 bytes a row).
+ */
+export const DEFAULT_INTAKE_LIMITS: IntakeLimits = { maxFileBytes: 100 * 1024 * 1024, maxRows: 1_048_575 };
+
+/** A file size for messages: "10 kB", "4.5 MB", "100 MB". */
+export function sizeText(bytes: number): string {
+  if (bytes < 1024 * 1024) return `${Math.max(1, Math.round(bytes / 1024))} kB`;
+  const m = bytes / (1024 * 1024);
+  return `${m < 10 ? Math.round(m * 10) / 10 : Math.round(m)} MB`;
+}
+
+/** Most errors kept and shown for one batch; the rest are counted in an "and N more" line. */
+export const MAX_REPORTED_ERRORS = 1000;
+
+// ---------------------------------------------------------------------------------------
+// Tax years
+
+/** The tax years the office takes returns for. */
+export interface TaxYearRange {
+  first: number;
+  last: number;
+}
+
+/**
+ * Aldermere's (invented) rule: a return can be filed once its tax year has ended, and the
+ * office takes returns for the ten tax years before the current one.
+ *
+ * @param today the date the batch is received
+ */
+export function officeTaxYears(today: Date = new Date()): TaxYearRange {
+  const y = today.getUTCFullYear();
+  return { first: y - 10, last: y - 1 };
+}
+
+// ---------------------------------------------------------------------------------------
+// Cell schemas
+
+function show(v: unknown): string {
+  const s = String(v ?? '');
+  return JSON.stringify(s.length > 40 ? `${s.slice(0, 40)}…` : s);
+}
+
+const CONTROL = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/;
+
+/** A filer's own reference for one return, unique within a batch. */
+export const ReturnRefSchema = z.string().check((ctx) => {
+  const v = ctx.value;
+  if (v === '') ctx.issues.push({ code: 'custom', input: v, message: 'is empty; every row needs the return reference (return_ref) it belongs to' });
+  else if (!/^[A-Za-z0-9][A-Za-z0-9._/-]{0,39}$/.test(v)) {
+    ctx.issues.push({ code: 'custom', input: v, message: `${show(v)} is not a valid return reference: use 1–40 letters, digits, '.', '_', '/' or '-', starting with a letter or digit` });
+  }
+});
+
+/** Taxpayer identification number: exactly 9 digits, kept as text (leading zeros matter). */
+export const TinSchema = z.string().check((ctx) => {
+  const v = ctx.value;
+  if (/^\d{9}$/.test(v)) return;
+  let message: string;
+  if (v === '') message = 'is empty; every row needs the taxpayer\'s 9-digit TIN';
+  else if (/^\d{1,8}$/.test(v)) message = `${show(v)} has ${v.length} digits; a TIN has 9. If a leading zero was lost, format the column as Text and enter the TIN again`;
+  else if (/^[\d\s.-]+$/.test(v) && v.replace(/\D/g, '').length === 9) message = `${show(v)} must be 9 digits without spaces, dots or dashes, e.g. ${v.replace(/\D/g, '')}`;
+  else message = `${show(v)} is not a TIN: a TIN is exactly 9 digits`;
+  ctx.issues.push({ code: 'custom', input: v, message });
+});
+
+/** A tax year within the office's range. */
+export function taxYearSchema(years: TaxYearRange) {
+  return z.string().transform((v, ctx) => {
+    if (!/^\d{4}$/.test(v)) {
+      ctx.issues.push({ code: 'custom', input: v, message: v === '' ? 'is empty; enter the tax year, e.g. 2024' : `${show(v)} is not a tax year: write the four-digit year, e.g. 2024` });
+      return z.NEVER;
+    }
+    const y = Number(v);
+    if (y < years.first || y > years.last) {
+      ctx.issues.push({
+        code: 'custom',
+        input: v,
+        message: `${y} is outside the tax years the office takes (${years.first}–${years.last})${y > years.last ? ': a return can be filed only once its tax year has ended' : ''}`,
+      });
+      return z.NEVER;
+    }
+    return y;
+  });
+}
+
+function textSchema(what: string, max: number, required: boolean) {
+  return z.string().transform((v, ctx) => {
+    if (v === '') {
+      if (required) ctx.issues.push({ code: 'custom', input: v, message: `is empty; enter the ${what}` });
+      return required ? z.NEVER : null;
+    }
+    if (v.length > max) ctx.issues.push({ code: 'custom', input: v, message: `is ${v.length} characters long; the ${what} may have at most ${max}` });
+    else if (CONTROL.test(v)) ctx.issues.push({ code: 'custom', input: v, message: `contains a control character; remove it from the ${what}` });
+    else return v;
+    return z.NEVER;
+  });
+}
+
+const ActivitySchema = z.string().transform((v, ctx) => {
+  const lower = v.toLowerCase();
+  if ((ACTIVITY_CODES as readonly string[]).includes(lower)) return lower as ActivityCode;
+  ctx.issues.push({
+    code: 'custom',
+    input: v,
+    message: v === '' ? `is empty; use one of: ${ACTIVITY_CODES.join(', ')} (none when there is no business)` : `${show(v)} is not an activity code; use one of: ${ACTIVITY_CODES.join(', ')}`,
+  });
+  return z.NEVER;
+});
+
+const PreparerSchema = z.string().transform((v, ctx) => {
+  if (v === '') return null; // self-prepared
+  if (/^[A-Za-z0-9][A-Za-z0-9._-]{0,39}$/.test(v)) return v;
+  ctx.issues.push({ code: 'custom', input: v, message: `${show(v)} is not a preparer id: use 1–40 letters, digits, '.', '_' or '-', or leave it blank for a self-prepared return` });
+  return z.NEVER;
+});
+
+const EMAIL = z.email();
+
+const EmailSchema = z.string().transform((v, ctx) => {
+  if (v === '') return null;
+  if (v.length <= 254 && EMAIL.safeParse(v).success) return v;
+  ctx.issues.push({ code: 'custom', input: v, message: `${show(v)} is not an e-mail address; correct it or leave the cell blank` });
+  return z.NEVER;
+});
+
+/** A line code from {@link LINE_CODES}, with a hint for near misses. */
+export const LineCodeSchema = z.enum(LINE_CODES, {
+  error: (iss) => {
+    const v = String(iss.input ?? '');
+    const near = LINE_CODES.find((c) => c === v.toLowerCase().replace(/[\s_]+/g, '.'));
+    return v === ''
+      ? 'is empty; enter a line code such as inc.wages'
+      : near
+        ? `${show(v)} is not a line code; did you mean ${near}? (codes are lower case with dots)`
+        : `${show(v)} is not a line code; the codes are: ${LINE_CODES.join(', ')}`;
+  },
+});
+
+/**
+ * An amount as decimal text, checked but kept as text (cents are read after): a plain
+ * regular-expression check keeps zod on its fast path for the million-row line items.
+ * Leading zeros aside, at most 10 digits before the point, i.e. at most 9999999999.99.
+ */
+export const AmountTextSchema = z.string().regex(/^-?0*\d{1,10}(\.\d{1,2})?$/, {
+  error: (iss) => {
+    const v = String(iss.input ?? '');
+    return v === '' ? DECIMAL_PROBLEM_TEXT.empty : `${show(v)} ${DECIMAL_PROBLEM_TEXT[decimalProblem(v) ?? 'syntax']}`;
+  },
+});
+
+/** An amount as decimal text, read to integer cents. */
+export const AmountSchema = z.string().transform((v, ctx) => {
+  const c = centsFromDecimal(v);
+  if (c === c) return c; // not NaN
+  ctx.issues.push({ code: 'custom', input: v, message: v === '' ? DECIMAL_PROBLEM_TEXT.empty : `${show(v)} ${DECIMAL_PROBLEM_TEXT[decimalProblem(v) ?? 'syntax']}` });
+  return z.NEVER;
+});
+
+const StatementKindSchema = z.string().transform((v, ctx) => {
+  const lower = v.toLowerCase();
+  if ((STATEMENT_KINDS as readonly string[]).includes(lower)) return lower as StatementKind;
+  ctx.issues.push({ code: 'custom', input: v, message: `${v === '' ? 'is empty' : `${show(v)} is not a statement kind`}; use one of: ${STATEMENT_KINDS.join(', ')}` });
+  return z.NEVER;
+});
+
+// ---------------------------------------------------------------------------------------
+// Row schemas
+
+/** One `returns` row, as read. */
+export interface ReturnRow {
+  returnRef: string;
+  tin: string;
+  taxYear: number;
+  taxpayerName: string;
+  activityCode: ActivityCode;
+  /** null for a self-prepared return. */
+  preparerId: string | null;
+  email: string | null;
+  postalAddress: string | null;
+}
+
+/** Schema for a `returns` row, for the office's tax-year range. */
+export function returnRowSchema(years: TaxYearRange): z.ZodType<ReturnRow, Record<string, string>> {
+  return z
+    .object({
+      return_ref: ReturnRefSchema,
+      tin: TinSchema,
+      tax_year: taxYearSchema(years),
+      taxpayer_name: textSchema('taxpayer name', 200, true),
+      activity_code: ActivitySchema,
+      preparer_id: PreparerSchema,
+      email: EmailSchema,
+      postal_address: textSchema('postal address', 300, false),
+    })
+    .transform((r) => ({
+      returnRef: r.return_ref,
+      tin: r.tin,
+      taxYear: r.tax_year,
+      taxpayerName: r.taxpayer_name as string,
+      activityCode: r.activity_code,
+      preparerId: r.preparer_id,
+      email: r.email,
+      postalAddress: r.postal_address,
+    }));
+}
+
+/** One `line_items` row, as read: the amount in integer cents. */
+export interface LineItemRow {
+  returnRef: string;
+  lineCode: LineCode;
+  cents: number;
+}
+
+/** Schema for a `line_items` row. */
+export const LineItemRowSchema: z.ZodType<LineItemRow, Record<string, string>> = z
+  .object({ return_ref: ReturnRefSchema, line_code: LineCodeSchema, amount: AmountTextSchema })
+  .check((ctx) => {
+    const r = ctx.value;
+    if (r.amount.charCodeAt(0) === 45 /* - */ && !LINE_CODE_DEFS[r.line_code].negativeAllowed && centsFromDecimal(r.amount) !== 0) {
+      ctx.issues.push({
+        code: 'custom',
+        input: r.amount,
+        path: ['amount'],
+        message: `is negative; ${r.line_code} is entered as a positive amount (only tot.income may be negative, for a business loss)`,
+      });
+    }
+  })
+  .transform((r) => ({ returnRef: r.return_ref, lineCode: r.line_code, cents: centsFromDecimal(r.amount) }));
+
+/** One `statements` row (a third party's report about a taxpayer), as read. */
+export interface StatementRow {
+  tin: string;
+  taxYear: number;
+  kind: StatementKind;
+  payer: string;
+  cents: number;
+}
+
+/** Schema for a `statements` row. */
+export function statementRowSchema(years: TaxYearRange): z.ZodType<StatementRow, Record<string, string>> {
+  return z
+    .object({
+      tin: TinSchema,
+      tax_year: taxYearSchema(years),
+      kind: StatementKindSchema,
+      payer: textSchema('payer name', 200, true),
+      amount: AmountSchema,
+    })
+    .check((ctx) => {
+      if (ctx.value.amount < 0) ctx.issues.push({ code: 'custom', input: ctx.value.amount, path: ['amount'], message: 'is negative; a statement reports an amount paid, entered as a positive number' });
+    })
+    .transform((r) => ({ tin: r.tin, taxYear: r.tax_year, kind: r.kind, payer: r.payer as string, cents: r.amount }));
+}
+
+// ---------------------------------------------------------------------------------------
+// API answers (DESIGN.md section 10)
+
+/** Batch states: received → validating → rejected | queued → scoring → scored. */
+export const BATCH_STATES = ['received', 'validating', 'rejected', 'queued', 'scoring', 'scored'] as const;
+export const BatchStateSchema = z.enum(BATCH_STATES);
+export type BatchState = z.infer<typeof BatchStateSchema>;
+
+/** One problem (or notice) in a batch: where it is and what to do. */
+export const BatchIssueSchema = z.object({
+  /** The file (or "workbook.xlsx › sheet") it is in; "" for the whole upload. */
+  file: z.string(),
+  /** Row as a spreadsheet shows it (the header is row 1); null for a whole-file problem. */
+  row: z.number().int().nullable(),
+  /** Column name from the header; null when the problem is not one cell's. */
+  column: z.string().nullable(),
+  message: z.string(),
+  /** The cell's text as uploaded (shortened), when the problem is one cell's. */
+  value: z.string().nullable().optional(),
+});
+export type BatchIssue = z.infer<typeof BatchIssueSchema>;
+
+export const BatchCountsSchema = z.object({
+  returns: z.number().int(),
+  lineItems: z.number().int(),
+  statements: z.number().int(),
+});
+
+/** A batch in the list. */
+export const BatchSummarySchema = z.object({
+  id: z.string(),
+  state: BatchStateSchema,
+  format: z.enum(['xlsx', 'csv']),
+  fileNames: z.array(z.string()),
+  counts: BatchCountsSchema,
+  /** Returns that amend one already on file for the same TIN and tax year. */
+  amendedReturns: z.number().int(),
+  progress: z.object({ scored: z.number().int(), total: z.number().int() }),
+  errorCount: z.number().int(),
+  loadedBy: z.object({ id: z.string(), displayName: z.string() }).nullable(),
+  createdAt: z.string(),
+});
+export type BatchSummary = z.infer<typeof BatchSummarySchema>;
+
+/** `GET /api/batches/:id`: the summary with its validation report. */
+export const BatchDetailSchema = BatchSummarySchema.extend({
+  /** Every error up to {@link MAX_REPORTED_ERRORS}, then one "and N more" line. */
+  errors: z.array(BatchIssueSchema),
+  /** Things the clerk should know that do not reject the batch (amended returns). */
+  notices: z.array(BatchIssueSchema),
+});
+export type BatchDetail = z.infer<typeof BatchDetailSchema>;
+
+/** `GET /api/batches`. */
+export const BatchListSchema = z.object({
+  items: z.array(BatchSummarySchema),
+  total: z.number().int(),
+  page: z.number().int(),
+  pageSize: z.number().int(),
+});
+export type BatchList = z.infer<typeof BatchListSchema>;
+
+export const BatchListQuerySchema = z.object({
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200).default(25),
+});
+
+/** `POST /api/batches` → 201. */
+export const BatchCreatedSchema = z.object({ id: z.string(), state: BatchStateSchema, counts: BatchCountsSchema, amendedReturns: z.number().int() });
+export type BatchCreated = z.infer<typeof BatchCreatedSchema>;
+
+/** `POST /api/batches` → 422: the batch was rejected whole (batchId null when no batch was recorded). */
+export const BatchRejectedSchema = z.object({
+  error: z.string(),
+  batchId: z.string().nullable(),
+  errorCount: z.number().int(),
+  errors: z.array(BatchIssueSchema),
+});
+export type BatchRejected = z.infer<typeof BatchRejectedSchema>;
+
+/** `POST /api/batches` → 409: the same file was uploaded before. */
+export const BatchDuplicateSchema = z.object({ error: z.string(), batchId: z.string() });

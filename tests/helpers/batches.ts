@@ -1,0 +1,63 @@
+/**
+ * Helpers for batch tests: small generated batches on disk, hand-made files, uploading
+ * through the real route, and counting what the intake tables hold.
+ */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import type { DataSource } from 'typeorm';
+import type { GenerateOptions } from '../../shared/demo/aldermere';
+import { writeCsvBatch, writeXlsxBatch, type WrittenBatch } from '../../server/seed/batch-files';
+import type { SignedIn } from './auth';
+
+/** A fresh temporary folder. */
+export function tmpDir(prefix = 'plumbline-batch-test-'): string {
+  return fs.mkdtempSync(path.join(os.tmpdir(), prefix));
+}
+
+/** Rows in every table an intake writes to (the rejected-batch record itself is not a row of the batch). */
+export async function countIntakeRows(ds: DataSource): Promise<Record<string, number>> {
+  const r = await ds.query(`SELECT
+    (SELECT count(*) FROM taxpayer)::int AS taxpayers,
+    (SELECT count(*) FROM preparer)::int AS preparers,
+    (SELECT count(*) FROM tax_return)::int AS returns,
+    (SELECT count(*) FROM line_item)::int AS "lineItems",
+    (SELECT count(*) FROM third_party_statement)::int AS statements`);
+  return r[0];
+}
+
+/** A generated batch as CSV files in a new folder. */
+export async function csvBatch(opts: Partial<GenerateOptions> & { seed: string | number }, format?: { crlf?: boolean; bom?: boolean }): Promise<WrittenBatch & { dir: string }> {
+  const dir = tmpDir();
+  const w = await writeCsvBatch(dir, { returns: 40, plantShare: 0.1, ...opts }, format);
+  return { ...w, dir };
+}
+
+/** A generated batch as one XLSX workbook. */
+export async function xlsxBatch(opts: Partial<GenerateOptions> & { seed: string | number }): Promise<WrittenBatch & { file: string }> {
+  const file = path.join(tmpDir(), 'aldermere-batch.xlsx');
+  const w = await writeXlsxBatch(file, { returns: 40, plantShare: 0.1, ...opts });
+  return { ...w, file };
+}
+
+/** One part of an upload: a path, or text/bytes with a file name. */
+export type Part = string | { name: string; content: string | Buffer };
+
+/** POSTs a batch with the clerk's session and CSRF token. */
+export function upload(client: SignedIn, parts: Partial<Record<'file' | 'returns' | 'line_items' | 'statements', Part>>) {
+  let req = client.agent.post('/api/batches').set('X-CSRF-Token', client.csrf);
+  for (const [field, part] of Object.entries(parts)) {
+    if (!part) continue;
+    req = typeof part === 'string' ? req.attach(field, part) : req.attach(field, Buffer.isBuffer(part.content) ? part.content : Buffer.from(part.content, 'utf8'), part.name);
+  }
+  return req;
+}
+
+/** CSV text from header and rows (joined with the given line ending). */
+export function csv(rows: string[], eol = '\n'): string {
+  return rows.join(eol) + eol;
+}
+
+export const RETURNS_HEADER = 'return_ref,tin,tax_year,taxpayer_name,activity_code,preparer_id,email,postal_address';
+export const LINES_HEADER = 'return_ref,line_code,amount';
+export const STATEMENTS_HEADER = 'tin,tax_year,kind,payer,amount';
