@@ -282,6 +282,54 @@ export const LineItemRowSchema: z.ZodType<LineItemRow, Record<string, string>> =
   })
   .transform((r) => ({ returnRef: r.return_ref, lineCode: r.line_code, cents: centsFromDecimal(r.amount) }));
 
+/** Position of each line code in {@link LINE_CODES}, as a Map (no prototype keys such as "constructor"). */
+const LINE_CODE_POSITION: ReadonlyMap<string, number> = new Map(LINE_CODES.map((c, i) => [c, i]));
+/** Bit per code position: set when the code may be negative. */
+const NEGATIVE_ALLOWED_MASK = LINE_CODES.reduce((m, c, i) => (LINE_CODE_DEFS[c].negativeAllowed ? m | (1 << i) : m), 0);
+
+/**
+ * Position of `code` in {@link LINE_CODES}, or -1 when it is not a line code (exactly the
+ * texts {@link LineCodeSchema} accepts).
+ */
+export function lineCodePosition(code: string): number {
+  const i = LINE_CODE_POSITION.get(code);
+  return i === undefined ? -1 : i;
+}
+
+/**
+ * The return-reference rule of {@link ReturnRefSchema} (`^[A-Za-z0-9][A-Za-z0-9._/-]{0,39}$`)
+ * as a character scan.
+ */
+function isReturnRef(v: string): boolean {
+  const len = v.length;
+  if (len === 0 || len > 40) return false;
+  for (let i = 0; i < len; i++) {
+    const c = v.charCodeAt(i);
+    if ((c >= 48 && c <= 57) || (c >= 65 && c <= 90) || (c >= 97 && c <= 122)) continue;
+    if (i > 0 && (c === 46 /* . */ || c === 95 /* _ */ || c === 47 /* / */ || c === 45) /* - */) continue;
+    return false;
+  }
+  return true;
+}
+
+/**
+ * The fast path of {@link LineItemRowSchema} for the million-row line items: the same rules
+ * as plain scans, with no objects made. It returns the row's cents only when the schema
+ * certainly accepts the row (and would give the same cents); otherwise NaN, and the caller
+ * runs the schema itself, which gives the verdict and the exact messages. A property test
+ * (tests/unit/returns/batch-rows-fast.test.ts) checks it against the schema.
+ *
+ * @param codePosition {@link lineCodePosition} of the line_code cell
+ */
+export function lineItemCentsFast(returnRef: string, codePosition: number, amount: string): number {
+  if (codePosition < 0 || !isReturnRef(returnRef)) return NaN;
+  // centsFromDecimal accepts exactly the texts of AmountTextSchema's pattern (at most ten
+  // significant digits before the point is the same as at most 9999999999.99).
+  const cents = centsFromDecimal(amount);
+  if (cents < 0 && ((NEGATIVE_ALLOWED_MASK >> codePosition) & 1) === 0) return NaN;
+  return cents;
+}
+
 /** One `statements` row (a third party's report about a taxpayer), as read. */
 export interface StatementRow {
   tin: string;
