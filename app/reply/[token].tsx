@@ -1,0 +1,1 @@
+export { ReplyScreen as default } from '../../components/features/reply/reply-screen';

@@ -1,0 +1,310 @@
+/**
+ * The letters part of the case screen: letters kept with the case (with their PDFs and the
+ * taxpayer's replies), the document-request form while the case is in review, and the
+ * referral form while it is in review or awaiting a reply. Mounted by
+ * components/features/cases/case-screen.tsx.
+ */
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { Controller, useForm } from 'react-hook-form';
+import { Linking, Pressable, View } from 'react-native';
+import type { CaseState } from '../../../shared/cases';
+import {
+  addDays,
+  DocumentRequestInputSchema,
+  DUE_DATE_MAX_DAYS,
+  DUE_DATE_MIN_DAYS,
+  isoToday,
+  LETTER_KIND_LABELS,
+  longDate,
+  REFERRAL_UNIT_LABELS,
+  REFERRAL_UNITS,
+  ReferralInputSchema,
+  type DocumentRequestInput,
+  type DocumentRequestState,
+  type LetterDto,
+  type ReferralInput,
+} from '../../../shared/letters';
+import { colours, radius, space } from '../../theme';
+import { Button } from '../../ui/button';
+import { Card } from '../../ui/card';
+import { ChoiceRow } from '../../ui/choice-row';
+import { Field } from '../../ui/field';
+import { Txt } from '../../ui/text';
+import { letterPdfUrl, replyUploadUrl, useLetters, useSendDocumentRequest, useSendReferral } from './use-letters';
+
+/** Props for {@link LettersPanel}. */
+export interface LettersPanelProps {
+  caseId: string;
+  state: CaseState;
+  /** True when the signed-in user may act on this case (its examiner, or a supervisor). */
+  canAct: boolean;
+}
+
+const REQUEST_STATE_WORDS: Record<DocumentRequestState, { label: string; tone: 'brass' | 'ok' | 'alert' }> = {
+  sent: { label: 'Waiting for reply', tone: 'brass' },
+  answered: { label: 'Answered', tone: 'ok' },
+  expired: { label: 'Due date passed', tone: 'alert' },
+};
+
+const kb = (n: number) => (n >= 1024 * 1024 ? `${(n / 1024 / 1024).toFixed(1)} MB` : `${Math.max(1, Math.round(n / 1024))} KB`);
+/** "1 December 2026, 22:47" in the reader's time zone. */
+const when = (iso: string) => {
+  const d = new Date(iso);
+  return `${longDate(isoToday(d))}, ${String(d.getHours()).padStart(2, '0')}:${String(d.getMinutes()).padStart(2, '0')}`;
+};
+
+/** A text link that opens a file in a new tab (web) or the system viewer. */
+function FileLink({ href, label, testID }: { href: string; label: string; testID?: string }) {
+  return (
+    <Pressable accessibilityRole="link" onPress={() => void Linking.openURL(href)} testID={testID}>
+      <Txt bold tone="brass" style={{ textDecorationLine: 'underline' }}>
+        {label}
+      </Txt>
+    </Pressable>
+  );
+}
+
+function LetterRow({ caseId, letter }: { caseId: string; letter: LetterDto }) {
+  const req = letter.documentRequest;
+  return (
+    <View style={{ gap: space.xs, paddingVertical: space.md, borderTopWidth: 1, borderTopColor: colours.line }} testID={`letter-${letter.id}`}>
+      <View style={{ flexDirection: 'row', flexWrap: 'wrap', alignItems: 'baseline', gap: space.sm }}>
+        <Txt bold>{LETTER_KIND_LABELS[letter.kind]}</Txt>
+        <Txt variant="small" tone="soft">
+          {when(letter.createdAt)}
+          {letter.createdBy ? ` · ${letter.createdBy.displayName}` : ''}
+        </Txt>
+        {req && (
+          <Txt variant="small" bold tone={REQUEST_STATE_WORDS[req.state].tone}>
+            {REQUEST_STATE_WORDS[req.state].label}
+          </Txt>
+        )}
+      </View>
+      <Txt variant="small" tone="soft">
+        {letter.kind === 'document_request' ? `Sent to ${letter.recipient}` : `For the ${letter.recipient}`}
+        {req ? ` · due ${longDate(req.dueDate)}` : ''}
+      </Txt>
+      {req && (
+        <View style={{ gap: 2 }}>
+          {req.items.map((item, i) => (
+            <Txt key={i} variant="small">
+              {`${i + 1}. ${item}`}
+            </Txt>
+          ))}
+        </View>
+      )}
+      <FileLink href={letterPdfUrl(caseId, letter.id)} label={`Open the PDF (${kb(letter.size)})`} testID={`letter-${letter.id}-pdf`} />
+      {req && req.uploads.length > 0 && (
+        <View style={{ gap: space.xs, marginTop: space.xs, padding: space.sm, backgroundColor: colours.okSoft, borderRadius: radius.sm }}>
+          <Txt variant="small" bold>
+            {`Reply received ${req.answeredAt ? when(req.answeredAt) : ''}: ${req.uploads.length} file${req.uploads.length === 1 ? '' : 's'}`}
+          </Txt>
+          {req.uploads.map((u) => (
+            <FileLink key={u.id} href={replyUploadUrl(caseId, u.id)} label={`${u.fileName} (${kb(u.size)})`} />
+          ))}
+        </View>
+      )}
+    </View>
+  );
+}
+
+/** What a letter form needs from the panel, which owns the mutation (see LettersPanel). */
+interface FormProps<T> {
+  onSubmit(values: T): void;
+  busy: boolean;
+  error: Error | null;
+}
+
+function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentRequestInput>) {
+  const form = useForm<DocumentRequestInput>({
+    resolver: zodResolver(DocumentRequestInputSchema),
+    defaultValues: { items: [''], dueDate: addDays(isoToday(), 21), email: '' },
+  });
+  // Items are plain strings (the API's shape), so add and remove work on the array itself
+  // instead of useFieldArray, which needs objects.
+  const items = form.watch('items');
+  const setItems = (next: string[]) => form.setValue('items', next, { shouldDirty: true });
+  const itemsError = form.formState.errors.items;
+  const submit = form.handleSubmit(onSubmit);
+  return (
+    <View style={{ gap: space.md }} testID="document-request-form">
+      <Txt variant="lead" bold>
+        Ask the taxpayer for records
+      </Txt>
+      <Txt variant="small" tone="soft">
+        The letter asks politely for the records below and gives the taxpayer a one-time link to upload them. It names no score, test or
+        suspicion. Sending it moves the case to awaiting reply.
+      </Txt>
+      <View style={{ gap: space.sm }}>
+        {items.map((_, i) => (
+          <View key={i} style={{ flexDirection: 'row', gap: space.sm, alignItems: 'flex-end' }}>
+            <View style={{ flex: 1 }}>
+              <Controller
+                control={form.control}
+                name={`items.${i}`}
+                render={({ field, fieldState }) => (
+                  <Field
+                    testID={`request-item-${i}`}
+                    label={`Record ${i + 1}`}
+                    placeholder="e.g. Receipts for vehicle expenses claimed for 2024"
+                    value={field.value}
+                    onChangeText={field.onChange}
+                    onBlur={field.onBlur}
+                    error={fieldState.error?.message}
+                  />
+                )}
+              />
+            </View>
+            {items.length > 1 && (
+              <Button kind="quiet" label="Remove" accessibilityLabel={`Remove record ${i + 1}`} testID={`request-item-${i}-remove`} onPress={() => setItems(items.filter((_x, k) => k !== i))} />
+            )}
+          </View>
+        ))}
+        {itemsError?.message && (
+          <Txt variant="small" tone="alert" accessibilityRole="alert">
+            {itemsError.message}
+          </Txt>
+        )}
+        {items.length < 12 && <Button kind="secondary" label="Add another record" testID="request-item-add" onPress={() => setItems([...items, ''])} style={{ alignSelf: 'flex-start' }} />}
+      </View>
+      <Controller
+        control={form.control}
+        name="dueDate"
+        render={({ field, fieldState }) => (
+          <Field
+            testID="request-due-date"
+            label="Due date (YYYY-MM-DD)"
+            autoCapitalize="none"
+            value={field.value}
+            onChangeText={field.onChange}
+            onBlur={field.onBlur}
+            error={fieldState.error?.message}
+            hint={`Between ${DUE_DATE_MIN_DAYS} and ${DUE_DATE_MAX_DAYS} days from today.${field.value && /^\d{4}-\d{2}-\d{2}$/.test(field.value) ? ` The letter will say ${longDate(field.value)}.` : ''}`}
+          />
+        )}
+      />
+      <Controller
+        control={form.control}
+        name="email"
+        render={({ field, fieldState }) => (
+          <Field
+            testID="request-email"
+            label="Send to (optional)"
+            autoCapitalize="none"
+            keyboardType="email-address"
+            placeholder="Leave empty to use the address on file"
+            value={field.value ?? ''}
+            onChangeText={field.onChange}
+            onBlur={field.onBlur}
+            error={fieldState.error?.message}
+          />
+        )}
+      />
+      {error && (
+        <Txt tone="alert" accessibilityRole="alert">
+          {error.message}
+        </Txt>
+      )}
+      <Button testID="request-send" label="Send the request" onPress={submit} busy={busy} style={{ alignSelf: 'flex-start' }} />
+    </View>
+  );
+}
+
+const unitOptions = REFERRAL_UNITS.map((u) => ({ value: u, label: REFERRAL_UNIT_LABELS[u] }));
+
+function ReferralForm({ onSubmit, busy, error }: FormProps<ReferralInput>) {
+  const form = useForm<ReferralInput>({ resolver: zodResolver(ReferralInputSchema), defaultValues: { unit: 'field-audit', summary: '' } });
+  const submit = form.handleSubmit(onSubmit);
+  return (
+    <View style={{ gap: space.md }} testID="referral-form">
+      <Txt variant="lead" bold>
+        Refer to a specialist unit
+      </Txt>
+      <Txt variant="small" tone="soft">
+        The memo carries the case facts, the score breakdown, the digit chart and the case history. Referring finishes the case here.
+      </Txt>
+      <Controller control={form.control} name="unit" render={({ field }) => <ChoiceRow testID="referral-unit" label="Unit" options={unitOptions} value={field.value} onChange={field.onChange} />} />
+      <Controller
+        control={form.control}
+        name="summary"
+        render={({ field, fieldState }) => (
+          <Field
+            testID="referral-summary"
+            label="Why the case needs the unit"
+            multiline
+            numberOfLines={4}
+            style={{ minHeight: 96, textAlignVertical: 'top' }}
+            value={field.value}
+            onChangeText={field.onChange}
+            onBlur={field.onBlur}
+            error={fieldState.error?.message}
+          />
+        )}
+      />
+      {error && (
+        <Txt tone="alert" accessibilityRole="alert">
+          {error.message}
+        </Txt>
+      )}
+      <Button testID="referral-send" label="Write the memo and refer" onPress={submit} busy={busy} style={{ alignSelf: 'flex-start' }} />
+    </View>
+  );
+}
+
+/** Letters kept with a case and, by state, the forms that make new ones. */
+export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
+  const letters = useLetters(caseId);
+  // The mutations live here, not in the forms: a successful send changes the case's state,
+  // which unmounts the form, and react-query drops the callbacks of an unmounted caller.
+  const sendRequest = useSendDocumentRequest(caseId);
+  const refer = useSendReferral(caseId);
+  const [open, setOpen] = useState<'request' | 'referral' | null>(null);
+  const [notice, setNotice] = useState<string | null>(null);
+  const mayRequest = canAct && state === 'in_review';
+  const mayRefer = canAct && (state === 'in_review' || state === 'awaiting_reply');
+  const done = (message: string) => () => {
+    setOpen(null);
+    setNotice(message);
+  };
+  const toggle = (which: 'request' | 'referral') => {
+    setNotice(null);
+    sendRequest.reset();
+    refer.reset();
+    setOpen(open === which ? null : which);
+  };
+  return (
+    <Card style={{ gap: space.sm }} testID="letters-panel">
+      <Txt variant="title" bold accessibilityRole="header">
+        Letters
+      </Txt>
+      {letters.isPending && <Txt tone="soft">Loading letters…</Txt>}
+      {letters.error && <Txt tone="alert">{letters.error.message}</Txt>}
+      {letters.data && letters.data.items.length === 0 && <Txt tone="soft">No letters yet.</Txt>}
+      {letters.data?.items.map((l) => <LetterRow key={l.id} caseId={caseId} letter={l} />)}
+      {notice && (
+        <Txt tone="ok" accessibilityRole="alert" testID="letters-notice">
+          {notice}
+        </Txt>
+      )}
+      {(mayRequest || mayRefer) && (
+        <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, paddingTop: space.sm, borderTopWidth: 1, borderTopColor: colours.line }}>
+          {mayRequest && (
+            <Button kind={open === 'request' ? 'primary' : 'secondary'} label="Request documents" testID="open-document-request" onPress={() => toggle('request')} />
+          )}
+          {mayRefer && <Button kind={open === 'referral' ? 'primary' : 'secondary'} label="Refer the case" testID="open-referral" onPress={() => toggle('referral')} />}
+        </View>
+      )}
+      {open === 'request' && mayRequest && (
+        <DocumentRequestForm
+          onSubmit={(v) => sendRequest.mutate(v, { onSuccess: done('The request was sent and is kept with the case.') })}
+          busy={sendRequest.isPending}
+          error={sendRequest.error}
+        />
+      )}
+      {open === 'referral' && mayRefer && (
+        <ReferralForm onSubmit={(v) => refer.mutate(v, { onSuccess: done('The referral memo was written and is kept with the case.') })} busy={refer.isPending} error={refer.error} />
+      )}
+    </Card>
+  );
+}

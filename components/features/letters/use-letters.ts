@@ -1,0 +1,50 @@
+/**
+ * react-query hooks for a case's letters: the list, sending a document request and writing
+ * a referral memo. Both writes change the case's state, so they refresh the case query
+ * (['case', caseId], which also covers the letters list kept under it) and the queue and
+ * workload views that count cases by state.
+ */
+import { useMutation, useQuery, useQueryClient, type QueryClient } from '@tanstack/react-query';
+import { API_BASE, apiGet, apiSend } from '../../../hooks/api-client';
+import { LetterCreatedSchema, LetterListSchema, type DocumentRequestInput, type ReferralInput } from '../../../shared/letters';
+
+/** Query key of a case's letters: under the case's own key so one invalidation refreshes both. */
+export const lettersKey = (caseId: string) => ['case', caseId, 'letters'] as const;
+
+/** Everything a letter's case move changes on screen. */
+function refreshAfterMove(qc: QueryClient, caseId: string) {
+  return Promise.all([qc.invalidateQueries({ queryKey: ['case', caseId] }), qc.invalidateQueries({ queryKey: ['cases'] }), qc.invalidateQueries({ queryKey: ['workload'] })]);
+}
+
+/** The letters kept with a case, newest first. */
+export function useLetters(caseId: string) {
+  return useQuery({ queryKey: lettersKey(caseId), queryFn: () => apiGet(`/api/cases/${caseId}/letters`, LetterListSchema) });
+}
+
+/** Sends a document request (e-mail with the PDF); the case moves to awaiting reply. */
+export function useSendDocumentRequest(caseId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: DocumentRequestInput) => apiSend('POST', `/api/cases/${caseId}/document-requests`, { ...input, email: input.email ? input.email : undefined }, LetterCreatedSchema),
+    onSuccess: () => refreshAfterMove(qc, caseId),
+  });
+}
+
+/** Writes a referral memo; the case moves to referred. */
+export function useSendReferral(caseId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: ReferralInput) => apiSend('POST', `/api/cases/${caseId}/referral`, input, LetterCreatedSchema),
+    onSuccess: () => refreshAfterMove(qc, caseId),
+  });
+}
+
+/** Address of a letter's PDF (opened in the browser with the session cookie). */
+export function letterPdfUrl(caseId: string, letterId: string): string {
+  return `${API_BASE}/api/cases/${caseId}/letters/${letterId}/pdf`;
+}
+
+/** Address of a file a taxpayer sent back. */
+export function replyUploadUrl(caseId: string, uploadId: string): string {
+  return `${API_BASE}/api/cases/${caseId}/reply-uploads/${uploadId}`;
+}

@@ -1,0 +1,40 @@
+import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';
+import type { DocumentRequestState } from '../../shared/letters';
+
+/**
+ * A request for records sent to a taxpayer, with its one-time reply link. Only the SHA-256
+ * hash of the link's token is stored: the token itself exists in the e-mail alone.
+ */
+@Entity({ name: 'document_request' })
+export class DocumentRequest {
+  @PrimaryGeneratedColumn('uuid')
+  id: string;
+
+  @Column({ name: 'case_id', type: 'uuid' })
+  caseId: string;
+
+  @Column({ name: 'letter_id', type: 'uuid', unique: true })
+  letterId: string;
+
+  @Column({ type: 'jsonb' })
+  items: string[];
+
+  /** Last day a reply is accepted (YYYY-MM-DD, inclusive). */
+  @Column({ name: 'due_date', type: 'date' })
+  dueDate: string;
+
+  @Column({ name: 'token_hash', type: 'char', length: 64, unique: true })
+  tokenHash: string;
+
+  @Column({ type: 'text', default: 'sent' })
+  state: DocumentRequestState;
+
+  @Column({ type: 'text' })
+  email: string;
+
+  @Column({ name: 'created_at', type: 'timestamptz', default: () => 'now()' })
+  createdAt: Date;
+
+  @Column({ name: 'answered_at', type: 'timestamptz', nullable: true })
+  answeredAt: Date | null;
+}

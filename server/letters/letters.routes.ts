@@ -1,0 +1,68 @@
+/**
+ * Letters API, for staff (issue 7):
+ *  - `POST /api/cases/:id/document-requests` {items, dueDate, email?} (workCases, the case's
+ *    examiner or a supervisor; case in review) → 201 {letter, caseState: 'awaiting_reply'};
+ *    422 invalid input or no e-mail address, 409 wrong state, 502 mail server refused;
+ *  - `POST /api/cases/:id/referral` {unit?, summary} (workCases; in review or awaiting
+ *    reply) → 201 {letter, caseState: 'referred'};
+ *  - `GET /api/cases/:id/letters` (readCases) → {items: [letter]};
+ *  - `GET /api/cases/:id/letters/:letterId/pdf` (readCases) → the PDF (office copy);
+ *  - `GET /api/cases/:id/reply-uploads/:uploadId` (readCases) → a file the taxpayer sent.
+ * Every read is written to the access log as a view; every change by the case workflow.
+ */
+import type { Response } from 'express';
+import { DocumentRequestInputSchema, ReferralInputSchema } from '../../shared/letters';
+import type { AppDeps } from '../app';
+import { allow, secureRouter } from '../auth/access';
+import { validate } from '../http/validate';
+import { letterPdf, listLetters, referCase, replyUploadFile, sendDocumentRequest, type LetterDeps } from './letters.service';
+
+/** Sends stored bytes with headers that keep them out of shared caches and unsniffed. */
+function sendFile(res: Response, contentType: string, fileName: string, bytes: Buffer, disposition: 'inline' | 'attachment'): void {
+  const ascii = fileName.replace(/[^\x20-\x7e]/g, '_').replace(/["\\]/g, '_');
+  res.setHeader('Content-Type', contentType);
+  res.setHeader('Content-Length', String(bytes.length));
+  res.setHeader('Content-Disposition', `${disposition}; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(fileName)}`);
+  res.setHeader('Cache-Control', 'private, no-store');
+  res.setHeader('X-Content-Type-Options', 'nosniff');
+  res.end(bytes);
+}
+
+/** The staff letter routes. */
+export function letterRoutes(deps: AppDeps) {
+  const r = secureRouter();
+  const ld: LetterDeps = { dataSource: deps.dataSource, mailer: deps.mailer, publicUrl: deps.config.publicUrl };
+
+  r.post('/cases/:id/document-requests', allow('workCases'), validate(DocumentRequestInputSchema), async (req, res) => {
+    const id = String(req.params.id);
+    res.status(201).json(await sendDocumentRequest(ld, req.user!, id, req.body, `POST /api/cases/${id}/document-requests`));
+  });
+
+  r.post('/cases/:id/referral', allow('workCases'), validate(ReferralInputSchema), async (req, res) => {
+    const id = String(req.params.id);
+    res.status(201).json(await referCase(ld, req.user!, id, req.body, `POST /api/cases/${id}/referral`));
+  });
+
+  r.get('/cases/:id/letters', allow('readCases'), async (req, res) => {
+    const id = String(req.params.id);
+    res.setHeader('Cache-Control', 'private, no-store');
+    res.json(await listLetters(deps.dataSource, req.user!, id, `GET /api/cases/${id}/letters`));
+  });
+
+  r.get('/cases/:id/letters/:letterId/pdf', allow('readCases'), async (req, res) => {
+    const id = String(req.params.id);
+    const letterId = String(req.params.letterId);
+    const l = await letterPdf(deps.dataSource, req.user!, id, letterId, `GET /api/cases/${id}/letters/${letterId}/pdf`);
+    sendFile(res, 'application/pdf', l.fileName, l.pdf, 'inline');
+  });
+
+  r.get('/cases/:id/reply-uploads/:uploadId', allow('readCases'), async (req, res) => {
+    const id = String(req.params.id);
+    const uploadId = String(req.params.uploadId);
+    const u = await replyUploadFile(deps.dataSource, req.user!, id, uploadId, `GET /api/cases/${id}/reply-uploads/${uploadId}`);
+    // A download, never shown inline: the bytes came from outside the office.
+    sendFile(res, u.contentType, u.fileName, u.content, 'attachment');
+  });
+
+  return r;
+}

@@ -1,0 +1,325 @@
+/**
+ * Letters kept with a case: sending a document request (PDF by pdfkit, e-mailed through the
+ * configured SMTP server, case moved to awaiting reply) and writing a referral memo (PDF,
+ * case moved to referred); listing them and handing out their PDFs and the taxpayer's
+ * replies, each read written to the access log.
+ *
+ * Sending happens inside the database transaction, as its last step: if the SMTP server
+ * refuses or cannot be reached, the transaction rolls back and no letter, request or case
+ * move is left behind, so "every letter sent is kept with the case" holds and nothing is
+ * kept that was not sent. The reverse window (mail accepted, then the commit fails) is
+ * a few milliseconds wide; the taxpayer would then hold a link the server does not know,
+ * which answers "not found" and harms nobody; the examiner sees no letter and sends again.
+ */
+import { createHash, randomBytes, randomUUID } from 'node:crypto';
+import type { DataSource } from 'typeorm';
+import { z } from 'zod';
+import { maskTin } from '../../shared/access-log';
+import { CASE_STATE_LABELS, type CaseState } from '../../shared/cases';
+import {
+  isoToday,
+  REFERRAL_UNIT_LABELS,
+  type DocumentRequestInput,
+  type DocumentRequestState,
+  type LetterCreated,
+  type LetterDto,
+  type LetterList,
+  type ReferralInput,
+} from '../../shared/letters';
+import { ACTIVITY_CODES } from '../../shared/returns/line-codes';
+import { centsFromNumeric } from '../../shared/returns/money';
+import { recordAccess } from '../access-log/access-log.service';
+import type { SessionUser } from '../auth/access';
+import { assertMayAct, lockCase, moveCase, taxpayerLabelOf } from '../cases/case-workflow';
+import { HttpError } from '../http/errors';
+import type { Mailer } from '../mail/mailer';
+import { documentRequestMail } from './letter-mail';
+import {
+  findCaseContext,
+  findCaseTaxpayer,
+  findEvents,
+  findLetterPdf,
+  findLetters,
+  findNotes,
+  findUploadContent,
+  findUploads,
+  insertDocumentRequest,
+  insertLetter,
+  setLetterMessageId,
+  type LetterRow,
+} from './letters.repository';
+import { renderDocumentRequestPdf, type DocumentRequestLetter } from './pdf/document-request-pdf';
+import { renderReferralMemoPdf } from './pdf/referral-memo-pdf';
+
+/** What the letter services need. */
+export interface LetterDeps {
+  dataSource: DataSource;
+  mailer: Mailer;
+  /** Base of links in letters (config.publicUrl). */
+  publicUrl: string;
+}
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+const sha256 = (b: Buffer | string) => createHash('sha256').update(b).digest('hex');
+
+/** The hash stored for a reply token (the token itself is never stored). */
+export function hashReplyToken(token: string): string {
+  return sha256(token);
+}
+
+/** How the office copy of a letter shows the reply link: the path without its secret. */
+function maskedReplyUrl(publicUrl: string): string {
+  return `${publicUrl}/reply/•••••••• (personal link, sent to the taxpayer only)`;
+}
+
+const ACTIVITY_WORDS: Record<(typeof ACTIVITY_CODES)[number], string> = {
+  none: 'None declared',
+  retail: 'Retail',
+  'food-service': 'Food service',
+  construction: 'Construction',
+  'personal-care': 'Personal care',
+  consulting: 'Consulting',
+  transport: 'Transport',
+  rental: 'Rental',
+  farming: 'Farming',
+  other: 'Other',
+};
+
+/** The effective state: an unanswered request past its due date has expired. */
+export function effectiveRequestState(state: DocumentRequestState, dueDate: string, today = isoToday()): DocumentRequestState {
+  return state === 'sent' && dueDate < today ? 'expired' : state;
+}
+
+function toDtos(rows: LetterRow[], uploads: Awaited<ReturnType<typeof findUploads>>): LetterDto[] {
+  return rows.map((r) => ({
+    id: r.id,
+    caseId: r.caseId,
+    kind: r.kind,
+    recipient: r.recipient,
+    sha256: r.sha256,
+    size: r.size,
+    createdAt: r.createdAt.toISOString(),
+    createdBy: r.createdById ? { id: r.createdById, displayName: r.createdByName ?? '' } : null,
+    documentRequest:
+      r.requestId && r.items && r.dueDate && r.requestState
+        ? {
+            id: r.requestId,
+            items: r.items,
+            dueDate: r.dueDate,
+            state: effectiveRequestState(r.requestState, r.dueDate),
+            answeredAt: r.answeredAt ? r.answeredAt.toISOString() : null,
+            uploads: uploads
+              .filter((u) => u.documentRequestId === r.requestId)
+              .map((u) => ({ id: u.id, fileName: u.fileName, contentType: u.contentType, size: u.size, sha256: u.sha256, createdAt: u.createdAt.toISOString() })),
+          }
+        : null,
+  }));
+}
+
+async function letterDto(ds: DataSource, caseId: string, letterId: string): Promise<LetterDto> {
+  const rows = await findLetters(ds, caseId, letterId);
+  const uploads = await findUploads(ds, rows.map((r) => r.requestId).filter((x): x is string => !!x));
+  return toDtos(rows, uploads)[0];
+}
+
+const EmailSchema = z.email();
+
+/**
+ * Sends a document request for a case in review: makes the letter, mails it with the PDF
+ * attached to the given address or the one on file, keeps it with the case and moves the
+ * case to awaiting reply, all in one transaction.
+ * @throws HttpError 404 no case, 403 not the actor's case, 409 not in review, 422 no usable address, 502 mail refused
+ */
+export async function sendDocumentRequest(deps: LetterDeps, actor: SessionUser, caseId: string, input: DocumentRequestInput, route: string): Promise<LetterCreated> {
+  const letterId = randomUUID();
+  const moved = await deps.dataSource.transaction(async (m) => {
+    const locked = await lockCase(m, caseId);
+    assertMayAct(actor, locked);
+    if (locked.state !== 'in_review') {
+      throw new HttpError(409, `A document request can be sent only while the case is in review; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`);
+    }
+    const ctx = (await findCaseContext(m, caseId))!;
+    const to = input.email ? input.email : ctx.email;
+    if (!to) throw new HttpError(422, 'This taxpayer has no e-mail address on file. Enter the address the request should go to.', { issues: [{ path: 'email', message: 'No e-mail address on file: enter one' }] });
+    if (!EmailSchema.safeParse(to).success) {
+      throw new HttpError(422, `The e-mail address on file (${to}) is not a usable address. Enter the address the request should go to.`, { issues: [{ path: 'email', message: 'The address on file is not usable: enter one' }] });
+    }
+
+    // 32 random bytes: the link cannot be guessed; only its hash is stored.
+    const token = randomBytes(32).toString('base64url');
+    const reference = `DR-${letterId.slice(0, 8).toUpperCase()}`;
+    const letter: DocumentRequestLetter = {
+      reference,
+      date: isoToday(),
+      taxpayerName: ctx.taxpayerName,
+      postalAddress: ctx.postalAddress,
+      taxYear: ctx.taxYear,
+      returnRef: ctx.returnRef,
+      items: input.items,
+      dueDate: input.dueDate,
+      replyUrl: `${deps.publicUrl}/reply/${token}`,
+      signedBy: actor.displayName,
+    };
+    // The mailed copy holds the link; the office copy masks it, so nobody who can read the
+    // database (or a backup) can answer in the taxpayer's place.
+    const sentPdf = await renderDocumentRequestPdf(letter);
+    const officePdf = await renderDocumentRequestPdf({ ...letter, replyUrl: maskedReplyUrl(deps.publicUrl) });
+    const fileName = `request-for-records-${reference}.pdf`;
+    const mail = documentRequestMail(letter, to, sentPdf, fileName);
+
+    await insertLetter(m, {
+      id: letterId,
+      caseId,
+      kind: 'document_request',
+      fileName,
+      pdf: officePdf,
+      sha256: sha256(officePdf),
+      sentSha256: sha256(sentPdf),
+      recipient: to,
+      subject: String(mail.subject),
+      messageId: null,
+      createdBy: actor.id,
+    });
+    const requestId = randomUUID();
+    await insertDocumentRequest(m, { id: requestId, caseId, letterId, items: input.items, dueDate: input.dueDate, tokenHash: hashReplyToken(token), email: to });
+    const c = await moveCase(m, actor, caseId, 'awaiting_reply', {
+      kind: 'document-request',
+      detail: { letterId, documentRequestId: requestId, dueDate: input.dueDate, items: input.items.length },
+      route,
+      dueDate: input.dueDate,
+    });
+
+    // Last step of the transaction: a refused send rolls everything above back.
+    let info: { messageId?: string };
+    try {
+      info = await deps.mailer.transport.sendMail({ ...mail, from: deps.mailer.from });
+    } catch (e) {
+      const why = e && typeof e === 'object' && 'message' in e ? String(e.message) : String(e);
+      console.error(`[letters] sending document request ${reference} failed:`, why);
+      throw new HttpError(502, 'The letter could not be sent: the mail server did not accept it. Nothing was saved and the case has not moved. Please try again in a few minutes.');
+    }
+    await setLetterMessageId(m, letterId, info.messageId ?? null);
+    return c.state;
+  });
+  return { letter: await letterDto(deps.dataSource, caseId, letterId), caseState: moved };
+}
+
+const EVENT_WORDS: Record<string, string> = {
+  opened: 'Case opened',
+  claimed: 'Claimed',
+  assigned: 'Assigned',
+  reassigned: 'Reassigned',
+  transition: 'Moved',
+  'document-request': 'Document request sent',
+  'reply-received': 'Reply received from the taxpayer',
+  referral: 'Referred',
+  note: 'Note added',
+};
+
+/**
+ * Writes a referral memo for a case in review or awaiting a reply: the PDF with the case
+ * facts, score breakdown, digit chart, notes and history, kept with the case; the case
+ * moves to referred with the unit and summary as its outcome.
+ * @throws HttpError 404, 403, 409 as for any move
+ */
+export async function referCase(deps: LetterDeps, actor: SessionUser, caseId: string, input: ReferralInput, route: string): Promise<LetterCreated> {
+  const letterId = randomUUID();
+  const unit = input.unit ?? 'field-audit';
+  const unitLabel = REFERRAL_UNIT_LABELS[unit];
+  const moved = await deps.dataSource.transaction(async (m) => {
+    const locked = await lockCase(m, caseId);
+    assertMayAct(actor, locked);
+    if (locked.state !== 'in_review' && locked.state !== 'awaiting_reply') {
+      throw new HttpError(409, `A case can be referred while it is in review or awaiting a reply; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`);
+    }
+    const ctx = (await findCaseContext(m, caseId))!;
+    const notes = await findNotes(m, caseId);
+    const events = await findEvents(m, caseId);
+    const reference = `RM-${letterId.slice(0, 8).toUpperCase()}`;
+    const pdf = await renderReferralMemoPdf({
+      reference,
+      date: isoToday(),
+      unitLabel,
+      summary: input.summary,
+      author: actor.displayName,
+      facts: {
+        returnRef: ctx.returnRef,
+        taxYear: ctx.taxYear,
+        taxpayerName: ctx.taxpayerName,
+        maskedTin: maskTin(ctx.tin),
+        activity: ACTIVITY_WORDS[ctx.activityCode as keyof typeof ACTIVITY_WORDS] ?? ctx.activityCode,
+        preparer: ctx.preparerCode,
+        batch: `${ctx.batchFiles.join(', ') || 'batch'} (loaded ${ctx.batchCreatedAt.toISOString().slice(0, 10)})`,
+        caseState: CASE_STATE_LABELS[ctx.state as CaseState] ?? ctx.state,
+        openedAt: ctx.openedAt,
+        assignee: ctx.assigneeName,
+        riskScore: ctx.riskScore,
+        profileVersion: ctx.profileVersion,
+        amountAtStakeCents: centsFromNumeric(ctx.amountAtStake) ?? 0,
+        priority: ctx.priority,
+      },
+      breakdown: ctx.breakdown,
+      notes: notes.map((n) => ({ at: n.at, who: n.author, text: n.text })),
+      events: events.map((e) => {
+        // Atkinson Hyperlegible has no arrow glyph: the move is written in words.
+        const move = e.from && e.to ? ` (from ${(CASE_STATE_LABELS[e.from as CaseState] ?? e.from).toLowerCase()} to ${(CASE_STATE_LABELS[e.to as CaseState] ?? e.to).toLowerCase()})` : '';
+        const outcome = typeof e.detail.outcome === 'string' ? `: ${e.detail.outcome}` : '';
+        return { at: e.at, who: e.actor ?? (e.kind === 'reply-received' ? 'Taxpayer (reply link)' : null), text: `${EVENT_WORDS[e.kind] ?? e.kind}${move}${outcome}` };
+      }),
+    });
+    await insertLetter(m, {
+      id: letterId,
+      caseId,
+      kind: 'referral_memo',
+      fileName: `referral-memo-${reference}.pdf`,
+      pdf,
+      sha256: sha256(pdf),
+      sentSha256: null,
+      recipient: unitLabel,
+      subject: `Referral memo ${reference}: ${ctx.returnRef}`,
+      messageId: null,
+      createdBy: actor.id,
+    });
+    const c = await moveCase(m, actor, caseId, 'referred', {
+      kind: 'referral',
+      outcome: `Referred to the ${unitLabel}: ${input.summary}`.slice(0, 2000),
+      detail: { letterId, unit },
+      route,
+    });
+    return c.state;
+  });
+  return { letter: await letterDto(deps.dataSource, caseId, letterId), caseState: moved };
+}
+
+async function caseForRead(ds: DataSource, caseId: string): Promise<{ taxpayerId: string; label: string | null }> {
+  const c = UUID.test(caseId) ? await findCaseTaxpayer(ds, caseId) : null;
+  if (!c) throw new HttpError(404, 'No such case.');
+  return { taxpayerId: c.taxpayerId, label: await taxpayerLabelOf(ds, c.taxpayerId) };
+}
+
+/** The letters of a case, newest first, with requests and reply files; logged as a view. */
+export async function listLetters(ds: DataSource, actor: SessionUser, caseId: string, route: string): Promise<LetterList> {
+  const c = await caseForRead(ds, caseId);
+  const rows = await findLetters(ds, caseId);
+  const uploads = await findUploads(ds, rows.map((r) => r.requestId).filter((x): x is string => !!x));
+  await recordAccess(ds, actor, { action: 'view', route, recordType: 'case', recordId: caseId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: 'letters' });
+  return { items: toDtos(rows, uploads) };
+}
+
+/** A letter's PDF (the office copy); logged as a view. */
+export async function letterPdf(ds: DataSource, actor: SessionUser, caseId: string, letterId: string, route: string): Promise<{ fileName: string; pdf: Buffer }> {
+  const c = await caseForRead(ds, caseId);
+  const l = UUID.test(letterId) ? await findLetterPdf(ds, caseId, letterId) : null;
+  if (!l) throw new HttpError(404, 'This case has no such letter.');
+  await recordAccess(ds, actor, { action: 'view', route, recordType: 'letter', recordId: letterId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `${l.kind} PDF` });
+  return { fileName: l.fileName, pdf: l.pdf };
+}
+
+/** A file the taxpayer sent back; logged as a view. */
+export async function replyUploadFile(ds: DataSource, actor: SessionUser, caseId: string, uploadId: string, route: string): Promise<{ fileName: string; contentType: string; content: Buffer }> {
+  const c = await caseForRead(ds, caseId);
+  const u = UUID.test(uploadId) ? await findUploadContent(ds, caseId, uploadId) : null;
+  if (!u) throw new HttpError(404, 'This case has no such reply file.');
+  await recordAccess(ds, actor, { action: 'view', route, recordType: 'reply_upload', recordId: uploadId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `reply file ${u.fileName}` });
+  return u;
+}

@@ -1,0 +1,75 @@
+/**
+ * Checks on the files a taxpayer sends through a reply link. The type is read from the
+ * file's first bytes (its signature), not taken from the name or the browser's claim, so a
+ * renamed program or web page is refused; names are cleaned before they are stored or
+ * shown to staff.
+ */
+import { createHash } from 'node:crypto';
+import { REPLY_FILE_TYPES, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, type ReplyFileType } from '../../shared/letters';
+import { HttpError } from '../http/errors';
+
+/** A received file, before checks. */
+export interface IncomingFile {
+  originalName: string;
+  declaredType: string;
+  bytes: Buffer;
+}
+
+/** A file that passed the checks, ready to store. */
+export interface CheckedFile {
+  fileName: string;
+  contentType: ReplyFileType;
+  size: number;
+  sha256: string;
+  bytes: Buffer;
+}
+
+/** The type a file's signature shows: PDF "%PDF-", JPEG FF D8 FF, PNG's 8-byte signature. */
+export function sniffType(bytes: Buffer): ReplyFileType | null {
+  if (bytes.length >= 5 && bytes.subarray(0, 5).toString('latin1') === '%PDF-') return 'application/pdf';
+  if (bytes.length >= 3 && bytes[0] === 0xff && bytes[1] === 0xd8 && bytes[2] === 0xff) return 'image/jpeg';
+  if (bytes.length >= 8 && bytes.subarray(0, 8).equals(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]))) return 'image/png';
+  return null;
+}
+
+const EXTENSION: Record<ReplyFileType, string> = { 'application/pdf': '.pdf', 'image/jpeg': '.jpg', 'image/png': '.png' };
+
+/**
+ * A safe display name: the last path segment, without control or quote characters, at most
+ * 120 characters, with an extension that matches the real type.
+ */
+export function cleanFileName(original: string, type: ReplyFileType, index: number): string {
+  const base = original.replace(/\\/g, '/').split('/').pop() ?? '';
+  // eslint-disable-next-line no-control-regex
+  let name = base.replace(/[\u0000-\u001f\u007f"<>|*?:]/g, '').replace(/\s+/g, ' ').trim();
+  if (!name || name === '.' || name === '..') name = `document-${index + 1}`;
+  const ext = EXTENSION[type];
+  const hasRightExt = type === 'image/jpeg' ? /\.jpe?g$/i.test(name) : name.toLowerCase().endsWith(ext);
+  if (!hasRightExt) name = `${name.replace(/\.[A-Za-z0-9]{1,5}$/, '')}${ext}`;
+  if (name.length > 120) name = name.slice(0, 120 - ext.length) + ext;
+  return name;
+}
+
+/**
+ * Checks count, size and type of every file; refuses the whole reply (422, naming each
+ * problem) when one fails, so a taxpayer never has half a reply stored.
+ */
+export function checkReplyFiles(files: readonly IncomingFile[]): CheckedFile[] {
+  if (files.length === 0) throw new HttpError(422, 'Choose at least one file to send.');
+  if (files.length > REPLY_MAX_FILES) throw new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`);
+  const problems: string[] = [];
+  const out: CheckedFile[] = [];
+  files.forEach((f, i) => {
+    const shown = f.originalName || `File ${i + 1}`;
+    if (f.bytes.length === 0) return void problems.push(`${shown} is empty.`);
+    if (f.bytes.length > REPLY_MAX_FILE_BYTES) return void problems.push(`${shown} is larger than ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB.`);
+    const type = sniffType(f.bytes);
+    if (!type) return void problems.push(`${shown} is not a PDF, JPEG or PNG file.`);
+    if (f.declaredType && f.declaredType !== 'application/octet-stream' && !(REPLY_FILE_TYPES as readonly string[]).includes(f.declaredType)) {
+      return void problems.push(`${shown} was sent as ${f.declaredType}; send PDF, JPEG or PNG files only.`);
+    }
+    out.push({ fileName: cleanFileName(f.originalName, type, i), contentType: type, size: f.bytes.length, sha256: createHash('sha256').update(f.bytes).digest('hex'), bytes: f.bytes });
+  });
+  if (problems.length) throw new HttpError(422, problems.join(' '), { problems });
+  return out;
+}

@@ -1,0 +1,200 @@
+/**
+ * Letters contract (DESIGN.md sections 2, 6 and 10): document requests sent to taxpayers,
+ * referral memos kept with a case, and the taxpayer's one-time reply link. The server
+ * validates with these schemas and the app's forms use the same ones through zodResolver,
+ * so a rule (e.g. the due-date window) is written once.
+ */
+import { z } from 'zod';
+
+/** The office as letters, e-mails and the reply page name it (invented, like all of Aldermere). */
+export const OFFICE = {
+  name: 'Aldermere Revenue Office',
+  unit: 'Examinations Section',
+  address: ['14 Weighhouse Lane', 'Aldermere AL3 7QP'],
+  phone: '+44 1632 960 418',
+  email: 'examinations@revenue.aldermere.example',
+  hours: 'Monday to Friday, 9:00 to 16:30',
+} as const;
+
+/**
+ * Due-date window for a document request, in whole days from today. A week is the least
+ * time in which a person can reasonably find and copy records; beyond 90 days the request
+ * would outlive the examination it serves.
+ */
+export const DUE_DATE_MIN_DAYS = 7;
+export const DUE_DATE_MAX_DAYS = 90;
+
+/** Reply upload limits, shown on the reply page and enforced by the server. */
+export const REPLY_MAX_FILES = 8;
+export const REPLY_MAX_FILE_BYTES = 10 * 1024 * 1024;
+/** All files of one reply together (the server refuses larger bodies before reading them). */
+export const REPLY_MAX_TOTAL_BYTES = 30 * 1024 * 1024;
+/** What a taxpayer may send: scans and exports of records. Checked by content, not only by name. */
+export const REPLY_FILE_TYPES = ['application/pdf', 'image/jpeg', 'image/png'] as const;
+export type ReplyFileType = (typeof REPLY_FILE_TYPES)[number];
+
+const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
+
+/** Today's calendar date where this code runs, as YYYY-MM-DD (local time, not UTC). */
+export function isoToday(now: Date = new Date()): string {
+  const p = (n: number) => String(n).padStart(2, '0');
+  return `${now.getFullYear()}-${p(now.getMonth() + 1)}-${p(now.getDate())}`;
+}
+
+/** Whole days from `from` to `to` (both YYYY-MM-DD); negative when `to` is earlier. */
+export function daysBetween(from: string, to: string): number {
+  const a = Date.UTC(Number(from.slice(0, 4)), Number(from.slice(5, 7)) - 1, Number(from.slice(8, 10)));
+  const b = Date.UTC(Number(to.slice(0, 4)), Number(to.slice(5, 7)) - 1, Number(to.slice(8, 10)));
+  return Math.round((b - a) / 86_400_000);
+}
+
+/** YYYY-MM-DD that is `days` after `from`. */
+export function addDays(from: string, days: number): string {
+  const d = new Date(Date.UTC(Number(from.slice(0, 4)), Number(from.slice(5, 7)) - 1, Number(from.slice(8, 10)) + days));
+  return d.toISOString().slice(0, 10);
+}
+
+/** A real calendar date in YYYY-MM-DD (rejects 2025-02-30). */
+export const CalendarDateSchema = z
+  .string()
+  .regex(ISO_DATE, 'Use the form YYYY-MM-DD, e.g. 2026-03-31')
+  .refine((s) => {
+    // Text that is not YYYY-MM-DD already has its issue from the pattern.
+    if (!ISO_DATE.test(s)) return true;
+    const d = new Date(`${s}T00:00:00Z`);
+    return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === s;
+  }, 'That date does not exist');
+
+/** "31 March 2026": how letters and the reply page write a date. */
+export function longDate(iso: string): string {
+  const months = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+  return `${Number(iso.slice(8, 10))} ${months[Number(iso.slice(5, 7)) - 1]} ${iso.slice(0, 4)}`;
+}
+
+/**
+ * Body of `POST /api/cases/:id/document-requests`. `email` may be left empty: the letter
+ * then goes to the address on file. The due date must fall DUE_DATE_MIN_DAYS to
+ * DUE_DATE_MAX_DAYS days from today (checked at parse time, so the form and server agree).
+ */
+export const DocumentRequestInputSchema = z
+  .object({
+    items: z
+      .array(z.string().trim().min(3, 'Describe the record in a few words').max(300, 'Keep each item under 300 characters'))
+      .min(1, 'Ask for at least one record')
+      .max(12, 'Ask for at most 12 records in one letter'),
+    dueDate: CalendarDateSchema,
+    email: z.union([z.literal(''), z.email('Enter a full e-mail address, e.g. name@example.org').max(254)]).optional(),
+  })
+  .superRefine((v, ctx) => {
+    // A date that is not a real calendar date already has its issue.
+    if (!CalendarDateSchema.safeParse(v.dueDate).success) return;
+    const days = daysBetween(isoToday(), v.dueDate);
+    if (days < DUE_DATE_MIN_DAYS) ctx.addIssue({ code: 'custom', path: ['dueDate'], message: `Give the taxpayer at least ${DUE_DATE_MIN_DAYS} days: choose ${longDate(addDays(isoToday(), DUE_DATE_MIN_DAYS))} or later` });
+    if (days > DUE_DATE_MAX_DAYS) ctx.addIssue({ code: 'custom', path: ['dueDate'], message: `Choose a due date within ${DUE_DATE_MAX_DAYS} days, by ${longDate(addDays(isoToday(), DUE_DATE_MAX_DAYS))}` });
+  });
+export type DocumentRequestInput = z.infer<typeof DocumentRequestInputSchema>;
+
+/** Specialist units a case can be referred to. */
+export const REFERRAL_UNITS = ['field-audit', 'income-matching', 'special-investigations'] as const;
+export const ReferralUnitSchema = z.enum(REFERRAL_UNITS);
+export type ReferralUnit = z.infer<typeof ReferralUnitSchema>;
+export const REFERRAL_UNIT_LABELS: Record<ReferralUnit, string> = {
+  'field-audit': 'Field Audit Unit',
+  'income-matching': 'Income Matching Unit',
+  'special-investigations': 'Special Investigations Unit',
+};
+
+/** Body of `POST /api/cases/:id/referral`: where the case goes and why, in the examiner's words. */
+export const ReferralInputSchema = z.object({
+  unit: ReferralUnitSchema.default('field-audit'),
+  summary: z.string().trim().min(20, 'Say in a sentence or two why the case needs the unit (at least 20 characters)').max(4000, 'Keep the summary under 4,000 characters'),
+});
+/** What the form holds (unit may be left to its default). */
+export type ReferralInput = z.input<typeof ReferralInputSchema>;
+
+/** What a letter is: a request to the taxpayer, or an internal memo to a unit. */
+export const LETTER_KINDS = ['document_request', 'referral_memo'] as const;
+export const LetterKindSchema = z.enum(LETTER_KINDS);
+export type LetterKind = z.infer<typeof LetterKindSchema>;
+export const LETTER_KIND_LABELS: Record<LetterKind, string> = { document_request: 'Document request', referral_memo: 'Referral memo' };
+
+/** Stored state of a document request; `expired` is also reported for an unanswered one past its due date. */
+export const DOCUMENT_REQUEST_STATES = ['sent', 'answered', 'expired'] as const;
+export const DocumentRequestStateSchema = z.enum(DOCUMENT_REQUEST_STATES);
+export type DocumentRequestState = z.infer<typeof DocumentRequestStateSchema>;
+
+/** A file a taxpayer sent back, as staff see it. */
+export const ReplyUploadSchema = z.object({
+  id: z.string(),
+  fileName: z.string(),
+  contentType: z.enum(REPLY_FILE_TYPES),
+  size: z.number().int(),
+  sha256: z.string(),
+  createdAt: z.string(),
+});
+export type ReplyUploadDto = z.infer<typeof ReplyUploadSchema>;
+
+/** One letter kept with a case. */
+export const LetterSchema = z.object({
+  id: z.string(),
+  caseId: z.string(),
+  kind: LetterKindSchema,
+  /** E-mail address for a document request; the unit for a referral memo. */
+  recipient: z.string(),
+  sha256: z.string(),
+  size: z.number().int(),
+  createdAt: z.string(),
+  createdBy: z.object({ id: z.string(), displayName: z.string() }).nullable(),
+  documentRequest: z
+    .object({
+      id: z.string(),
+      items: z.array(z.string()),
+      dueDate: z.string(),
+      state: DocumentRequestStateSchema,
+      answeredAt: z.string().nullable(),
+      uploads: z.array(ReplyUploadSchema),
+    })
+    .nullable(),
+});
+export type LetterDto = z.infer<typeof LetterSchema>;
+
+/** `GET /api/cases/:id/letters`: newest first. */
+export const LetterListSchema = z.object({ items: z.array(LetterSchema) });
+export type LetterList = z.infer<typeof LetterListSchema>;
+
+/** Answer of the two letter-making routes: the letter and the case's new state. */
+export const LetterCreatedSchema = z.object({ letter: LetterSchema, caseState: z.string() });
+export type LetterCreated = z.infer<typeof LetterCreatedSchema>;
+
+/**
+ * `GET /api/replies/:token` while the link is usable: only what the taxpayer needs to
+ * answer (their name, the records asked for, the due date, the office). No TIN, no figures.
+ */
+export const ReplyRequestSchema = z.object({
+  state: z.literal('open'),
+  taxpayerName: z.string(),
+  items: z.array(z.string()),
+  dueDate: z.string(),
+  office: z.object({ name: z.string(), unit: z.string(), address: z.array(z.string()), phone: z.string(), email: z.string(), hours: z.string() }),
+  limits: z.object({ maxFiles: z.number().int(), maxFileBytes: z.number().int(), maxTotalBytes: z.number().int(), types: z.array(z.string()) }),
+});
+export type ReplyRequestDto = z.infer<typeof ReplyRequestSchema>;
+
+/** 410 answer for a link that can no longer be used. */
+export const ReplyClosedSchema = z.object({ error: z.string(), state: z.enum(['answered', 'expired']) });
+export type ReplyClosed = z.infer<typeof ReplyClosedSchema>;
+
+/** `POST /api/replies/:token` answer. */
+export const ReplyReceiptSchema = z.object({
+  received: z.array(z.object({ fileName: z.string(), size: z.number().int(), sha256: z.string() })),
+  receivedAt: z.string(),
+});
+export type ReplyReceipt = z.infer<typeof ReplyReceiptSchema>;
+
+/** What the taxpayer's reply page may send: checks a file's declared type, size and name. */
+export function replyFileProblem(file: { name: string; type: string; size: number }): string | null {
+  if (!(REPLY_FILE_TYPES as readonly string[]).includes(file.type)) return `${file.name}: send PDF, JPEG or PNG files only.`;
+  if (file.size === 0) return `${file.name} is empty.`;
+  if (file.size > REPLY_MAX_FILE_BYTES) return `${file.name} is larger than ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB.`;
+  return null;
+}

@@ -1,0 +1,240 @@
+/**
+ * The taxpayer's one-time reply link (issue 7): what the page may show, the upload with its
+ * limits and file types, the link used up after one reply or gone after its due date,
+ * unknown links 404, and the case back in review with an actor-less 'reply-received' event.
+ */
+import { randomBytes } from 'node:crypto';
+import request from 'supertest';
+import { REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../shared/letters';
+import { signIn, type SignedIn } from '../helpers/auth';
+import { caseInReview, dueIn, uniqueAddress } from '../helpers/letter-cases';
+import { waitForMail } from '../helpers/maildev';
+import { loadScoredBatch } from '../helpers/scored-batch';
+import { createTestContext, type TestContext } from '../helpers/test-app';
+
+jest.setTimeout(90_000);
+
+// Small files with real signatures: the server reads the type from the first bytes.
+const PDF = Buffer.concat([Buffer.from('%PDF-1.4\n1 0 obj << /Type /Catalog >> endobj\n'), randomBytes(2000), Buffer.from('\n%%EOF\n')]);
+const PNG = Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), randomBytes(3000)]);
+const JPEG = Buffer.concat([Buffer.from([0xff, 0xd8, 0xff, 0xe0]), randomBytes(3000)]);
+
+const ITEMS = ['Receipts for the vehicle expenses claimed for 2024', 'Your employer\'s wage statement for 2024'];
+
+describe('reply links', () => {
+  let ctx: TestContext;
+  let examiner: SignedIn;
+
+  beforeAll(async () => {
+    ctx = await createTestContext();
+    await loadScoredBatch(ctx.dataSource, { seed: 'replies', returns: 200, plantShare: 0.1 });
+    examiner = await signIn(ctx, 'examiner');
+  });
+  afterAll(async () => {
+    await ctx.close();
+  });
+
+  /** Sends a request for a fresh case and returns the token from the e-mail. */
+  async function requestSent(dueDate = dueIn(21)): Promise<{ caseId: string; token: string; requestId: string; taxpayerId: string }> {
+    const { caseId, taxpayerId } = await caseInReview(ctx.dataSource, examiner);
+    const to = uniqueAddress();
+    const res = await examiner.agent.post(`/api/cases/${caseId}/document-requests`).set('X-CSRF-Token', examiner.csrf).send({ items: ITEMS, dueDate, email: to });
+    expect(res.status).toBe(201);
+    const mail = await waitForMail(to);
+    const token = /\/reply\/([A-Za-z0-9_-]{43})/.exec(mail.text ?? '')![1];
+    return { caseId, token, requestId: res.body.letter.documentRequest.id, taxpayerId };
+  }
+
+  const upload = (token: string, files: { name: string; bytes: Buffer; type: string }[]) => {
+    let r = request(ctx.app).post(`/api/replies/${token}`);
+    for (const f of files) r = r.attach('files', f.bytes, { filename: f.name, contentType: f.type });
+    return r;
+  };
+
+  it('shows only the name, the records asked for, the due date and the office: no TIN, no figures', async () => {
+    const due = dueIn(21);
+    const { token, caseId } = await requestSent(due);
+    const res = await request(ctx.app).get(`/api/replies/${token}`);
+    expect(res.status).toBe(200);
+    expect(res.headers['cache-control']).toBe('no-store');
+    const facts = (await ctx.dataSource.query(`SELECT t.name, t.tin, c.amount_at_stake::text AS stake, c.risk_score::text AS score FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`, [caseId]))[0];
+    expect(res.body).toEqual({
+      state: 'open',
+      taxpayerName: facts.name,
+      items: ITEMS,
+      dueDate: due,
+      office: expect.objectContaining({ name: 'Aldermere Revenue Office', phone: expect.any(String), email: expect.any(String) }),
+      limits: { maxFiles: REPLY_MAX_FILES, maxFileBytes: REPLY_MAX_FILE_BYTES, maxTotalBytes: expect.any(Number), types: ['application/pdf', 'image/jpeg', 'image/png'] },
+    });
+    const raw = JSON.stringify(res.body);
+    expect(raw).not.toContain(String(facts.tin));
+    expect(raw).not.toContain(String(facts.tin).slice(-3) + '"');
+    expect(raw).not.toContain(facts.stake);
+    expect(raw).not.toMatch(/tin|score|risk|case/i);
+    // The visit is logged, with no user and without the token.
+    const log = await ctx.dataSource.query(`SELECT user_id, action, route, detail FROM access_log WHERE record_type = 'document_request' AND action = 'view'`);
+    expect(log).toContainEqual({ user_id: null, action: 'view', route: 'GET /api/replies/:token', detail: 'reply link opened' });
+    expect(JSON.stringify(await ctx.dataSource.query(`SELECT route, detail FROM access_log`))).not.toContain(token);
+  });
+
+  it('answers 404 for an unknown or malformed link', async () => {
+    const unknown = randomBytes(32).toString('base64url');
+    const a = await request(ctx.app).get(`/api/replies/${unknown}`);
+    expect(a.status).toBe(404);
+    expect(a.body.error).toMatch(/not known/);
+    expect((await request(ctx.app).get('/api/replies/short')).status).toBe(404);
+    expect((await upload(unknown, [{ name: 'a.pdf', bytes: PDF, type: 'application/pdf' }])).status).toBe(404);
+  });
+
+  it('stores the files, uses the link up and brings the case back to review', async () => {
+    const { token, caseId, requestId, taxpayerId } = await requestSent();
+    const res = await upload(token, [
+      { name: 'receipts 2024.pdf', bytes: PDF, type: 'application/pdf' },
+      { name: 'C:\\Users\\me\\Pictures\\wage-statement.png', bytes: PNG, type: 'image/png' },
+      { name: 'fuel.jpeg', bytes: JPEG, type: 'image/jpeg' },
+    ]);
+    expect(res.status).toBe(201);
+    expect(res.body.received.map((f: { fileName: string }) => f.fileName)).toEqual(['receipts 2024.pdf', 'wage-statement.png', 'fuel.jpeg']);
+
+    const stored = await ctx.dataSource.query(`SELECT file_name, content_type, size, content FROM reply_upload WHERE document_request_id = $1 ORDER BY file_name`, [requestId]);
+    expect(stored.map((s: { file_name: string; content_type: string; size: number }) => [s.file_name, s.content_type, s.size])).toEqual([
+      ['fuel.jpeg', 'image/jpeg', JPEG.length],
+      ['receipts 2024.pdf', 'application/pdf', PDF.length],
+      ['wage-statement.png', 'image/png', PNG.length],
+    ]);
+    expect(Buffer.compare(stored[1].content, PDF)).toBe(0);
+    const dr = (await ctx.dataSource.query(`SELECT state, answered_at FROM document_request WHERE id = $1`, [requestId]))[0];
+    expect(dr.state).toBe('answered');
+    expect(dr.answered_at).not.toBeNull();
+
+    const c = (await ctx.dataSource.query(`SELECT state, due_date FROM exam_case WHERE id = $1`, [caseId]))[0];
+    expect(c).toEqual({ state: 'in_review', due_date: null });
+    const ev = await ctx.dataSource.query(`SELECT actor_id, from_state, to_state, detail FROM case_event WHERE case_id = $1 AND kind = 'reply-received'`, [caseId]);
+    expect(ev).toEqual([{ actor_id: null, from_state: 'awaiting_reply', to_state: 'in_review', detail: expect.objectContaining({ documentRequestId: requestId, files: 3 }) }]);
+    const log = await ctx.dataSource.query(`SELECT user_id, action, route, taxpayer_id, detail FROM access_log WHERE action = 'change' AND record_id = $1`, [requestId]);
+    expect(log).toEqual([{ user_id: null, action: 'change', route: 'POST /api/replies/:token', taxpayer_id: taxpayerId, detail: 'reply received: 3 files' }]);
+
+    // Used up: the page and a second upload say so.
+    const page = await request(ctx.app).get(`/api/replies/${token}`);
+    expect(page.status).toBe(410);
+    expect(page.body).toEqual({ error: expect.stringMatching(/already been used/), state: 'answered' });
+    const second = await upload(token, [{ name: 'more.pdf', bytes: PDF, type: 'application/pdf' }]);
+    expect(second.status).toBe(410);
+    expect(second.body.state).toBe('answered');
+    expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM reply_upload WHERE document_request_id = $1`, [requestId]))[0].n).toBe(3);
+
+    // Staff see the reply with the letter and can download each file (logged).
+    const list = await examiner.agent.get(`/api/cases/${caseId}/letters`);
+    const req = list.body.items[0].documentRequest;
+    expect(req.state).toBe('answered');
+    expect(req.uploads).toHaveLength(3);
+    const png = req.uploads.find((u: { contentType: string }) => u.contentType === 'image/png');
+    const file = await examiner.agent
+      .get(`/api/cases/${caseId}/reply-uploads/${png.id}`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (x: Buffer) => chunks.push(x));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
+    expect(file.status).toBe(200);
+    expect(file.headers['content-disposition']).toMatch(/^attachment; filename="wage-statement.png"/);
+    expect(Buffer.compare(file.body as Buffer, PNG)).toBe(0);
+    const clerk = await signIn(ctx, 'clerk');
+    expect((await clerk.agent.get(`/api/cases/${caseId}/reply-uploads/${png.id}`)).status).toBe(403);
+  });
+
+  it('refuses a link after its due date, and marks the request expired', async () => {
+    const { token, requestId, caseId } = await requestSent();
+    // The due date passes (written directly: the API never accepts a past date).
+    await ctx.dataSource.query(`UPDATE document_request SET due_date = current_date - 1 WHERE id = $1`, [requestId]);
+    const page = await request(ctx.app).get(`/api/replies/${token}`);
+    expect(page.status).toBe(410);
+    expect(page.body.state).toBe('expired');
+    expect(page.body.error).toMatch(/expired after its due date/);
+    const post = await upload(token, [{ name: 'late.pdf', bytes: PDF, type: 'application/pdf' }]);
+    expect(post.status).toBe(410);
+    expect(post.body.state).toBe('expired');
+    expect((await ctx.dataSource.query(`SELECT state FROM document_request WHERE id = $1`, [requestId]))[0].state).toBe('expired');
+    expect((await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [caseId]))[0].state).toBe('awaiting_reply');
+    expect(await ctx.dataSource.query(`SELECT id FROM reply_upload WHERE document_request_id = $1`, [requestId])).toEqual([]);
+  });
+
+  it('accepts a reply on the due date itself', async () => {
+    const { token, requestId } = await requestSent();
+    await ctx.dataSource.query(`UPDATE document_request SET due_date = $2 WHERE id = $1`, [requestId, dueIn(0)]);
+    expect((await upload(token, [{ name: 'on-time.pdf', bytes: PDF, type: 'application/pdf' }])).status).toBe(201);
+  });
+
+  it('enforces the file types, sizes and count, and leaves the link usable after a refused upload', async () => {
+    const { token, requestId } = await requestSent();
+    const none = await request(ctx.app).post(`/api/replies/${token}`).field('note', 'nothing attached');
+    expect(none.status).toBe(422);
+    expect(none.body.error).toBe('Choose at least one file to send.');
+
+    const html = await upload(token, [{ name: 'statement.pdf', bytes: Buffer.from('<html><script>alert(1)</script></html>'), type: 'application/pdf' }]);
+    expect(html.status).toBe(422);
+    expect(html.body.error).toBe('statement.pdf is not a PDF, JPEG or PNG file.');
+
+    const gif = await upload(token, [{ name: 'scan.gif', bytes: PNG, type: 'image/gif' }]);
+    expect(gif.status).toBe(422);
+    expect(gif.body.error).toMatch(/send PDF, JPEG or PNG files only/);
+
+    const empty = await upload(token, [{ name: 'empty.pdf', bytes: Buffer.alloc(0), type: 'application/pdf' }]);
+    expect(empty.status).toBe(422);
+
+    // One good and one bad file: the whole reply is refused, nothing is half stored.
+    const mixed = await upload(token, [
+      { name: 'good.pdf', bytes: PDF, type: 'application/pdf' },
+      { name: 'tool.exe', bytes: Buffer.from('MZ\x90\x00 not a document'), type: 'application/octet-stream' },
+    ]);
+    expect(mixed.status).toBe(422);
+    expect(mixed.body.problems).toEqual(['tool.exe is not a PDF, JPEG or PNG file.']);
+
+    const big = await upload(token, [{ name: 'huge.pdf', bytes: Buffer.concat([PDF, Buffer.alloc(REPLY_MAX_FILE_BYTES)]), type: 'application/pdf' }]);
+    expect(big.status).toBe(413);
+    expect(big.body.error).toMatch(/larger than 10 MB/);
+
+    const many = await upload(
+      token,
+      Array.from({ length: REPLY_MAX_FILES + 1 }, (_, i) => ({ name: `page-${i + 1}.pdf`, bytes: PDF, type: 'application/pdf' })),
+    );
+    expect(many.status).toBe(422);
+    expect(many.body.error).toBe(`Send at most ${REPLY_MAX_FILES} files in one reply.`);
+
+    const wrongField = await request(ctx.app).post(`/api/replies/${token}`).attach('document', PDF, { filename: 'a.pdf', contentType: 'application/pdf' });
+    expect(wrongField.status).toBe(422);
+
+    // Four files of 8 MB: each within its limit, together over the total.
+    const eight = Buffer.concat([PDF, Buffer.alloc(8 * 1024 * 1024)]);
+    const total = await upload(token, Array.from({ length: 4 }, (_, i) => ({ name: `part-${i}.pdf`, bytes: eight, type: 'application/pdf' })));
+    expect(total.status).toBe(413);
+    expect(total.body.error).toMatch(/together are larger than 30 MB/);
+
+    expect(await ctx.dataSource.query(`SELECT id FROM reply_upload WHERE document_request_id = $1`, [requestId])).toEqual([]);
+    expect((await ctx.dataSource.query(`SELECT state FROM document_request WHERE id = $1`, [requestId]))[0].state).toBe('sent');
+    // Still usable: the taxpayer can try again with the right files (octet-stream is what some
+    // browsers send for any file; the signature decides).
+    const ok = await upload(token, [{ name: 'receipts', bytes: PDF, type: 'application/octet-stream' }]);
+    expect(ok.status).toBe(201);
+    expect(ok.body.received[0].fileName).toBe('receipts.pdf');
+  });
+
+  it('accepts exactly one of two replies racing on the same link', async () => {
+    const { token, requestId } = await requestSent();
+    const [a, b] = await Promise.all([upload(token, [{ name: 'a.pdf', bytes: PDF, type: 'application/pdf' }]), upload(token, [{ name: 'b.pdf', bytes: PDF, type: 'application/pdf' }])]);
+    expect([a.status, b.status].sort()).toEqual([201, 410]);
+    expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM reply_upload WHERE document_request_id = $1`, [requestId]))[0].n).toBe(1);
+  });
+
+  it('keeps a reply that arrives after the case moved on, without moving it', async () => {
+    const { token, caseId } = await requestSent();
+    const refer = await examiner.agent.post(`/api/cases/${caseId}/referral`).set('X-CSRF-Token', examiner.csrf).send({ summary: 'Handed to field audit before the reply came in.' });
+    expect(refer.status).toBe(201);
+    const res = await upload(token, [{ name: 'late-but-welcome.pdf', bytes: PDF, type: 'application/pdf' }]);
+    expect(res.status).toBe(201);
+    expect((await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [caseId]))[0].state).toBe('referred');
+    const ev = await ctx.dataSource.query(`SELECT actor_id, from_state, to_state FROM case_event WHERE case_id = $1 AND kind = 'reply-received'`, [caseId]);
+    expect(ev).toEqual([{ actor_id: null, from_state: null, to_state: null }]);
+  });
+});
