@@ -10,11 +10,18 @@ import type PgBoss from 'pg-boss';
 import type { DataSource } from 'typeorm';
 import type { Config } from './config';
 import { accessLogRoutes } from './access-log/access-log.routes';
+import { analysesRoutes } from './analyses/analyses.routes';
+import { scoringProfileRoutes } from './scoring/scoring-profile.routes';
 import { authRoutes } from './auth/auth.routes';
+import { batchRoutes } from './batches/batch.routes';
+import { caseRoutes } from './cases/case.routes';
+import { workloadRoutes } from './cases/workload.routes';
 import { csrfProtection } from './auth/csrf';
 import { createPassport, sessionMiddleware } from './auth/session';
 import { LoginThrottle } from './auth/throttle';
 import { healthRoutes } from './health/health.routes';
+import { letterRoutes } from './letters/letters.routes';
+import { replyRoutes } from './letters/replies.routes';
 import { userRoutes } from './users/user.routes';
 import { apiNotFound, errorHandler } from './http/errors';
 import type { Mailer } from './mail/mailer';
@@ -59,7 +66,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(passport.session());
   api.use(csrfProtection);
   // Feature routers: each built with secureRouter(), paths are full paths under /api.
-  const features = [healthRoutes, userRoutes, accessLogRoutes];
+  const features = [healthRoutes, userRoutes, accessLogRoutes, analysesRoutes, scoringProfileRoutes, batchRoutes, caseRoutes, workloadRoutes, letterRoutes, replyRoutes];
   api.use(authRoutes({ ...deps, throttle, passport }));
   for (const feature of features) api.use(feature(deps));
   app.use('/api', api);

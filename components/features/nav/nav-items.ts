@@ -11,6 +11,10 @@ interface RoleNavItem extends NavItem {
 
 export const NAV_ITEMS: readonly RoleNavItem[] = [
   { href: '/', label: 'Status', roles: 'all' },
+  { href: '/queue', label: 'Queue', roles: ['examiner', 'supervisor'] },
+  { href: '/workload', label: 'Workload', roles: ['supervisor'] },
+  { href: '/batches', label: 'Batches', roles: ['clerk', 'supervisor'] },
+  { href: '/scoring', label: 'Scoring', roles: ['supervisor'] },
   { href: '/users', label: 'Users', roles: ['admin'] },
   { href: '/access-log', label: 'Access log', roles: ['admin'] },
   { href: '/about', label: 'About', roles: 'all' },

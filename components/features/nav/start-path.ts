@@ -1,12 +1,12 @@
 import type { Role } from '../../../shared/roles';
 
 /**
- * Where each role lands after sign-in: the screen its day starts on. Examiners and
- * supervisors land on the status page until the queue and workload screens exist.
+ * Where each role lands after sign-in: the screen its day starts on. Examiners start on
+ * their queue, supervisors on the workload of their team.
  */
 export const START_PATH: Record<Role, string> = {
   clerk: '/batches',
-  examiner: '/',
-  supervisor: '/',
+  examiner: '/queue',
+  supervisor: '/workload',
   admin: '/users',
 };

@@ -1,0 +1,1 @@
+export { CaseScreen as default } from '../../../components/features/cases/case-screen';

@@ -1,0 +1,1 @@
+export { QueueScreen as default } from '../../components/features/cases/queue-screen';

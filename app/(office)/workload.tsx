@@ -1,0 +1,1 @@
+export { WorkloadScreen as default } from '../../components/features/workload/workload-screen';

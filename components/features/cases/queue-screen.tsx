@@ -1,0 +1,345 @@
+import { Link, useLocalSearchParams, useRouter } from 'expo-router';
+import { useEffect, useState } from 'react';
+import { Linking, Platform, Pressable, View } from 'react-native';
+import { CASE_SORT_LABELS, CASE_SORTS, type CaseListItem, type CaseListParams, type CaseSort } from '../../../shared/case-api';
+import { CASE_STATE_LABELS } from '../../../shared/cases';
+import { ACTIVITY_CODES } from '../../../shared/returns/line-codes';
+import { useSession } from '../../../hooks/use-session';
+import { colours, radius, space } from '../../theme';
+import { Button } from '../../ui/button';
+import { Card } from '../../ui/card';
+import { ChoiceRow } from '../../ui/choice-row';
+import { Field } from '../../ui/field';
+import { useIsWide } from '../../ui/layout';
+import { Txt } from '../../ui/text';
+import { age, amount, ScoreMeter, StateBadge, whole } from './case-bits';
+import { exportUrl, useCaseList, useExaminers } from './use-cases';
+
+const PAGE_SIZE = 25;
+
+const STATE_CHOICES: { value: string; label: string }[] = [
+  { value: 'active', label: 'Being worked' },
+  { value: 'open', label: CASE_STATE_LABELS.open },
+  { value: 'assigned', label: CASE_STATE_LABELS.assigned },
+  { value: 'in_review', label: CASE_STATE_LABELS.in_review },
+  { value: 'awaiting_reply', label: CASE_STATE_LABELS.awaiting_reply },
+  { value: 'finished', label: 'Finished' },
+  { value: 'all', label: 'All' },
+];
+
+const SORT_CHOICES = CASE_SORTS.map((s) => ({ value: s, label: CASE_SORT_LABELS[s] }));
+
+type Params = { state?: string; sort?: string; page?: string; q?: string; taxYear?: string; activity?: string; assignee?: string; batch?: string };
+
+/** The filters live in the address, so Back from a case returns to the same page of the queue. */
+function useQueueParams() {
+  const raw = useLocalSearchParams<Params>();
+  const router = useRouter();
+  const one = (v: string | string[] | undefined) => (Array.isArray(v) ? v[0] : v) || undefined;
+  const p: Params = Object.fromEntries(Object.entries(raw).map(([k, v]) => [k, one(v as string | string[] | undefined)])) as Params;
+  const set = (next: Partial<Params>, keepPage = false) => {
+    const merged: Params = { ...p, ...next, ...(keepPage ? {} : { page: undefined }) };
+    // setParams keeps keys it is not given; empty values clear them.
+    router.setParams(Object.fromEntries(Object.entries({ state: undefined, sort: undefined, page: undefined, q: undefined, taxYear: undefined, activity: undefined, assignee: undefined, batch: undefined, ...merged }).map(([k, v]) => [k, v ?? ''])) as never);
+  };
+  return { p, set };
+}
+
+function Cell({ w, children, right }: { w?: number; children: React.ReactNode; right?: boolean }) {
+  return <View style={[w ? { width: w } : { flex: 1, minWidth: 120 }, right ? { alignItems: 'flex-end' } : null]}>{children}</View>;
+}
+
+const COLS = { ref: 136, score: 100, stake: 104, priority: 96, state: 116, who: 124 };
+
+function TableHeader() {
+  const h = (t: string) => (
+    <Txt variant="caption" bold tone="soft">
+      {t.toUpperCase()}
+    </Txt>
+  );
+  return (
+    <View style={{ flexDirection: 'row', gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1.5, borderBottomColor: colours.ink }}>
+      <Cell w={COLS.ref}>{h('Return')}</Cell>
+      <Cell>{h('Taxpayer')}</Cell>
+      <Cell w={COLS.score}>{h('Risk score')}</Cell>
+      <Cell w={COLS.stake} right>
+        {h('At stake')}
+      </Cell>
+      <Cell w={COLS.priority} right>
+        {h('Priority')}
+      </Cell>
+      <Cell w={COLS.state}>{h('State')}</Cell>
+      <Cell w={COLS.who}>{h('Examiner')}</Cell>
+    </View>
+  );
+}
+
+function TableRow({ c }: { c: CaseListItem }) {
+  return (
+    <Link href={`/cases/${c.id}` as never} asChild>
+      <Pressable
+        accessibilityRole="link"
+        accessibilityLabel={`Case ${c.returnRef}, ${c.taxpayerName}, risk score ${c.riskScore}`}
+        testID={`queue-row-${c.returnRef}`}
+        // A plain style object: Link's asChild does not resolve Pressable's style function.
+        style={{ flexDirection: 'row', gap: space.md, alignItems: 'center', paddingVertical: space.sm + 2, paddingHorizontal: space.md, borderBottomWidth: 1, borderBottomColor: colours.line }}
+      >
+        <Cell w={COLS.ref}>
+          <Txt figures bold>
+            {c.returnRef}
+          </Txt>
+          <Txt variant="caption" tone="soft">
+            {c.taxYear} · opened {age(c.openedAt) === 'today' ? 'today' : `${age(c.openedAt)} ago`}
+          </Txt>
+        </Cell>
+        <Cell>
+          <Txt numberOfLines={1}>{c.taxpayerName}</Txt>
+          <Txt variant="caption" figures tone="soft" numberOfLines={1}>
+            {c.maskedTin} · {c.activityCode}
+          </Txt>
+        </Cell>
+        <Cell w={COLS.score}>
+          <ScoreMeter score={c.riskScore} width={44} />
+        </Cell>
+        <Cell w={COLS.stake} right>
+          <Txt figures>{amount(c.amountAtStake)}</Txt>
+        </Cell>
+        <Cell w={COLS.priority} right>
+          <Txt figures tone="soft">
+            {whole(c.priority)}
+          </Txt>
+        </Cell>
+        <Cell w={COLS.state}>
+          <StateBadge state={c.state} />
+        </Cell>
+        <Cell w={COLS.who}>
+          <Txt variant="small" tone={c.assigneeName ? 'ink' : 'faint'} numberOfLines={1}>
+            {c.assigneeName ?? 'Nobody yet'}
+          </Txt>
+          {c.dueDate && (
+            <Txt variant="caption" figures tone="soft">
+              reply due {c.dueDate}
+            </Txt>
+          )}
+        </Cell>
+      </Pressable>
+    </Link>
+  );
+}
+
+function CaseCard({ c }: { c: CaseListItem }) {
+  return (
+    <Link href={`/cases/${c.id}` as never} asChild>
+      <Pressable accessibilityRole="link" accessibilityLabel={`Case ${c.returnRef}, ${c.taxpayerName}, risk score ${c.riskScore}`} testID={`queue-card-${c.returnRef}`}>
+        <Card style={{ gap: space.sm, padding: space.md, borderLeftWidth: 4, borderLeftColor: colours.brass }}>
+          <View style={{ flexDirection: 'row', justifyContent: 'space-between', alignItems: 'center', gap: space.sm }}>
+            <Txt figures bold>
+              {c.returnRef}
+            </Txt>
+            <StateBadge state={c.state} />
+          </View>
+          <View>
+            <Txt bold numberOfLines={1}>
+              {c.taxpayerName}
+            </Txt>
+            <Txt variant="small" figures tone="soft">
+              {c.maskedTin} · {c.activityCode} · {c.taxYear}
+            </Txt>
+          </View>
+          <View style={{ flexDirection: 'row', justifyContent: 'space-between', alignItems: 'flex-end', gap: space.md }}>
+            <View style={{ gap: 2 }}>
+              <Txt variant="caption" tone="soft">
+                Risk score
+              </Txt>
+              <ScoreMeter score={c.riskScore} width={72} />
+            </View>
+            <View style={{ alignItems: 'flex-end', gap: 2 }}>
+              <Txt variant="caption" tone="soft">
+                At stake
+              </Txt>
+              <Txt figures bold>
+                {amount(c.amountAtStake)}
+              </Txt>
+            </View>
+          </View>
+          <Txt variant="caption" tone="soft">
+            {c.assigneeName ? `With ${c.assigneeName}` : 'Nobody holds it yet'} · opened {age(c.openedAt) === 'today' ? 'today' : `${age(c.openedAt)} ago`}
+            {c.dueDate ? ` · reply due ${c.dueDate}` : ''}
+          </Txt>
+        </Card>
+      </Pressable>
+    </Link>
+  );
+}
+
+/** Examiner's and supervisor's ranked queue: filters, sort, search, paging, export. */
+export function QueueScreen() {
+  const wide = useIsWide();
+  const session = useSession();
+  const role = session.data?.user.role;
+  const examiners = useExaminers();
+  const { p, set } = useQueueParams();
+  const [search, setSearch] = useState(p.q ?? '');
+  const [more, setMore] = useState(!!(p.taxYear || p.activity || p.batch));
+  // On a phone the filters fold away so the first cases show without scrolling.
+  const [showFilters, setShowFilters] = useState(false);
+  const [year, setYear] = useState(p.taxYear ?? '');
+  useEffect(() => setSearch(p.q ?? ''), [p.q]);
+
+  const page = Math.max(1, Number(p.page) || 1);
+  const query: Partial<CaseListParams> = {
+    state: p.state ?? 'active',
+    sort: (CASE_SORTS as readonly string[]).includes(p.sort ?? '') ? (p.sort as CaseSort) : 'priority',
+    q: p.q,
+    taxYear: p.taxYear,
+    activity: p.activity as CaseListParams['activity'],
+    assignee: p.assignee,
+    batch: p.batch,
+    page,
+    pageSize: PAGE_SIZE,
+  };
+  const list = useCaseList(query);
+  const total = list.data?.total ?? 0;
+  const pages = Math.max(1, Math.ceil(total / PAGE_SIZE));
+
+  const whoChoices = [
+    { value: 'any', label: 'Anyone' },
+    ...(role === 'examiner' ? [{ value: 'me', label: 'Mine' }] : []),
+    { value: 'none', label: 'Nobody yet' },
+    ...(role === 'supervisor' ? (examiners.data?.items ?? []).map((e) => ({ value: e.id, label: e.displayName })) : []),
+  ];
+  const download = () => {
+    const url = exportUrl(query);
+    // The session cookie goes with a same-origin navigation; the answer is an attachment, so the page stays.
+    if (Platform.OS === 'web' && typeof window !== 'undefined') window.location.assign(url);
+    else void Linking.openURL(url);
+  };
+
+  return (
+    <View style={{ gap: space.lg }}>
+      <View style={{ flexDirection: wide ? 'row' : 'column', justifyContent: 'space-between', alignItems: wide ? 'flex-end' : 'stretch', gap: space.sm }}>
+        <View style={{ gap: space.xs, flexShrink: 1 }}>
+          <Txt variant="display" bold accessibilityRole="header">
+            Examination queue
+          </Txt>
+          <Txt tone="soft">Returns selected by scoring for a human look, highest first. A score selects; it proves nothing.</Txt>
+        </View>
+        {role === 'supervisor' && <Button kind="secondary" label="Export to XLSX" testID="queue-export" onPress={download} style={{ alignSelf: wide ? 'auto' : 'flex-start' }} />}
+      </View>
+
+      <Card style={{ gap: space.md }}>
+        <View style={{ flexDirection: 'row', gap: space.sm, alignItems: 'flex-end' }}>
+          <View style={{ flex: 1 }}>
+            <Field
+              testID="queue-search"
+              label="Find a return"
+              placeholder="Return reference or 9-digit TIN"
+              autoCapitalize="characters"
+              value={search}
+              onChangeText={setSearch}
+              onSubmitEditing={() => set({ q: search.trim() || undefined })}
+              returnKeyType="search"
+            />
+          </View>
+          <Button label="Find" testID="queue-search-go" onPress={() => set({ q: search.trim() || undefined })} />
+        </View>
+        {p.q && (
+          <Pressable accessibilityRole="button" onPress={() => set({ q: undefined })} testID="queue-search-clear">
+            <Txt variant="small" tone="brass" bold>
+              Showing matches for “{p.q}” · clear ✕
+            </Txt>
+          </Pressable>
+        )}
+        {!wide && (
+          <Pressable accessibilityRole="button" onPress={() => setShowFilters(!showFilters)} testID="queue-filters-toggle" style={{ flexDirection: 'row', justifyContent: 'space-between', gap: space.sm }}>
+            <Txt variant="small" tone="soft" style={{ flex: 1 }} numberOfLines={1}>
+              {STATE_CHOICES.find((c) => c.value === (p.state ?? 'active'))?.label ?? p.state} · {CASE_SORT_LABELS[query.sort as CaseSort]} · {whoChoices.find((c) => c.value === (p.assignee ?? 'any'))?.label ?? 'One examiner'}
+            </Txt>
+            <Txt variant="small" bold tone="brass">
+              {showFilters ? 'Hide filters ▴' : 'Filters ▾'}
+            </Txt>
+          </Pressable>
+        )}
+        {(wide || showFilters) && (
+          <>
+            <View style={{ flexDirection: wide ? 'row' : 'column', gap: space.md, flexWrap: 'wrap' }}>
+              <ChoiceRow testID="queue-state" label="State" options={STATE_CHOICES} value={p.state ?? 'active'} onChange={(v) => set({ state: v === 'active' ? undefined : v })} />
+              <ChoiceRow testID="queue-sort" label="Order" options={SORT_CHOICES} value={query.sort as CaseSort} onChange={(v) => set({ sort: v === 'priority' ? undefined : v })} />
+            </View>
+            <ChoiceRow testID="queue-who" label="Held by" options={whoChoices} value={p.assignee ?? 'any'} onChange={(v) => set({ assignee: v === 'any' ? undefined : v })} />
+            <Pressable accessibilityRole="button" onPress={() => setMore(!more)} testID="queue-more">
+              <Txt variant="small" bold tone="brass">
+                {more ? 'Fewer filters ▴' : 'More filters: tax year, activity, batch ▾'}
+              </Txt>
+            </Pressable>
+          </>
+        )}
+        {more && (wide || showFilters) && (
+          <View style={{ gap: space.md }}>
+            <View style={{ flexDirection: 'row', gap: space.sm, alignItems: 'flex-end' }}>
+              <View style={{ width: 140 }}>
+                <Field testID="queue-year" label="Tax year" placeholder="e.g. 2024" keyboardType="number-pad" value={year} onChangeText={setYear} onSubmitEditing={() => set({ taxYear: year.trim() || undefined })} />
+              </View>
+              <Button kind="secondary" label="Apply" onPress={() => set({ taxYear: year.trim() || undefined })} />
+            </View>
+            <ChoiceRow
+              testID="queue-activity"
+              label="Activity"
+              options={[{ value: 'any', label: 'Any' }, ...ACTIVITY_CODES.map((a) => ({ value: a, label: a }))]}
+              value={p.activity ?? 'any'}
+              onChange={(v) => set({ activity: v === 'any' ? undefined : v })}
+            />
+            {p.batch && (
+              <Pressable accessibilityRole="button" onPress={() => set({ batch: undefined })}>
+                <Txt variant="small" tone="brass" bold>
+                  Only batch {p.batch.slice(0, 8)}… · clear ✕
+                </Txt>
+              </Pressable>
+            )}
+          </View>
+        )}
+      </Card>
+
+      {list.error && (
+        <Txt tone="alert" accessibilityRole="alert">
+          {list.error.message}
+        </Txt>
+      )}
+      {list.isPending && <Txt tone="soft">Loading the queue…</Txt>}
+      {list.data && (
+        <>
+          <Txt variant="small" tone="soft" testID="queue-total">
+            {total === 0
+              ? 'No cases match these filters.'
+              : `${whole((page - 1) * PAGE_SIZE + 1)}–${whole(Math.min(total, page * PAGE_SIZE))} of ${whole(total)} case${total === 1 ? '' : 's'}`}
+            {query.state === 'active' ? ' being worked' : ''}
+            {` · by ${CASE_SORT_LABELS[query.sort as CaseSort].toLowerCase()}`}
+          </Txt>
+          {wide ? (
+            <View style={{ backgroundColor: colours.surface, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md, opacity: list.isPlaceholderData ? 0.6 : 1 }} testID="queue-table">
+              <TableHeader />
+              {list.data.items.map((c) => (
+                <TableRow key={c.id} c={c} />
+              ))}
+            </View>
+          ) : (
+            <View style={{ gap: space.sm, opacity: list.isPlaceholderData ? 0.6 : 1 }} testID="queue-cards">
+              {list.data.items.map((c) => (
+                <CaseCard key={c.id} c={c} />
+              ))}
+            </View>
+          )}
+          {total > PAGE_SIZE && (
+            <View style={{ flexDirection: 'row', gap: space.sm, alignItems: 'center', justifyContent: wide ? 'flex-start' : 'space-between' }}>
+              <Button kind="secondary" label="← Previous" testID="queue-prev" disabled={page <= 1} onPress={() => set({ page: String(page - 1) }, true)} />
+              <Txt variant="small" figures testID="queue-page">
+                page {page} of {whole(pages)}
+              </Txt>
+              <Button kind="secondary" label="Next →" testID="queue-next" disabled={page >= pages} onPress={() => set({ page: String(page + 1) }, true)} />
+            </View>
+          )}
+        </>
+      )}
+    </View>
+  );
+}

@@ -1,0 +1,338 @@
+/**
+ * `npm run bench:queue [-- --cases 100000 --clients 32 --seconds 15 --pages 40]`
+ *
+ * The examination queue under load: a throw-away database with 100,000 cases (filled with
+ * SQL generate_series: taxpayers, one batch, returns, scores, cases and their 'opened'
+ * events, minimal but valid), the real server process on it, 32 signed-in clients (each its
+ * own session) paging `GET /api/cases?sort=priority` with autocannon, then `GET /api/health`
+ * with the same number of connections in the same run. Prints requests/s, p50/p95/p99
+ * latency and the server's CPU time per request of both, and the ratio. Aim (issue 7): queue
+ * p95 under 50 ms and within 3× of the health route's. For context it also measures
+ * `GET /api/auth/me` with the same signed-in clients (the cost of any signed-in request:
+ * session read and touch, user re-read) and the queue with one client alone.
+ *
+ * Each queue request is the full product path: session lookup and touch, user re-read,
+ * the page query, the count with the same filters, and one access-log line per case shown.
+ * Each client walks pages 1..`pages` (25 cases a page) in turn, so offsets up to 1,000 rows
+ * deep are measured, not only the first page.
+ *
+ * Runs on a PostgreSQL cluster of its own (data in bench-output/pg-queue/, gitignored;
+ * 127.0.0.1:54349), in a throw-away database `plumbline_bench`, so neither the start
+ * command's demo data nor a running `npm test` is touched, and neither can restart the
+ * database under the measurement. Creates the cluster the first time, starts it, and stops
+ * it at the end (unless it was already running). Starts its own MailDev on free ports so
+ * the health route checks a real SMTP server. A benchmark, not a test: it measures and
+ * prints, it does not fail on a slow machine.
+ */
+import 'reflect-metadata';
+import autocannon from 'autocannon';
+import bcrypt from 'bcryptjs';
+import fs from 'node:fs';
+import net from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import { Client } from 'pg';
+import { createDataSource, runMigrations } from '../server/db/data-source';
+import { ScoreBreakdownSchema, type ScoreBreakdown } from '../shared/scoring/breakdown';
+import { COMPONENT_LABELS, COMPONENTS } from '../shared/scoring/settings';
+import { projectRoot } from './lib/local-services';
+import { clusterStatus, connectionString, findPgBin, isReady, recreateDatabase, startCluster, stopCluster, type ClusterSpec } from './lib/pg';
+import { startMaildev, startProcess, stopProcess, tsxArgs, waitForPort, type Managed } from './lib/processes';
+
+const DB = 'plumbline_bench';
+
+/** The bench's own cluster (same user and password scheme as the local set-ups). */
+const BENCH_CLUSTER: ClusterSpec = {
+  dataDir: path.join(projectRoot, 'bench-output', 'pg-queue', 'data'),
+  port: Number(process.env.PLUMBLINE_BENCH_PG_PORT ?? 54349),
+  database: 'plumbline_bench',
+  user: 'plumbline',
+  password: 'plumbline-local',
+};
+const PASSWORD = 'bench-queue-password';
+const log = (m: string) => console.log(`bench  | ${m}`);
+
+function arg(name: string, dflt: number): number {
+  const i = process.argv.indexOf(`--${name}`);
+  return i >= 0 ? Number(process.argv[i + 1]) : dflt;
+}
+
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = net.createServer();
+    s.once('error', reject);
+    s.listen(0, '127.0.0.1', () => {
+      const port = (s.address() as net.AddressInfo).port;
+      s.close(() => resolve(port));
+    });
+  });
+}
+
+/** One valid breakdown shared by every bench score (the queue never reads it; the case screen would). */
+function benchBreakdown(): ScoreBreakdown {
+  return ScoreBreakdownSchema.parse({
+    riskScore: 50,
+    components: COMPONENTS.map((key) => ({ key, label: COMPONENT_LABELS[key], weight: 10, strength: 0, points: 0, evidence: 'Benchmark fixture: not computed.' })),
+    digits: { n: 30, firstDigitCounts: [9, 5, 4, 3, 3, 2, 2, 1, 1], mad: null, expectedMad: null, zScore: null, verdict: 'too_few', secondDigitZ: null },
+    preparerPool: null,
+    historyPool: null,
+    amountAtStakeCents: 0,
+    stakeBasis: 'Benchmark fixture',
+    totals: { incomeCents: 0, deductionsCents: 0, taxableCents: 0, taxCents: 0, withheldCents: 0, refundCents: 0 },
+    selectionCut: 35,
+    selected: true,
+  });
+}
+
+/**
+ * Fills the database with `cases` cases in one transaction of set-based INSERTs. States are
+ * spread as a working office has them (most open, some assigned, in review, awaiting a
+ * reply, a few finished), over 10 examiners; scores, stakes and ages are seeded-random.
+ */
+async function fill(url: string, cases: number, clients: number): Promise<{ examiners: string[] }> {
+  const c = new Client({ connectionString: url });
+  await c.connect();
+  try {
+    await c.query('BEGIN');
+    await c.query(`SELECT setseed(0.42)`);
+    const hash = await bcrypt.hash(PASSWORD, 10);
+    const examiners = Array.from({ length: Math.max(10, clients) }, (_, i) => `bench-examiner-${String(i + 1).padStart(2, '0')}`);
+    await c.query(`INSERT INTO app_user (username, display_name, role, password_hash, active) SELECT u, 'Bench examiner ' || right(u, 2), 'examiner', $2, true FROM unnest($1::text[]) AS u`, [examiners, hash]);
+    const batch = (await c.query(`INSERT INTO filing_batch (file_hash, format, file_names, state, return_count, scored_count) VALUES (repeat('b', 64), 'csv', '{bench.csv}', 'scored', $1, $1) RETURNING id`, [cases])).rows[0].id as string;
+    const taxpayers = Math.ceil(cases / 4);
+    await c.query(
+      `INSERT INTO taxpayer (tin, name, activity_code)
+       SELECT lpad(g::text, 9, '0'), 'Bench Taxpayer ' || g,
+              (ARRAY['none','retail','food-service','construction','personal-care','consulting','transport','rental','farming','other'])[1 + g % 10]
+         FROM generate_series(1, $1) AS g`,
+      [taxpayers],
+    );
+    // Four tax years per taxpayer, so (taxpayer, year) stays unique as intake requires.
+    await c.query(
+      `INSERT INTO tax_return (id, batch_id, taxpayer_id, return_ref, tax_year, source_row)
+       SELECT gen_random_uuid(), $1, t.id, 'BQ-' || lpad(g::text, 7, '0'), 2022 + (g - 1) / $3, g + 1
+         FROM generate_series(1, $2) AS g
+         JOIN taxpayer t ON t.tin = lpad((1 + (g - 1) % $3)::text, 9, '0')`,
+      [batch, cases, taxpayers],
+    );
+    await c.query(
+      `INSERT INTO return_score (return_id, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown)
+       SELECT id, $1, 1, 'scored', s, a, round(s * a, 2), $2::jsonb
+         FROM (SELECT id, round((35 + random() * 65)::numeric, 1) AS s, round((exp(random() * 11.5))::numeric, 2) AS a FROM tax_return WHERE batch_id = $1) x`,
+      [batch, JSON.stringify(benchBreakdown())],
+    );
+    await c.query(
+      `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority, state, assignee_id, due_date, opened_at, updated_at)
+       SELECT s.return_id, r.taxpayer_id, $1, s.id, s.risk_score, s.amount_at_stake, s.priority, st,
+              CASE WHEN st = 'open' THEN NULL ELSE ex[1 + floor(random() * array_length(ex, 1))::int] END,
+              CASE WHEN st = 'awaiting_reply' THEN current_date + (floor(random() * 60)::int - 20) END,
+              opened, opened
+         FROM (SELECT s.*, CASE WHEN x < 0.70 THEN 'open' WHEN x < 0.80 THEN 'assigned' WHEN x < 0.88 THEN 'in_review' WHEN x < 0.93 THEN 'awaiting_reply'
+                                WHEN x < 0.95 THEN 'referred' WHEN x < 0.98 THEN 'closed_no_change' ELSE 'closed_adjusted' END AS st,
+                      now() - random() * interval '120 days' AS opened
+                 FROM (SELECT *, random() AS x FROM return_score WHERE batch_id = $1) s) s
+         JOIN tax_return r ON r.id = s.return_id,
+              (SELECT array_agg(id) AS ex FROM app_user WHERE role = 'examiner') e`,
+      [batch],
+    );
+    await c.query(`UPDATE exam_case SET closed_at = opened_at + interval '10 days', outcome = 'Benchmark fixture' WHERE state IN ('referred', 'closed_no_change', 'closed_adjusted')`);
+    await c.query(`UPDATE exam_case SET adjusted_amount = round(amount_at_stake / 2, 2) WHERE state = 'closed_adjusted'`);
+    await c.query(`INSERT INTO case_event (case_id, kind, to_state, at, detail) SELECT id, 'opened', 'open', opened_at, '{"profileVersion":1}' FROM exam_case`);
+    await c.query('COMMIT');
+    await c.query('VACUUM ANALYZE');
+    return { examiners };
+  } catch (e) {
+    await c.query('ROLLBACK').catch(() => undefined);
+    throw e;
+  } finally {
+    await c.end();
+  }
+}
+
+/** Signs in through the real route; returns the session cookie. */
+async function signIn(base: string, username: string): Promise<string> {
+  const res = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ username, password: PASSWORD }) });
+  if (res.status !== 200) throw new Error(`sign-in of ${username} failed: ${res.status} ${await res.text()}`);
+  const cookie = res.headers.get('set-cookie');
+  if (!cookie) throw new Error('sign-in answered without a session cookie');
+  return cookie.split(';')[0];
+}
+
+interface Figures {
+  requests: number;
+  /** CPU time the server process spent per request (user + system), in ms. */
+  serverCpuMs: number;
+  rps: number;
+  p50: number;
+  p95: number;
+  p99: number;
+  non2xx: number;
+  errors: number;
+}
+
+/** Exact percentiles from every response time autocannon reported (its summary has no p95). */
+function percentile(sorted: number[], q: number): number {
+  if (!sorted.length) return NaN;
+  return sorted[Math.min(sorted.length - 1, Math.ceil(q * sorted.length) - 1)];
+}
+
+/**
+ * Runs autocannon for `seconds` with `connections` connections. `setup` prepares each
+ * request of one connection (its own context: cookie, page counter).
+ */
+/** User + system CPU time of a process so far, in ms (Linux /proc). */
+function cpuMsOf(pid: number): number {
+  try {
+    const fields = fs.readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+    return ((Number(fields[11]) + Number(fields[12])) * 1000) / 100; // utime, stime in clock ticks (USER_HZ = 100)
+  } catch {
+    return NaN;
+  }
+}
+
+async function load(url: string, connections: number, seconds: number, serverPid: number, setup?: autocannon.Request['setupRequest']): Promise<Figures> {
+  const times: number[] = [];
+  const cpu0 = cpuMsOf(serverPid);
+  const result = await new Promise<autocannon.Result>((resolve, reject) => {
+    const instance = autocannon(
+      { url, connections, duration: seconds, pipelining: 1, requests: setup ? [{ method: 'GET', setupRequest: setup }] : undefined },
+      (err, r) => (err ? reject(err) : resolve(r)),
+    );
+    instance.on('response', (_client, _status, _bytes, responseTime) => times.push(responseTime));
+  });
+  times.sort((a, b) => a - b);
+  return {
+    requests: result.requests.total,
+    serverCpuMs: (cpuMsOf(serverPid) - cpu0) / Math.max(1, result.requests.total),
+    rps: result.requests.total / seconds,
+    p50: percentile(times, 0.5),
+    p95: percentile(times, 0.95),
+    p99: percentile(times, 0.99),
+    non2xx: result.non2xx,
+    errors: result.errors + result.timeouts,
+  };
+}
+
+const ms = (x: number) => `${x.toFixed(1).padStart(6)} ms`;
+const line = (name: string, f: Figures) =>
+  `  ${name.padEnd(40)} ${Math.round(f.rps).toLocaleString('en-GB').padStart(7)} req/s   p50 ${ms(f.p50)}   p95 ${ms(f.p95)}   p99 ${ms(f.p99)}   server CPU ${f.serverCpuMs.toFixed(1)} ms/req   (${f.requests.toLocaleString('en-GB')} requests${f.non2xx ? `, ${f.non2xx} not 2xx` : ''}${f.errors ? `, ${f.errors} errors` : ''})`;
+
+async function main() {
+  const cases = arg('cases', 100_000);
+  const clients = arg('clients', 32);
+  const seconds = arg('seconds', 15);
+  const pages = arg('pages', 40);
+  const spec = BENCH_CLUSTER;
+  const bin = findPgBin();
+  const wasRunning = bin ? isReady(bin, spec) : false;
+  let server: Managed | null = null;
+  let mail: Managed | null = null;
+  const mailDir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-bench-mail-'));
+  try {
+    await startCluster(spec, log);
+    log(`PostgreSQL ${clusterStatus(spec)}`);
+    await recreateDatabase(spec, DB);
+    const url = connectionString(spec, DB);
+    const ds = createDataSource(url, { poolSize: 2, applicationName: 'plumbline-bench' });
+    await ds.initialize();
+    await runMigrations(ds);
+    await ds.destroy();
+    const t0 = performance.now();
+    const { examiners } = await fill(url, cases, clients);
+    log(`filled ${cases.toLocaleString('en-GB')} cases (with their returns, scores and taxpayers) in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+
+    const [httpPort, smtpPort, mailWebPort] = [await freePort(), await freePort(), await freePort()];
+    mail = startMaildev(smtpPort, mailWebPort, mailDir, true);
+    await waitForPort(smtpPort);
+    const [node, nodeArgs] = tsxArgs('server/main.ts');
+    const profile = process.argv.includes('--cpu-prof') ? ['--cpu-prof', '--cpu-prof-dir', path.join(projectRoot, 'bench-output', 'profile')] : [];
+    server = startProcess('server', node, [...profile, ...nodeArgs], {
+      cwd: projectRoot,
+      quiet: true,
+      env: { ...process.env, DATABASE_URL: url, PORT: String(httpPort), HOST: '127.0.0.1', SMTP_PORT: String(smtpPort), NODE_ENV: 'production', SESSION_SECRET: 'bench-queue-secret-bench-queue-secret' },
+    });
+    await waitForPort(httpPort, '127.0.0.1', 60_000);
+    const base = `http://127.0.0.1:${httpPort}`;
+    const health = await fetch(`${base}/api/health`);
+    log(`server up on ${base}; health answers ${health.status}`);
+
+    // One session per client, each its own examiner: 32 people paging the queue.
+    const cookies = await Promise.all(Array.from({ length: clients }, (_, i) => signIn(base, examiners[i % examiners.length])));
+    const check = await fetch(`${base}/api/cases?sort=priority&pageSize=25`, { headers: { cookie: cookies[0] } });
+    const first = (await check.json()) as { total: number; items: unknown[] };
+    if (check.status !== 200 || first.items.length !== 25) throw new Error(`queue check failed: ${check.status} ${JSON.stringify(first).slice(0, 300)}`);
+    log(`${clients} clients signed in; the queue holds ${first.total.toLocaleString('en-GB')} cases (all states)`);
+
+    let next = 0;
+    const queueRequest: autocannon.Request['setupRequest'] = (req, context) => {
+      const ctx = context as { cookie?: string; page?: number };
+      if (!ctx.cookie) {
+        ctx.cookie = cookies[next++ % cookies.length];
+        ctx.page = (next * 7) % pages; // clients start on different pages
+      }
+      ctx.page = (ctx.page! % pages) + 1;
+      return { ...req, path: `/api/cases?sort=priority&page=${ctx.page}&pageSize=25`, headers: { ...(req.headers ?? {}), cookie: ctx.cookie } };
+    };
+
+    log(`warming up (3 s of each)…`);
+    const pid = server.child.pid!;
+    // The signed-in baseline: the same session, CSRF and user checks, no queue work.
+    const meRequest: autocannon.Request['setupRequest'] = (req, context) => {
+      const ctx = context as { cookie?: string };
+      if (!ctx.cookie) ctx.cookie = cookies[next++ % cookies.length];
+      return { ...req, path: '/api/auth/me', headers: { ...(req.headers ?? {}), cookie: ctx.cookie } };
+    };
+    await load(`${base}/api/cases`, clients, 3, pid, queueRequest);
+    await load(`${base}/api/health`, clients, 3, pid);
+    log(`measuring: ${clients} connections, ${seconds} s each`);
+    const queue = await load(`${base}/api/cases`, clients, seconds, pid, queueRequest);
+    const healthFig = await load(`${base}/api/health`, clients, seconds, pid);
+    const me = await load(`${base}/api/auth/me`, clients, seconds, pid, meRequest);
+    // What one examiner alone sees (no queueing behind other clients).
+    const alone = await load(`${base}/api/cases`, 1, Math.min(seconds, 5), pid, queueRequest);
+    const logged = (await (async () => {
+      const c = new Client({ connectionString: url });
+      await c.connect();
+      try {
+        return (await c.query(`SELECT count(*)::int AS n FROM access_log WHERE route = 'GET /api/cases'`)).rows[0].n as number;
+      } finally {
+        await c.end();
+      }
+    })());
+
+    console.log(
+      [
+        '',
+        `  bench:queue  ${cases.toLocaleString('en-GB')} cases, ${clients} signed-in clients, ${seconds} s per route, ${os.cpus().length} CPUs`,
+        line(`GET /api/cases?sort=priority (p1–${pages})`, queue),
+        line('GET /api/health', healthFig),
+        line('GET /api/auth/me (signed-in baseline)', me),
+        line('GET /api/cases, one client alone', alone),
+        `  queue p95 / health p95                    ×${(queue.p95 / healthFig.p95).toFixed(2)}   (aim: p95 under 50 ms and within ×3 of health)`,
+        `  access-log lines written for queue views: ${logged.toLocaleString('en-GB')} (one per case shown)`,
+        '',
+      ].join('\n'),
+    );
+  } finally {
+    if (server) await stopProcess(server);
+    if (mail) await stopProcess(mail);
+    fs.rmSync(mailDir, { recursive: true, force: true });
+    const admin = new Client({ connectionString: connectionString(spec, 'postgres') });
+    await admin.connect().then(
+      async () => {
+        await admin.query(`DROP DATABASE IF EXISTS ${DB} WITH (FORCE)`);
+        await admin.end();
+      },
+      () => undefined,
+    );
+    if (!wasRunning) stopCluster(spec, log);
+  }
+}
+
+main().then(
+  () => process.exit(0),
+  (e) => {
+    console.error(`bench:queue failed: ${e instanceof Error ? e.stack : String(e)}`);
+    process.exit(1);
+  },
+);

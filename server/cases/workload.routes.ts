@@ -1,0 +1,12 @@
+import type { AppDeps } from '../app';
+import { allow, secureRouter } from '../auth/access';
+import { getWorkload } from './workload.service';
+
+/** `GET /api/workload` (supervisor): per-examiner counts. */
+export function workloadRoutes(deps: AppDeps) {
+  const r = secureRouter();
+  r.get('/workload', allow('readWorkload'), async (_req, res) => {
+    res.json(await getWorkload(deps.dataSource));
+  });
+  return r;
+}

@@ -1,0 +1,268 @@
+/**
+ * Working a case through the API: claim, every move of DESIGN.md section 2 allowed and
+ * refused, closing with the outcome, who may act, notes (append-only), and assignment.
+ */
+import { CASE_STATES, CASE_TRANSITIONS, type CaseState } from '../../shared/cases';
+import { CaseChangedSchema, CaseDetailSchema, CaseNoteSchema, MOVES_ELSEWHERE } from '../../shared/case-api';
+import { signIn, type SignedIn } from '../helpers/auth';
+import { caseInState, openCaseIds } from '../helpers/cases';
+import { loadScoredBatch } from '../helpers/scored-batch';
+import { createTestContext, type TestContext } from '../helpers/test-app';
+
+jest.setTimeout(120_000);
+
+describe('case workflow through the API', () => {
+  let ctx: TestContext;
+  let examiner: SignedIn;
+  let examiner2: SignedIn;
+  let supervisor: SignedIn;
+  let pool: string[];
+  const take = () => {
+    const id = pool.shift();
+    if (!id) throw new Error('the fixture ran out of open cases');
+    return id;
+  };
+
+  beforeAll(async () => {
+    ctx = await createTestContext();
+    await loadScoredBatch(ctx.dataSource, { seed: 'cases-workflow', returns: 500, plantShare: 0.12 });
+    examiner = await signIn(ctx, 'examiner');
+    examiner2 = await signIn(ctx, 'examiner');
+    supervisor = await signIn(ctx, 'supervisor');
+    pool = await openCaseIds(ctx.dataSource);
+  });
+  afterAll(async () => {
+    await ctx?.close();
+  });
+
+  const post = (who: SignedIn, path: string, body: object = {}) => who.agent.post(path).set('X-CSRF-Token', who.csrf).send(body);
+  const detail = async (who: SignedIn, id: string) => CaseDetailSchema.parse((await who.agent.get(`/api/cases/${id}`)).body);
+  const stateOf = async (id: string): Promise<CaseState> => (await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [id]))[0].state;
+  /** A valid body for a move to `to` (closing needs an outcome, adjusted an amount). */
+  const bodyFor = (to: CaseState) => ({
+    to,
+    ...(['referred', 'closed_no_change', 'closed_adjusted'].includes(to) ? { outcome: 'Records seen; see notes' } : {}),
+    ...(to === 'closed_adjusted' ? { adjustedAmount: '980.50' } : {}),
+  });
+
+  it('has enough open cases for every state and move', () => {
+    expect(pool.length).toBeGreaterThanOrEqual(35);
+  });
+
+  describe('claim', () => {
+    it('gives an open case to the examiner who claims it, once', async () => {
+      const id = take();
+      const res = await post(examiner, `/api/cases/${id}/claim`);
+      expect(res.status).toBe(200);
+      expect(CaseChangedSchema.parse(res.body)).toEqual({ id, state: 'assigned', assignee: examiner.user.id });
+      const again = await post(examiner, `/api/cases/${id}/claim`);
+      expect(again.status).toBe(409);
+      expect(again.body.error).toBe('You already hold this case.');
+      const other = await post(examiner2, `/api/cases/${id}/claim`);
+      expect(other.status).toBe(409);
+      expect(other.body.error).toBe('Only an open case can be claimed; this one is assigned.');
+      const log = await ctx.dataSource.query(`SELECT action, detail FROM access_log WHERE record_id = $1 AND action = 'change'`, [id]);
+      expect(log).toEqual([{ action: 'change', detail: 'claimed' }]);
+    });
+
+    it('answers 404 for a case that does not exist', async () => {
+      expect((await post(examiner, '/api/cases/00000000-0000-4000-8000-000000000000/claim')).status).toBe(404);
+    });
+  });
+
+  describe('every move from every state (POST /api/cases/:id/transition)', () => {
+    // Expected answer of the transition route for each (from, to).
+    const expected = (from: CaseState, to: CaseState) => (CASE_TRANSITIONS[from].includes(to) && !MOVES_ELSEWHERE[to] ? 200 : 409);
+
+    it.each(CASE_STATES.map((s) => [s]))('from %s: each allowed move succeeds, every other is refused with 409', async (from) => {
+      // A supervisor may act on every case, so the answers are the workflow's alone.
+      const refusedCase = await caseInState(ctx.dataSource, take(), from, examiner);
+      for (const to of CASE_STATES.filter((t) => expected(from, t) === 409)) {
+        const res = await post(supervisor, `/api/cases/${refusedCase}/transition`, bodyFor(to));
+        expect({ from, to, status: res.status }).toEqual({ from, to, status: 409 });
+        expect(await stateOf(refusedCase)).toBe(from);
+        if (CASE_TRANSITIONS[from].includes(to)) {
+          // An allowed move that belongs to another action names that action.
+          expect(res.body.error).toBe(MOVES_ELSEWHERE[to]);
+        } else if (CASE_TRANSITIONS[from].length === 0) {
+          expect(res.body.error).toMatch(/It is finished; nothing more can change\.$/);
+        } else {
+          expect(res.body.error).toMatch(/^A case that is .+ cannot move to .+\. From here it can move to: .+\.$/);
+        }
+      }
+      for (const to of CASE_STATES.filter((t) => expected(from, t) === 200)) {
+        const id = await caseInState(ctx.dataSource, take(), from, examiner);
+        const res = await post(supervisor, `/api/cases/${id}/transition`, bodyFor(to));
+        expect({ from, to, status: res.status }).toEqual({ from, to, status: 200 });
+        expect(CaseChangedSchema.parse(res.body)).toMatchObject({ id, state: to });
+        expect(await stateOf(id)).toBe(to);
+        const d = await detail(supervisor, id);
+        expect(d.history[d.history.length - 1]).toMatchObject({ kind: 'transition', fromState: from, toState: to, actorName: 'Test supervisor' });
+      }
+    });
+
+    it('covers all 49 (from, to) pairs: 7 allowed through this route, 42 refused', () => {
+      const pairs = CASE_STATES.flatMap((from) => CASE_STATES.map((to) => expected(from, to)));
+      expect(pairs.filter((x) => x === 200)).toHaveLength(7);
+      expect(pairs.filter((x) => x === 409)).toHaveLength(42);
+    });
+
+    it('explains a refused move in words', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'assigned', examiner);
+      const res = await post(examiner, `/api/cases/${id}/transition`, bodyFor('closed_no_change'));
+      expect(res.status).toBe(409);
+      expect(res.body.error).toBe('A case that is assigned cannot move to closed, no change. From here it can move to: in review, open.');
+      const done = await caseInState(ctx.dataSource, take(), 'closed_no_change', examiner);
+      expect((await post(examiner, `/api/cases/${done}/transition`, { to: 'in_review' })).body.error).toBe('A case that is closed, no change cannot move to in review. It is finished; nothing more can change.');
+      const review = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
+      expect((await post(examiner, `/api/cases/${review}/transition`, { to: 'awaiting_reply' })).body.error).toMatch(/^A case waits for a reply once a document request is sent/);
+    });
+  });
+
+  describe('closing records the outcome', () => {
+    it('closes with no change, keeping the outcome and no amount', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
+      const res = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_no_change', outcome: 'Bank statements match every receipt line.' });
+      expect(res.status).toBe(200);
+      const d = await detail(examiner, id);
+      expect(d).toMatchObject({ state: 'closed_no_change', outcome: 'Bank statements match every receipt line.', adjustedAmount: null });
+      expect(d.closedAt).not.toBeNull();
+      expect(d.actions).toMatchObject({ transitions: [], claim: false, assign: false });
+      expect(d.history[d.history.length - 1].summary).toBe('Test examiner moved the case from in review to closed, no change: Bank statements match every receipt line.');
+    });
+
+    it('closes as adjusted with the adjusted amount (numeric, exact)', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'awaiting_reply', examiner);
+      const res = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_adjusted', outcome: 'Vehicle costs were private use.', adjustedAmount: '1234.05' });
+      expect(res.status).toBe(200);
+      const row = (await ctx.dataSource.query(`SELECT adjusted_amount, outcome, closed_at IS NOT NULL AS closed FROM exam_case WHERE id = $1`, [id]))[0];
+      expect(row).toEqual({ adjusted_amount: '1234.05', outcome: 'Vehicle costs were private use.', closed: true });
+      const d = await detail(examiner, id);
+      expect(d.history[d.history.length - 1].summary).toBe('Test examiner moved the case from awaiting reply to closed, adjusted, adjusted amount 1234.05: Vehicle costs were private use.');
+    });
+
+    it('refuses a close without its facts (422, each named)', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
+      const noOutcome = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_no_change' });
+      expect(noOutcome.status).toBe(422);
+      expect(noOutcome.body.issues).toEqual([{ path: 'outcome', message: 'Say in a sentence what was found or why the case moves on' }]);
+      const noAmount = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_adjusted', outcome: 'Adjusted' });
+      expect(noAmount.body.issues).toEqual([{ path: 'adjustedAmount', message: 'Closing as adjusted needs the adjusted amount' }]);
+      const badAmount = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_adjusted', outcome: 'Adjusted', adjustedAmount: '12,50' });
+      expect(badAmount.status).toBe(422);
+      expect(badAmount.body.issues[0].path).toBe('adjustedAmount');
+      const strayAmount = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_no_change', outcome: 'Fine', adjustedAmount: '10.00' });
+      expect(strayAmount.body.issues).toEqual([{ path: 'adjustedAmount', message: 'Only a case closed as adjusted has an adjusted amount' }]);
+      expect((await post(examiner, `/api/cases/${id}/transition`, { to: 'shelved' })).status).toBe(422);
+      expect(await stateOf(id)).toBe('in_review');
+    });
+  });
+
+  describe('who may act', () => {
+    it('lets an examiner act only on their own cases (403 otherwise), a supervisor on any', async () => {
+      const open = take();
+      const unclaimed = await post(examiner, `/api/cases/${open}/transition`, { to: 'in_review' });
+      expect(unclaimed.status).toBe(403);
+      expect(unclaimed.body.error).toBe('Claim this case before working on it.');
+      const id = await caseInState(ctx.dataSource, take(), 'assigned', examiner);
+      const theirs = await post(examiner2, `/api/cases/${id}/transition`, { to: 'in_review' });
+      expect(theirs.status).toBe(403);
+      expect(theirs.body.error).toBe('This case is assigned to another examiner.');
+      expect((await post(examiner2, `/api/cases/${id}/notes`, { text: 'Not mine' })).status).toBe(403);
+      expect((await post(examiner, `/api/cases/${id}/transition`, { to: 'in_review' })).status).toBe(200);
+      expect((await post(supervisor, `/api/cases/${id}/transition`, { to: 'closed_no_change', outcome: 'Closed by the supervisor' })).status).toBe(200);
+    });
+
+    it('releases an assigned case back to the queue, without an assignee', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'assigned', examiner);
+      const res = await post(examiner, `/api/cases/${id}/transition`, { to: 'open' });
+      expect(CaseChangedSchema.parse(res.body)).toEqual({ id, state: 'open', assignee: null });
+      expect((await post(examiner2, `/api/cases/${id}/claim`)).status).toBe(200);
+    });
+  });
+
+  describe('notes (POST /api/cases/:id/notes)', () => {
+    it('appends time-stamped notes with their author, oldest first, logged as changes', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
+      const t0 = Date.now();
+      const a = await post(examiner, `/api/cases/${id}/notes`, { text: '  Phoned the preparer; records promised for Friday.  ' });
+      expect(a.status).toBe(201);
+      const na = CaseNoteSchema.parse(a.body);
+      expect(na).toMatchObject({ authorId: examiner.user.id, authorName: 'Test examiner', text: 'Phoned the preparer; records promised for Friday.' });
+      expect(Math.abs(Date.parse(na.at) - t0)).toBeLessThan(60_000);
+      const b = await post(supervisor, `/api/cases/${id}/notes`, { text: 'Check the vehicle log against fuel receipts.' });
+      expect(b.status).toBe(201);
+      const d = await detail(examiner2, id);
+      expect(d.notes.map((n) => [n.authorName, n.text])).toEqual([
+        ['Test examiner', 'Phoned the preparer; records promised for Friday.'],
+        ['Test supervisor', 'Check the vehicle log against fuel receipts.'],
+      ]);
+      const log = await ctx.dataSource.query(`SELECT user_id, detail FROM access_log WHERE record_id = $1 AND route LIKE '%/notes' ORDER BY id`, [id]);
+      expect(log).toEqual([
+        { user_id: examiner.user.id, detail: `note ${na.id} added` },
+        { user_id: supervisor.user.id, detail: `note ${CaseNoteSchema.parse(b.body).id} added` },
+      ]);
+    });
+
+    it('allows a note on a finished case (a later fact), by its examiner', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'closed_no_change', examiner);
+      expect((await post(examiner, `/api/cases/${id}/notes`, { text: 'Taxpayer wrote to thank the office.' })).status).toBe(201);
+    });
+
+    it('refuses an empty or oversized note (422) and a note on an unclaimed case (403)', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'assigned', examiner);
+      const empty = await post(examiner, `/api/cases/${id}/notes`, { text: '   ' });
+      expect(empty.status).toBe(422);
+      expect(empty.body.issues).toEqual([{ path: 'text', message: 'Write the note first' }]);
+      expect((await post(examiner, `/api/cases/${id}/notes`, { text: 'x'.repeat(10_001) })).body.issues[0].message).toBe('Keep a note under 10,000 characters');
+      expect((await post(examiner, `/api/cases/${take()}/notes`, { text: 'Before claiming' })).status).toBe(403);
+    });
+
+    it('cannot be changed or removed, even in the database', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'assigned', examiner);
+      const n = CaseNoteSchema.parse((await post(examiner, `/api/cases/${id}/notes`, { text: 'First thoughts.' })).body);
+      await expect(ctx.dataSource.query(`UPDATE case_note SET text = 'Rewritten' WHERE id = $1`, [n.id])).rejects.toThrow(/append-only/);
+      await expect(ctx.dataSource.query(`DELETE FROM case_note WHERE id = $1`, [n.id])).rejects.toThrow(/append-only/);
+      await expect(ctx.dataSource.query(`TRUNCATE case_note`)).rejects.toThrow(/append-only/);
+      expect((await detail(examiner, id)).notes.map((x) => x.text)).toEqual(['First thoughts.']);
+    });
+  });
+
+  describe('assignment (POST /api/cases/:id/assign)', () => {
+    it('lets a supervisor give an open case and move it on, with the history kept and shown', async () => {
+      const id = take();
+      const a = await post(supervisor, `/api/cases/${id}/assign`, { assigneeId: examiner.user.id });
+      expect(CaseChangedSchema.parse(a.body)).toEqual({ id, state: 'assigned', assignee: examiner.user.id });
+      const b = await post(supervisor, `/api/cases/${id}/assign`, { assigneeId: examiner2.user.id });
+      expect(b.status).toBe(200);
+      const same = await post(supervisor, `/api/cases/${id}/assign`, { assigneeId: examiner2.user.id });
+      expect(same.status).toBe(409);
+      expect(same.body.error).toBe('The case is already with Test examiner.');
+      const d = await detail(examiner2, id);
+      expect(d.assignee).toEqual({ id: examiner2.user.id, name: 'Test examiner' });
+      expect(d.history.map((h) => [h.kind, h.summary])).toEqual([
+        ['opened', expect.stringMatching(/^Opened by scoring/)],
+        ['assigned', 'Test supervisor assigned the case to Test examiner'],
+        ['reassigned', 'Test supervisor reassigned the case from Test examiner to Test examiner'],
+      ]);
+      const events = await ctx.dataSource.query(`SELECT kind, detail FROM case_event WHERE case_id = $1 AND kind LIKE '%assigned' ORDER BY id`, [id]);
+      expect(events).toEqual([
+        { kind: 'assigned', detail: { from: null, to: examiner.user.id } },
+        { kind: 'reassigned', detail: { from: examiner.user.id, to: examiner2.user.id } },
+      ]);
+    });
+
+    it('refuses a case already in review (409), a non-examiner (422), an examiner caller (403)', async () => {
+      const id = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
+      const busy = await post(supervisor, `/api/cases/${id}/assign`, { assigneeId: examiner2.user.id });
+      expect(busy.status).toBe(409);
+      expect(busy.body.error).toBe('Only open or assigned cases can be given to an examiner; this one is in review.');
+      const open = take();
+      const toSup = await post(supervisor, `/api/cases/${open}/assign`, { assigneeId: supervisor.user.id });
+      expect(toSup.status).toBe(422);
+      expect(toSup.body.error).toBe('Assign cases to an active examiner.');
+      expect((await post(supervisor, `/api/cases/${open}/assign`, { assigneeId: 'nobody' })).body.issues).toEqual([{ path: 'assigneeId', message: 'Choose an examiner' }]);
+      expect((await post(examiner, `/api/cases/${open}/assign`, { assigneeId: examiner.user.id })).status).toBe(403);
+    });
+  });
+});
