@@ -90,7 +90,10 @@ async function main(): Promise<number> {
       PLUMBLINE_TEST_MAIL_WEB_PORT: String(mailWebPort),
     };
     const jest = path.join(projectRoot, 'node_modules', '.bin', 'jest');
-    const args = ['--maxWorkers=2', ...(process.env.CI ? ['--ci'] : []), ...jestArgs];
+    // Results also go to a JSON file, so the run can end on one plain "N passed, N failed" line.
+    const resultsFile = path.join(projectRoot, '.data', `jest-results-${process.pid}.json`);
+    fs.mkdirSync(path.dirname(resultsFile), { recursive: true });
+    const args = ['--maxWorkers=2', ...(process.env.CI ? ['--ci'] : []), '--json', `--outputFile=${resultsFile}`, ...jestArgs];
     log(`jest ${args.join(' ')}`);
     const code: number = await new Promise((resolve) => {
       const child = spawn(jest, args, { cwd: projectRoot, stdio: 'inherit', env });
@@ -100,6 +103,12 @@ async function main(): Promise<number> {
       child.on('exit', (c) => resolve(c ?? 1));
     });
     log(`finished in ${Math.round((Date.now() - t0) / 1000)} s with exit code ${code}`);
+    if (fs.existsSync(resultsFile)) {
+      const r = JSON.parse(fs.readFileSync(resultsFile, 'utf8')) as { numPassedTests: number; numFailedTests: number; numPendingTests: number; numRuntimeErrorTestSuites: number };
+      fs.rmSync(resultsFile, { force: true });
+      const failed = r.numFailedTests + r.numRuntimeErrorTestSuites;
+      summary = `tests: ${r.numPassedTests} passed, ${failed} failed${r.numPendingTests ? `, ${r.numPendingTests} skipped` : ''}`;
+    }
     return code;
   } catch (e) {
     console.error(`test   | ${e instanceof Error ? e.message : String(e)}`);
@@ -126,4 +135,10 @@ async function main(): Promise<number> {
   }
 }
 
-main().then((code) => process.exit(code));
+/** The run's last line (printed after the services stop, so it is the closing line). */
+let summary = '';
+
+main().then((code) => {
+  if (summary) console.log(summary);
+  process.exit(code);
+});

@@ -8,10 +8,18 @@ import { AccessLog } from './access-log.entity';
 /** Fields of a new access-log line. */
 export type NewAccessLog = Omit<AccessLog, 'id' | 'at'>;
 
-/** Appends lines (one statement for many, e.g. a page of cases viewed). */
+/**
+ * Appends lines in one statement (a page of the queue writes 25). Plain SQL over unnest:
+ * TypeORM's insert builder spent about 1.6 ms of CPU per 25 rows, more than the page query.
+ */
 export async function insertAccessLogs(db: DataSource | EntityManager, rows: NewAccessLog[]): Promise<void> {
   if (rows.length === 0) return;
-  await db.createQueryBuilder().insert().into(AccessLog).values(rows).execute();
+  const col = <K extends keyof NewAccessLog>(k: K) => rows.map((r) => r[k]);
+  await db.query(
+    `INSERT INTO access_log (user_id, username, role, action, route, record_type, record_id, taxpayer_id, taxpayer_label, detail)
+     SELECT * FROM unnest($1::uuid[], $2::text[], $3::text[], $4::text[], $5::text[], $6::text[], $7::text[], $8::uuid[], $9::text[], $10::text[])`,
+    [col('userId'), col('username'), col('role'), col('action'), col('route'), col('recordType'), col('recordId'), col('taxpayerId'), col('taxpayerLabel'), col('detail')],
+  );
 }
 
 /** One filtered page, newest first. */
