@@ -284,23 +284,19 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
   trace('score', t);
   t = performance.now();
   return ds.transaction(async (m) => {
+    // One JSON document for the slice: an array parameter of 500 JSON texts would be quoted and
+    // escaped into a PostgreSQL array literal, which cost more than the insert itself.
     const inserted: { id: string; return_id: string }[] = await m.query(
       `INSERT INTO return_score (return_id, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown, failure_reason)
-       SELECT u.return_id, $1, $2, u.status, u.risk_score, u.stake / 100.0, u.priority, u.breakdown, u.reason
-         FROM unnest($3::uuid[], $4::text[], $5::numeric[], $6::bigint[], $7::numeric[], $8::jsonb[], $9::text[])
-              AS u(return_id, status, risk_score, stake, priority, breakdown, reason)
+       SELECT (e->>'r')::uuid, $1, $2, e->>'s', (e->>'rs')::numeric, (e->>'st')::numeric / 100, (e->>'p')::numeric,
+              nullif((e->'b')::jsonb, 'null'::jsonb), e->>'f'
+         FROM json_array_elements($3::json) AS e
        ON CONFLICT (return_id, profile_version) DO NOTHING
        RETURNING id, return_id`,
       [
         batchId,
         version,
-        outcomes.map((o) => o.returnId),
-        outcomes.map((o) => o.status),
-        outcomes.map((o) => o.riskScore),
-        outcomes.map((o) => o.stakeCents),
-        outcomes.map((o) => o.priority),
-        outcomes.map((o) => (o.breakdown ? JSON.stringify(o.breakdown) : null)),
-        outcomes.map((o) => o.reason),
+        JSON.stringify(outcomes.map((o) => ({ r: o.returnId, s: o.status, rs: o.riskScore, st: o.stakeCents, p: o.priority, b: o.breakdown, f: o.reason }))),
       ],
     );
     const scoreIdOf = new Map(inserted.map((r) => [r.return_id, r.id]));

@@ -1,7 +1,7 @@
 /**
  * Expected digit proportions under Benford's law, and the names of the four digit tests.
  *
- * Every formula here is in /work/shared/METHODS.md, "Expected proportions". The tables are
+ * Every formula here is in the project's METHODS.md (shared design notes), "Expected proportions". The tables are
  * computed from the formulas (not typed in) so they carry full double precision; the unit
  * tests compare them with the published 5-decimal tables.
  */
