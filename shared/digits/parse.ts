@@ -321,19 +321,8 @@ export function findAmountErrors(
   return problems;
 }
 
-/**
- * Format signed integer cents as a decimal string with 2 decimals ("-1234.50").
- *
- * @param cents signed integer cents, |cents| < 2^53
- * @returns the amount as text
- */
-export function formatCents(cents: number): string {
-  const neg = cents < 0;
-  const a = neg ? -cents : cents;
-  const whole = Math.floor(a / 100);
-  const frac = a - whole * 100;
-  return `${neg ? '-' : ''}${whole}.${frac < 10 ? '0' : ''}${frac}`;
-}
+/** Signed integer cents as decimal text with 2 decimals ("-1234.50"): the intake's own formatter. */
+export { formatCents } from '../returns/money';
 
 function kindOf(value: unknown): string {
   if (value === null) return 'null';
