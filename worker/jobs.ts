@@ -24,9 +24,13 @@ export async function registerJobs(deps: WorkerDeps): Promise<void> {
     const { runId, chunks } = await startScoringRun(deps.dataSource, deps.boss, job.data.batchId, job.data.profileVersion);
     log(`batch ${job.data.batchId}: run ${runId}, ${chunks} slice${chunks === 1 ? '' : 's'} queued`);
   });
-  await deps.boss.work<ChunkJob>(QUEUES.scoreChunk, { batchSize: 1, pollingIntervalSeconds: 0.5 }, async ([job]) => {
+  let chunkWorker = '';
+  chunkWorker = await deps.boss.work<ChunkJob>(QUEUES.scoreChunk, { batchSize: 1, pollingIntervalSeconds: 0.5 }, async ([job]) => {
     const t0 = Date.now();
     const r = await scoreChunk(deps.dataSource, job.data);
     if (!r.skipped) log(`run ${job.data.runId}: scored ${r.scored}${r.failed ? `, ${r.failed} could not be scored` : ''} in ${Date.now() - t0} ms`);
+    // pg-boss waits out the rest of its polling interval after every job; a batch has more
+    // slices waiting, so ask for the next one at once (an empty fetch then waits as usual).
+    if (chunkWorker) deps.boss.notifyWorker(chunkWorker);
   });
 }
