@@ -32,8 +32,9 @@ export function authRoutes(deps: AppDeps & { throttle: LoginThrottle; passport: 
   r.post('/auth/login', publicAccess, validate(LoginRequestSchema), async (req, res) => {
     const { username, password } = req.body as { username: string; password: string };
     const address = req.ip ?? 'unknown';
-    const blocked = deps.throttle.check(username, address);
-    if (blocked) {
+    const attempt = deps.throttle.begin(username, address);
+    if ('scope' in attempt) {
+      const blocked = attempt;
       const minutes = Math.ceil(blocked.retryAfterSeconds / 60);
       res.setHeader('Retry-After', String(blocked.retryAfterSeconds));
       throw new HttpError(
@@ -45,11 +46,10 @@ export function authRoutes(deps: AppDeps & { throttle: LoginThrottle; passport: 
     }
     const check = await verifyCredentials(ds, username, password);
     if (!check.ok) {
-      deps.throttle.fail(username, address);
       await recordAccess(ds, null, { action: 'sign-in-refused', route: 'POST /api/auth/login', detail: `user name "${username.slice(0, 64)}": ${check.reason === 'inactive' ? 'account deactivated' : 'wrong user name or password'}` });
       throw new HttpError(401, check.reason === 'inactive' ? 'This account is deactivated. Ask an administrator.' : 'The user name or password is wrong.');
     }
-    deps.throttle.succeed(username);
+    deps.throttle.succeed(username, address, attempt.at);
     await logIn(req, check.user);
     await recordAccess(ds, check.user, { action: 'sign-in', route: 'POST /api/auth/login', recordType: 'user', recordId: check.user.id });
     res.json(answer(req));

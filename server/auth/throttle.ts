@@ -46,14 +46,28 @@ export class LoginThrottle {
     return Math.max(1, Math.ceil((list[0] + this.limits.windowMs - this.now()) / 1000));
   }
 
-  /** Counts one failed attempt. */
-  fail(username: string, address: string): void {
+  /**
+   * Checks and, when allowed, counts the attempt as a failure at once, in one synchronous
+   * step: a burst of parallel attempts cannot all pass the check before any is counted
+   * (the password check takes ~60 ms). A success takes its count back with {@link succeed}.
+   *
+   * @returns null with the attempt counted, or which limit holds and for how long
+   */
+  begin(username: string, address: string): { scope: 'account' | 'address'; retryAfterSeconds: number } | { at: number } {
+    const blocked = this.check(username, address);
+    if (blocked) return blocked;
     const t = this.now();
     for (const key of [`u:${username.toLowerCase()}`, `a:${address}`]) this.failures.set(key, [...this.recent(key), t]);
+    return { at: t };
   }
 
-  /** A successful sign-in clears the account's count (not the address's). */
-  succeed(username: string): void {
+  /** A successful sign-in clears the account's count and takes back this attempt from the address's. */
+  succeed(username: string, address: string, at: number): void {
     this.failures.delete(`u:${username.toLowerCase()}`);
+    const list = this.failures.get(`a:${address}`);
+    if (list) {
+      const i = list.lastIndexOf(at);
+      if (i >= 0) list.splice(i, 1);
+    }
   }
 }

@@ -357,7 +357,8 @@ function describeFilter(f: CaseFilter, q: CaseListQuery): string {
     f.batch ? `batch ${f.batch}` : null,
     f.taxYear ? `tax year ${f.taxYear}` : null,
     f.activity ? `activity ${f.activity}` : null,
-    f.q ? `search "${f.q}"` : null,
+    // A full TIN in a log line would show the administrator taxpayer data: mask it.
+    f.q ? `search "${/^\d{9}$/.test(f.q) ? maskTin(f.q) : f.q}"` : null,
     `sorted by ${q.sort}`,
   ];
   return parts.filter(Boolean).join(', ');

@@ -5,7 +5,7 @@
  * shown to staff.
  */
 import { createHash } from 'node:crypto';
-import { REPLY_FILE_TYPES, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, type ReplyFileType } from '../../shared/letters';
+import { REPLY_FILE_TYPES, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES, type ReplyFileType } from '../../shared/letters';
 import { HttpError } from '../http/errors';
 
 /** A received file, before checks. */
@@ -57,6 +57,9 @@ export function cleanFileName(original: string, type: ReplyFileType, index: numb
 export function checkReplyFiles(files: readonly IncomingFile[]): CheckedFile[] {
   if (files.length === 0) throw new HttpError(422, 'Choose at least one file to send.');
   if (files.length > REPLY_MAX_FILES) throw new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`);
+  // The declared Content-Length is checked before reading, but a chunked upload has none.
+  const total = files.reduce((s, f) => s + f.bytes.length, 0);
+  if (total > REPLY_MAX_TOTAL_BYTES) throw new HttpError(413, `The files add up to more than ${REPLY_MAX_TOTAL_BYTES / 1024 / 1024} MB; send them in smaller parts or fewer at a time.`);
   const problems: string[] = [];
   const out: CheckedFile[] = [];
   files.forEach((f, i) => {

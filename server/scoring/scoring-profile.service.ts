@@ -52,6 +52,8 @@ export async function addProfile(ds: DataSource, actor: SessionUser, input: NewP
 /** Makes an existing version the one new batches are scored with. */
 export async function activateProfile(ds: DataSource, actor: SessionUser, version: number): Promise<void> {
   await ds.transaction(async (m) => {
+    // Same lock as addProfile: two activations at once run one after the other, never a 500.
+    await m.query(`LOCK TABLE scoring_profile IN SHARE ROW EXCLUSIVE MODE`);
     const found = await m.query(`SELECT 1 FROM scoring_profile WHERE version = $1`, [version]);
     if (!found.length) throw new HttpError(404, `There is no scoring profile version ${version}.`);
     await m.query(`UPDATE scoring_profile SET active = false WHERE active AND version <> $1`, [version]);

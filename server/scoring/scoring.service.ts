@@ -328,6 +328,8 @@ async function openCases(m: EntityManager, batchId: string, version: number, sel
      ON CONFLICT (return_id) DO UPDATE
        SET score_id = EXCLUDED.score_id, risk_score = EXCLUDED.risk_score,
            amount_at_stake = EXCLUDED.amount_at_stake, priority = EXCLUDED.priority, updated_at = now()
+       -- A finished case keeps the score it was decided on (and factor performance reads it).
+       WHERE exam_case.state NOT IN ('referred', 'closed_no_change', 'closed_adjusted')
      RETURNING id, (xmax = 0) AS inserted`,
     [
       batchId,

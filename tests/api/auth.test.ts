@@ -115,6 +115,16 @@ describe('sign-in throttling', () => {
     expect((await request(ctx.app).post('/api/auth/login').send({ username: 'locked', password })).status).toBe(200);
   });
 
+  it('counts a burst of parallel attempts before any password is checked', async () => {
+    now += 120_000;
+    await createUser(ctx, 'clerk', 'burst');
+    const answers = await Promise.all(Array.from({ length: 10 }, () => request(ctx.app).post('/api/auth/login').set('X-Forwarded-For', '10.9.9.9').send({ username: 'burst', password: 'wrong-password' })));
+    const statuses = answers.map((a) => a.status).sort();
+    // Only as many guesses as the account limit (3 here) reach the password check.
+    expect(statuses.filter((s) => s === 401)).toHaveLength(3);
+    expect(statuses.filter((s) => s === 429)).toHaveLength(7);
+  });
+
   it('limits failures per address across accounts', async () => {
     now += 120_000;
     for (let i = 0; i < 5; i++) await request(ctx.app).post('/api/auth/login').send({ username: `guess${i}`, password: 'wrong-password' });

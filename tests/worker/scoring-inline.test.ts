@@ -49,8 +49,12 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
     const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-3', returns: 80, plantShare: 0.1 });
     await scoreBatchNow(ctx.dataSource, b.batchId);
     const before = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 1 ORDER BY return_id`, [b.batchId]);
+    // One case is closed before the re-score: it must keep the score it was decided on.
+    const closed = (await ctx.dataSource.query(`UPDATE exam_case SET state = 'closed_no_change' WHERE id = (SELECT id FROM exam_case WHERE batch_id = $1 LIMIT 1) RETURNING id, score_id`, [b.batchId]))[0][0];
     await ctx.dataSource.query(`INSERT INTO scoring_profile (version, settings, note) SELECT 2, jsonb_set(settings, '{weights,cashHeavy}', '40'), 'test' FROM scoring_profile WHERE version = 1`);
     await scoreBatchNow(ctx.dataSource, b.batchId, 2);
+    const kept = (await ctx.dataSource.query(`SELECT score_id FROM exam_case WHERE id = $1`, [closed.id]))[0];
+    expect(kept.score_id).toBe(closed.score_id);
     const after = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 1 ORDER BY return_id`, [b.batchId]);
     expect(after).toEqual(before);
     const v2 = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM return_score WHERE batch_id = $1 AND profile_version = 2`, [b.batchId]);
