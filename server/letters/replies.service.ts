@@ -84,7 +84,14 @@ export async function receiveReply(ds: DataSource, token: string, files: Incomin
     // the workflow allows (awaiting reply → in review), checked against the same table.
     const c = await lockCase(m, r.caseId);
     const detail = { documentRequestId: r.id, letterId: r.letterId, files: checked.length };
-    if (c.state === 'awaiting_reply' && canTransition(c.state, 'in_review')) {
+    // Only the newest request still waiting moves the case: a late answer to an earlier letter
+    // is kept with the case but does not end the wait for a later one.
+    const newer = await m.query(
+      `SELECT 1 FROM document_request WHERE case_id = $1 AND id <> $2 AND state = 'sent'
+          AND created_at > (SELECT created_at FROM document_request WHERE id = $2) LIMIT 1`,
+      [r.caseId, r.id],
+    );
+    if (c.state === 'awaiting_reply' && newer.length === 0 && canTransition(c.state, 'in_review')) {
       c.state = 'in_review';
       c.updatedAt = new Date();
       // The reply due date was the case's due date while it waited; it is met.
@@ -92,8 +99,8 @@ export async function receiveReply(ds: DataSource, token: string, files: Incomin
       await m.getRepository(ExamCase).save(c);
       await addCaseEvent(m, c.id, null, 'reply-received', detail, 'awaiting_reply', 'in_review');
     } else {
-      // The case moved on (referred, closed, or back in review by hand): keep the reply with
-      // it, but leave its state alone.
+      // The case moved on (referred, closed, back in review by hand) or waits on a newer
+      // letter: keep the reply with it, but leave its state alone.
       await addCaseEvent(m, c.id, null, 'reply-received', detail);
     }
     await recordAccess(m, null, {

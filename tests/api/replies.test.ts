@@ -237,4 +237,19 @@ describe('reply links', () => {
     const ev = await ctx.dataSource.query(`SELECT actor_id, from_state, to_state FROM case_event WHERE case_id = $1 AND kind = 'reply-received'`, [caseId]);
     expect(ev).toEqual([{ actor_id: null, from_state: null, to_state: null }]);
   });
+  it('an answer to an earlier letter does not end the wait for a newer one', async () => {
+    const first = await requestSent();
+    const back = await examiner.agent.post(`/api/cases/${first.caseId}/transition`).set('X-CSRF-Token', examiner.csrf).send({ to: 'in_review' });
+    expect(back.status).toBe(200);
+    const to = uniqueAddress();
+    const second = await examiner.agent.post(`/api/cases/${first.caseId}/document-requests`).set('X-CSRF-Token', examiner.csrf).send({ items: ['Bank statements for March 2024'], dueDate: dueIn(30), email: to });
+    expect(second.status).toBe(201);
+    const token2 = /\/reply\/([A-Za-z0-9_-]{43})/.exec((await waitForMail(to)).text ?? '')![1];
+    const state = async () => (await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [first.caseId]))[0].state;
+
+    expect((await upload(first.token, [{ name: 'old-request.pdf', bytes: PDF, type: 'application/pdf' }])).status).toBe(201);
+    expect(await state()).toBe('awaiting_reply');
+    expect((await upload(token2, [{ name: 'march.pdf', bytes: PDF, type: 'application/pdf' }])).status).toBe(201);
+    expect(await state()).toBe('in_review');
+  });
 });
