@@ -1,13 +1,13 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { Redirect } from 'expo-router';
-import { Controller, useForm } from 'react-hook-form';
+import { useForm } from 'react-hook-form';
 import { ScrollView, View } from 'react-native';
 import { useSession, useSignIn } from '../../../hooks/use-session';
 import { LoginRequestSchema, type LoginRequest } from '../../../shared/auth';
 import { colours, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
-import { Field } from '../../ui/field';
+import { FormField } from '../../ui/form-field';
 import { PlumbMark } from '../../ui/plumb-mark';
 import { Txt } from '../../ui/text';
 import { START_PATH } from '../nav/start-path';
@@ -39,39 +39,23 @@ export function SignInScreen() {
           <Txt variant="title" bold>
             Sign in
           </Txt>
-          <Controller
+          <FormField
             control={form.control}
             name="username"
-            render={({ field, fieldState }) => (
-              <Field
-                testID="sign-in-username"
-                label="User name"
-                autoCapitalize="none"
-                autoComplete="username"
-                value={field.value}
-                onChangeText={field.onChange}
-                onBlur={field.onBlur}
-                error={fieldState.error?.message}
-                onSubmitEditing={submit}
-              />
-            )}
+            testID="sign-in-username"
+            label="User name"
+            autoCapitalize="none"
+            autoComplete="username"
+            onSubmitEditing={submit}
           />
-          <Controller
+          <FormField
             control={form.control}
             name="password"
-            render={({ field, fieldState }) => (
-              <Field
-                testID="sign-in-password"
-                label="Password"
-                secureTextEntry
-                autoComplete="current-password"
-                value={field.value}
-                onChangeText={field.onChange}
-                onBlur={field.onBlur}
-                error={fieldState.error?.message}
-                onSubmitEditing={submit}
-              />
-            )}
+            testID="sign-in-password"
+            label="Password"
+            secureTextEntry
+            autoComplete="current-password"
+            onSubmitEditing={submit}
           />
           {signIn.error && (
             <Txt tone="alert" testID="sign-in-error" accessibilityRole="alert">

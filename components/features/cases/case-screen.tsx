@@ -1,7 +1,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { Link, useLocalSearchParams } from 'expo-router';
 import { useState, type ReactNode } from 'react';
-import { Controller, useForm } from 'react-hook-form';
+import { useForm } from 'react-hook-form';
 import { Pressable, View } from 'react-native';
 import type { CaseDetail } from '../../../shared/case-api';
 import { CASE_STATE_LABELS, NoteRequestSchema, TransitionRequestSchema, type CaseState, type NoteRequest, type TransitionRequest } from '../../../shared/cases';
@@ -12,7 +12,7 @@ import { colours, radius, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { ChoiceRow } from '../../ui/choice-row';
-import { Field } from '../../ui/field';
+import { FormField } from '../../ui/form-field';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
 import { LettersPanel } from '../letters/letters-panel';
@@ -342,40 +342,25 @@ function CloseForm({ caseId, to, onDone, onCancel }: { caseId: string; to: 'clos
   return (
     <View style={{ gap: space.md, paddingTop: space.md, borderTopWidth: 1, borderTopColor: colours.line }} testID="close-form">
       <Txt bold>{to === 'closed_adjusted' ? 'Close with an adjustment' : 'Close with no change'}</Txt>
-      <Controller
+      <FormField
         control={form.control}
         name="outcome"
-        render={({ field, fieldState }) => (
-          <Field
-            testID="close-outcome"
-            label="What was found"
-            multiline
-            numberOfLines={3}
-            style={{ minHeight: 76, textAlignVertical: 'top' }}
-            value={field.value ?? ''}
-            onChangeText={field.onChange}
-            onBlur={field.onBlur}
-            error={fieldState.error?.message}
-          />
-        )}
+        testID="close-outcome"
+        label="What was found"
+        multiline
+        numberOfLines={3}
+        style={{ minHeight: 76, textAlignVertical: 'top' }}
       />
       {to === 'closed_adjusted' && (
-        <Controller
+        <FormField
           control={form.control}
           name="adjustedAmount"
-          render={({ field, fieldState }) => (
-            <Field
-              testID="close-amount"
-              label="Adjusted amount of tax"
-              placeholder="e.g. 1250.00"
-              keyboardType="decimal-pad"
-              style={{ fontFamily: 'PlexMono' }}
-              value={field.value ?? ''}
-              onChangeText={(v) => field.onChange(v.trim() === '' ? undefined : v.trim())}
-              onBlur={field.onBlur}
-              error={fieldState.error?.message}
-            />
-          )}
+          toValue={(v) => (v.trim() === '' ? undefined : v.trim())}
+          testID="close-amount"
+          label="Adjusted amount of tax"
+          placeholder="e.g. 1250.00"
+          keyboardType="decimal-pad"
+          style={{ fontFamily: 'PlexMono' }}
         />
       )}
       {move.error && (
@@ -512,23 +497,15 @@ function Notes({ d }: { d: CaseDetail }) {
       ))}
       {d.actions.note ? (
         <View style={{ gap: space.sm }}>
-          <Controller
+          <FormField
             control={form.control}
             name="text"
-            render={({ field, fieldState }) => (
-              <Field
-                testID="note-text"
-                label="Add a note"
-                multiline
-                numberOfLines={3}
-                style={{ minHeight: 76, textAlignVertical: 'top' }}
-                value={field.value}
-                onChangeText={field.onChange}
-                onBlur={field.onBlur}
-                error={fieldState.error?.message}
-                hint="Notes are kept with the case as written: they cannot be edited or removed later."
-              />
-            )}
+            testID="note-text"
+            label="Add a note"
+            multiline
+            numberOfLines={3}
+            style={{ minHeight: 76, textAlignVertical: 'top' }}
+            hint="Notes are kept with the case as written: they cannot be edited or removed later."
           />
           {add.error && (
             <Txt tone="alert" accessibilityRole="alert">

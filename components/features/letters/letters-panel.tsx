@@ -30,6 +30,7 @@ import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { ChoiceRow } from '../../ui/choice-row';
 import { Field } from '../../ui/field';
+import { FormField } from '../../ui/form-field';
 import { Txt } from '../../ui/text';
 import { letterPdfUrl, replyUploadUrl, useLetters, useSendDocumentRequest, useSendReferral } from './use-letters';
 
@@ -140,20 +141,12 @@ function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentReques
         {items.map((_, i) => (
           <View key={i} style={{ flexDirection: 'row', gap: space.sm, alignItems: 'flex-end' }}>
             <View style={{ flex: 1 }}>
-              <Controller
+              <FormField
                 control={form.control}
                 name={`items.${i}`}
-                render={({ field, fieldState }) => (
-                  <Field
-                    testID={`request-item-${i}`}
-                    label={`Record ${i + 1}`}
-                    placeholder="e.g. Receipts for vehicle expenses claimed for 2024"
-                    value={field.value}
-                    onChangeText={field.onChange}
-                    onBlur={field.onBlur}
-                    error={fieldState.error?.message}
-                  />
-                )}
+                testID={`request-item-${i}`}
+                label={`Record ${i + 1}`}
+                placeholder="e.g. Receipts for vehicle expenses claimed for 2024"
               />
             </View>
             {items.length > 1 && (
@@ -184,22 +177,14 @@ function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentReques
           />
         )}
       />
-      <Controller
+      <FormField
         control={form.control}
         name="email"
-        render={({ field, fieldState }) => (
-          <Field
-            testID="request-email"
-            label="Send to (optional)"
-            autoCapitalize="none"
-            keyboardType="email-address"
-            placeholder="Leave empty to use the address on file"
-            value={field.value ?? ''}
-            onChangeText={field.onChange}
-            onBlur={field.onBlur}
-            error={fieldState.error?.message}
-          />
-        )}
+        testID="request-email"
+        label="Send to (optional)"
+        autoCapitalize="none"
+        keyboardType="email-address"
+        placeholder="Leave empty to use the address on file"
       />
       {error && (
         <Txt tone="alert" accessibilityRole="alert">
@@ -225,22 +210,14 @@ function ReferralForm({ onSubmit, busy, error }: FormProps<ReferralInput>) {
         The memo carries the case facts, the score breakdown, the digit chart and the case history. Referring finishes the case here.
       </Txt>
       <Controller control={form.control} name="unit" render={({ field }) => <ChoiceRow testID="referral-unit" label="Unit" options={unitOptions} value={field.value} onChange={field.onChange} />} />
-      <Controller
+      <FormField
         control={form.control}
         name="summary"
-        render={({ field, fieldState }) => (
-          <Field
-            testID="referral-summary"
-            label="Why the case needs the unit"
-            multiline
-            numberOfLines={4}
-            style={{ minHeight: 96, textAlignVertical: 'top' }}
-            value={field.value}
-            onChangeText={field.onChange}
-            onBlur={field.onBlur}
-            error={fieldState.error?.message}
-          />
-        )}
+        testID="referral-summary"
+        label="Why the case needs the unit"
+        multiline
+        numberOfLines={4}
+        style={{ minHeight: 96, textAlignVertical: 'top' }}
       />
       {error && (
         <Txt tone="alert" accessibilityRole="alert">

@@ -1,13 +1,13 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useEffect } from 'react';
-import { Controller, useForm } from 'react-hook-form';
+import { useForm } from 'react-hook-form';
 import { View } from 'react-native';
 import { NewProfileSchema, type NewProfileInput, type Performance, type ProfileVersion } from '../../../shared/scoring/profile-api';
 import { COMPONENT_LABELS, COMPONENTS } from '../../../shared/scoring/settings';
 import { colours, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
-import { Field } from '../../ui/field';
+import { FormField } from '../../ui/form-field';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
 import { useActivateProfile, useAddProfile, usePerformance, useProfiles } from './use-scoring';
@@ -40,37 +40,14 @@ function WeightsForm({ active, performance }: { active: ProfileVersion; performa
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.md }}>
         {COMPONENTS.map((key) => (
           <View key={key} style={{ width: wide ? 230 : '100%' }}>
-            <Controller
-              control={form.control}
-              name={`settings.weights.${key}`}
-              render={({ field, fieldState }) => (
-                <Field
-                  testID={`weight-${key}`}
-                  label={COMPONENT_LABELS[key]}
-                  keyboardType="numeric"
-                  value={String(field.value ?? '')}
-                  onChangeText={(t) => field.onChange(num(t))}
-                  error={fieldState.error?.message}
-                />
-              )}
-            />
+            <FormField control={form.control} name={`settings.weights.${key}`} toValue={num} testID={`weight-${key}`} label={COMPONENT_LABELS[key]} keyboardType="numeric" />
           </View>
         ))}
       </View>
       <View style={{ width: wide ? 230 : '100%' }}>
-        <Controller
-          control={form.control}
-          name="settings.selectionCut"
-          render={({ field, fieldState }) => (
-            <Field testID="selection-cut" label="Open a case at or above (score)" keyboardType="numeric" value={String(field.value ?? '')} onChangeText={(t) => field.onChange(num(t))} error={fieldState.error?.message} />
-          )}
-        />
+        <FormField control={form.control} name="settings.selectionCut" toValue={num} testID="selection-cut" label="Open a case at or above (score)" keyboardType="numeric" />
       </View>
-      <Controller
-        control={form.control}
-        name="note"
-        render={({ field, fieldState }) => <Field testID="profile-note" label="Why the change" value={field.value} onChangeText={field.onChange} error={fieldState.error?.message} />}
-      />
+      <FormField control={form.control} name="note" testID="profile-note" label="Why the change" />
       {add.error && <Txt tone="alert">{add.error.message}</Txt>}
       {add.isSuccess && <Txt tone="ok">Saved as version {add.data.version}; new batches are scored with it.</Txt>}
       <View style={{ flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' }}>

@@ -9,6 +9,7 @@ import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { ChoiceRow } from '../../ui/choice-row';
 import { Field } from '../../ui/field';
+import { FormField } from '../../ui/form-field';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
 import { useCreateUser, useResetPassword, useUpdateUser, useUsers } from './use-users';
@@ -27,15 +28,16 @@ function NewUserForm() {
       <Txt variant="title" bold>
         New account
       </Txt>
-      <Controller control={form.control} name="username" render={({ field, fieldState }) => <Field testID="new-user-username" label="User name" autoCapitalize="none" value={field.value} onChangeText={field.onChange} error={fieldState.error?.message} />} />
-      <Controller control={form.control} name="displayName" render={({ field, fieldState }) => <Field testID="new-user-name" label="Full name" value={field.value} onChangeText={field.onChange} error={fieldState.error?.message} />} />
+      <FormField control={form.control} name="username" testID="new-user-username" label="User name" autoCapitalize="none" />
+      <FormField control={form.control} name="displayName" testID="new-user-name" label="Full name" />
       <Controller control={form.control} name="role" render={({ field }) => <ChoiceRow testID="new-user-role" label="Role" options={roleOptions} value={field.value} onChange={field.onChange} />} />
-      <Controller
+      <FormField
         control={form.control}
         name="password"
-        render={({ field, fieldState }) => (
-          <Field testID="new-user-password" label="First password" secureTextEntry value={field.value} onChangeText={field.onChange} error={fieldState.error?.message} hint="At least 10 characters. Give it to the person in confidence." />
-        )}
+        testID="new-user-password"
+        label="First password"
+        secureTextEntry
+        hint="At least 10 characters. Give it to the person in confidence."
       />
       {create.error && <Txt tone="alert">{create.error.message}</Txt>}
       {create.isSuccess && <Txt tone="ok">Account created.</Txt>}
