@@ -4,6 +4,7 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import type { AccessLogQuery } from '../../shared/access-log';
 import { AccessLog } from './access-log.entity';
+import { isUuid } from '../../shared/ids';
 
 /** Fields of a new access-log line. */
 export type NewAccessLog = Omit<AccessLog, 'id' | 'at'>;
@@ -29,7 +30,7 @@ export async function findAccessLogs(ds: DataSource, q: AccessLogQuery): Promise
   if (q.taxpayer) {
     // A taxpayer is named by its id, or by the last digits of its TIN as shown masked.
     const digits = q.taxpayer.replace(/\D/g, '');
-    if (/^[0-9a-f-]{36}$/i.test(q.taxpayer)) qb.andWhere('l.taxpayer_id = :tp', { tp: q.taxpayer });
+    if (isUuid(q.taxpayer)) qb.andWhere('l.taxpayer_id = :tp', { tp: q.taxpayer });
     else qb.andWhere('l.taxpayer_label LIKE :tl', { tl: `%${digits.slice(-3)}` });
   }
   if (q.from) qb.andWhere('l.at >= :from::date', { from: q.from });

@@ -9,6 +9,7 @@ import { from as copyFrom } from 'pg-copy-streams';
 import type { DataSource, QueryRunner } from 'typeorm';
 import type { BatchIssue, BatchState } from '../../shared/returns/batch-rows';
 import type { ActivityCode } from '../../shared/returns/line-codes';
+import { returnedRows } from '../db/returned-rows';
 
 // ---------------------------------------------------------------------------------------
 // The batch record
@@ -75,13 +76,14 @@ export async function findBatchByHash(ds: DataSource, fileHash: string): Promise
  * @returns true when the record was taken over for a new attempt
  */
 export async function takeOverStaleBatch(ds: DataSource, id: string, loadedBy: string | null, staleMinutes: number): Promise<boolean> {
-  // TypeORM answers an UPDATE with [rows, affected count].
-  const [rows] = (await ds.query(
+  const rows = returnedRows<{ id: string }>(
+    await ds.query(
     `UPDATE filing_batch SET state = 'validating', loaded_by = $2, updated_at = now(), created_at = now()
      WHERE id = $1 AND state IN ('received', 'validating') AND updated_at < now() - make_interval(mins => $3)
      RETURNING id`,
-    [id, loadedBy, staleMinutes],
-  )) as [{ id: string }[], number];
+      [id, loadedBy, staleMinutes],
+    ),
+  );
   return rows.length > 0;
 }
 

@@ -20,10 +20,10 @@ import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
 import { getBatch, ingestUpload, listBatches, uploadFromParts, writeBatchReport, type IntakeDeps } from './batch.service';
 import type { UploadedFile } from './intake/sources';
+import { isUuid } from '../../shared/ids';
 
 const PARTS = ['file', 'returns', 'line_items', 'statements'] as const;
 type Part = (typeof PARTS)[number];
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** Limits from the configuration. */
 export function intakeLimits(config: AppDeps['config']) {
@@ -114,14 +114,14 @@ export function batchRoutes(deps: AppDeps) {
 
   r.get('/batches/:id', allow('readBatches'), async (req, res) => {
     const id = String(req.params.id);
-    const batch = UUID.test(id) ? await getBatch(deps.dataSource, id) : null;
+    const batch = isUuid(id) ? await getBatch(deps.dataSource, id) : null;
     if (!batch) throw new HttpError(404, `There is no batch ${id}.`);
     res.json(batch);
   });
 
   r.get('/batches/:id/report.xlsx', allow('readBatches'), async (req, res) => {
     const id = String(req.params.id);
-    const batch = UUID.test(id) ? await getBatch(deps.dataSource, id) : null;
+    const batch = isUuid(id) ? await getBatch(deps.dataSource, id) : null;
     if (!batch) throw new HttpError(404, `There is no batch ${id}.`);
     await recordAccess(deps.dataSource, req.user!, { action: 'export', route: 'GET /api/batches/:id/report.xlsx', recordType: 'filing_batch', recordId: id, detail: 'validation report' });
     res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');

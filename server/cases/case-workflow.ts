@@ -10,8 +10,8 @@ import { recordAccess } from '../access-log/access-log.service';
 import type { SessionUser } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { ExamCase } from './exam-case.entity';
+import { isUuid } from '../../shared/ids';
 
-const isUuid = (s: string) => /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(s);
 
 /** Loads a case FOR UPDATE inside a transaction, or 404. */
 export async function lockCase(m: EntityManager, caseId: string): Promise<ExamCase> {

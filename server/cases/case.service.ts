@@ -59,8 +59,8 @@ import {
 } from './case.repository';
 import { assertMayAct, assignCase, claimCase, lockCase, moveCase, taxpayerLabelOf } from './case-workflow';
 import type { ExamCase } from './exam-case.entity';
+import { isUuid } from '../../shared/ids';
 
-const isUuid = (s: string) => /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(s);
 
 function toItem(r: CaseRow): CaseListItem {
   return {

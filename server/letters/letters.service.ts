@@ -50,6 +50,7 @@ import {
 } from './letters.repository';
 import { renderDocumentRequestPdf, type DocumentRequestLetter } from './pdf/document-request-pdf';
 import { renderReferralMemoPdf } from './pdf/referral-memo-pdf';
+import { isUuid } from '../../shared/ids';
 
 /** What the letter services need. */
 export interface LetterDeps {
@@ -59,7 +60,6 @@ export interface LetterDeps {
   publicUrl: string;
 }
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const sha256 = (b: Buffer | string) => createHash('sha256').update(b).digest('hex');
 
 /** The hash stored for a reply token (the token itself is never stored). */
@@ -292,7 +292,7 @@ export async function referCase(deps: LetterDeps, actor: SessionUser, caseId: st
 }
 
 async function caseForRead(ds: DataSource, caseId: string): Promise<{ taxpayerId: string; label: string | null }> {
-  const c = UUID.test(caseId) ? await findCaseTaxpayer(ds, caseId) : null;
+  const c = isUuid(caseId) ? await findCaseTaxpayer(ds, caseId) : null;
   if (!c) throw new HttpError(404, 'No such case.');
   return { taxpayerId: c.taxpayerId, label: await taxpayerLabelOf(ds, c.taxpayerId) };
 }
@@ -309,7 +309,7 @@ export async function listLetters(ds: DataSource, actor: SessionUser, caseId: st
 /** A letter's PDF (the office copy); logged as a view. */
 export async function letterPdf(ds: DataSource, actor: SessionUser, caseId: string, letterId: string, route: string): Promise<{ fileName: string; pdf: Buffer }> {
   const c = await caseForRead(ds, caseId);
-  const l = UUID.test(letterId) ? await findLetterPdf(ds, caseId, letterId) : null;
+  const l = isUuid(letterId) ? await findLetterPdf(ds, caseId, letterId) : null;
   if (!l) throw new HttpError(404, 'This case has no such letter.');
   await recordAccess(ds, actor, { action: 'view', route, recordType: 'letter', recordId: letterId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `${l.kind} PDF` });
   return { fileName: l.fileName, pdf: l.pdf };
@@ -318,7 +318,7 @@ export async function letterPdf(ds: DataSource, actor: SessionUser, caseId: stri
 /** A file the taxpayer sent back; logged as a view. */
 export async function replyUploadFile(ds: DataSource, actor: SessionUser, caseId: string, uploadId: string, route: string): Promise<{ fileName: string; contentType: string; content: Buffer }> {
   const c = await caseForRead(ds, caseId);
-  const u = UUID.test(uploadId) ? await findUploadContent(ds, caseId, uploadId) : null;
+  const u = isUuid(uploadId) ? await findUploadContent(ds, caseId, uploadId) : null;
   if (!u) throw new HttpError(404, 'This case has no such reply file.');
   await recordAccess(ds, actor, { action: 'view', route, recordType: 'reply_upload', recordId: uploadId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `reply file ${u.fileName}` });
   return u;

@@ -17,6 +17,7 @@ import { recordAccess } from '../access-log/access-log.service';
 import type { SessionUser } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { QUEUES } from '../queue/queues';
+import { isUuid } from '../../shared/ids';
 
 /** Fewest flagged closed cases before a weight is suggested to move. */
 export const MIN_EVIDENCE = 10;
@@ -65,7 +66,7 @@ export async function activateProfile(ds: DataSource, actor: SessionUser, versio
 /** Queues a re-score of a scored batch under a version (the active one by default); old scores stay. */
 export async function rescoreBatch(ds: DataSource, boss: PgBoss | null, actor: SessionUser, batchId: string, version?: number): Promise<{ version: number }> {
   if (!boss) throw new HttpError(503, 'The job queue is not running; start the worker and try again.');
-  if (!/^[0-9a-f-]{36}$/i.test(batchId)) throw new HttpError(404, 'No such batch.');
+  if (!isUuid(batchId)) throw new HttpError(404, 'No such batch.');
   const b = await ds.query(`SELECT state FROM filing_batch WHERE id = $1`, [batchId]);
   if (!b.length) throw new HttpError(404, 'No such batch.');
   if (b[0].state !== 'scored') throw new HttpError(409, `Only a scored batch can be re-scored; this one is ${b[0].state}.`);

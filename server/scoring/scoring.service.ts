@@ -10,7 +10,7 @@ import type PgBoss from 'pg-boss';
 import type { DataSource, EntityManager } from 'typeorm';
 import type { StatementKind } from '../../shared/returns/line-codes';
 import type { ScoreBreakdown } from '../../shared/scoring/breakdown';
-import { incomeBand, type PeerBands, type ReturnFacts } from '../../shared/scoring/factors';
+import { buildPeerBands, incomeBand, type PeerBands, type ReturnFacts } from '../../shared/scoring/factors';
 import { judgeFirstDigitCounts, type PooledDigits } from '../../shared/scoring/pools';
 import { scoreReturn, type ScoreContext } from '../../shared/scoring/score-return';
 import { ScoringSettingsSchema, type ScoringSettings } from '../../shared/scoring/settings';
@@ -28,6 +28,7 @@ import {
   taxpayerDigitCounts,
   unscoredReturns,
 } from './scoring.repository';
+import { returnedRows } from '../db/returned-rows';
 
 /** Returns per chunk job (env SCORING_CHUNK_SIZE). Large enough that a chunk outlasts pg-boss's 0.5 s polling gap. */
 export const CHUNK_SIZE = Number(process.env.SCORING_CHUNK_SIZE ?? 500);
@@ -53,10 +54,6 @@ async function loadSettings(db: DataSource | EntityManager, version: number): Pr
   return ScoringSettingsSchema.parse(r[0].settings);
 }
 
-function percentile(xs: number[], q: number): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.min(s.length - 1, Math.floor(q * s.length))];
-}
 
 /**
  * Runs one aggregate in its own transaction with more sort/hash memory than the default
@@ -78,27 +75,10 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
     withWorkMem(ds, (m) => preparerSharedAmounts(m, batchId, p.repeatMinCents)),
     withWorkMem(ds, (m) => lineCodeDigitCounts(m, batchId)),
   ]);
-  const bands = new Map<string, { charity: number[]; medical: number[] }>();
-  for (const f of figures) {
-    if (f.income <= 0) continue;
-    const b = incomeBand(f.income);
-    const s = bands.get(b) ?? { charity: [], medical: [] };
-    s.charity.push(f.charity / f.income);
-    s.medical.push(f.medical / f.income);
-    bands.set(b, s);
-  }
-  const peerLimits: PeerBands['limits'] = {};
-  for (const [b, s] of bands) {
-    const enough = s.charity.length >= p.deductionMinPeers;
-    peerLimits[b] = { charity: enough ? percentile(s.charity, p.deductionPercentile) : null, medical: enough ? percentile(s.medical, p.deductionPercentile) : null, n: s.charity.length };
-  }
-  const preparers: RunContext['preparers'] = {};
-  for (const [id, counts] of preparerCounts) preparers[id] = { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts };
-  const shared: RunContext['shared'] = {};
-  for (const [id, list] of sharedAmounts) shared[id] = list;
-  const lineCodes: RunContext['lineCodes'] = {};
-  for (const [code, counts] of lineCodeCounts) lineCodes[code] = { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts };
-  return { peerLimits, preparers, shared, lineCodes };
+  const { limits: peerLimits } = buildPeerBands(figures, p);
+  const judged = (pools: Map<string, number[]>) =>
+    Object.fromEntries([...pools].map(([key, counts]) => [key, { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts }]));
+  return { peerLimits, preparers: judged(preparerCounts), shared: Object.fromEntries(sharedAmounts), lineCodes: judged(lineCodeCounts) };
 }
 
 /** Creates the run for (batch, version) once, and returns it with the batch's return ids. */
@@ -167,12 +147,6 @@ export async function scoreBatchNow(ds: DataSource, batchId: string, version?: n
     failed += r.failed;
   }
   return { runId, scored, failed };
-}
-
-/** TypeORM answers UPDATE … RETURNING with [rows, affected]; INSERT … RETURNING with rows. */
-function returnedRows<T>(result: unknown): T[] {
-  if (Array.isArray(result) && result.length === 2 && Array.isArray(result[0]) && typeof result[1] === 'number') return result[0] as T[];
-  return result as T[];
 }
 
 async function finishIfDone(db: DataSource | EntityManager, runId: string): Promise<boolean> {

@@ -1,6 +1,7 @@
 /** Queries on staff accounts. */
 import type { DataSource } from 'typeorm';
 import { User } from './user.entity';
+import { isUuid } from '../../shared/ids';
 
 /** The user with its password hash (normally not selected), for sign-in only. */
 export function findUserWithHash(ds: DataSource, username: string): Promise<User | null> {
@@ -13,7 +14,7 @@ export function findUserWithHash(ds: DataSource, username: string): Promise<User
 }
 
 export function findUserById(ds: DataSource, id: string): Promise<User | null> {
-  if (!/^[0-9a-f-]{36}$/i.test(id)) return Promise.resolve(null);
+  if (!isUuid(id)) return Promise.resolve(null);
   return ds.getRepository(User).findOneBy({ id });
 }
 

@@ -15,6 +15,8 @@
  * Anything else throws an {@link AmountParseError} naming the value and its position.
  */
 
+import { centsFromDecimal } from '../returns/money';
+
 // Math functions bound once: a global `Math` lookup in a hot loop is slow under jest's vm
 // sandbox (about 150 ns a call), and the local binding costs nothing under plain node.
 const { abs, round } = Math;
@@ -141,46 +143,10 @@ function rangeError(value: unknown, position: string): AmountParseError {
  * @throws AmountParseError naming what is wrong (comma, spaces, exponent, decimals, range)
  */
 export function centsFromString(s: string, position: string): number {
-  const c = scanDecimal(s);
+  // The intake's scanner, with the digit engine's wider range.
+  const c = centsFromDecimal(s, MAX_ABS_CENTS);
   if (c !== c) throw stringError(s, position); // NaN: not an accepted decimal
   return c;
-}
-
-/**
- * The scan behind {@link centsFromString}: cents, or NaN when the text is not accepted.
- * Returning NaN instead of throwing lets callers build the position text only on failure.
- */
-function scanDecimal(s: string): number {
-  const len = s.length;
-  let i = 0;
-  let negative = false;
-  if (len > 0 && s.charCodeAt(0) === 45 /* - */) {
-    negative = true;
-    i = 1;
-  }
-  let whole = 0;
-  let wholeDigits = 0;
-  for (; i < len; i++) {
-    const d = s.charCodeAt(i) - 48;
-    if (d < 0 || d > 9) break;
-    whole = whole * 10 + d;
-    wholeDigits++;
-  }
-  if (wholeDigits === 0 || whole >= AMOUNT_LIMIT) return NaN;
-  let cents = whole * 100;
-  if (i < len) {
-    const rest = len - i;
-    if (s.charCodeAt(i) !== 46 /* . */ || rest < 2 || rest > 3) return NaN;
-    const d1 = s.charCodeAt(i + 1) - 48;
-    if (d1 < 0 || d1 > 9) return NaN;
-    cents += d1 * 10;
-    if (rest === 3) {
-      const d2 = s.charCodeAt(i + 2) - 48;
-      if (d2 < 0 || d2 > 9) return NaN;
-      cents += d2;
-    }
-  }
-  return negative && cents !== 0 ? -cents : cents;
 }
 
 /** Work out the clearest message for a string that failed the fast scan. */
@@ -278,7 +244,7 @@ export function parseAmounts(values: ArrayLike<unknown>, options: ParseAmountsOp
       throw numberError(v, positionOf(i));
     }
     if (typeof v === 'string') {
-      const c = scanDecimal(v);
+      const c = centsFromDecimal(v, MAX_ABS_CENTS);
       if (c !== c) throw stringError(v, positionOf(i));
       out[i] = c;
       continue;

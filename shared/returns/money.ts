@@ -23,9 +23,11 @@ export type DecimalProblem = 'empty' | 'comma' | 'spaces' | 'currency' | 'expone
  * not such a decimal or is out of range. A hand-written scan: it runs once per line item.
  *
  * @param s the text, already trimmed
+ * @param maxCents largest absolute amount accepted (a batch line by default; the digit engine
+ *   takes larger amounts, up to 10^15 − 1 cents)
  * @returns signed integer cents (0 for "-0"), or NaN
  */
-export function centsFromDecimal(s: string): number {
+export function centsFromDecimal(s: string, maxCents: number = MAX_LINE_AMOUNT_CENTS): number {
   const len = s.length;
   let i = 0;
   let negative = false;
@@ -56,7 +58,7 @@ export function centsFromDecimal(s: string): number {
       cents += d2;
     }
   }
-  if (cents > MAX_LINE_AMOUNT_CENTS) return NaN;
+  if (cents > maxCents) return NaN;
   return negative && cents !== 0 ? -cents : cents;
 }
 

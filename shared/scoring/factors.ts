@@ -111,8 +111,8 @@ export function incomeBand(incomeCents: number): string {
   return `${lo.toLocaleString('en-US')}+`;
 }
 
-/** Builds peer percentiles from many returns' totals (returns with positive income only). */
-export function buildPeerBands(all: readonly ReturnTotals[], p: Params): PeerBands {
+/** Builds peer percentiles from many returns' figures (returns with positive income only). */
+export function buildPeerBands(all: readonly Pick<ReturnTotals, 'income' | 'charity' | 'medical'>[], p: Params): PeerBands {
   const shares = new Map<string, { charity: number[]; medical: number[] }>();
   for (const t of all) {
     if (t.income <= 0) continue;

@@ -1,12 +1,17 @@
 /** Amounts and shares as evidence text shows them. */
 
+/** A whole number with thousands separators: 1234567 → "1,234,567". */
+export function thousands(n: number): string {
+  return Math.round(n)
+    .toString()
+    .replace(/\B(?=(\d{3})+(?!\d))/g, ',');
+}
+
 /** 1234567 cents → "12,345.67". */
 export function money(cents: number): string {
   const neg = cents < 0;
   const a = Math.round(Math.abs(cents));
-  const whole = Math.floor(a / 100)
-    .toString()
-    .replace(/\B(?=(\d{3})+(?!\d))/g, ',');
+  const whole = thousands(Math.floor(a / 100));
   const frac = String(a % 100).padStart(2, '0');
   return `${neg ? '−' : ''}${whole}.${frac}`;
 }

@@ -5,7 +5,7 @@
 import { View } from 'react-native';
 import { CASE_STATE_LABELS, type CaseState } from '../../../shared/cases';
 import { centsFromNumeric } from '../../../shared/returns/money';
-import { money } from '../../../shared/scoring/format';
+import { money, thousands } from '../../../shared/scoring/format';
 import { colours, radius, space } from '../../theme';
 import { Txt } from '../../ui/text';
 
@@ -16,11 +16,7 @@ export function amount(decimal: string | null): string {
 }
 
 /** A ranking figure (priority) as a whole number with thousands separators. */
-export function whole(n: number): string {
-  return Math.round(n)
-    .toString()
-    .replace(/\B(?=(\d{3})+(?!\d))/g, ',');
-}
+export const whole = thousands;
 
 /** "2025-03-04 14:05" in the viewer's time zone. */
 export function when(iso: string): string {
