@@ -42,6 +42,18 @@ export const PoolSnapshotSchema = z.object({
 });
 export type PoolSnapshot = z.infer<typeof PoolSnapshotSchema>;
 
+/**
+ * The return's combined digit-and-pattern evidence as one calibrated test: `p` is the
+ * return's own p-value (first- and second-digit tests and the other pattern tests combined
+ * by Simes' method, docs/methods.md "Scoring"), `q` its Benjamini–Hochberg q-value across
+ * the scoring run's batch. Absent on scores made before profile version 2.
+ */
+export const PatternEvidenceSchema = z.object({
+  p: z.number().min(0).max(1),
+  q: z.number().min(0).max(1),
+});
+export type PatternEvidence = z.infer<typeof PatternEvidenceSchema>;
+
 export const ScoreBreakdownSchema = z.object({
   riskScore: z.number().min(0).max(100),
   components: z.array(ComponentResultSchema),
@@ -60,5 +72,7 @@ export const ScoreBreakdownSchema = z.object({
   }),
   selectionCut: z.number(),
   selected: z.boolean(),
+  /** Calibrated pattern evidence (profile version 2 on); see PatternEvidenceSchema. */
+  pattern: PatternEvidenceSchema.optional(),
 });
 export type ScoreBreakdown = z.infer<typeof ScoreBreakdownSchema>;
