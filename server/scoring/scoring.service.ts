@@ -14,6 +14,7 @@ import { buildPeerBands, incomeBand, type PeerBands, type ReturnFacts } from '..
 import { judgeFirstDigitCounts, type PooledDigits } from '../../shared/scoring/pools';
 import { scoreReturn, type ScoreContext } from '../../shared/scoring/score-return';
 import { ScoringSettingsSchema, type ScoringSettings } from '../../shared/scoring/settings';
+import { openCasesForScores } from '../cases/case-open.repository';
 import { QUEUES } from '../queue/queues';
 import {
   activeProfileVersion,
@@ -276,7 +277,12 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     const scoreIdOf = new Map(inserted.map((r) => [r.return_id, r.id]));
     const fresh = outcomes.filter((o) => scoreIdOf.has(o.returnId));
     const selected = fresh.filter((o) => o.status === 'scored' && o.breakdown!.selected);
-    if (selected.length) await openCases(m, batchId, version, selected, scoreIdOf);
+    await openCasesForScores(
+      m,
+      batchId,
+      version,
+      selected.map((o) => ({ returnId: o.returnId, taxpayerId: o.taxpayerId, scoreId: scoreIdOf.get(o.returnId)!, riskScore: o.riskScore!, stakeCents: o.stakeCents!, priority: o.priority! })),
+    );
     const scored = fresh.filter((o) => o.status === 'scored').length;
     const failed = fresh.length - scored;
     const run = returnedRows<{ scored: number; failed: number }>(
@@ -287,40 +293,4 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     trace('store', t);
     return { scored, failed, skipped: false };
   });
-}
-
-/**
- * Opens a case for each newly selected return; a return that already has a case (scored
- * before under another version) keeps its case, which takes the newer score's figures.
- */
-async function openCases(m: EntityManager, batchId: string, version: number, selected: Outcome[], scoreIdOf: Map<string, string>): Promise<void> {
-  const rows: { id: string; inserted: boolean }[] = await m.query(
-    `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority)
-     SELECT u.return_id, u.taxpayer_id, $1, u.score_id, u.risk_score, u.stake / 100.0, u.priority
-       FROM unnest($2::uuid[], $3::uuid[], $4::bigint[], $5::numeric[], $6::bigint[], $7::numeric[])
-            AS u(return_id, taxpayer_id, score_id, risk_score, stake, priority)
-     ON CONFLICT (return_id) DO UPDATE
-       SET score_id = EXCLUDED.score_id, risk_score = EXCLUDED.risk_score,
-           amount_at_stake = EXCLUDED.amount_at_stake, priority = EXCLUDED.priority, updated_at = now()
-       -- A finished case keeps the score it was decided on (and factor performance reads it).
-       WHERE exam_case.state NOT IN ('referred', 'closed_no_change', 'closed_adjusted')
-     RETURNING id, (xmax = 0) AS inserted`,
-    [
-      batchId,
-      selected.map((o) => o.returnId),
-      selected.map((o) => o.taxpayerId),
-      selected.map((o) => scoreIdOf.get(o.returnId)),
-      selected.map((o) => o.riskScore),
-      selected.map((o) => o.stakeCents),
-      selected.map((o) => o.priority),
-    ],
-  );
-  const opened = rows.filter((r) => r.inserted).map((r) => r.id);
-  const rescored = rows.filter((r) => !r.inserted).map((r) => r.id);
-  if (opened.length) {
-    await m.query(`INSERT INTO case_event (case_id, kind, to_state, detail) SELECT id, 'opened', 'open', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [opened, version]);
-  }
-  if (rescored.length) {
-    await m.query(`INSERT INTO case_event (case_id, kind, detail) SELECT id, 'rescored', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [rescored, version]);
-  }
 }

@@ -1,0 +1,58 @@
+/**
+ * Opening cases from scores: the one place a case is created. Scoring (server/scoring)
+ * calls {@link openCasesForScores} inside its chunk transaction; the rule for which cases a
+ * newer score may update (never a finished one) lives here with the other case rules.
+ */
+import type { EntityManager } from 'typeorm';
+import { FINAL_STATES } from '../../shared/cases';
+
+/** A newly selected return's score, as a case is opened (or updated) from it. */
+export interface SelectedScore {
+  returnId: string;
+  taxpayerId: string;
+  scoreId: string;
+  riskScore: number;
+  /** Amount at stake in integer cents. */
+  stakeCents: number;
+  priority: number;
+}
+
+/**
+ * Opens a case for each selected return and records an 'opened' case event; a return that
+ * already has a case (scored before under another version) keeps its case, which takes the
+ * newer score's figures and gets a 'rescored' event, unless the case is finished: a
+ * finished case keeps the score it was decided on (factor performance reads it).
+ * Runs in the caller's transaction.
+ */
+export async function openCasesForScores(m: EntityManager, batchId: string, version: number, selected: SelectedScore[]): Promise<void> {
+  if (!selected.length) return;
+  const rows: { id: string; inserted: boolean }[] = await m.query(
+    `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority)
+     SELECT u.return_id, u.taxpayer_id, $1, u.score_id, u.risk_score, u.stake / 100.0, u.priority
+       FROM unnest($2::uuid[], $3::uuid[], $4::bigint[], $5::numeric[], $6::bigint[], $7::numeric[])
+            AS u(return_id, taxpayer_id, score_id, risk_score, stake, priority)
+     ON CONFLICT (return_id) DO UPDATE
+       SET score_id = EXCLUDED.score_id, risk_score = EXCLUDED.risk_score,
+           amount_at_stake = EXCLUDED.amount_at_stake, priority = EXCLUDED.priority, updated_at = now()
+       WHERE exam_case.state <> ALL($8::text[])
+     RETURNING id, (xmax = 0) AS inserted`,
+    [
+      batchId,
+      selected.map((o) => o.returnId),
+      selected.map((o) => o.taxpayerId),
+      selected.map((o) => o.scoreId),
+      selected.map((o) => o.riskScore),
+      selected.map((o) => o.stakeCents),
+      selected.map((o) => o.priority),
+      FINAL_STATES,
+    ],
+  );
+  const opened = rows.filter((r) => r.inserted).map((r) => r.id);
+  const rescored = rows.filter((r) => !r.inserted).map((r) => r.id);
+  if (opened.length) {
+    await m.query(`INSERT INTO case_event (case_id, kind, to_state, detail) SELECT id, 'opened', 'open', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [opened, version]);
+  }
+  if (rescored.length) {
+    await m.query(`INSERT INTO case_event (case_id, kind, detail) SELECT id, 'rescored', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [rescored, version]);
+  }
+}
