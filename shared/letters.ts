@@ -1,6 +1,7 @@
 /**
- * Letters contract (DESIGN.md sections 2, 6 and 10): document requests sent to taxpayers,
- * referral memos kept with a case, and the taxpayer's one-time reply link. The server
+ * Letters contract (docs/design.md#letters-and-replies, docs/design.md#api-contract):
+ * document requests sent to taxpayers, referral memos kept with a case, and the
+ * taxpayer's one-time reply link. The server
  * validates with these schemas and the app's forms use the same ones through zodResolver,
  * so a rule (e.g. the due-date window) is written once.
  */
@@ -94,14 +95,62 @@ export const DocumentRequestInputSchema = z
   });
 export type DocumentRequestInput = z.infer<typeof DocumentRequestInputSchema>;
 
-/** Specialist units a case can be referred to. */
+/**
+ * Words a letter to a taxpayer should not carry: letters ask for records and never mention
+ * scores, digit tests, patterns, risk or suspicion (docs/design.md#letters-and-replies).
+ * Each entry matches the word and its usual inflections, whole words only, so "digital
+ * copies" or "riskless" are not caught by "digit" or "risk".
+ */
+export const FLAGGED_LETTER_WORDS: readonly { word: string; pattern: RegExp }[] = [
+  { word: 'risk', pattern: /\brisk(?:s|y|ier|iest)?\b/i },
+  { word: 'score', pattern: /\bscor(?:e|es|ed|ing)\b/i },
+  { word: 'digit', pattern: /\bdigits?\b/i },
+  { word: 'pattern', pattern: /\bpatterns?\b/i },
+  { word: 'Benford', pattern: /\bbenford(?:'s)?\b/i },
+  { word: 'fraud', pattern: /\bfraud(?:s|ulent|ulently)?\b/i },
+  { word: 'suspicion', pattern: /\bsuspic(?:ion|ions|ious|iously)\b/i },
+  { word: 'suspect', pattern: /\bsuspect(?:s|ed)?\b/i },
+  { word: 'penalty', pattern: /\bpenalt(?:y|ies)\b/i },
+  { word: 'evasion', pattern: /\b(?:evasion|evade|evaded|evading)\b/i },
+  { word: 'anomaly', pattern: /\banomal(?:y|ies|ous)\b/i },
+  { word: 'deviation', pattern: /\bdeviat(?:ion|ions|es|ed|ing)\b/i },
+  { word: 'statistics', pattern: /\bstatistic(?:s|al|ally)?\b/i },
+  { word: 'algorithm', pattern: /\balgorithm(?:s|ic)?\b/i },
+  { word: 'flagged', pattern: /\bflag(?:s|ged)?\b/i },
+  { word: 'investigation', pattern: /\binvestigat(?:e|es|ed|ion|ions)\b/i },
+  { word: 'criminal', pattern: /\bcrim(?:e|es|inal)\b/i },
+];
+
+/**
+ * The flagged words found in a text an examiner typed for a letter (a requested item), in
+ * the list's order, each once. A soft check: the form shows a warning and still sends.
+ *
+ * @example flaggedLetterWords('Receipts behind the risky round amounts') // ['risk']
+ */
+export function flaggedLetterWords(text: string): string[] {
+  return FLAGGED_LETTER_WORDS.filter((f) => f.pattern.test(text)).map((f) => f.word);
+}
+
+/** The warning shown under an item that contains flagged words; null when there are none. */
+export function flaggedLetterWarning(text: string): string | null {
+  const words = flaggedLetterWords(text);
+  if (!words.length) return null;
+  const list = words.map((w) => `"${w}"`).join(', ');
+  return `This item mentions ${list}. Letters ask for records and never mention scores, tests, patterns or suspicions; consider rewording it. You can still send it.`;
+}
+
+/**
+ * Specialist units a case can be referred to. The keys are API values already stored in
+ * case events, so they stay; the labels are Aldermere's own names (invented, like the
+ * office), not any real organisation's units.
+ */
 export const REFERRAL_UNITS = ['field-audit', 'income-matching', 'special-investigations'] as const;
 export const ReferralUnitSchema = z.enum(REFERRAL_UNITS);
 export type ReferralUnit = z.infer<typeof ReferralUnitSchema>;
 export const REFERRAL_UNIT_LABELS: Record<ReferralUnit, string> = {
-  'field-audit': 'Field Audit Unit',
-  'income-matching': 'Income Matching Unit',
-  'special-investigations': 'Special Investigations Unit',
+  'field-audit': 'Ledger Visit Team',
+  'income-matching': 'Cross-Check Team',
+  'special-investigations': 'Deep Review Team',
 };
 
 /** Body of `POST /api/cases/:id/referral`: where the case goes and why, in the examiner's words. */

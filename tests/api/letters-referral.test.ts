@@ -43,11 +43,11 @@ describe('referral memos', () => {
     const res = await refer(examiner, caseId, { unit: 'income-matching', summary: SUMMARY });
     expect(res.status).toBe(201);
     expect(res.body.caseState).toBe('referred');
-    expect(res.body.letter).toMatchObject({ kind: 'referral_memo', recipient: 'Income Matching Unit', documentRequest: null, createdBy: { id: examiner.user.id } });
+    expect(res.body.letter).toMatchObject({ kind: 'referral_memo', recipient: 'Cross-Check Team', documentRequest: null, createdBy: { id: examiner.user.id } });
 
     const c = (await ctx.dataSource.query(`SELECT state, outcome, closed_at FROM exam_case WHERE id = $1`, [caseId]))[0];
     expect(c.state).toBe('referred');
-    expect(c.outcome).toBe(`Referred to the Income Matching Unit: ${SUMMARY}`);
+    expect(c.outcome).toBe(`Referred to the Cross-Check Team: ${SUMMARY}`);
     expect(c.closed_at).not.toBeNull();
     const ev = await ctx.dataSource.query(`SELECT from_state, to_state, detail FROM case_event WHERE case_id = $1 AND kind = 'referral'`, [caseId]);
     expect(ev).toEqual([{ from_state: 'in_review', to_state: 'referred', detail: expect.objectContaining({ letterId: res.body.letter.id, unit: 'income-matching' }) }]);
@@ -66,7 +66,7 @@ describe('referral memos', () => {
     expect(facts.tin).toBeTruthy();
     // Case facts, with the TIN masked and never in full.
     expect(text).toContain('Referral memo');
-    expect(text).toContain('Income Matching Unit');
+    expect(text).toContain('Cross-Check Team');
     expect(text).toContain(facts.name);
     expect(text).toContain(facts.return_ref);
     expect(text).toContain(`••• ••• ${String(facts.tin).slice(-3)}`);
@@ -102,7 +102,7 @@ describe('referral memos', () => {
     expect(sent.status).toBe(201);
     const res = await refer(examiner, caseId, { summary: SUMMARY });
     expect(res.status).toBe(201);
-    expect(res.body.letter.recipient).toBe('Field Audit Unit');
+    expect(res.body.letter.recipient).toBe('Ledger Visit Team');
     const list = await examiner.agent.get(`/api/cases/${caseId}/letters`);
     expect(list.body.items.map((l: { kind: string }) => l.kind)).toEqual(['referral_memo', 'document_request']);
     // The memo's history shows the request that went before it.

@@ -222,7 +222,7 @@ describe('taxpayer reply page in the browser', () => {
         throw e;
       });
       expect(await page.getByTestId('case-state').textContent()).toBe('Referred');
-      expect(await panel.textContent()).toContain('For the Income Matching Unit');
+      expect(await panel.textContent()).toContain('For the Cross-Check Team');
       // A finished case offers no more letter forms.
       expect(await page.getByTestId('open-document-request').count()).toBe(0);
       expect(await page.getByTestId('open-referral').count()).toBe(0);

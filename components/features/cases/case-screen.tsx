@@ -21,9 +21,9 @@ import { DigitChart } from './digit-chart';
 import { useAddNote, useAssign, useCase, useClaim, useExaminers, useRevealTin, useTransition } from './use-cases';
 
 const OWN_VERDICT: Record<CaseDetail['score']['breakdown']['digits']['verdict'], string> = {
-  within_expected: 'within the spread honest figures of this size show',
-  elevated: 'more uneven than honest figures of this size usually are',
-  high: 'far more uneven than honest figures of this size usually are',
+  within_expected: 'within the spread typical figures of this size show',
+  elevated: 'more uneven than typical figures of this size usually are',
+  high: 'far more uneven than typical figures of this size usually are',
   too_few: 'too few amounts for a verdict',
 };
 
@@ -230,7 +230,7 @@ function Digits({ d }: { d: CaseDetail }) {
   return (
     <Section title="Leading digits against the expected curve" testID="case-digits">
       <Txt variant="small" tone="soft">
-        In many honest sets of amounts, 1 leads about 30 % of the time and 9 under 5 % (Benford&apos;s law). Departures point at figures worth a look; they do not show
+        In many ordinary sets of amounts, 1 leads about 30 % of the time and 9 under 5 % (Benford&apos;s law). Departures point at figures worth a look; they do not show
         that anything is wrong.
       </Txt>
       <View style={{ flexDirection: wide ? 'row' : 'column', gap: space.xl }}>

@@ -3,6 +3,7 @@ import { useEffect, useState } from 'react';
 import { Linking, Platform, Pressable, View } from 'react-native';
 import { CASE_SORT_LABELS, CASE_SORTS, type CaseListItem, type CaseListParams, type CaseSort } from '../../../shared/case-api';
 import { CASE_STATE_LABELS } from '../../../shared/cases';
+import { SCREENING_CAUTION } from '../../../shared/cautions';
 import { ACTIVITY_CODES } from '../../../shared/returns/line-codes';
 import { useSession } from '../../../hooks/use-session';
 import { colours, radius, space } from '../../theme';
@@ -222,7 +223,10 @@ export function QueueScreen() {
           <Txt variant="display" bold accessibilityRole="header">
             Examination queue
           </Txt>
-          <Txt tone="soft">Returns selected by scoring for a human look, highest first. A score selects; it proves nothing.</Txt>
+          <Txt tone="soft">Returns selected by scoring for a human look, highest first.</Txt>
+          <Txt variant="small" tone="soft" testID="screening-caution">
+            {SCREENING_CAUTION}
+          </Txt>
         </View>
         {role === 'supervisor' && <Button kind="secondary" label="Export to XLSX" testID="queue-export" onPress={download} style={{ alignSelf: wide ? 'auto' : 'flex-start' }} />}
       </View>

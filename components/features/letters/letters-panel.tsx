@@ -14,6 +14,7 @@ import {
   DocumentRequestInputSchema,
   DUE_DATE_MAX_DAYS,
   DUE_DATE_MIN_DAYS,
+  flaggedLetterWarning,
   isoToday,
   LETTER_KIND_LABELS,
   longDate,
@@ -148,6 +149,12 @@ function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentReques
                 label={`Record ${i + 1}`}
                 placeholder="e.g. Receipts for vehicle expenses claimed for 2024"
               />
+              {/* A soft check: the examiner's own words reach the letter, which must not mention scores or suspicions. */}
+              {flaggedLetterWarning(items[i] ?? '') && (
+                <Txt variant="small" tone="warn" testID={`request-item-${i}-warning`}>
+                  {flaggedLetterWarning(items[i] ?? '')}
+                </Txt>
+              )}
             </View>
             {items.length > 1 && (
               <Button kind="quiet" label="Remove" accessibilityLabel={`Remove record ${i + 1}`} testID={`request-item-${i}-remove`} onPress={() => setItems(items.filter((_x, k) => k !== i))} />

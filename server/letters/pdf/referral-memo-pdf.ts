@@ -235,7 +235,7 @@ export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
       `This return: ${d.n} amounts`,
       `Bars: share of the return's amounts with each first digit. Line: Benford's expected share, log10(1 + 1/d). ` +
         `MAD ${fmt(d.mad)} against ${fmt(d.expectedMad)} expected by chance for n = ${d.n} (size-aware z ${fmt(d.zScore, 2)}): ${VERDICT_WORDS[d.verdict]}. ` +
-        `A single return has few amounts; honest figures can deviate and invented ones can conform.`,
+        `A single return has few amounts; typical figures can deviate and invented ones can conform.`,
     );
     const pool = b.preparerPool;
     if (pool?.firstDigitCounts) {
@@ -262,7 +262,7 @@ export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
   doc.save().rect(x, doc.y, w, 0.6).fill(LINE).restore();
   doc.moveDown(0.5);
   doc.font(F.body).fontSize(9).fillColor(INK_SOFT).text(
-    'Handle under the office\'s confidentiality rules. The office\'s own law, procedure and professional practice come first; this memo records why the case was selected and what the examiner found, and decides nothing.',
+    'Handle under the office\'s confidentiality rules. The office\'s own law, procedure and licensed professional practice come first; this memo records why the case was selected and what the examiner found, and decides nothing.',
     x,
     doc.y,
     { width: w },
