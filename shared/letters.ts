@@ -6,12 +6,13 @@
  * so a rule (e.g. the due-date window) is written once.
  */
 import { z } from 'zod';
+import { noControlChars } from './text';
 
 /** The office as letters, e-mails and the reply page name it (invented, like all of Aldermere). */
 export const OFFICE = {
   name: 'Aldermere Revenue Office',
   unit: 'Examinations Section',
-  address: ['14 Weighhouse Lane', 'Aldermere AL3 7QP'],
+  address: ['14 Weighhouse Lane', 'Aldermere AXX 000'],
   phone: '+44 1632 960 418',
   email: 'examinations@revenue.aldermere.example',
   hours: 'Monday to Friday, 9:00 to 16:30',
@@ -80,7 +81,7 @@ export function longDate(iso: string): string {
 export const DocumentRequestInputSchema = z
   .object({
     items: z
-      .array(z.string().trim().min(3, 'Describe the record in a few words').max(300, 'Keep each item under 300 characters'))
+      .array(z.string().trim().min(3, 'Describe the record in a few words').max(300, 'Keep each item under 300 characters').check(noControlChars()))
       .min(1, 'Ask for at least one record')
       .max(12, 'Ask for at most 12 records in one letter'),
     dueDate: CalendarDateSchema,
@@ -156,7 +157,7 @@ export const REFERRAL_UNIT_LABELS: Record<ReferralUnit, string> = {
 /** Body of `POST /api/cases/:id/referral`: where the case goes and why, in the examiner's words. */
 export const ReferralInputSchema = z.object({
   unit: ReferralUnitSchema.default('field-audit'),
-  summary: z.string().trim().min(20, 'Say in a sentence or two why the case needs the unit (at least 20 characters)').max(4000, 'Keep the summary under 4,000 characters'),
+  summary: z.string().trim().min(20, 'Say in a sentence or two why the case needs the unit (at least 20 characters)').max(4000, 'Keep the summary under 4,000 characters').check(noControlChars({ lines: true })),
 });
 /** What the form holds (unit may be left to its default). */
 export type ReferralInput = z.input<typeof ReferralInputSchema>;

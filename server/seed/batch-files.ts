@@ -7,14 +7,17 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import ExcelJS from 'exceljs';
-import { generateReturns, PLANT_KINDS, type GenerateOptions, type PlantLabel } from '../../shared/demo/aldermere';
+import { generateReturns, HABIT_KINDS, PLANT_KINDS, type GenerateOptions, type PlantLabel, type ReturnAnswer } from '../../shared/demo/aldermere';
 import { BATCH_COLUMNS, columnsOf, type BatchTable } from '../../shared/returns/batch-rows';
 
 /** Counts of what was written. */
 export interface WrittenBatch {
   files: Partial<Record<BatchTable, string>>;
   counts: { returns: number; lineItems: number; statements: number };
+  /** The planted returns' answers. */
   labels: PlantLabel[];
+  /** Every return's answer: planted kinds (empty when typical) and habits. */
+  answers: ReturnAnswer[];
 }
 
 /** One CSV field: quoted when it holds a comma, quote or line break. */
@@ -60,6 +63,7 @@ export async function writeCsvBatch(dir: string, opts: GenerateOptions, format: 
   for (const t of Object.keys(files) as BatchTable[]) await writers[t].add((format.bom ? '\uFEFF' : '') + columnsOf(t).join(',') + eol);
   const counts = { returns: 0, lineItems: 0, statements: 0 };
   const labels: PlantLabel[] = [];
+  const answers: ReturnAnswer[] = [];
   const retCols = columnsOf('returns') as (keyof import('../../shared/demo/aldermere').ReturnFileRow)[];
   for (const g of generateReturns(opts)) {
     await writers.returns.add(retCols.map((c) => csvField(g.ret[c])).join(',') + eol);
@@ -69,9 +73,10 @@ export async function writeCsvBatch(dir: string, opts: GenerateOptions, format: 
     for (const s of g.statements) await writers.statements.add(`${s.tin},${s.tax_year},${s.kind},${csvField(s.payer)},${s.amount}${eol}`);
     counts.statements += g.statements.length;
     if (g.label) labels.push(g.label);
+    answers.push(g.answer);
   }
   for (const w of Object.values(writers)) await w.close();
-  return { files, counts, labels };
+  return { files, counts, labels, answers };
 }
 
 /**
@@ -84,6 +89,7 @@ export async function writeXlsxBatch(file: string, opts: GenerateOptions): Promi
   const wb = new ExcelJS.stream.xlsx.WorkbookWriter({ filename: file, useStyles: false, useSharedStrings: false });
   const counts = { returns: 0, lineItems: 0, statements: 0 };
   const labels: PlantLabel[] = [];
+  const answers: ReturnAnswer[] = [];
   for (const table of ['returns', 'line_items', 'statements'] as const) {
     const ws = wb.addWorksheet(table);
     const cols = columnsOf(table);
@@ -93,6 +99,7 @@ export async function writeXlsxBatch(file: string, opts: GenerateOptions): Promi
         ws.addRow(cols.map((c) => g.ret[c as keyof typeof g.ret])).commit();
         counts.returns++;
         if (g.label) labels.push(g.label);
+        answers.push(g.answer);
       } else if (table === 'line_items') {
         // Amounts as numbers, as a spreadsheet holds them.
         for (const l of g.lines) ws.addRow([l.return_ref, l.line_code, Number(l.amount)]).commit();
@@ -105,32 +112,42 @@ export async function writeXlsxBatch(file: string, opts: GenerateOptions): Promi
     ws.commit();
   }
   await wb.commit();
-  return { files: { returns: file, line_items: file, statements: file }, counts, labels };
+  return { files: { returns: file, line_items: file, statements: file }, counts, labels, answers };
 }
 
 /**
- * Writes the answer file: which returns were planted and how (PLANT_KINDS explains each
- * kind). JSON for programs (the ranking benchmark), CSV beside it for people.
+ * Writes the answer file, apart from the batch: every return with its planted kinds (none
+ * for a typical return; PLANT_KINDS explains each) and its habits (HABIT_KINDS). JSON for
+ * programs (the ranking benchmark), CSV beside it for people. `labels` in the JSON keeps
+ * the planted returns alone, as before.
  */
-export function writeAnswers(dir: string, opts: GenerateOptions, labels: PlantLabel[]): { json: string; csv: string } {
+export function writeAnswers(dir: string, opts: GenerateOptions, answers: readonly ReturnAnswer[]): { json: string; csv: string } {
   fs.mkdirSync(dir, { recursive: true });
   const json = path.join(dir, 'answers.json');
   const csv = path.join(dir, 'answers.csv');
+  const labels = answers.filter((a) => a.kinds.length > 0);
+  const habitCounts = Object.fromEntries(Object.keys(HABIT_KINDS).map((h) => [h, answers.filter((a) => a.habits.includes(h as keyof typeof HABIT_KINDS)).length]));
   fs.writeFileSync(
     json,
     JSON.stringify(
       {
         scenario: 'Revenue Office of Aldermere (fictional); all names and figures invented',
-        options: { ...opts, plantShare: opts.plantShare ?? 0.05 },
+        options: { ...opts, plantShare: opts.plantShare ?? 0.05, habits: opts.habits ?? 'off' },
         plantKinds: PLANT_KINDS,
+        habitKinds: HABIT_KINDS,
+        returnsWithHabit: habitCounts,
         planted: labels.length,
         labels,
+        returns: answers,
       },
       null,
       2,
     ),
   );
-  const lines = ['return_ref,tin,tax_year,preparer_id,kinds,detail', ...labels.map((l) => [l.returnRef, l.tin, String(l.taxYear), l.preparerId, l.kinds.join(' '), l.detail].map(csvField).join(','))];
+  const lines = [
+    'return_ref,tin,tax_year,preparer_id,planted_kinds,habits,detail,habit_detail',
+    ...answers.map((l) => [l.returnRef, l.tin, String(l.taxYear), l.preparerId, l.kinds.join(' '), l.habits.join(' '), l.detail, l.habitDetail].map(csvField).join(',')),
+  ];
   fs.writeFileSync(csv, lines.join('\n') + '\n');
   return { json, csv };
 }

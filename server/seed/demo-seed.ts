@@ -7,7 +7,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import type { DataSource } from 'typeorm';
-import { DEMO_YEARS, type GenerateOptions } from '../../shared/demo/aldermere';
+import { DEFAULT_HABIT_SHARES, DEMO_YEARS, type GenerateOptions } from '../../shared/demo/aldermere';
 import { DEFAULT_INTAKE_LIMITS } from '../../shared/returns/batch-rows';
 import type { Role } from '../../shared/roles';
 import { ingestUpload } from '../batches/batch.service';
@@ -18,7 +18,7 @@ import { writeAnswers, writeCsvBatch } from './batch-files';
 /** The demo password (README says: demo only, change before real use). */
 export const DEMO_PASSWORD = 'plumbline-demo';
 
-/** Demo accounts from DESIGN.md section 10; names invented. */
+/** Demo accounts as the README lists them (README.md, "What runs where"); names invented. */
 export const DEMO_ACCOUNTS: { username: string; displayName: string; role: Role }[] = [
   { username: 'clerk', displayName: 'Tamsin Orlo (intake)', role: 'clerk' },
   { username: 'examiner', displayName: 'Ivo Brackley', role: 'examiner' },
@@ -41,8 +41,12 @@ export async function seedDemoAccounts(ds: DataSource): Promise<number> {
   return created;
 }
 
-/** The demo batch: a few thousand Aldermere returns, 2022–2025, about 5 % planted. */
-export const DEMO_BATCH: GenerateOptions = { seed: 'aldermere-demo', returns: 3000, plantShare: 0.05, years: DEMO_YEARS };
+/**
+ * The demo batch: a few thousand Aldermere returns, 2022–2025, about 5 % planted, with every
+ * typical-filer habit at its default share (whole units, recurring bills, the large firm,
+ * zero-tax refunds, monthly gifts, retirement), as real batches have them.
+ */
+export const DEMO_BATCH: GenerateOptions = { seed: 'aldermere-demo', returns: 3000, plantShare: 0.05, years: DEMO_YEARS, habits: DEFAULT_HABIT_SHARES };
 
 /** Where the demo's answer file (the planted returns) is written, outside the batch. */
 export const DEMO_ANSWERS_DIR = path.resolve(__dirname, '..', '..', '.data', 'demo');
@@ -63,7 +67,7 @@ export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO
   try {
     const t0 = Date.now();
     const written = await writeCsvBatch(dir, opts);
-    writeAnswers(DEMO_ANSWERS_DIR, opts, written.labels);
+    writeAnswers(DEMO_ANSWERS_DIR, opts, written.answers);
     if (boss) {
       await boss.start();
       await ensureQueues(boss);
@@ -76,7 +80,7 @@ export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO
     );
     if (outcome.kind !== 'accepted') throw new Error(`the demo batch was not accepted: ${JSON.stringify(outcome.body).slice(0, 1000)}`);
     const c = outcome.batch.counts;
-    return `loaded the Aldermere demo batch: ${c.returns} returns, ${c.lineItems} line items, ${c.statements} statements in ${((Date.now() - t0) / 1000).toFixed(1)} s; ${written.labels.length} planted returns listed in ${path.relative(process.cwd(), DEMO_ANSWERS_DIR)}/answers.json`;
+    return `loaded the Aldermere demo batch: ${c.returns} returns, ${c.lineItems} line items, ${c.statements} statements in ${((Date.now() - t0) / 1000).toFixed(1)} s; ${written.labels.length} planted returns (and every return's habits) listed in ${path.relative(process.cwd(), DEMO_ANSWERS_DIR)}/answers.json`;
   } finally {
     await boss?.stop({ graceful: false, wait: true }).catch(() => undefined);
     fs.rmSync(dir, { recursive: true, force: true });
