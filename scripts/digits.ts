@@ -1,5 +1,5 @@
 /**
- * Digit profile of one column of amounts (DESIGN.md section 10):
+ * Digit profile of one column of amounts (docs/design.md#command-line):
  *
  *   npm run --silent digits -- FILE [--column NAME] [--json]
  *

@@ -1,5 +1,5 @@
 /**
- * Sign-in contract (DESIGN.md section 10): login and `me` answer {user, csrfToken}; every
+ * Sign-in contract (docs/design.md#api-contract): login and `me` answer {user, csrfToken}; every
  * state-changing request after login sends the token in the `X-CSRF-Token` header.
  */
 import { z } from 'zod';

@@ -1,5 +1,5 @@
 /**
- * The case-work API contract (DESIGN.md section 10, issue 7): the queue, one case, the
+ * The case-work API contract (docs/design.md#api-contract, issue 7): the queue, one case, the
  * supervisor's workload, and the request bodies beyond those in shared/cases.ts. The server
  * answers in these shapes and the app parses every answer with them.
  *

@@ -1,5 +1,5 @@
 /**
- * Examination cases (DESIGN.md section 2): states and the moves between them.
+ * Examination cases (docs/design.md#case-states): states and the moves between them.
  * open → assigned → in_review → awaiting_reply → (referred | closed_no_change | closed_adjusted)
  */
 import { z } from 'zod';
@@ -23,7 +23,7 @@ export const CASE_STATE_LABELS: Record<CaseState, string> = {
 export const FINAL_STATES: readonly CaseState[] = ['referred', 'closed_no_change', 'closed_adjusted'];
 
 /**
- * The moves a case may make (DESIGN.md section 2). `open → assigned` happens only by claim
+ * The moves a case may make (docs/design.md#case-states). `open → assigned` happens only by claim
  * or assignment; `in_review → awaiting_reply` only by sending a document request.
  */
 export const CASE_TRANSITIONS: Readonly<Record<CaseState, readonly CaseState[]>> = {

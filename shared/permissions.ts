@@ -1,5 +1,5 @@
 /**
- * Who may do what: the one policy table (DESIGN.md section 10, need-to-know). The server's
+ * Who may do what: the one policy table (docs/design.md#roles, need-to-know). The server's
  * routes name a capability from here (`allow('uploadBatches')`), and the app shows only
  * what a role may use, from the same table.
  *

@@ -1,5 +1,5 @@
 /**
- * The four staff roles (DESIGN.md section 1). Taxpayers have no account.
+ * The four staff roles (docs/design.md#roles). Taxpayers have no account.
  */
 import { z } from 'zod';
 

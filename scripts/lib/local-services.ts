@@ -16,7 +16,7 @@ export interface LocalSetup {
   maildevDir: string;
 }
 
-/** The start command's services (DESIGN.md section 10 defaults). */
+/** The start command's services (the defaults in README.md, "What runs where"). */
 export const startSetup: LocalSetup = {
   cluster: {
     dataDir: path.join(projectRoot, '.pg', 'data'),

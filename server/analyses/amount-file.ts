@@ -1,6 +1,6 @@
 /**
  * Reading a column of amounts from a file: a text file with one amount a line, or a CSV or
- * XLSX file with a header row (DESIGN.md section 10). Shared by the `digits` command line
+ * XLSX file with a header row (docs/design.md#command-line). Shared by the `digits` command line
  * and `POST /api/analyses/digits`.
  *
  * Without a column name, a file with one column uses it, otherwise a column called

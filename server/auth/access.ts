@@ -3,7 +3,7 @@
  * {@link secureRouter}. A route registered without a rule throws at start-up, and
  * tests/api/route-policy.test.ts walks every registered route against every role.
  *
- * Rules follow DESIGN.md section 10 (need-to-know): clerk — batches; examiner — cases
+ * Rules follow docs/design.md#roles (need-to-know): clerk — batches; examiner — cases
  * (read, claim, own cases' actions), analyses; supervisor — everything an examiner may, on
  * every case, plus assign, export, scoring profiles, batches (read); admin — users and the
  * access log, but no taxpayer data.

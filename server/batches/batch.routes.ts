@@ -1,5 +1,5 @@
 /**
- * Batches API (DESIGN.md section 10):
+ * Batches API (docs/design.md#api-contract):
  *  - `POST /api/batches` (clerk), multipart: `file` (one XLSX workbook) or `returns` +
  *    `line_items` (+ `statements`) CSV parts → 201 {id, state, counts, amendedReturns},
  *    422 {error, batchId, errorCount, errors: [{file, row, column, message, value}]},

@@ -3,7 +3,7 @@ import type { BatchIssue, BatchState } from '../../shared/returns/batch-rows';
 import { User } from '../users/user.entity';
 
 /**
- * One uploaded file set (DESIGN.md section 2): received → validating → rejected | queued →
+ * One uploaded file set (docs/design.md#batch-states): received → validating → rejected | queued →
  * scoring → scored. A rejected batch keeps only this record and its error report; none of
  * its rows are stored.
  *

@@ -6,7 +6,7 @@ import { validate } from '../http/validate';
 import { addNote, assign, bulkReassign, claim, exportCases, getCaseDetail, listCases, listExaminers, revealTin, transition } from './case.service';
 
 /**
- * Case work (DESIGN.md section 10, issue 7). Examiners read every case and act on their
+ * Case work (docs/design.md#api-contract, issue 7). Examiners read every case and act on their
  * own (the services check that per case); supervisors act on every case, assign and export.
  * Fixed paths (`/cases/export.xlsx`, `/cases/reassign`) come before `/cases/:id`.
  */

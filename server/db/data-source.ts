@@ -5,7 +5,7 @@ import { migrations } from './migrations';
 
 /**
  * Builds the TypeORM data source. Schema changes only through migrations: `synchronize`
- * stays off everywhere (DESIGN.md section 3).
+ * stays off everywhere (docs/design.md#data-model).
  */
 export function createDataSource(url: string, opts: { poolSize?: number; applicationName?: string } = {}): DataSource {
   return new DataSource({

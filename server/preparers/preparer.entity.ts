@@ -2,7 +2,7 @@ import { Column, CreateDateColumn, Entity, PrimaryGeneratedColumn } from 'typeor
 
 /**
  * A return preparer (a paid adviser), known by the id returns carry in `preparer_id`.
- * Scoring pools all of one preparer's returns (DESIGN.md section 5).
+ * Scoring pools all of one preparer's returns (docs/methods.md#pooled-figures).
  */
 @Entity({ name: 'preparer' })
 export class Preparer {

@@ -1,5 +1,5 @@
 /**
- * Invented names for the Aldermere demo (DESIGN.md section 9): people, firms, banks,
+ * Invented names for the Aldermere demo (docs/design.md#demo-data): people, firms, banks,
  * streets and towns of a fictional county. Surnames are built from syllables so they are
  * nobody in particular; towns and firms are made up. E-mail addresses use the reserved
  * example.net domain, so no mail can reach a real person.

@@ -1,20 +1,22 @@
 /**
  * The hot path: digit counts from integer cents, without allocating per amount.
  *
- * Digits come from the integer number of cents c (METHODS.md, "Which amounts each test
- * takes"). The amount is c / 100, so the significant digits of the amount are the decimal
- * digits of c: 0.05 has c = 5 (first digit 5), 1234.5 has c = 123450 (digits 1, 2, ...).
+ * Digits come from the integer number of cents c
+ * (docs/methods.md#which-amounts-each-test-takes). The amount is c / 100, so the
+ * significant digits of the amount are the decimal digits of c: 0.05 has c = 5 (first digit 5), 1234.5 has c = 123450 (digits 1, 2, ...).
  *  - first digit: every non-zero amount;
  *  - second digit, first two digits: amounts >= 10, i.e. c >= 1000;
  *  - last two digits: amounts >= 100 (c >= 10000), the last two digits of the whole-unit
- *    part, floor(c / 100) mod 100;
+ *    part, floor(c / 100) mod 100 (the methods set this test at amounts >= 1,000, where
+ *    those digits are past the second significant one: a known gap, see
+ *    docs/methods.md#which-amounts-each-test-takes);
  *  - zero never counts. Each amount left out is tallied with its reason.
  * Exactness: for integers 0 < c < 2^53 and k <= 15, the double quotient c / 10^k is
  * correctly rounded and can never round up across an integer (the gap to the next integer
  * is at least 10^-k, more than half an ulp of the quotient), so floor(c / 10^k) is the
  * exact integer quotient. No logarithm is involved.
  *
- * Positive and negative amounts are counted apart (METHODS.md: analyse them separately);
+ * Positive and negative amounts are counted apart (docs/methods.md#which-amounts-each-test-takes: analyse them separately);
  * the pooled counts are their sum.
  */
 
@@ -270,7 +272,7 @@ export class DigitCounter {
 
   /**
    * Mean absolute deviation of a test without allocating:
-   * MAD = (1/K) sum |AP_i - EP_i| (Nigrini 2012; METHODS.md "Conformity figures").
+   * MAD = (1/K) sum |AP_i - EP_i| (Nigrini 2012; docs/methods.md#conformity-figures).
    *
    * @param test the digit test
    * @param expected expected proportions of the test in report order

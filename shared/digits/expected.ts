@@ -1,7 +1,7 @@
 /**
  * Expected digit proportions under Benford's law, and the names of the four digit tests.
  *
- * Every formula here is in the project's METHODS.md (shared design notes), "Expected proportions". The tables are
+ * Every formula here is in docs/methods.md#expected-proportions. The tables are
  * computed from the formulas (not typed in) so they carry full double precision; the unit
  * tests compare them with the published 5-decimal tables.
  */
@@ -33,7 +33,7 @@ export const BIN_COUNT: Readonly<Record<DigitTestName, number>> = {
 
 /**
  * First significant digit d = 1..9: P(d) = log10(1 + 1/d).
- * Source: Benford 1938; Hill 1995, Statistical Science (METHODS.md "Expected proportions").
+ * Source: Benford 1938; Hill 1995, Statistical Science (docs/methods.md#expected-proportions).
  */
 export const FIRST_DIGIT_EXPECTED: Float64Array = Float64Array.from(range(1, 9), (d) =>
   Math.log10(1 + 1 / d),
@@ -41,7 +41,7 @@ export const FIRST_DIGIT_EXPECTED: Float64Array = Float64Array.from(range(1, 9),
 
 /**
  * Second significant digit d = 0..9: P(d) = sum over k = 1..9 of log10(1 + 1/(10k + d)).
- * Source: Benford 1938; Hill 1995 (METHODS.md "Expected proportions").
+ * Source: Benford 1938; Hill 1995 (docs/methods.md#expected-proportions).
  */
 export const SECOND_DIGIT_EXPECTED: Float64Array = Float64Array.from(range(0, 9), (d) => {
   let p = 0;
@@ -51,7 +51,7 @@ export const SECOND_DIGIT_EXPECTED: Float64Array = Float64Array.from(range(0, 9)
 
 /**
  * First two significant digits n = 10..99: P(n) = log10(1 + 1/n).
- * Source: Benford 1938; Hill 1995 (METHODS.md "Expected proportions").
+ * Source: Benford 1938; Hill 1995 (docs/methods.md#expected-proportions).
  */
 export const FIRST_TWO_EXPECTED: Float64Array = Float64Array.from(range(10, 99), (n) =>
   Math.log10(1 + 1 / n),
@@ -59,7 +59,8 @@ export const FIRST_TWO_EXPECTED: Float64Array = Float64Array.from(range(10, 99),
 
 /**
  * Last two digits of the whole-unit part, 00..99: uniform, P = 0.01 each
- * (amounts >= 100 only; common practice, no source — METHODS.md).
+ * (the counter takes amounts >= 100; the rule is >= 1,000, see
+ * docs/methods.md#which-amounts-each-test-takes; common practice, no source).
  */
 export const LAST_TWO_EXPECTED: Float64Array = new Float64Array(100).fill(0.01);
 

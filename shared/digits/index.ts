@@ -1,6 +1,7 @@
 /**
  * Digit-analysis engine (Benford's law and the forensic tests built on it), pure TypeScript.
- * Methods and sources: the project's METHODS.md (shared design notes); interfaces: DESIGN.md sections 5 and 10.
+ * Methods and sources: docs/methods.md; interfaces: docs/design.md#api-contract and
+ * docs/design.md#command-line.
  *
  * For a list of amounts: {@link profileAmounts} (throws AmountParseError on bad input).
  * For one return at a time, many times over: one {@link DigitCounter} reused with

@@ -2,8 +2,8 @@
  * Amounts in, integer cents out.
  *
  * Digits are taken from the decimal text of an amount, never from floating-point
- * logarithms (DESIGN.md section 5). Every amount is turned once into a signed integer
- * number of cents; the digit engine reads the digits from that integer with exact integer
+ * logarithms (docs/methods.md#which-amounts-each-test-takes). Every amount is turned
+ * once into a signed integer number of cents; the digit engine reads the digits from that integer with exact integer
  * arithmetic. Accepted inputs:
  *  - a JavaScript number, read through its shortest decimal text (what `String(n)` prints);
  *    that text must be a plain decimal with at most 2 decimals (so 0.1 + 0.2, which prints
@@ -25,7 +25,7 @@ const { abs, round } = Math;
  * Largest absolute amount accepted, in cents: amounts must be below 10^13 currency units.
  * Why: cents then stay below 10^15 < 2^53, so every integer step is exact in a double and
  * twice the cents (the sort key, see profile.ts) is exact too. The database keeps amounts
- * as numeric(14,2), i.e. below 10^12 (DESIGN.md section 3), well inside this range.
+ * as numeric(14,2), i.e. below 10^12 (docs/design.md#data-model), well inside this range.
  */
 export const MAX_ABS_CENTS = 1e15 - 1;
 

@@ -1,5 +1,5 @@
 /**
- * The digit profile of a set of amounts: the JSON object of DESIGN.md section 10, printed by
+ * The digit profile of a set of amounts: the JSON object of docs/design.md#command-line, printed by
  * `npm run digits -- FILE --json` and answered by POST /api/analyses/digits.
  *
  * Entry points:
@@ -46,7 +46,7 @@ export interface RoundShare {
   share: number | null;
   /** Share expected when last two digits are uniform: 0.01. */
   expected: number;
-  /** P(X >= count) for X ~ Binomial(n, 0.01) (METHODS.md risk factor "excess round amounts"). */
+  /** P(X >= count) for X ~ Binomial(n, 0.01) (docs/methods.md#other-digit-figures, round-number share). */
   pValue: number | null;
 }
 
@@ -88,7 +88,7 @@ export interface SecondOrder {
   mad: number | null;
 }
 
-/** Distortion factor (Nigrini 1996; formula from memory, METHODS.md). */
+/** Distortion factor (Nigrini 1996; formula from memory, docs/methods.md#other-digit-figures). */
 export interface DistortionFactor {
   /** Amounts >= 10 collapsed into [10, 100). */
   n: number;
@@ -116,7 +116,7 @@ export interface SideProfile {
   sizeAware: SizeAwareResult;
 }
 
-/** The full digit profile (DESIGN.md section 10, plus the documented extra fields). */
+/** The full digit profile (docs/design.md#command-line, plus the documented extra fields). */
 export interface DigitProfile {
   /** Amounts given, zeros included. */
   count: number;
@@ -292,7 +292,7 @@ function sideProfile(counter: DigitCounter, sign: SignSelection): SideProfile {
 
 /**
  * Summation test: share of the total of each first-two group against 1/90
- * (Nigrini 2011, Forensic Analytics; METHODS.md).
+ * (Nigrini 2011, Forensic Analytics; docs/methods.md#other-digit-figures).
  */
 function summation(counter: DigitCounter): Summation {
   const sums: number[] = [];
@@ -319,7 +319,7 @@ function summation(counter: DigitCounter): Summation {
 }
 
 /**
- * Distortion factor (Nigrini 1996, JATA; formula from memory, METHODS.md): amounts >= 10
+ * Distortion factor (Nigrini 1996, JATA; formula from memory, docs/methods.md#other-digit-figures): amounts >= 10
  * collapsed into [10, 100) by moving the point; DF = (mean - EM) / EM with
  * EM = 90 / (n (10^(1/n) - 1)), which tends to 90 / ln 10 = 39.09 for large n.
  */

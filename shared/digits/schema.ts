@@ -1,5 +1,5 @@
 /**
- * zod 4 schema of the digit profile (DESIGN.md section 10): the object printed by
+ * zod 4 schema of the digit profile (docs/design.md#command-line): the object printed by
  * `npm run --silent digits -- FILE --json` and answered by POST /api/analyses/digits.
  * Strict objects, so a field added or renamed in profile.ts without this file fails the tests.
  */

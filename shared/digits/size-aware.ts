@@ -1,7 +1,7 @@
 /**
  * The size-aware figure: is this MAD unusual for a sample of this size?
  *
- * METHODS.md, "Small samples": one return has 15–60 amounts, and under perfect conformity
+ * docs/methods.md#small-samples: one return has 15–60 amounts, and under perfect conformity
  * its expected first-digit MAD (about 0.2349 / sqrt(N), 0.043 at N = 30) is three times the
  * 0.015 "nonconformity" line, so the fixed thresholds would fail nearly every honest return.
  * Instead the observed MAD is compared with its own distribution under conformity for the
@@ -51,7 +51,7 @@ export const HIGH_Z = 3;
 
 /**
  * Fewest amounts for a size-aware verdict (product choice, no source): 15 for the first and
- * second digit — the smallest return DESIGN.md expects; 50 for first two and last two
+ * second digit — the smallest return the office expects; 50 for first two and last two
  * digits, whose 90 or 100 bins are mostly empty below that, so that the MAD then measures
  * little more than how many amounts share a bin.
  */

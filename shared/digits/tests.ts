@@ -1,7 +1,7 @@
 /**
  * The conformity figures of one digit test: MAD with its published conformity level,
  * chi-square with p-value, Kolmogorov–Smirnov, Kuiper, SSD and Z per digit.
- * Formulas and thresholds: METHODS.md, "Conformity figures".
+ * Formulas and thresholds: docs/methods.md#conformity-figures.
  */
 
 import { BIN_COUNT, EXPECTED, type DigitTestName } from './expected';
@@ -12,7 +12,7 @@ export type Conformity = 'close' | 'acceptable' | 'marginal' | 'nonconformity' |
 
 /**
  * Nigrini 2012 (Benford's Law, Wiley) MAD upper bounds of close / acceptable / marginal
- * conformity; above the last bound is nonconformity (METHODS.md). Made for thousands of
+ * conformity; above the last bound is nonconformity (docs/methods.md#conformity-figures). Made for thousands of
  * amounts: never applied below {@link MIN_N_FOR_CONFORMITY}.
  */
 export const MAD_THRESHOLDS: Readonly<Record<'firstDigit' | 'secondDigit' | 'firstTwo', readonly [number, number, number]>> = {
@@ -34,11 +34,11 @@ export const LAST_TWO_P_THRESHOLDS: readonly [number, number, number] = [0.05, 0
  * below it the level is `too_few`. Product rule, derived here (no published source):
  * for the MAD tests, a round N at which a sample drawn exactly from Benford's law is called
  * `nonconformity` at most 1 % of the time. Seeded simulation, 20 000 samples: first digit
- * 0.5 % at N = 800 (1.4 % at 700; 33 % at 300, as METHODS.md says), second digit 0.9 % at
+ * 0.5 % at N = 800 (1.4 % at 700; 33 % at 300, as docs/methods.md#small-samples says), second digit 0.9 % at
  * 1100 (1.7 % at 1000), first two 0.3 % at 2000 (0.8 % at 1900, 2.0 % at 1800; 2000 keeps
  * a margin). The unit tests re-check each value. For the last two digits, 500 = the N at
  * which every expected count reaches 5, the usual validity condition of chi-square
- * (METHODS.md). All are far above the 15–60 amounts of one return, so the fixed
+ * (docs/methods.md#conformity-figures). All are far above the 15–60 amounts of one return, so the fixed
  * thresholds never judge a single return.
  */
 export const MIN_N_FOR_CONFORMITY: Readonly<Record<DigitTestName, number>> = {
@@ -48,7 +48,7 @@ export const MIN_N_FOR_CONFORMITY: Readonly<Record<DigitTestName, number>> = {
   lastTwo: 500,
 };
 
-/** Z at 5 % and 1 % (two-sided), Nigrini 2012 after Fleiss 1981 (METHODS.md). */
+/** Z at 5 % and 1 % (two-sided), Nigrini 2012 after Fleiss 1981 (docs/methods.md#conformity-figures). */
 export const Z_CRITICAL = { p05: 1.96, p01: 2.57 } as const;
 
 /** All figures of one digit test. Numbers are null when the test has no amounts. */
@@ -82,7 +82,7 @@ export interface DigitTestResult {
 }
 
 /**
- * Z for one digit (Nigrini 2012 after Fleiss 1981; METHODS.md):
+ * Z for one digit (Nigrini 2012 after Fleiss 1981; docs/methods.md#conformity-figures):
  * Z = (|AP - EP| - 1/(2N)) / sqrt(EP (1 - EP) / N), the 1/(2N) term dropped when it
  * exceeds |AP - EP|.
  *
@@ -99,7 +99,7 @@ export function zStatistic(ap: number, ep: number, n: number): number {
 }
 
 /**
- * MAD = (1/K) sum_i |AP_i - EP_i| (Nigrini 2012; METHODS.md).
+ * MAD = (1/K) sum_i |AP_i - EP_i| (Nigrini 2012; docs/methods.md#conformity-figures).
  *
  * @param counts counts in report order
  * @param expected expected proportions, same order and length

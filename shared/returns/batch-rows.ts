@@ -1,6 +1,6 @@
 /**
- * The batch file format (DESIGN.md section 4) as zod 4 schemas, and the batch API's
- * answers (DESIGN.md section 10). One contract for the server's intake, the demo
+ * The batch file format (docs/design.md#batch-files) as zod 4 schemas, and the batch API's
+ * answers (docs/design.md#api-contract). One contract for the server's intake, the demo
  * generator, the tests and the Batches screen.
  *
  * Row schemas take one row as `{ column: text }`: every cell already turned into trimmed
@@ -356,7 +356,7 @@ export function statementRowSchema(years: TaxYearRange): z.ZodType<StatementRow,
 }
 
 // ---------------------------------------------------------------------------------------
-// API answers (DESIGN.md section 10)
+// API answers (docs/design.md#api-contract)
 
 /** Batch states: received → validating → rejected | queued → scoring → scored. */
 export const BATCH_STATES = ['received', 'validating', 'rejected', 'queued', 'scoring', 'scored'] as const;

@@ -1,8 +1,8 @@
 /**
  * The line codes of Aldermere's income-tax return, what each means, how the totals are
  * formed, and the office's (invented) tax rules as pure functions on integer cents
- * (DESIGN.md section 4). Intake, scoring, the case screen and the demo generator all read
- * this one list.
+ * (docs/design.md#line-codes-and-tax-rules). Intake, scoring, the case screen and the
+ * demo generator all read this one list.
  *
  * Aldermere's rules (invented for the product, not any real jurisdiction's):
  *   tot.income     = inc.wages + inc.interest + inc.business.receipts − every exp.business.*
@@ -60,7 +60,7 @@ export const LINE_CODE_DEFS: Readonly<Record<LineCode, LineCodeDef>> = Object.fr
 /** Position of each code in {@link LINE_CODES}; lets hot loops keep per-code sums in arrays. */
 export const LINE_CODE_INDEX: Readonly<Record<LineCode, number>> = Object.fromEntries(LINE_CODES.map((c, i) => [c, i])) as Record<LineCode, number>;
 
-/** Activity codes of a taxpayer's main activity (DESIGN.md section 4). */
+/** Activity codes of a taxpayer's main activity (docs/design.md#line-codes-and-tax-rules). */
 export const ACTIVITY_CODES = ['none', 'retail', 'food-service', 'construction', 'personal-care', 'consulting', 'transport', 'rental', 'farming', 'other'] as const;
 export type ActivityCode = (typeof ACTIVITY_CODES)[number];
 

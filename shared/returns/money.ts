@@ -1,7 +1,7 @@
 /**
  * Money as integer cents. Amounts in batch files are decimal text ("1234.5", "-80.00");
  * they are turned once into a signed integer number of cents and computed with exact
- * integer arithmetic (DESIGN.md section 3: money is never a float).
+ * integer arithmetic (docs/design.md#data-model: money is never a float).
  *
  * Why plain numbers and not bigint: every amount a batch may hold is below
  * {@link MAX_LINE_AMOUNT_CENTS}, and a return holds at most {@link MAX_LINES_PER_RETURN}

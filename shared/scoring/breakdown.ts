@@ -1,6 +1,6 @@
 /**
  * The stored and shown explanation of one return's score: every number on the case screen
- * comes from here (DESIGN.md section 5).
+ * comes from here (docs/design.md#scoring-runs).
  */
 import { z } from 'zod';
 import { COMPONENTS } from './settings';

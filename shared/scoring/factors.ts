@@ -1,5 +1,5 @@
 /**
- * The rule-based risk factors (METHODS.md, "Risk factors"). Each is a pure function of one
+ * The rule-based risk factors (docs/methods.md#risk-factors). Each is a pure function of one
  * return's facts and the profile's parameters, and answers with a strength 0–1, evidence a
  * person can read, and (where it can) an estimate of the income an adjustment could add.
  * A factor that does not apply says so with strength 0, so the breakdown explains every line.

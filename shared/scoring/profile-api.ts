@@ -1,6 +1,6 @@
 /**
  * Scoring profiles over the API: versions, a new version, the factor performance read from
- * closed cases, and its suggested re-weighting (DESIGN.md section 5).
+ * closed cases, and its suggested re-weighting (docs/design.md#scoring-runs).
  */
 import { z } from 'zod';
 import { COMPONENTS, ScoringSettingsSchema } from './settings';

@@ -1,6 +1,6 @@
 /**
  * One return's risk score: each component gives a strength 0–1; it adds
- * weight × strength points; the score is the sum, capped at 100 (DESIGN.md section 5). The
+ * weight × strength points; the score is the sum, capped at 100 (docs/methods.md#scoring-components). The
  * sum is the explanation: "+28 points: business expenses are 97 % of receipts".
  *
  * The amount at stake is the tax an adjustment could recover if the strongest concern is

@@ -1,10 +1,11 @@
 /**
  * A scoring profile's settings: the weight of each component (in points out of 100) and
  * every factor's parameter. Profiles are versioned; a new version never changes the old
- * one's scores (DESIGN.md section 5).
+ * one's scores (docs/design.md#scoring-runs).
  *
- * Defaults are common practice, no source, unless a comment names one (METHODS.md, "Risk
- * factors"). They are a starting point for an office to tune, not findings.
+ * Defaults are common practice, no source, unless a comment names one
+ * (docs/methods.md#risk-factors). They are a starting point for an office to tune, not
+ * findings.
  */
 import { z } from 'zod';
 import { ACTIVITY_CODES, ALDERMERE_THRESHOLDS, DEFAULT_CASH_HEAVY_ACTIVITIES } from '../returns/line-codes';
@@ -56,7 +57,7 @@ export const ScoringSettingsSchema = z.object({
   /** A case is opened for every return scoring at or above this. */
   selectionCut: z.number().min(0).max(100),
   params: z.object({
-    /** Totals may differ from the recomputed ones by this much (METHODS.md: more than 1 unit). */
+    /** Totals may differ from the recomputed ones by this much (docs/methods.md#risk-factors: more than 1 unit). */
     totalsToleranceCents: cents,
     /** Income short of statements by more than max(this, share × statements). */
     statementShortfallMinCents: cents,

@@ -1,5 +1,5 @@
 /**
- * Working a case through the API: claim, every move of DESIGN.md section 2 allowed and
+ * Working a case through the API: claim, every move of docs/design.md#case-states allowed and
  * refused, closing with the outcome, who may act, notes (append-only), and assignment.
  */
 import { CASE_STATES, CASE_TRANSITIONS, type CaseState } from '../../shared/cases';

@@ -44,7 +44,7 @@ describe('the examination queue (GET /api/cases)', () => {
     expect(caseCount).toBeLessThanOrEqual(100);
   });
 
-  it('lists by priority, highest first, with the count and paging of DESIGN.md section 10', async () => {
+  it('lists by priority, highest first, with the count and paging of docs/design.md#api-contract', async () => {
     const p1 = await list(examiner, '?pageSize=10');
     expect(p1).toMatchObject({ total: caseCount, page: 1, pageSize: 10 });
     expect(p1.items).toHaveLength(10);

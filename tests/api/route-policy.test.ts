@@ -53,7 +53,7 @@ describe('route × role policy', () => {
     await ctx.close();
   });
 
-  it('the policy table matches DESIGN.md section 10', () => {
+  it('the policy table matches docs/design.md#roles', () => {
     // Literal copy of the design's "who may do what", so a drift in shared/permissions.ts shows.
     expect(CAN).toEqual({
       uploadBatches: ['clerk'],

@@ -1,5 +1,5 @@
 /**
- * The digits command line (DESIGN.md section 10), run as a child process on fixture files
+ * The digits command line (docs/design.md#command-line), run as a child process on fixture files
  * written to a temporary directory: `node_modules/.bin/tsx scripts/digits.ts FILE ...`.
  */
 
@@ -45,14 +45,14 @@ afterAll(() => {
 });
 
 describe('npm run digits -- FILE --json', () => {
-  it('text file, one amount a line: exactly the JSON of profileAmounts, with the fields of DESIGN.md section 10', () => {
+  it('text file, one amount a line: exactly the JSON of profileAmounts, with the fields of docs/design.md#command-line', () => {
     const file = write('amounts.txt', `\uFEFF${AMOUNTS.join('\r\n')}\r\n\r\n`);
     const r = run(file, '--json');
     expect(r.stderr).toBe('');
     expect(r.status).toBe(0);
     expect(r.stdout.trim().split('\n')).toHaveLength(1); // one JSON object on one line
     const json = JSON.parse(r.stdout) as Record<string, unknown>;
-    // the contract's fields (DESIGN.md section 10) ...
+    // the contract's fields (docs/design.md#command-line) ...
     for (const key of ['count', 'excluded', 'firstDigit', 'secondDigit', 'firstTwo', 'lastTwo', 'sizeAware', 'roundShare', 'duplicates', 'summation']) {
       expect(json).toHaveProperty(key);
     }

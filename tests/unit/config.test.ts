@@ -1,7 +1,7 @@
 import { ConfigError, loadConfig } from '../../server/config';
 
 describe('loadConfig', () => {
-  it('fills defaults from DESIGN.md section 10', () => {
+  it('fills the defaults README.md lists ("What runs where")', () => {
     const c = loadConfig({ DATABASE_URL: 'postgres://u:p@127.0.0.1:54329/plumbline' });
     expect(c.PORT).toBe(8080);
     expect(c.SMTP_PORT).toBe(1025);

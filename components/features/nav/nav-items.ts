@@ -1,5 +1,5 @@
 /**
- * Where each role may go (DESIGN.md sections 1 and 10): navigation shows only these.
+ * Where each role may go (docs/design.md#roles): navigation shows only these.
  * Add a feature's screen here with the roles that may use it.
  */
 import type { Role } from '../../../shared/roles';

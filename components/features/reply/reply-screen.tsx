@@ -1,6 +1,6 @@
 /**
- * The taxpayer's reply page (DESIGN.md section 7): no sign-in, reached by the one-time link
- * in a document-request letter. It names the office, says what is asked and by when, lets
+ * The taxpayer's reply page (docs/design.md#letters-and-replies): no sign-in, reached by
+ * the one-time link in a document-request letter. It names the office, says what is asked and by when, lets
  * the taxpayer choose PDF, JPEG or PNG files and send them with visible progress, and ends
  * in a clear thank-you, or says plainly that the link was used or has expired and whom to
  * contact. It shows nothing else about the case: no TIN, no figures.

@@ -10,7 +10,7 @@ const STATEMENT_KINDS = `'wages', 'interest', 'sales'`;
 
 /**
  * Filing intake (issue 4): taxpayers, preparers, filing batches, returns, their line items
- * and third-party statements. Money is numeric, never float (DESIGN.md section 3).
+ * and third-party statements. Money is numeric, never float (docs/design.md#data-model).
  *
  * line_item has no declared foreign key to tax_return. A FOREIGN KEY checks each inserted
  * row on its own (one index probe and row lock per row): measured at about 5.7 s per

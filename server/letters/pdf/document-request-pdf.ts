@@ -1,7 +1,7 @@
 /**
- * The document-request letter (DESIGN.md section 6): what we would like to see, why in plain
- * words, by when, how to send it, and whom to ask. It asks; it does not accuse. It never
- * mentions scores, digit tests or anything that reads as suspicion (section 8).
+ * The document-request letter (docs/design.md#letters-and-replies): what we would like to
+ * see, why in plain words, by when, how to send it, and whom to ask. It asks; it does not accuse. It never
+ * mentions scores, digit tests or anything that reads as suspicion (docs/design.md#cautions).
  */
 import { longDate, OFFICE, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../../shared/letters';
 import { callout, contentWidth, F, figureFace, footers, INK, INK_SOFT, keepTogether, letterhead, newPdf, pdfBytes, PAPER, BRASS, printable } from './pdf-base';

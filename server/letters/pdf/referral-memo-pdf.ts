@@ -1,5 +1,5 @@
 /**
- * The referral memo (DESIGN.md section 6): an internal PDF that hands a case to a
+ * The referral memo (docs/design.md#letters-and-replies): an internal PDF that hands a case to a
  * specialist unit with the evidence: case facts (TIN masked), the score with every
  * component's points and evidence, the first-digit chart against Benford's expected
  * proportions drawn as vector graphics, the examiner's notes and the case history. The

@@ -16,7 +16,7 @@ interface JStat {
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 const jStat = require('jstat') as JStat;
 
-describe('Z per digit with continuity correction (Nigrini 2012 after Fleiss 1981, METHODS.md)', () => {
+describe('Z per digit with continuity correction (Nigrini 2012 after Fleiss 1981, docs/methods.md#conformity-figures)', () => {
   it('subtracts 1/(2N) from |AP - EP|', () => {
     // N = 100, AP = 0.35, EP = 0.30103: (0.04897 - 0.005) / sqrt(0.30103 * 0.69897 / 100)
     const want = (0.35 - 0.30103 - 0.005) / Math.sqrt((0.30103 * 0.69897) / 100);
@@ -34,7 +34,7 @@ describe('Z per digit with continuity correction (Nigrini 2012 after Fleiss 1981
   });
 });
 
-describe('MAD, chi-square, KS, Kuiper and SSD on a worked example (formulas of METHODS.md)', () => {
+describe('MAD, chi-square, KS, Kuiper and SSD on a worked example (formulas of docs/methods.md#conformity-figures)', () => {
   // 100 first digits: 1 x40, 2 x20, 3 x10, 4..9 x5
   const counts = [40, 20, 10, 5, 5, 5, 5, 5, 5];
   const r = evaluateDigitTest('firstDigit', counts);
@@ -76,7 +76,7 @@ describe('MAD, chi-square, KS, Kuiper and SSD on a worked example (formulas of M
   });
 });
 
-describe('conformity levels (Nigrini 2012 thresholds, METHODS.md)', () => {
+describe('conformity levels (Nigrini 2012 thresholds, docs/methods.md#conformity-figures)', () => {
   it.each([
     ['firstDigit', 0.006, 'close'],
     ['firstDigit', 0.0061, 'acceptable'],
@@ -128,7 +128,7 @@ describe('conformity levels (Nigrini 2012 thresholds, METHODS.md)', () => {
   });
 });
 
-describe('Kolmogorov–Smirnov and Kuiper critical values for first digits (Morrow 2014, from memory, METHODS.md)', () => {
+describe('Kolmogorov–Smirnov and Kuiper critical values for first digits (Morrow 2014, from memory, docs/methods.md#conformity-figures)', () => {
   it('sqrt(N) D and sqrt(N) V of Benford samples: 95th and 99th percentiles near 1.148 / 1.420 and 1.321 / 1.579 (seeded simulation, N = 2000)', () => {
     const n = 2000;
     const draws = 20_000;

@@ -19,7 +19,7 @@ const SECOND = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9];
 const TWO = Array.from({ length: 90 }, (_, i) => i + 10);
 const LAST = Array.from({ length: 100 }, (_, i) => i);
 
-describe('digit extraction from the decimal text (METHODS.md "Which amounts each test takes")', () => {
+describe('digit extraction from the decimal text (docs/methods.md#which-amounts-each-test-takes)', () => {
   it('decimalDigitCount at every power of ten and one below it (math fact)', () => {
     for (let k = 0; k <= 15; k++) {
       expect(decimalDigitCount(10 ** k)).toBe(k + 1);

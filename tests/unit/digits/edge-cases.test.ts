@@ -1,6 +1,6 @@
 import { digitProfileSchema, profileAmounts, type DigitProfile } from '../../../shared/digits';
 
-/** Every profile must match the published JSON contract (DESIGN.md section 10) and be plain JSON. */
+/** Every profile must match the published JSON contract (docs/design.md#command-line) and be plain JSON. */
 function checked(p: DigitProfile): DigitProfile {
   const json = JSON.parse(JSON.stringify(p)) as unknown;
   expect(json).toEqual(p); // nothing lost in JSON: no NaN, Infinity or undefined
@@ -114,7 +114,7 @@ describe('the list-based tests', () => {
     expect(nonZero).toEqual({ 50: 1, 10: 1, 12: 1 }); // 0.05 -> digits 5,0; 1.00 -> 1,0; 12.00 -> 1,2
   });
 
-  it('round-number share: amounts >= 100 ending in 00, binomial tail against 1 % (METHODS.md risk factors)', () => {
+  it('round-number share: amounts >= 100 ending in 00, binomial tail against 1 % (docs/methods.md#other-digit-figures)', () => {
     const amounts = ['100', '200.50', '3100', '4700', '123', '99', '250'];
     const p = profileAmounts(amounts);
     // the whole-unit part decides (as in the last-two test): 200.50 counts as round

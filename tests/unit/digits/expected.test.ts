@@ -7,13 +7,13 @@ import {
 } from '../../../shared/digits';
 
 describe('expected proportions against the published tables', () => {
-  it('first digit: Benford 1938 / Hill 1995 table as quoted in METHODS.md (5 decimals)', () => {
+  it('first digit: Benford 1938 / Hill 1995 table as quoted in docs/methods.md#expected-proportions (5 decimals)', () => {
     const published = [0.30103, 0.17609, 0.12494, 0.09691, 0.07918, 0.06695, 0.05799, 0.05115, 0.04576];
     expect(FIRST_DIGIT_EXPECTED).toHaveLength(9);
     published.forEach((p, i) => expect(FIRST_DIGIT_EXPECTED[i]).toBeCloseTo(p, 5));
   });
 
-  it('second digit: Benford 1938 / Hill 1995 table as quoted in METHODS.md (5 decimals)', () => {
+  it('second digit: Benford 1938 / Hill 1995 table as quoted in docs/methods.md#expected-proportions (5 decimals)', () => {
     const published = [0.11968, 0.11389, 0.10882, 0.10433, 0.10031, 0.09668, 0.09337, 0.09035, 0.08757, 0.085];
     expect(SECOND_DIGIT_EXPECTED).toHaveLength(10);
     published.forEach((p, i) => expect(SECOND_DIGIT_EXPECTED[i]).toBeCloseTo(p, 5));
@@ -41,7 +41,7 @@ describe('expected proportions against the published tables', () => {
     expect(FIRST_TWO_EXPECTED[89]).toBeCloseTo(0.00436, 5);
   });
 
-  it('last two digits: uniform 0.01 (METHODS.md, common practice, no source)', () => {
+  it('last two digits: uniform 0.01 (docs/methods.md#expected-proportions, common practice, no source)', () => {
     expect(LAST_TWO_EXPECTED).toHaveLength(100);
     expect(Array.from(LAST_TWO_EXPECTED).every((p) => p === 0.01)).toBe(true);
   });

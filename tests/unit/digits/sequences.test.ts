@@ -1,7 +1,7 @@
 import { profileAmounts } from '../../../shared/digits';
 
 /**
- * Known-conforming sequences (METHODS.md: math facts; computed here with BigInt).
+ * Known-conforming sequences (docs/methods.md#known-conforming-sequences: math facts; computed here with BigInt).
  * The engine takes amounts below 10^13, so each term goes in as the decimal text of its
  * first 12 digits: the leading digits, which are all these tests read, are unchanged.
  */
@@ -61,7 +61,7 @@ describe.each([
     expect(profile.firstDigit.counts).toEqual(knownFirst);
   });
 
-  it('conform closely: MAD < 0.001 (METHODS.md), level "close" at N = 1000', () => {
+  it('conform closely: MAD < 0.001 (docs/methods.md#known-conforming-sequences), level "close" at N = 1000', () => {
     expect(profile.firstDigit.n).toBe(1000);
     expect(profile.firstDigit.mad).toBeLessThan(0.001);
     expect(profile.firstDigit.conformity).toBe('close');

@@ -50,7 +50,7 @@ describe('expected MAD under conformity, exact (De Moivre; Diaconis & Zabell 199
     expect(expectedMad(test, n)).toBeCloseTo(bruteForceExpectedMad(EXPECTED[test], n), 13);
   });
 
-  it('tends to the METHODS.md constants sqrt(2/pi) mean sqrt(p(1-p)) / sqrt(N): 0.2349, 0.2389, 0.0794', () => {
+  it('tends to the docs/methods.md#small-samples constants sqrt(2/pi) mean sqrt(p(1-p)) / sqrt(N): 0.2349, 0.2389, 0.0794', () => {
     const n = 1_000_000;
     const quoted: Array<[DigitTestName, number]> = [
       ['firstDigit', 0.2349],
@@ -63,7 +63,7 @@ describe('expected MAD under conformity, exact (De Moivre; Diaconis & Zabell 199
       expect(Math.abs(limit - c)).toBeLessThan(1e-4); // the constant, to the 4 decimals quoted
       expect(Math.abs(expectedMad(t, n) * Math.sqrt(n) - limit)).toBeLessThan(1e-4);
     }
-    // and at N = 30 it is 0.043, three times the 0.015 nonconformity line (METHODS.md)
+    // and at N = 30 it is 0.043, three times the 0.015 nonconformity line (docs/methods.md#small-samples)
     expect(expectedMad('firstDigit', 30)).toBeCloseTo(0.043, 3);
   });
 
@@ -78,7 +78,7 @@ describe('expected MAD under conformity, exact (De Moivre; Diaconis & Zabell 199
     }
   });
 
-  it('METHODS.md "computed here": P(first-digit MAD > 0.015) is 0.998 at N = 30, 0.92 at 100, 0.33 at 300', () => {
+  it('docs/methods.md#small-samples "computed here": P(first-digit MAD > 0.015) is 0.998 at N = 30, 0.92 at 100, 0.33 at 300', () => {
     const share = (n: number) => {
       const mads = simulateMads(n, 20_000, 4242 + n).firstDigit;
       return mads.filter((m) => m > 0.015).length / mads.length;

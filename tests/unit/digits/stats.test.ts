@@ -24,7 +24,7 @@ interface JStat {
 const jStat = require('jstat') as JStat;
 
 describe('chi-square critical values (NIST/SEMATECH e-Handbook of Statistical Methods, table 1.3.6.7.4)', () => {
-  // Upper-tail critical values, as quoted in METHODS.md, 3 decimals in the table.
+  // Upper-tail critical values, as quoted in docs/methods.md#conformity-figures, 3 decimals in the table.
   it.each([
     [8, 0.05, 15.507],
     [8, 0.01, 20.09],

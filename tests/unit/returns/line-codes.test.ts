@@ -1,12 +1,12 @@
 /**
- * Aldermere's tax rules on integer cents. These are invented rules (DESIGN.md §4), so the
+ * Aldermere's tax rules on integer cents. These are invented rules (docs/design.md#line-codes-and-tax-rules), so the
  * expected figures are worked out by hand here from that text, not taken from any real law.
  */
 import { ALDERMERE_TAX, computeTax, computeTotals, LINE_CODE_LIST, LINE_CODES, type CentsLine } from '../../../shared/returns/line-codes';
 
 const u = (units: number) => Math.round(units * 100); // units → cents
 
-describe('computeTax (invented rules, DESIGN.md §4)', () => {
+describe('computeTax (invented rules, docs/design.md#line-codes-and-tax-rules)', () => {
   it.each([
     ['nothing taxable', 0, 0],
     ['a negative amount counts as nothing', -500_00, 0],
@@ -31,7 +31,7 @@ describe('computeTax (invented rules, DESIGN.md §4)', () => {
   });
 });
 
-describe('computeTotals (invented rules, DESIGN.md §4)', () => {
+describe('computeTotals (invented rules, docs/design.md#line-codes-and-tax-rules)', () => {
   it('a wage earner: 50,000 wages, 4,000 withheld → taxable 38,000, tax 3,800, refund 200', () => {
     const t = computeTotals([
       { code: 'inc.wages', cents: u(50_000) },
@@ -80,7 +80,7 @@ describe('computeTotals (invented rules, DESIGN.md §4)', () => {
 });
 
 describe('the line-code list', () => {
-  it('has every code DESIGN.md §4 names, each with a meaning', () => {
+  it('has every code docs/design.md#line-codes-and-tax-rules names, each with a meaning', () => {
     const required = ['inc.wages', 'inc.interest', 'inc.business.receipts', 'exp.business.supplies', 'exp.business.vehicle', 'exp.business.travel', 'exp.business.other', 'ded.charity', 'ded.medical', 'tot.income', 'tot.deductions', 'tax.withheld', 'tax.refund'];
     expect([...LINE_CODES].sort()).toEqual([...required].sort());
     for (const d of LINE_CODE_LIST) expect(d.meaning.length).toBeGreaterThan(20);

@@ -1,6 +1,6 @@
 /**
  * Worked examples of each risk factor and of the blend. Aldermere's rules and thresholds are
- * invented (DESIGN.md §4); defaults are common practice, no source (METHODS.md "Risk factors").
+ * invented (docs/design.md#line-codes-and-tax-rules); defaults are common practice, no source (docs/methods.md#risk-factors).
  */
 import fc from 'fast-check';
 import { computeTotals, type CentsLine } from '../../../shared/returns/line-codes';
