@@ -2,8 +2,39 @@
  * Server and worker configuration, read from the environment once at start-up and
  * validated with zod so a wrong setting stops the process with a clear message.
  */
+import { isIP } from 'node:net';
 import path from 'node:path';
 import { z } from 'zod';
+
+/** Express's names for address ranges it can trust as proxies. */
+const PROXY_RANGE_NAMES = ['loopback', 'linklocal', 'uniquelocal'];
+
+/** True for an IPv4/IPv6 address, optionally with a /prefix, or one of Express's range names. */
+function isProxyEntry(entry: string): boolean {
+  if (PROXY_RANGE_NAMES.includes(entry)) return true;
+  const [addr, prefix, ...extra] = entry.split('/');
+  const family = isIP(addr);
+  if (!family || extra.length) return false;
+  if (prefix === undefined) return true;
+  if (!/^\d{1,3}$/.test(prefix)) return false;
+  return Number(prefix) <= (family === 4 ? 32 : 128);
+}
+
+/**
+ * The proxies whose X-Forwarded-For is believed: a comma-separated list of addresses, CIDR
+ * ranges or Express's names (loopback, linklocal, uniquelocal). Unset means no proxy, so
+ * the socket address counts and a client cannot choose its own address for the sign-in
+ * throttle. Hop counts and "true" are refused: they trust whatever any client sends.
+ */
+const TrustProxySchema = z
+  .string()
+  .optional()
+  .transform((v) => (v ?? '').split(',').map((e) => e.trim()).filter(Boolean))
+  .refine((list) => list.every(isProxyEntry), {
+    message:
+      'must name the proxies to trust: addresses or CIDR ranges separated by commas (e.g. 10.0.0.5 or 10.0.0.0/24), or loopback, linklocal, uniquelocal; leave it unset when clients connect directly',
+  })
+  .transform((list): string[] | false => (list.length ? list : false));
 
 const ConfigSchema = z.object({
   DATABASE_URL: z
@@ -22,6 +53,8 @@ const ConfigSchema = z.object({
   NODE_ENV: z.enum(['development', 'test', 'production']).default('development'),
   /** Largest file a batch upload may contain, in MB (intake, issue 4). */
   BATCH_MAX_FILE_MB: z.coerce.number().positive('must be a positive number of megabytes').default(100),
+  /** Proxies trusted for X-Forwarded-For (see TrustProxySchema); unset: none. */
+  TRUST_PROXY: TrustProxySchema,
   /** Most data rows in one batch file or sheet; the default is what one Excel sheet holds under its header. */
   BATCH_MAX_ROWS: z.coerce.number().int().positive('must be a positive whole number').default(1_048_575),
 });

@@ -3,10 +3,11 @@
  * state-changing request after login sends the token in the `X-CSRF-Token` header.
  */
 import { z } from 'zod';
+import { noControlChars } from './text';
 import { RoleSchema } from './roles';
 
 export const LoginRequestSchema = z.object({
-  username: z.string().trim().min(1, 'Enter your user name').max(64),
+  username: z.string().trim().min(1, 'Enter your user name').max(64).check(noControlChars()),
   password: z.string().min(1, 'Enter your password').max(256),
 });
 export type LoginRequest = z.infer<typeof LoginRequestSchema>;
@@ -33,4 +34,5 @@ export const MIN_PASSWORD_LENGTH = 10;
 export const PasswordSchema = z
   .string()
   .min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters`)
-  .max(256, 'Use at most 256 characters');
+  .max(256, 'Use at most 256 characters')
+  .check(noControlChars());

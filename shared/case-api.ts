@@ -7,6 +7,7 @@
  * decimal; priority (risk score × amount at stake) is a ranking figure, given as a number.
  */
 import { z } from 'zod';
+import { noControlChars } from './text';
 import { CASE_STATES, CaseStateSchema, type CaseState } from './cases';
 import { ACTIVITY_CODES, LINE_CODES } from './returns/line-codes';
 import { ScoreBreakdownSchema } from './scoring/breakdown';
@@ -54,7 +55,7 @@ export const CaseListQuerySchema = z.object({
   batch: uuid.optional(),
   taxYear: z.coerce.number().int().min(1990).max(2100).optional(),
   activity: z.enum(ACTIVITY_CODES).optional(),
-  q: z.string().trim().max(64, 'Search by a return reference or a TIN').optional(),
+  q: z.string().trim().max(64, 'Search by a return reference or a TIN').check(noControlChars()).optional(),
   sort: CaseSortSchema.default('priority'),
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(100).default(25),

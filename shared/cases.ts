@@ -3,6 +3,7 @@
  * open → assigned → in_review → awaiting_reply → (referred | closed_no_change | closed_adjusted)
  */
 import { z } from 'zod';
+import { noControlChars } from './text';
 
 export const CASE_STATES = ['open', 'assigned', 'in_review', 'awaiting_reply', 'referred', 'closed_no_change', 'closed_adjusted'] as const;
 export const CaseStateSchema = z.enum(CASE_STATES);
@@ -45,7 +46,7 @@ export function canTransition(from: CaseState, to: CaseState): boolean {
 export const TransitionRequestSchema = z
   .object({
     to: CaseStateSchema,
-    outcome: z.string().trim().max(2000).optional(),
+    outcome: z.string().trim().max(2000).check(noControlChars({ lines: true })).optional(),
     /** Adjusted amount of tax, decimal text with at most 2 decimals (required for closed_adjusted). */
     adjustedAmount: z
       .string()
@@ -65,5 +66,5 @@ export const AssignRequestSchema = z.object({ assigneeId: z.uuid('Choose an exam
 export type AssignRequest = z.infer<typeof AssignRequestSchema>;
 
 /** Body of `POST /api/cases/:id/notes`. */
-export const NoteRequestSchema = z.object({ text: z.string().trim().min(1, 'Write the note first').max(10_000, 'Keep a note under 10,000 characters') });
+export const NoteRequestSchema = z.object({ text: z.string().trim().min(1, 'Write the note first').max(10_000, 'Keep a note under 10,000 characters').check(noControlChars({ lines: true })) });
 export type NoteRequest = z.infer<typeof NoteRequestSchema>;

@@ -1,5 +1,6 @@
 /** User administration contract (admin only). */
 import { z } from 'zod';
+import { noControlChars } from './text';
 import { PasswordSchema } from './auth';
 import { RoleSchema } from './roles';
 
@@ -20,7 +21,7 @@ export const CreateUserSchema = z.object({
     .string()
     .trim()
     .regex(/^[a-z][a-z0-9._-]{1,31}$/, 'Use 2–32 lower-case letters, digits, dots, dashes or underscores, starting with a letter'),
-  displayName: z.string().trim().min(1, 'Enter the person\'s name').max(120),
+  displayName: z.string().trim().min(1, 'Enter the person\'s name').max(120).check(noControlChars()),
   role: RoleSchema,
   password: PasswordSchema,
 });
@@ -28,7 +29,7 @@ export type CreateUserInput = z.infer<typeof CreateUserSchema>;
 
 export const UpdateUserSchema = z
   .object({
-    displayName: z.string().trim().min(1).max(120).optional(),
+    displayName: z.string().trim().min(1).max(120).check(noControlChars()).optional(),
     role: RoleSchema.optional(),
     active: z.boolean().optional(),
   })

@@ -11,6 +11,7 @@
 import { z } from 'zod';
 import { ACTIVITY_CODES, LINE_CODE_DEFS, LINE_CODES, STATEMENT_KINDS, type ActivityCode, type LineCode, type StatementKind } from './line-codes';
 import { centsFromDecimal, DECIMAL_PROBLEM_TEXT, decimalProblem } from './money';
+import { findControlChar } from '../text';
 
 // ---------------------------------------------------------------------------------------
 // Files and columns
@@ -95,8 +96,6 @@ function show(v: unknown): string {
   return JSON.stringify(s.length > 40 ? `${s.slice(0, 40)}…` : s);
 }
 
-const CONTROL = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/;
-
 /** A filer's own reference for one return, unique within a batch. */
 export const ReturnRefSchema = z.string().check((ctx) => {
   const v = ctx.value;
@@ -145,7 +144,7 @@ function textSchema(what: string, max: number, required: boolean) {
       return required ? z.NEVER : null;
     }
     if (v.length > max) ctx.issues.push({ code: 'custom', input: v, message: `is ${v.length} characters long; the ${what} may have at most ${max}` });
-    else if (CONTROL.test(v)) ctx.issues.push({ code: 'custom', input: v, message: `contains a control character; remove it from the ${what}` });
+    else if (findControlChar(v, { lines: true })) ctx.issues.push({ code: 'custom', input: v, message: `contains a control character; remove it from the ${what}` });
     else return v;
     return z.NEVER;
   });
