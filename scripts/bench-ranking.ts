@@ -6,8 +6,8 @@
  * the scoring service under the active profile, and then, for the planted returns:
  *   precision at k (k = number of plants): share of the top k that are plants;
  *   recall in the top 10 %: share of plants ranked in the top tenth;
- *   ROC AUC: chance a random plant outranks a random honest return (ties count half;
- *   Mann–Whitney U / (n_plants × n_honest), Hanley & McNeil 1982, Radiology);
+ *   ROC AUC: chance a random plant outranks a random unplanted return (ties count half;
+ *   Mann–Whitney U / (n_plants × n_unplanted), Hanley & McNeil 1982, Radiology);
  * for the blended score, the digit components alone and the rule-based factors alone, and
  * recall at k per kind of plant. A benchmark: it prints, it does not fail.
  */
@@ -124,7 +124,7 @@ async function main() {
   console.log('recall at k by plant kind (blended score)');
   for (const [k, e] of [...kinds].sort((a, b) => a[0].localeCompare(b[0]))) console.log(`  ${k.padEnd(26)}${`${e.hit}/${e.n}`.padStart(8)}  ${f(e.hit / e.n)}`);
   const honestTop = blended.topSorted.slice(0, blended.k).filter((r) => !r.planted).length;
-  console.log(`honest returns in the top k: ${honestTop}`);
+  console.log(`unplanted (typical) returns in the top k: ${honestTop}`);
   releaseBenchCluster();
 }
 

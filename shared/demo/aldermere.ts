@@ -5,7 +5,7 @@
  * list that is kept apart from the batch, so the ranking can be measured (what share of
  * the plants reach the top of the queue).
  *
- * How honest figures are made. Real bookkeeping amounts come out of multiplicative
+ * How typical (unplanted) figures are made. Real bookkeeping amounts come out of multiplicative
  * processes (a price times a quantity times a season, a balance times a rate, a wage
  * grown by a yearly rise), and products of independent factors spread over orders of
  * magnitude in log space, which is why their leading digits follow Benford's law. So:
@@ -16,7 +16,7 @@
  *    log-normal weights, so single entries range from a few units to thousands;
  *  - interest is balance × rate, withholding is wage × a withholding rate;
  *  - the `tot.*` lines, the refund and the third-party statements follow from those
- *    figures by Aldermere's rules (shared/returns/line-codes.ts), so honest returns add up
+ *    figures by Aldermere's rules (shared/returns/line-codes.ts), so typical returns add up
  *    and match what employers, banks and the card processor report.
  *
  * Typical filers also have real habits that a naive reading of the figures mistakes for
@@ -500,7 +500,7 @@ function scaleWages(d: Draft, f: number): void {
 }
 
 /**
- * Applies a taxpayer's habits to one year's honest draft (before any plant), and says which
+ * Applies a taxpayer's habits to one year's typical draft (before any plant), and says which
  * habits show on the return and how. Draws only from `hr`.
  */
 function applyHabits(hr: Rng, tp: Taxpayer, d: Draft, yearIndex: number): { habits: HabitKind[]; notes: string[]; retired: boolean } {
@@ -567,7 +567,7 @@ function applyHabits(hr: Rng, tp: Taxpayer, d: Draft, yearIndex: number): { habi
   return { habits, notes, retired };
 }
 
-/** The honest figures of one taxpayer-year, before any plant. */
+/** The typical figures of one taxpayer-year, before any plant. */
 interface Draft {
   lines: Line[];
   statements: { kind: StatementKind; payer: string; cents: number }[];
@@ -745,7 +745,7 @@ function plant(rng: Rng, kind: Exclude<PlantKind, 'preparer_mill'>, d: Draft, tp
     case 'income_drop': {
       const f = 0.15 + 0.25 * rng.next();
       for (const l of d.lines) if (l.code === 'inc.business.receipts') l.cents = Math.max(50, Math.round(l.cents * f));
-      return `business receipts cut to ${(f * 100).toFixed(0)} % of their honest level; costs unchanged`;
+      return `business receipts cut to ${(f * 100).toFixed(0)} % of their typical level; costs unchanged`;
     }
     case 'totals_mismatch':
     case 'refund_inflated':
@@ -763,7 +763,7 @@ function toWholeUnits(d: Draft): void {
   for (const l of d.lines) l.cents = Math.max(100, Math.round(l.cents / 100) * 100);
 }
 
-/** Adds the tot.* and tax.refund lines (honest, or bent by a totals plant); whole units for a whole-unit filer. */
+/** Adds the tot.* and tax.refund lines (as the rules give them, or bent by a totals plant); whole units for a whole-unit filer. */
 function finishLines(rng: Rng, d: Draft, kinds: readonly PlantKind[], details: string[], wholeUnits = false): void {
   const t = computeTotals(d.lines);
   let reportedIncome = t.income;

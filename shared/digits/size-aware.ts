@@ -3,7 +3,7 @@
  *
  * docs/methods.md#small-samples: one return has 15–60 amounts, and under perfect conformity
  * its expected first-digit MAD (about 0.2349 / sqrt(N), 0.043 at N = 30) is three times the
- * 0.015 "nonconformity" line, so the fixed thresholds would fail nearly every honest return.
+ * 0.015 "nonconformity" line, so the fixed thresholds would fail nearly every typical return.
  * Instead the observed MAD is compared with its own distribution under conformity for the
  * sample's N (after Barney & Schulzke 2016, Journal of Forensic Accounting Research):
  *

@@ -159,7 +159,7 @@ export function deductionsLarge(t: ReturnTotals, peers: PeerBands, p: Params): F
     const share = amount / t.income;
     if (share <= limit) continue;
     found.push(`${label} are ${pct(share, 1)} of income; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${lim.n} peers with income ${band} is ${pct(limit, 1)}`);
-    // Just above the percentile is where 5 % of honest peers sit by construction, and honest
+    // Just above the percentile is where 5 % of typical peers sit by construction, and ordinary
     // medical bills have a long tail: strength grows with the log of the excess, full at 8×.
     strength = Math.max(strength, clamp01(Math.log(share / Math.max(limit, 0.0001)) / Math.log(8)));
     stake += amount - Math.round(limit * t.income);

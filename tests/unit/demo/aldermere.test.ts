@@ -77,7 +77,7 @@ describe('the Aldermere generator', () => {
     for (const r of millReturns) expect(planted.has(r.return_ref)).toBe(true);
   });
 
-  it('makes honest returns that add up by the rules and match their statements', () => {
+  it('makes typical returns that add up by the rules and match their statements', () => {
     const statementsOf = new Map<string, number>();
     for (const s of batch.statements) {
       if (s.kind === 'sales') continue;
@@ -105,7 +105,7 @@ describe('the Aldermere generator', () => {
     }
   });
 
-  it('gives honest itemised amounts first digits close to Benford, and invented ones far from it', () => {
+  it('gives typical itemised amounts first digits close to Benford, and invented ones far from it', () => {
     const mad = (amounts: string[]) => {
       const counts = new Array(10).fill(0);
       let n = 0;
