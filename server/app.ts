@@ -6,10 +6,9 @@ import express, { type Express } from 'express';
 import fs from 'node:fs';
 import path from 'node:path';
 import helmet from 'helmet';
-import type PgBoss from 'pg-boss';
-import type { DataSource } from 'typeorm';
-import type { Config } from './config';
+import type { AppDeps } from './app-deps';
 import { accessLogRoutes } from './access-log/access-log.routes';
+import { auditContext } from './access-log/audit-context';
 import { analysesRoutes } from './analyses/analyses.routes';
 import { scoringProfileRoutes } from './scoring/scoring-profile.routes';
 import { authRoutes } from './auth/auth.routes';
@@ -24,17 +23,8 @@ import { letterRoutes } from './letters/letters.routes';
 import { replyRoutes } from './letters/replies.routes';
 import { userRoutes } from './users/user.routes';
 import { apiNotFound, errorHandler } from './http/errors';
-import type { Mailer } from './mail/mailer';
 
-/** What the app is built from; every piece is created by the caller (main or a test). */
-export interface AppDeps {
-  config: Config;
-  dataSource: DataSource;
-  boss: PgBoss | null;
-  mailer: Mailer;
-  /** Sign-in throttle; tests pass their own to control time. */
-  throttle?: LoginThrottle;
-}
+export type { AppDeps } from './app-deps';
 
 /** Builds the application. */
 export function createApp(deps: AppDeps): Express {
@@ -65,10 +55,21 @@ export function createApp(deps: AppDeps): Express {
   api.use(passport.initialize());
   api.use(passport.session());
   api.use(csrfProtection);
-  // Feature routers: each built with secureRouter(), paths are full paths under /api.
-  const features = [healthRoutes, userRoutes, accessLogRoutes, analysesRoutes, scoringProfileRoutes, batchRoutes, caseRoutes, workloadRoutes, letterRoutes, replyRoutes];
-  api.use(authRoutes({ ...deps, throttle, passport }));
-  for (const feature of features) api.use(feature(deps));
+  api.use(auditContext);
+  // Feature routers: each built with secureRouter(), paths are full paths under /api; each
+  // takes only the dependencies it uses.
+  const { config, dataSource, boss, mailer } = deps;
+  api.use(healthRoutes({ dataSource, boss, mailer }));
+  api.use(authRoutes({ dataSource, throttle, passport }));
+  api.use(userRoutes({ dataSource }));
+  api.use(accessLogRoutes({ dataSource }));
+  api.use(analysesRoutes(deps));
+  api.use(scoringProfileRoutes({ dataSource, boss }));
+  api.use(batchRoutes(deps));
+  api.use(caseRoutes({ dataSource }));
+  api.use(workloadRoutes({ dataSource }));
+  api.use(letterRoutes({ dataSource, mailer, publicUrl: config.publicUrl }));
+  api.use(replyRoutes(deps));
   app.use('/api', api);
   app.use('/api', apiNotFound);
 

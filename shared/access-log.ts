@@ -8,6 +8,15 @@ export const ACCESS_ACTIONS = ['view', 'change', 'export', 'sign-in', 'sign-out'
 export const AccessActionSchema = z.enum(ACCESS_ACTIONS);
 export type AccessAction = z.infer<typeof AccessActionSchema>;
 
+/**
+ * What an access-log line is about, one name per kind of record (the table's name where
+ * there is one), so the administrator's log never calls one thing by two names.
+ * `case-queue` is a filtered set of cases (an export), not one record.
+ */
+export const ACCESS_RECORD_TYPES = ['case', 'case-queue', 'filing_batch', 'letter', 'reply_upload', 'document_request', 'scoring_profile', 'user'] as const;
+export const AccessRecordTypeSchema = z.enum(ACCESS_RECORD_TYPES);
+export type AccessRecordType = z.infer<typeof AccessRecordTypeSchema>;
+
 export const AccessLogEntrySchema = z.object({
   id: z.string(),
   at: z.string(),

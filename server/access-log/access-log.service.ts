@@ -1,18 +1,18 @@
 /**
  * Writing and reading the access log. Features call {@link recordAccess} for every read of
- * a return, case or export and for every change (DESIGN.md section 2).
+ * a return, case or export and for every change, with the audit context their route was
+ * given (who, and which route: server/access-log/audit-context.ts).
  */
-import type { DataSource, EntityManager } from 'typeorm';
-import type { AccessAction, AccessLogEntry, AccessLogPage, AccessLogQuery } from '../../shared/access-log';
-import type { SessionUser } from '../auth/access';
+import type { DataSource } from 'typeorm';
+import type { AccessAction, AccessLogEntry, AccessLogPage, AccessLogQuery, AccessRecordType } from '../../shared/access-log';
+import type { Db } from '../db/db';
 import { findAccessLogs, insertAccessLogs } from './access-log.repository';
+import type { AuditContext } from './audit-context';
 
 /** What happened, to which record, about which taxpayer. */
 export interface AccessEvent {
   action: AccessAction;
-  /** Method and path, e.g. "GET /api/cases/…". */
-  route: string;
-  recordType?: string;
+  recordType?: AccessRecordType;
   recordId?: string;
   taxpayerId?: string | null;
   taxpayerLabel?: string | null;
@@ -20,12 +20,13 @@ export interface AccessEvent {
 }
 
 /**
- * Appends one or more lines for a user (null for anonymous, e.g. a refused sign-in or a
- * taxpayer's reply link). Pass the transaction's manager when the change is transactional,
- * so the log line commits or rolls back with it.
+ * Appends one or more lines for the context's actor (null for anonymous, e.g. a refused
+ * sign-in or a taxpayer's reply link) and route. Pass the transaction's manager when the
+ * change is transactional, so the log line commits or rolls back with it.
  */
-export async function recordAccess(db: DataSource | EntityManager, user: Pick<SessionUser, 'id' | 'username' | 'role'> | null, events: AccessEvent | AccessEvent[]): Promise<void> {
+export async function recordAccess(db: Db, audit: AuditContext, events: AccessEvent | AccessEvent[]): Promise<void> {
   const list = Array.isArray(events) ? events : [events];
+  const user = audit.actor;
   await insertAccessLogs(
     db,
     list.map((e) => ({
@@ -33,7 +34,7 @@ export async function recordAccess(db: DataSource | EntityManager, user: Pick<Se
       username: user?.username ?? null,
       role: user?.role ?? null,
       action: e.action,
-      route: e.route,
+      route: audit.route,
       recordType: e.recordType ?? null,
       recordId: e.recordId ?? null,
       taxpayerId: e.taxpayerId ?? null,

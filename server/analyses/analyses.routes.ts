@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import multer from 'multer';
 import { DigitAnalysisRequestSchema } from '../../shared/analyses';
-import type { AppDeps } from '../app';
+import type { AppDeps } from '../app-deps';
 import { allow, secureRouter } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';

@@ -3,7 +3,8 @@ import type { PassportStatic } from 'passport';
 import { LoginRequestSchema, type SessionResponse } from '../../shared/auth';
 import { ROLES } from '../../shared/roles';
 import { recordAccess } from '../access-log/access-log.service';
-import type { AppDeps } from '../app';
+import type { AppDeps } from '../app-deps';
+import { auditOf } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
 import { access, publicAccess, secureRouter, type SessionUser } from './access';
@@ -25,7 +26,7 @@ function answer(req: Request): SessionResponse {
 }
 
 /** Sign-in, sign-out and `me`. */
-export function authRoutes(deps: AppDeps & { throttle: LoginThrottle; passport: PassportStatic }) {
+export function authRoutes(deps: Pick<AppDeps, 'dataSource'> & { throttle: LoginThrottle; passport: PassportStatic }) {
   const r = secureRouter();
   const ds = deps.dataSource;
 
@@ -46,18 +47,18 @@ export function authRoutes(deps: AppDeps & { throttle: LoginThrottle; passport: 
     }
     const check = await verifyCredentials(ds, username, password);
     if (!check.ok) {
-      await recordAccess(ds, null, { action: 'sign-in-refused', route: 'POST /api/auth/login', detail: `user name "${username.slice(0, 64)}": ${check.reason === 'inactive' ? 'account deactivated' : 'wrong user name or password'}` });
+      await recordAccess(ds, { ...auditOf(req), actor: null }, { action: 'sign-in-refused', detail: `user name "${username.slice(0, 64)}": ${check.reason === 'inactive' ? 'account deactivated' : 'wrong user name or password'}` });
       throw new HttpError(401, check.reason === 'inactive' ? 'This account is deactivated. Ask an administrator.' : 'The user name or password is wrong.');
     }
     deps.throttle.succeed(username, address, attempt.at);
     await logIn(req, check.user);
-    await recordAccess(ds, check.user, { action: 'sign-in', route: 'POST /api/auth/login', recordType: 'user', recordId: check.user.id });
+    await recordAccess(ds, { ...auditOf(req), actor: check.user }, { action: 'sign-in', recordType: 'user', recordId: check.user.id });
     res.json(answer(req));
   });
 
   r.post('/auth/logout', signedIn, async (req, res) => {
     const user = req.user!;
-    await recordAccess(ds, user, { action: 'sign-out', route: 'POST /api/auth/logout', recordType: 'user', recordId: user.id });
+    await recordAccess(ds, auditOf(req), { action: 'sign-out', recordType: 'user', recordId: user.id });
     await new Promise<void>((resolve, reject) => req.logout((err) => (err ? reject(err) : resolve())));
     await new Promise<void>((resolve) => req.session.destroy(() => resolve()));
     res.clearCookie(SESSION_COOKIE);

@@ -14,7 +14,8 @@ import type { RequestHandler } from 'express';
 import multer from 'multer';
 import { BatchListQuerySchema, sizeText, type BatchRejected, type BatchTable } from '../../shared/returns/batch-rows';
 import { recordAccess } from '../access-log/access-log.service';
-import type { AppDeps } from '../app';
+import { staffAuditOf } from '../access-log/audit-context';
+import type { AppDeps } from '../app-deps';
 import { allow, secureRouter } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
@@ -89,9 +90,8 @@ export function batchRoutes(deps: AppDeps) {
       const outcome = await ingestUpload(intake, made.upload, req.user!);
       const batchId = outcome.kind === 'accepted' ? outcome.batch.id : outcome.body.batchId;
       if (outcome.kind !== 'duplicate' && batchId) {
-        await recordAccess(deps.dataSource, req.user!, {
+        await recordAccess(deps.dataSource, staffAuditOf(req), {
           action: 'change',
-          route: 'POST /api/batches',
           recordType: 'filing_batch',
           recordId: batchId,
           detail:
@@ -123,7 +123,7 @@ export function batchRoutes(deps: AppDeps) {
     const id = String(req.params.id);
     const batch = isUuid(id) ? await getBatch(deps.dataSource, id) : null;
     if (!batch) throw new HttpError(404, `There is no batch ${id}.`);
-    await recordAccess(deps.dataSource, req.user!, { action: 'export', route: 'GET /api/batches/:id/report.xlsx', recordType: 'filing_batch', recordId: id, detail: 'validation report' });
+    await recordAccess(deps.dataSource, staffAuditOf(req), { action: 'export', recordType: 'filing_batch', recordId: id, detail: 'validation report' });
     res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
     res.setHeader('Content-Disposition', `attachment; filename="batch-${id.slice(0, 8)}-report.xlsx"`);
     res.setHeader('Cache-Control', 'no-store');

@@ -1,56 +1,63 @@
 /**
  * The case workflow: claim, assign, move between states. Every change locks the case row,
  * checks the move against shared/cases.ts, records a case_event and an access-log line in
- * the same transaction. Letters and memos (server/letters) call {@link moveCase} too.
+ * the same transaction. Letters and memos (server/letters) call {@link moveCase} too; the
+ * taxpayer's reply (server/letters/replies.service.ts) uses {@link lockCase} and
+ * {@link addCaseEvent}.
  */
 import type { DataSource, EntityManager } from 'typeorm';
-import { canTransition, CASE_STATE_LABELS, CASE_TRANSITIONS, type CaseState } from '../../shared/cases';
 import { maskTin } from '../../shared/access-log';
-import { recordAccess } from '../access-log/access-log.service';
-import type { SessionUser } from '../auth/access';
-import { HttpError } from '../http/errors';
-import { ExamCase } from './exam-case.entity';
+import { canTransition, CASE_STATE_LABELS, CASE_TRANSITIONS, FINAL_STATES, type CaseState } from '../../shared/cases';
 import { isUuid } from '../../shared/ids';
-
+import { recordAccess } from '../access-log/access-log.service';
+import type { StaffAudit } from '../access-log/audit-context';
+import type { SessionUser } from '../auth/access';
+import type { Db } from '../db/db';
+import { HttpError } from '../http/errors';
+import { findAssignee, findTaxpayerTin, insertCaseEvent, lockCaseRow, saveCase } from './case.repository';
+import type { ExamCase } from './exam-case.entity';
 
 /** Loads a case FOR UPDATE inside a transaction, or 404. */
 export async function lockCase(m: EntityManager, caseId: string): Promise<ExamCase> {
   if (!isUuid(caseId)) throw new HttpError(404, 'No such case.');
-  const c = await m.getRepository(ExamCase).createQueryBuilder('c').setLock('pessimistic_write').where('c.id = :id', { id: caseId }).getOne();
+  const c = await lockCaseRow(m, caseId);
   if (!c) throw new HttpError(404, 'No such case.');
   return c;
 }
 
 /** The taxpayer label (masked TIN) for access-log lines about a case. */
-export async function taxpayerLabelOf(m: EntityManager | DataSource, taxpayerId: string): Promise<string | null> {
-  const r = await m.query(`SELECT tin FROM taxpayer WHERE id = $1`, [taxpayerId]);
-  return r.length ? maskTin(String(r[0].tin)) : null;
+export async function taxpayerLabelOf(db: Db, taxpayerId: string): Promise<string | null> {
+  const tin = await findTaxpayerTin(db, taxpayerId);
+  return tin === null ? null : maskTin(tin);
 }
 
 /**
  * Need-to-know for actions on one case: a supervisor may act on any case; an examiner only
- * on a case assigned to them.
+ * on a case assigned to them. The one statement of the rule: the case screen's actions and
+ * every check use it.
  */
-export function assertMayAct(actor: SessionUser, c: ExamCase): void {
-  if (actor.role === 'supervisor') return;
-  if (actor.role === 'examiner' && c.assigneeId === actor.id) return;
+export function mayAct(actor: Pick<SessionUser, 'id' | 'role'>, assigneeId: string | null): boolean {
+  return actor.role === 'supervisor' || (actor.role === 'examiner' && assigneeId === actor.id);
+}
+
+/** Refuses (403) an actor who may not act on the case, saying why. */
+export function assertMayAct(actor: Pick<SessionUser, 'id' | 'role'>, c: Pick<ExamCase, 'assigneeId'>): void {
+  if (mayAct(actor, c.assigneeId)) return;
   throw new HttpError(403, c.assigneeId ? 'This case is assigned to another examiner.' : 'Claim this case before working on it.');
 }
 
-/** Appends a case event. */
-export async function addCaseEvent(m: EntityManager, caseId: string, actor: SessionUser | null, kind: string, detail: Record<string, unknown> = {}, from?: CaseState, to?: CaseState): Promise<void> {
-  await m.query(`INSERT INTO case_event (case_id, actor_id, kind, from_state, to_state, detail) VALUES ($1, $2, $3, $4, $5, $6::jsonb)`, [
-    caseId,
-    actor?.id ?? null,
-    kind,
-    from ?? null,
-    to ?? null,
-    JSON.stringify(detail),
-  ]);
+/** True for a finished case (referred or closed): nothing more can change. */
+export function isFinished(state: CaseState): boolean {
+  return FINAL_STATES.includes(state);
 }
 
-async function logChange(m: EntityManager, actor: SessionUser, c: ExamCase, route: string, detail: string) {
-  await recordAccess(m, actor, { action: 'change', route, recordType: 'case', recordId: c.id, taxpayerId: c.taxpayerId, taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId), detail });
+/** Appends a case event (actor null: Plumbline itself, or a taxpayer through a reply link). */
+export async function addCaseEvent(m: EntityManager, caseId: string, actor: Pick<SessionUser, 'id'> | null, kind: string, detail: Record<string, unknown> = {}, from?: CaseState, to?: CaseState): Promise<void> {
+  await insertCaseEvent(m, { caseId, actorId: actor?.id ?? null, kind, detail, from: from ?? null, to: to ?? null });
+}
+
+async function logChange(m: EntityManager, audit: StaffAudit, c: ExamCase, detail: string) {
+  await recordAccess(m, audit, { action: 'change', recordType: 'case', recordId: c.id, taxpayerId: c.taxpayerId, taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId), detail });
 }
 
 /** Extra facts a move may record. */
@@ -60,7 +67,6 @@ export interface MoveOptions {
   /** Case-event kind (default 'transition'); letters use 'document-request', memos 'referral'. */
   kind?: string;
   detail?: Record<string, unknown>;
-  route?: string;
   dueDate?: string | null;
 }
 
@@ -68,9 +74,9 @@ export interface MoveOptions {
  * Moves a case to another state inside the caller's transaction. Refuses (409) a move the
  * workflow does not allow, naming the allowed ones.
  */
-export async function moveCase(m: EntityManager, actor: SessionUser, caseId: string, to: CaseState, opts: MoveOptions = {}): Promise<ExamCase> {
+export async function moveCase(m: EntityManager, audit: StaffAudit, caseId: string, to: CaseState, opts: MoveOptions = {}): Promise<ExamCase> {
   const c = await lockCase(m, caseId);
-  assertMayAct(actor, c);
+  assertMayAct(audit.actor, c);
   if (!canTransition(c.state, to)) {
     const allowed = CASE_TRANSITIONS[c.state].map((s) => CASE_STATE_LABELS[s].toLowerCase());
     throw new HttpError(
@@ -84,19 +90,20 @@ export async function moveCase(m: EntityManager, actor: SessionUser, caseId: str
   c.state = to;
   c.updatedAt = new Date();
   if (opts.dueDate !== undefined) c.dueDate = opts.dueDate;
-  if (to === 'closed_no_change' || to === 'closed_adjusted' || to === 'referred') {
+  if (isFinished(to)) {
     c.closedAt = new Date();
     c.outcome = opts.outcome ?? null;
     c.adjustedAmount = to === 'closed_adjusted' ? (opts.adjustedAmount ?? null) : null;
   }
-  await m.getRepository(ExamCase).save(c);
-  await addCaseEvent(m, c.id, actor, opts.kind ?? 'transition', { ...(opts.detail ?? {}), ...(opts.outcome ? { outcome: opts.outcome } : {}), ...(opts.adjustedAmount ? { adjustedAmount: opts.adjustedAmount } : {}) }, from, to);
-  await logChange(m, actor, c, opts.route ?? `POST /api/cases/${c.id}/transition`, `${from} → ${to}`);
+  await saveCase(m, c);
+  await addCaseEvent(m, c.id, audit.actor, opts.kind ?? 'transition', { ...(opts.detail ?? {}), ...(opts.outcome ? { outcome: opts.outcome } : {}), ...(opts.adjustedAmount ? { adjustedAmount: opts.adjustedAmount } : {}) }, from, to);
+  await logChange(m, audit, c, `${from} → ${to}`);
   return c;
 }
 
 /** An examiner takes an open case. */
-export async function claimCase(ds: DataSource, actor: SessionUser, caseId: string): Promise<ExamCase> {
+export async function claimCase(ds: DataSource, audit: StaffAudit, caseId: string): Promise<ExamCase> {
+  const actor = audit.actor;
   return ds.transaction(async (m) => {
     const c = await lockCase(m, caseId);
     if (c.state !== 'open') {
@@ -105,31 +112,31 @@ export async function claimCase(ds: DataSource, actor: SessionUser, caseId: stri
     c.state = 'assigned';
     c.assigneeId = actor.id;
     c.updatedAt = new Date();
-    await m.getRepository(ExamCase).save(c);
+    await saveCase(m, c);
     await addCaseEvent(m, c.id, actor, 'claimed', { assigneeId: actor.id }, 'open', 'assigned');
-    await logChange(m, actor, c, `POST /api/cases/${c.id}/claim`, 'claimed');
+    await logChange(m, audit, c, 'claimed');
     return c;
   });
 }
 
 /** A supervisor gives an open or assigned case to an examiner (history kept as events). */
-export async function assignCase(ds: DataSource, actor: SessionUser, caseId: string, assigneeId: string): Promise<ExamCase> {
+export async function assignCase(ds: DataSource, audit: StaffAudit, caseId: string, assigneeId: string): Promise<ExamCase> {
   return ds.transaction(async (m) => {
     const c = await lockCase(m, caseId);
     if (c.state !== 'open' && c.state !== 'assigned') {
       throw new HttpError(409, `Only open or assigned cases can be given to an examiner; this one is ${CASE_STATE_LABELS[c.state].toLowerCase()}.`);
     }
-    const who: { id: string; role: string; active: boolean; display_name: string }[] = await m.query(`SELECT id, role, active, display_name FROM app_user WHERE id = $1`, [assigneeId]);
-    if (!who.length || !who[0].active || who[0].role !== 'examiner') throw new HttpError(422, 'Assign cases to an active examiner.');
-    if (c.assigneeId === assigneeId) throw new HttpError(409, `The case is already with ${who[0].display_name}.`);
+    const who = await findAssignee(m, assigneeId);
+    if (!who || !who.active || who.role !== 'examiner') throw new HttpError(422, 'Assign cases to an active examiner.');
+    if (c.assigneeId === assigneeId) throw new HttpError(409, `The case is already with ${who.displayName}.`);
     const from = c.state;
     const previous = c.assigneeId;
     c.state = 'assigned';
     c.assigneeId = assigneeId;
     c.updatedAt = new Date();
-    await m.getRepository(ExamCase).save(c);
-    await addCaseEvent(m, c.id, actor, previous ? 'reassigned' : 'assigned', { from: previous, to: assigneeId }, from, 'assigned');
-    await logChange(m, actor, c, `POST /api/cases/${c.id}/assign`, `assigned to ${who[0].display_name}`);
+    await saveCase(m, c);
+    await addCaseEvent(m, c.id, audit.actor, previous ? 'reassigned' : 'assigned', { from: previous, to: assigneeId }, from, 'assigned');
+    await logChange(m, audit, c, `assigned to ${who.displayName}`);
     return c;
   });
 }

@@ -5,7 +5,7 @@
  */
 import type { DataSource } from 'typeorm';
 import type { Workload } from '../../shared/case-api';
-import { countUnassigned, workloadCounts } from './case.repository';
+import { countUnassigned, workloadCounts } from './workload.repository';
 
 /** Today's date as YYYY-MM-DD in the server's time zone (due dates are calendar dates). */
 function today(now = new Date()): string {

@@ -12,7 +12,7 @@
  */
 import type { Response } from 'express';
 import { DocumentRequestInputSchema, ReferralInputSchema } from '../../shared/letters';
-import type { AppDeps } from '../app';
+import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
 import { letterPdf, listLetters, referCase, replyUploadFile, sendDocumentRequest, type LetterDeps } from './letters.service';
@@ -29,37 +29,37 @@ function sendFile(res: Response, contentType: string, fileName: string, bytes: B
 }
 
 /** The staff letter routes. */
-export function letterRoutes(deps: AppDeps) {
+export function letterRoutes(deps: LetterDeps) {
   const r = secureRouter();
-  const ld: LetterDeps = { dataSource: deps.dataSource, mailer: deps.mailer, publicUrl: deps.config.publicUrl };
+  const ld = deps;
 
   r.post('/cases/:id/document-requests', allow('workCases'), validate(DocumentRequestInputSchema), async (req, res) => {
     const id = String(req.params.id);
-    res.status(201).json(await sendDocumentRequest(ld, req.user!, id, req.body, `POST /api/cases/${id}/document-requests`));
+    res.status(201).json(await sendDocumentRequest(ld, staffAuditOf(req), id, req.body));
   });
 
   r.post('/cases/:id/referral', allow('workCases'), validate(ReferralInputSchema), async (req, res) => {
     const id = String(req.params.id);
-    res.status(201).json(await referCase(ld, req.user!, id, req.body, `POST /api/cases/${id}/referral`));
+    res.status(201).json(await referCase(ld, staffAuditOf(req), id, req.body));
   });
 
   r.get('/cases/:id/letters', allow('readCases'), async (req, res) => {
     const id = String(req.params.id);
     res.setHeader('Cache-Control', 'private, no-store');
-    res.json(await listLetters(deps.dataSource, req.user!, id, `GET /api/cases/${id}/letters`));
+    res.json(await listLetters(deps.dataSource, staffAuditOf(req), id));
   });
 
   r.get('/cases/:id/letters/:letterId/pdf', allow('readCases'), async (req, res) => {
     const id = String(req.params.id);
     const letterId = String(req.params.letterId);
-    const l = await letterPdf(deps.dataSource, req.user!, id, letterId, `GET /api/cases/${id}/letters/${letterId}/pdf`);
+    const l = await letterPdf(deps.dataSource, staffAuditOf(req), id, letterId);
     sendFile(res, 'application/pdf', l.fileName, l.pdf, 'inline');
   });
 
   r.get('/cases/:id/reply-uploads/:uploadId', allow('readCases'), async (req, res) => {
     const id = String(req.params.id);
     const uploadId = String(req.params.uploadId);
-    const u = await replyUploadFile(deps.dataSource, req.user!, id, uploadId, `GET /api/cases/${id}/reply-uploads/${uploadId}`);
+    const u = await replyUploadFile(deps.dataSource, staffAuditOf(req), id, uploadId);
     // A download, never shown inline: the bytes came from outside the office.
     sendFile(res, u.contentType, u.fileName, u.content, 'attachment');
   });

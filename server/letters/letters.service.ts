@@ -29,7 +29,7 @@ import {
 import { ACTIVITY_CODES } from '../../shared/returns/line-codes';
 import { centsFromNumeric } from '../../shared/returns/money';
 import { recordAccess } from '../access-log/access-log.service';
-import type { SessionUser } from '../auth/access';
+import type { StaffAudit } from '../access-log/audit-context';
 import { assertMayAct, lockCase, moveCase, taxpayerLabelOf } from '../cases/case-workflow';
 import { HttpError } from '../http/errors';
 import type { Mailer } from '../mail/mailer';
@@ -130,7 +130,8 @@ const EmailSchema = z.email();
  * case to awaiting reply, all in one transaction.
  * @throws HttpError 404 no case, 403 not the actor's case, 409 not in review, 422 no usable address, 502 mail refused
  */
-export async function sendDocumentRequest(deps: LetterDeps, actor: SessionUser, caseId: string, input: DocumentRequestInput, route: string): Promise<LetterCreated> {
+export async function sendDocumentRequest(deps: LetterDeps, audit: StaffAudit, caseId: string, input: DocumentRequestInput): Promise<LetterCreated> {
+  const actor = audit.actor;
   const letterId = randomUUID();
   const moved = await deps.dataSource.transaction(async (m) => {
     const locked = await lockCase(m, caseId);
@@ -182,10 +183,9 @@ export async function sendDocumentRequest(deps: LetterDeps, actor: SessionUser, 
     });
     const requestId = randomUUID();
     await insertDocumentRequest(m, { id: requestId, caseId, letterId, items: input.items, dueDate: input.dueDate, tokenHash: hashReplyToken(token), email: to });
-    const c = await moveCase(m, actor, caseId, 'awaiting_reply', {
+    const c = await moveCase(m, audit, caseId, 'awaiting_reply', {
       kind: 'document-request',
       detail: { letterId, documentRequestId: requestId, dueDate: input.dueDate, items: input.items.length },
-      route,
       dueDate: input.dueDate,
     });
 
@@ -222,7 +222,8 @@ const EVENT_WORDS: Record<string, string> = {
  * moves to referred with the unit and summary as its outcome.
  * @throws HttpError 404, 403, 409 as for any move
  */
-export async function referCase(deps: LetterDeps, actor: SessionUser, caseId: string, input: ReferralInput, route: string): Promise<LetterCreated> {
+export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: string, input: ReferralInput): Promise<LetterCreated> {
+  const actor = audit.actor;
   const letterId = randomUUID();
   const unit = input.unit ?? 'field-audit';
   const unitLabel = REFERRAL_UNIT_LABELS[unit];
@@ -280,11 +281,10 @@ export async function referCase(deps: LetterDeps, actor: SessionUser, caseId: st
       messageId: null,
       createdBy: actor.id,
     });
-    const c = await moveCase(m, actor, caseId, 'referred', {
+    const c = await moveCase(m, audit, caseId, 'referred', {
       kind: 'referral',
       outcome: `Referred to the ${unitLabel}: ${input.summary}`.slice(0, 2000),
       detail: { letterId, unit },
-      route,
     });
     return c.state;
   });
@@ -298,28 +298,28 @@ async function caseForRead(ds: DataSource, caseId: string): Promise<{ taxpayerId
 }
 
 /** The letters of a case, newest first, with requests and reply files; logged as a view. */
-export async function listLetters(ds: DataSource, actor: SessionUser, caseId: string, route: string): Promise<LetterList> {
+export async function listLetters(ds: DataSource, audit: StaffAudit, caseId: string): Promise<LetterList> {
   const c = await caseForRead(ds, caseId);
   const rows = await findLetters(ds, caseId);
   const uploads = await findUploads(ds, rows.map((r) => r.requestId).filter((x): x is string => !!x));
-  await recordAccess(ds, actor, { action: 'view', route, recordType: 'case', recordId: caseId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: 'letters' });
+  await recordAccess(ds, audit, { action: 'view', recordType: 'case', recordId: caseId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: 'letters' });
   return { items: toDtos(rows, uploads) };
 }
 
 /** A letter's PDF (the office copy); logged as a view. */
-export async function letterPdf(ds: DataSource, actor: SessionUser, caseId: string, letterId: string, route: string): Promise<{ fileName: string; pdf: Buffer }> {
+export async function letterPdf(ds: DataSource, audit: StaffAudit, caseId: string, letterId: string): Promise<{ fileName: string; pdf: Buffer }> {
   const c = await caseForRead(ds, caseId);
   const l = isUuid(letterId) ? await findLetterPdf(ds, caseId, letterId) : null;
   if (!l) throw new HttpError(404, 'This case has no such letter.');
-  await recordAccess(ds, actor, { action: 'view', route, recordType: 'letter', recordId: letterId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `${l.kind} PDF` });
+  await recordAccess(ds, audit, { action: 'view', recordType: 'letter', recordId: letterId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `${l.kind} PDF` });
   return { fileName: l.fileName, pdf: l.pdf };
 }
 
 /** A file the taxpayer sent back; logged as a view. */
-export async function replyUploadFile(ds: DataSource, actor: SessionUser, caseId: string, uploadId: string, route: string): Promise<{ fileName: string; contentType: string; content: Buffer }> {
+export async function replyUploadFile(ds: DataSource, audit: StaffAudit, caseId: string, uploadId: string): Promise<{ fileName: string; contentType: string; content: Buffer }> {
   const c = await caseForRead(ds, caseId);
   const u = isUuid(uploadId) ? await findUploadContent(ds, caseId, uploadId) : null;
   if (!u) throw new HttpError(404, 'This case has no such reply file.');
-  await recordAccess(ds, actor, { action: 'view', route, recordType: 'reply_upload', recordId: uploadId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `reply file ${u.fileName}` });
+  await recordAccess(ds, audit, { action: 'view', recordType: 'reply_upload', recordId: uploadId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `reply file ${u.fileName}` });
   return u;
 }

@@ -12,7 +12,7 @@
 import type { RequestHandler } from 'express';
 import multer from 'multer';
 import { REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES } from '../../shared/letters';
-import type { AppDeps } from '../app';
+import type { AppDeps } from '../app-deps';
 import { publicAccess, secureRouter } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { getReplyRequest, openRequest, receiveReply } from './replies.service';

@@ -51,7 +51,7 @@ export async function openRequest(ds: DataSource, token: string): Promise<Reques
 /** What the reply page shows for a usable link; the visit is written to the access log. */
 export async function getReplyRequest(ds: DataSource, token: string): Promise<ReplyRequestDto> {
   const r = await openRequest(ds, token);
-  await recordAccess(ds, null, { action: 'view', route: ROUTE_GET, recordType: 'document_request', recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(r.tin), detail: 'reply link opened' });
+  await recordAccess(ds, { actor: null, route: ROUTE_GET }, { action: 'view', recordType: 'document_request', recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(r.tin), detail: 'reply link opened' });
   return {
     state: 'open',
     taxpayerName: r.taxpayerName,
@@ -103,9 +103,8 @@ export async function receiveReply(ds: DataSource, token: string, files: Incomin
       // letter: keep the reply with it, but leave its state alone.
       await addCaseEvent(m, c.id, null, 'reply-received', detail);
     }
-    await recordAccess(m, null, {
+    await recordAccess(m, { actor: null, route: ROUTE_POST }, {
       action: 'change',
-      route: ROUTE_POST,
       recordType: 'document_request',
       recordId: r.id,
       taxpayerId: r.taxpayerId,

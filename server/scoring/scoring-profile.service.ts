@@ -14,69 +14,74 @@ import type { DataSource } from 'typeorm';
 import type { NewProfileInput, Performance, ProfileVersion } from '../../shared/scoring/profile-api';
 import { COMPONENT_LABELS, COMPONENTS, ScoringSettingsSchema } from '../../shared/scoring/settings';
 import { recordAccess } from '../access-log/access-log.service';
-import type { SessionUser } from '../auth/access';
+import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
 import { QUEUES } from '../queue/queues';
 import { isUuid } from '../../shared/ids';
+import {
+  activeProfileVersion,
+  batchState,
+  findActiveProfile,
+  findProfiles,
+  finishedCaseCounts,
+  flaggedFinishedCases,
+  insertProfile,
+  lockProfiles,
+  nextProfileVersion,
+  profileExists,
+  runExists,
+  setActiveProfile,
+} from './scoring-profile.repository';
 
 /** Fewest flagged closed cases before a weight is suggested to move. */
 export const MIN_EVIDENCE = 10;
 
 export async function listProfiles(ds: DataSource): Promise<ProfileVersion[]> {
-  const rows = await ds.query(
-    `SELECT p.version, p.note, p.active, p.created_at, p.settings, u.display_name AS author FROM scoring_profile p LEFT JOIN app_user u ON u.id = p.author_id ORDER BY p.version DESC`,
-  );
-  return rows.map((r: Record<string, unknown>) => ({
-    version: Number(r.version),
-    note: String(r.note),
-    active: Boolean(r.active),
-    authorName: (r.author as string | null) ?? null,
-    createdAt: (r.created_at as Date).toISOString(),
-    settings: ScoringSettingsSchema.parse(r.settings),
+  return (await findProfiles(ds)).map((p) => ({
+    version: p.version,
+    note: p.note,
+    active: p.active,
+    authorName: p.authorName,
+    createdAt: p.createdAt.toISOString(),
+    settings: ScoringSettingsSchema.parse(p.settings),
   }));
 }
 
 /** Adds a version (and makes it the active one unless told not to). */
-export async function addProfile(ds: DataSource, actor: SessionUser, input: NewProfileInput): Promise<ProfileVersion> {
+export async function addProfile(ds: DataSource, audit: StaffAudit, input: NewProfileInput): Promise<ProfileVersion> {
   const version = await ds.transaction(async (m) => {
-    // Serialise version numbers: two supervisors saving at once get 5 and 6, not 5 twice.
-    await m.query(`LOCK TABLE scoring_profile IN SHARE ROW EXCLUSIVE MODE`);
-    const [{ next }] = await m.query(`SELECT coalesce(max(version), 0) + 1 AS next FROM scoring_profile`);
-    if (input.activate) await m.query(`UPDATE scoring_profile SET active = false WHERE active`);
-    await m.query(`INSERT INTO scoring_profile (version, settings, note, author_id, active) VALUES ($1, $2::jsonb, $3, $4, $5)`, [next, JSON.stringify(input.settings), input.note, actor.id, input.activate]);
-    await recordAccess(m, actor, { action: 'change', route: 'POST /api/scoring/profiles', recordType: 'scoring_profile', recordId: String(next), detail: input.note });
-    return Number(next);
+    await lockProfiles(m);
+    const next = await nextProfileVersion(m);
+    await insertProfile(m, { version: next, settings: input.settings, note: input.note, authorId: audit.actor.id, active: input.activate });
+    await recordAccess(m, audit, { action: 'change', recordType: 'scoring_profile', recordId: String(next), detail: input.note });
+    return next;
   });
   return (await listProfiles(ds)).find((p) => p.version === version)!;
 }
 
 /** Makes an existing version the one new batches are scored with. */
-export async function activateProfile(ds: DataSource, actor: SessionUser, version: number): Promise<void> {
+export async function activateProfile(ds: DataSource, audit: StaffAudit, version: number): Promise<void> {
   await ds.transaction(async (m) => {
     // Same lock as addProfile: two activations at once run one after the other, never a 500.
-    await m.query(`LOCK TABLE scoring_profile IN SHARE ROW EXCLUSIVE MODE`);
-    const found = await m.query(`SELECT 1 FROM scoring_profile WHERE version = $1`, [version]);
-    if (!found.length) throw new HttpError(404, `There is no scoring profile version ${version}.`);
-    await m.query(`UPDATE scoring_profile SET active = false WHERE active AND version <> $1`, [version]);
-    await m.query(`UPDATE scoring_profile SET active = true WHERE version = $1`, [version]);
-    await recordAccess(m, actor, { action: 'change', route: `POST /api/scoring/profiles/${version}/activate`, recordType: 'scoring_profile', recordId: String(version), detail: 'activated' });
+    await lockProfiles(m);
+    if (!(await profileExists(m, version))) throw new HttpError(404, `There is no scoring profile version ${version}.`);
+    await setActiveProfile(m, version);
+    await recordAccess(m, audit, { action: 'change', recordType: 'scoring_profile', recordId: String(version), detail: 'activated' });
   });
 }
 
 /** Queues a re-score of a scored batch under a version (the active one by default); old scores stay. */
-export async function rescoreBatch(ds: DataSource, boss: PgBoss | null, actor: SessionUser, batchId: string, version?: number): Promise<{ version: number }> {
+export async function rescoreBatch(ds: DataSource, boss: PgBoss | null, audit: StaffAudit, batchId: string, version?: number): Promise<{ version: number }> {
   if (!boss) throw new HttpError(503, 'The job queue is not running; start the worker and try again.');
   if (!isUuid(batchId)) throw new HttpError(404, 'No such batch.');
-  const b = await ds.query(`SELECT state FROM filing_batch WHERE id = $1`, [batchId]);
-  if (!b.length) throw new HttpError(404, 'No such batch.');
-  if (b[0].state !== 'scored') throw new HttpError(409, `Only a scored batch can be re-scored; this one is ${b[0].state}.`);
-  const v = version ?? Number((await ds.query(`SELECT version FROM scoring_profile WHERE active`))[0].version);
-  const exists = await ds.query(`SELECT 1 FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [batchId, v]);
-  if (exists.length) throw new HttpError(409, `This batch has already been scored under version ${v}.`);
-  const known = await ds.query(`SELECT 1 FROM scoring_profile WHERE version = $1`, [v]);
-  if (!known.length) throw new HttpError(404, `There is no scoring profile version ${v}.`);
+  const state = await batchState(ds, batchId);
+  if (state === null) throw new HttpError(404, 'No such batch.');
+  if (state !== 'scored') throw new HttpError(409, `Only a scored batch can be re-scored; this one is ${state}.`);
+  const v = version ?? (await activeProfileVersion(ds));
+  if (await runExists(ds, batchId, v)) throw new HttpError(409, `This batch has already been scored under version ${v}.`);
+  if (!(await profileExists(ds, v))) throw new HttpError(404, `There is no scoring profile version ${v}.`);
   await boss.send(QUEUES.scoreBatch, { batchId, profileVersion: v });
-  await recordAccess(ds, actor, { action: 'change', route: `POST /api/batches/${batchId}/rescore`, recordType: 'batch', recordId: batchId, detail: `re-score under version ${v}` });
+  await recordAccess(ds, audit, { action: 'change', recordType: 'filing_batch', recordId: batchId, detail: `re-score under version ${v}` });
   return { version: v };
 }
 
@@ -85,23 +90,13 @@ export async function rescoreBatch(ds: DataSource, boss: PgBoss | null, actor: S
  * score that opened or last updated the case), how many ended adjusted.
  */
 export async function factorPerformance(ds: DataSource): Promise<Performance> {
-  const active = await ds.query(`SELECT version, settings FROM scoring_profile WHERE active`);
-  const settings = ScoringSettingsSchema.parse(active[0].settings);
-  const [{ closed, adjusted }] = await ds.query(
-    `SELECT count(*)::int AS closed, count(*) FILTER (WHERE state = 'closed_adjusted')::int AS adjusted
-       FROM exam_case WHERE state IN ('closed_no_change', 'closed_adjusted', 'referred')`,
-  );
-  const rows: { key: string; flagged: number; adjusted: number }[] = await ds.query(
-    `SELECT comp->>'key' AS key, count(*)::int AS flagged, count(*) FILTER (WHERE c.state = 'closed_adjusted')::int AS adjusted
-       FROM exam_case c JOIN return_score s ON s.id = c.score_id,
-            jsonb_array_elements(s.breakdown->'components') AS comp
-      WHERE c.state IN ('closed_no_change', 'closed_adjusted', 'referred') AND (comp->>'points')::numeric > 0
-      GROUP BY 1`,
-  );
+  const active = await findActiveProfile(ds);
+  const settings = ScoringSettingsSchema.parse(active.settings);
+  const [{ closed, adjusted }, rows] = await Promise.all([finishedCaseCounts(ds), flaggedFinishedCases(ds)]);
   const byKey = new Map(rows.map((r) => [r.key, r]));
   const baseRate = closed > 0 ? adjusted / closed : null;
   return {
-    version: Number(active[0].version),
+    version: active.version,
     closedCases: closed,
     adjustedCases: adjusted,
     baseRate,

@@ -14,11 +14,8 @@ const FIRST_DIGIT_SQL = `substr(ltrim(replace(abs(li.amount)::text, '.', ''), '0
 /** Lines that are bookkeeping figures (totals and the refund are derived from others). */
 const ITEMISED_SQL = `li.line_code NOT LIKE 'tot.%' AND li.line_code <> 'tax.refund' AND li.amount <> 0`;
 
-export async function activeProfileVersion(db: Db): Promise<number> {
-  const r = await db.query(`SELECT version FROM scoring_profile WHERE active`);
-  if (!r.length) throw new Error('No active scoring profile: the scoring migration creates version 1.');
-  return r[0].version;
-}
+// The active-profile query has one home, with the other profile queries.
+export { activeProfileVersion } from './scoring-profile.repository';
 
 /** Return ids of a batch in id order. */
 export async function batchReturnIds(db: Db, batchId: string): Promise<string[]> {

@@ -1,24 +1,25 @@
 import { CreateUserSchema, ResetPasswordSchema, UpdateUserSchema } from '../../shared/users';
-import type { AppDeps } from '../app';
+import type { AppDeps } from '../app-deps';
+import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
 import { createUser, getUsers, resetPassword, updateUser } from './user.service';
 
 /** User administration (admin only). */
-export function userRoutes(deps: AppDeps) {
+export function userRoutes(deps: Pick<AppDeps, 'dataSource'>) {
   const r = secureRouter();
   const ds = deps.dataSource;
   r.get('/users', allow('manageUsers'), async (_req, res) => {
     res.json({ items: await getUsers(ds) });
   });
   r.post('/users', allow('manageUsers'), validate(CreateUserSchema), async (req, res) => {
-    res.status(201).json(await createUser(ds, req.user!, req.body));
+    res.status(201).json(await createUser(ds, staffAuditOf(req), req.body));
   });
   r.patch('/users/:id', allow('manageUsers'), validate(UpdateUserSchema), async (req, res) => {
-    res.json(await updateUser(ds, req.user!, String(req.params.id), req.body));
+    res.json(await updateUser(ds, staffAuditOf(req), String(req.params.id), req.body));
   });
   r.post('/users/:id/password', allow('manageUsers'), validate(ResetPasswordSchema), async (req, res) => {
-    await resetPassword(ds, req.user!, String(req.params.id), req.body.password);
+    await resetPassword(ds, staffAuditOf(req), String(req.params.id), req.body.password);
     res.status(204).end();
   });
   return r;

@@ -6,7 +6,7 @@ import bcrypt from 'bcryptjs';
 import type { DataSource } from 'typeorm';
 import type { CreateUserInput, UpdateUserInput, UserDto } from '../../shared/users';
 import { recordAccess } from '../access-log/access-log.service';
-import type { SessionUser } from '../auth/access';
+import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
 import { User } from './user.entity';
 import { findUserById, listUsers } from './user.repository';
@@ -22,28 +22,28 @@ export async function getUsers(ds: DataSource): Promise<UserDto[]> {
   return (await listUsers(ds)).map(toUserDto);
 }
 
-export async function createUser(ds: DataSource, actor: SessionUser, input: CreateUserInput): Promise<UserDto> {
+export async function createUser(ds: DataSource, audit: StaffAudit, input: CreateUserInput): Promise<UserDto> {
   const hash = await bcrypt.hash(input.password, BCRYPT_ROUNDS);
   return ds.transaction(async (m) => {
     const exists = await m.getRepository(User).existsBy({ username: input.username });
     if (exists) throw new HttpError(409, `The user name "${input.username}" is taken; choose another.`);
     const saved = await m.getRepository(User).save(m.getRepository(User).create({ username: input.username, displayName: input.displayName, role: input.role, passwordHash: hash, active: true }));
-    await recordAccess(m, actor, { action: 'change', route: 'POST /api/users', recordType: 'user', recordId: saved.id, detail: `created ${input.username} as ${input.role}` });
+    await recordAccess(m, audit, { action: 'change', recordType: 'user', recordId: saved.id, detail: `created ${input.username} as ${input.role}` });
     return toUserDto(saved);
   });
 }
 
-export async function updateUser(ds: DataSource, actor: SessionUser, id: string, input: UpdateUserInput): Promise<UserDto> {
+export async function updateUser(ds: DataSource, audit: StaffAudit, id: string, input: UpdateUserInput): Promise<UserDto> {
   const user = await findUserById(ds, id);
   if (!user) throw new HttpError(404, 'No such user.');
-  if (user.id === actor.id && (input.active === false || (input.role && input.role !== 'admin'))) {
+  if (user.id === audit.actor.id && (input.active === false || (input.role && input.role !== 'admin'))) {
     // An office must never lock itself out of its own user administration by accident.
     throw new HttpError(409, 'You cannot deactivate yourself or remove your own administrator role; ask another administrator.');
   }
   return ds.transaction(async (m) => {
     await m.getRepository(User).update({ id }, input);
     const changes = Object.entries(input).map(([k, v]) => `${k}=${v}`).join(', ');
-    await recordAccess(m, actor, { action: 'change', route: `PATCH /api/users/${id}`, recordType: 'user', recordId: id, detail: `${user.username}: ${changes}` });
+    await recordAccess(m, audit, { action: 'change', recordType: 'user', recordId: id, detail: `${user.username}: ${changes}` });
     if (input.active === false) {
       // Signing out a deactivated user everywhere: drop their sessions.
       await m.query(`DELETE FROM user_session WHERE sess::jsonb #>> '{passport,user}' = $1`, [id]);
@@ -52,13 +52,13 @@ export async function updateUser(ds: DataSource, actor: SessionUser, id: string,
   });
 }
 
-export async function resetPassword(ds: DataSource, actor: SessionUser, id: string, password: string): Promise<void> {
+export async function resetPassword(ds: DataSource, audit: StaffAudit, id: string, password: string): Promise<void> {
   const user = await findUserById(ds, id);
   if (!user) throw new HttpError(404, 'No such user.');
   const hash = await bcrypt.hash(password, BCRYPT_ROUNDS);
   await ds.transaction(async (m) => {
     await m.getRepository(User).update({ id }, { passwordHash: hash });
     await m.query(`DELETE FROM user_session WHERE sess::jsonb #>> '{passport,user}' = $1`, [id]);
-    await recordAccess(m, actor, { action: 'change', route: `POST /api/users/${id}/password`, recordType: 'user', recordId: id, detail: `password reset for ${user.username}` });
+    await recordAccess(m, audit, { action: 'change', recordType: 'user', recordId: id, detail: `password reset for ${user.username}` });
   });
 }

@@ -181,6 +181,25 @@ describe('case workflow through the API', () => {
     });
   });
 
+  describe('history in words', () => {
+    it('tells a taxpayer reply as a reply, not as "moved the case from ? to ?"', async () => {
+      const id = take();
+      await caseInState(ctx.dataSource, id, 'awaiting_reply', examiner);
+      // The two events server/letters/replies.service.ts writes (no actor): a reply that ends
+      // the wait (awaiting reply → in review), and a late one that moves nothing.
+      await ctx.dataSource.query(
+        `INSERT INTO case_event (case_id, kind, from_state, to_state, detail) VALUES
+           ($1, 'reply-received', 'awaiting_reply', 'in_review', '{"files": 2}'::jsonb),
+           ($1, 'reply-received', NULL, NULL, '{"files": 1}'::jsonb)`,
+        [id],
+      );
+      const d = await detail(examiner, id);
+      const summaries = d.history.map((h) => h.summary);
+      expect(summaries.slice(-2)).toEqual(['The taxpayer replied through the reply link (2 files); the case is back in review', 'The taxpayer replied through the reply link (1 file)']);
+      expect(summaries.join('\n')).not.toContain('?');
+    });
+  });
+
   describe('notes (POST /api/cases/:id/notes)', () => {
     it('appends time-stamped notes with their author, oldest first, logged as changes', async () => {
       const id = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
@@ -221,9 +240,9 @@ describe('case workflow through the API', () => {
     it('cannot be changed or removed, even in the database', async () => {
       const id = await caseInState(ctx.dataSource, take(), 'assigned', examiner);
       const n = CaseNoteSchema.parse((await post(examiner, `/api/cases/${id}/notes`, { text: 'First thoughts.' })).body);
-      await expect(ctx.dataSource.query(`UPDATE case_note SET text = 'Rewritten' WHERE id = $1`, [n.id])).rejects.toThrow(/append-only/);
-      await expect(ctx.dataSource.query(`DELETE FROM case_note WHERE id = $1`, [n.id])).rejects.toThrow(/append-only/);
-      await expect(ctx.dataSource.query(`TRUNCATE case_note`)).rejects.toThrow(/append-only/);
+      await expect(ctx.dataSource.query(`UPDATE case_note SET text = 'Rewritten' WHERE id = $1`, [n.id])).rejects.toThrow(/append-only|permission denied/);
+      await expect(ctx.dataSource.query(`DELETE FROM case_note WHERE id = $1`, [n.id])).rejects.toThrow(/append-only|permission denied/);
+      await expect(ctx.dataSource.query(`TRUNCATE case_note`)).rejects.toThrow(/append-only|permission denied/);
       expect((await detail(examiner, id)).notes.map((x) => x.text)).toEqual(['First thoughts.']);
     });
   });

@@ -84,8 +84,9 @@ describe('workload and reassignment', () => {
     expect(d.assignee).toEqual({ id: nell.user.id, name: 'Nell Quarrender' });
     expect(d.history.map((h) => h.summary)).toEqual([expect.stringMatching(/^Opened by scoring/), 'Ivo Brackley claimed the case', 'Test supervisor reassigned the case from Ivo Brackley to Nell Quarrender']);
     expect(d.actions.canAct).toBe(true);
-    const log = await ctx.dataSource.query(`SELECT user_id, detail FROM access_log WHERE record_id = $1 AND route LIKE '%/assign'`, [ivoAssigned[0]]);
-    expect(log).toEqual([{ user_id: supervisor.user.id, detail: 'assigned to Nell Quarrender' }]);
+    // The route the supervisor called, not `POST …/assign` (a route this action never calls).
+    const log = await ctx.dataSource.query(`SELECT user_id, route, detail FROM access_log WHERE record_id = $1 AND user_id = $2 AND action = 'change'`, [ivoAssigned[0], supervisor.user.id]);
+    expect(log).toEqual([{ user_id: supervisor.user.id, route: 'POST /api/cases/reassign', detail: 'assigned to Nell Quarrender' }]);
   });
 
   it('reassigns open cases too (first assignment), and refuses a bad selection', async () => {

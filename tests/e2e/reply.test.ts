@@ -41,10 +41,9 @@ describe('taxpayer reply page in the browser', () => {
     // No e-mail given: the letter goes to the address on file, which is ours.
     await sendDocumentRequest(
       { dataSource: ds, mailer, publicUrl: server.baseUrl },
-      { id: examiner.id, username: examiner.username, displayName: examiner.displayName, role: 'examiner' },
+      { actor: { id: examiner.id, username: examiner.username, displayName: examiner.displayName, role: 'examiner' }, route: `POST /api/cases/${caseId}/document-requests` },
       caseId,
       { items: ITEMS, dueDate: dueIn(21) },
-      `POST /api/cases/${caseId}/document-requests`,
     );
     const mail = await waitForMail(to);
     const token = /\/reply\/([A-Za-z0-9_-]{43})/.exec(mail.text ?? '')![1];

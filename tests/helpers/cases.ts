@@ -38,9 +38,10 @@ const PATH: Record<CaseState, { to: CaseState; kind?: string; outcome?: string; 
 export async function caseInState(ds: DataSource, caseId: string, state: CaseState, holder: SignedIn): Promise<string> {
   if (state === 'open') return caseId;
   const actor = sessionUserOf(holder);
-  await claimCase(ds, actor, caseId);
+  // The routes the API would log for these moves.
+  await claimCase(ds, { actor, route: `POST /api/cases/${caseId}/claim` }, caseId);
   for (const step of PATH[state]) {
-    await ds.transaction((m) => moveCase(m, actor, caseId, step.to, { kind: step.kind, outcome: step.outcome, adjustedAmount: step.adjustedAmount, dueDate: step.dueDate }));
+    await ds.transaction((m) => moveCase(m, { actor, route: `POST /api/cases/${caseId}/transition` }, caseId, step.to, { kind: step.kind, outcome: step.outcome, adjustedAmount: step.adjustedAmount, dueDate: step.dueDate }));
   }
   return caseId;
 }

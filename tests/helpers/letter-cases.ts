@@ -33,8 +33,9 @@ export async function caseInReview(ds: DataSource, examiner: Pick<SignedIn, 'use
   if (!rows.length) throw new Error('no open case left in the fixture batch: load a bigger one');
   const { id, taxpayer_id } = rows[0];
   const actor = sessionUserOf(examiner);
-  await claimCase(ds, actor, id);
-  await ds.transaction((m) => moveCase(m, actor, id, 'in_review'));
+  // The routes the API would log for these moves.
+  await claimCase(ds, { actor, route: `POST /api/cases/${id}/claim` }, id);
+  await ds.transaction((m) => moveCase(m, { actor, route: `POST /api/cases/${id}/transition` }, id, 'in_review'));
   await ds.query(`UPDATE taxpayer SET email = $2 WHERE id = $1`, [taxpayer_id, email]);
   return { caseId: id, taxpayerId: taxpayer_id, email };
 }
