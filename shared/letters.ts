@@ -132,6 +132,14 @@ export function flaggedLetterWords(text: string): string[] {
   return FLAGGED_LETTER_WORDS.filter((f) => f.pattern.test(text)).map((f) => f.word);
 }
 
+/** The requested items that contain flagged words, with the words, for the API's `warnings`. */
+export function letterItemWarnings(items: readonly string[]): { item: number; words: string[] }[] {
+  return items.flatMap((text, item) => {
+    const words = flaggedLetterWords(text);
+    return words.length ? [{ item, words }] : [];
+  });
+}
+
 /** The warning shown under an item that contains flagged words; null when there are none. */
 export function flaggedLetterWarning(text: string): string | null {
   const words = flaggedLetterWords(text);
@@ -212,8 +220,15 @@ export type LetterDto = z.infer<typeof LetterSchema>;
 export const LetterListSchema = z.object({ items: z.array(LetterSchema) });
 export type LetterList = z.infer<typeof LetterListSchema>;
 
-/** Answer of the two letter-making routes: the letter and the case's new state. */
-export const LetterCreatedSchema = z.object({ letter: LetterSchema, caseState: z.string() });
+/** One requested item that contains flagged words (see {@link flaggedLetterWords}); `item` is its index. */
+export const LetterWordWarningSchema = z.object({ item: z.number().int().min(0), words: z.array(z.string()) });
+export type LetterWordWarning = z.infer<typeof LetterWordWarningSchema>;
+
+/**
+ * Answer of the two letter-making routes: the letter and the case's new state. A document
+ * request also lists `warnings` for items with flagged words (sent all the same: a soft check).
+ */
+export const LetterCreatedSchema = z.object({ letter: LetterSchema, caseState: z.string(), warnings: z.array(LetterWordWarningSchema).optional() });
 export type LetterCreated = z.infer<typeof LetterCreatedSchema>;
 
 /**

@@ -1,7 +1,8 @@
 /**
  * Letters API, for staff (issue 7):
  *  - `POST /api/cases/:id/document-requests` {items, dueDate, email?} (workCases, the case's
- *    examiner or a supervisor; case in review) → 201 {letter, caseState: 'awaiting_reply'};
+ *    examiner or a supervisor; case in review) → 201 {letter, caseState: 'awaiting_reply',
+ *    warnings: [{item, words}]} (items with flagged words, sent all the same);
  *    422 invalid input or no e-mail address, 409 wrong state, 502 mail server refused;
  *  - `POST /api/cases/:id/referral` {unit?, summary} (workCases; in review or awaiting
  *    reply) → 201 {letter, caseState: 'referred'};
@@ -11,7 +12,7 @@
  * Every read is written to the access log as a view; every change by the case workflow.
  */
 import type { Response } from 'express';
-import { DocumentRequestInputSchema, ReferralInputSchema } from '../../shared/letters';
+import { DocumentRequestInputSchema, letterItemWarnings, ReferralInputSchema } from '../../shared/letters';
 import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
@@ -35,7 +36,9 @@ export function letterRoutes(deps: LetterDeps) {
 
   r.post('/cases/:id/document-requests', allow('workCases'), validate(DocumentRequestInputSchema), async (req, res) => {
     const id = String(req.params.id);
-    res.status(201).json(await sendDocumentRequest(ld, staffAuditOf(req), id, req.body));
+    const created = await sendDocumentRequest(ld, staffAuditOf(req), id, req.body);
+    // A soft check: the examiner's own words go out as typed; the answer names the flagged ones.
+    res.status(201).json({ ...created, warnings: letterItemWarnings(req.body.items) });
   });
 
   r.post('/cases/:id/referral', allow('workCases'), validate(ReferralInputSchema), async (req, res) => {

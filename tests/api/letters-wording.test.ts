@@ -45,6 +45,7 @@ describe('wording of the documents', () => {
       .set('X-CSRF-Token', examiner.csrf)
       .send({ items: ['Receipts for the vehicle expenses claimed', 'Payslips from each employer'], dueDate: dueIn(21) });
     expect(res.status).toBe(201);
+    expect(res.body.warnings).toEqual([]);
 
     const mail = await waitForMail(to, 30_000);
     const pdf = (mail.attachments ?? []).find((a) => a.contentType === 'application/pdf');
@@ -64,6 +65,18 @@ describe('wording of the documents', () => {
       expect({ what, honest: /honest/i.test(text) }).toEqual({ what, honest: false });
     }
     expect(sentText).toContain('This is a request for records, not a decision');
+  });
+
+  it('an item with flagged words is sent all the same, and the answer names it (a soft check)', async () => {
+    const to = uniqueAddress('wording-flagged');
+    const { caseId } = await caseInReview(ctx.dataSource, examiner, to);
+    const res = await examiner.agent
+      .post(`/api/cases/${caseId}/document-requests`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ items: ['Payslips from each employer', 'Receipts behind the risky pattern of round amounts'], dueDate: dueIn(21) });
+    expect(res.status).toBe(201);
+    expect(res.body.caseState).toBe('awaiting_reply');
+    expect(res.body.warnings).toEqual([{ item: 1, words: ['risk', 'pattern'] }]);
   });
 
   it('the referral memo carries the short caution in full, licensed professional practice, and the unit\'s own name', async () => {

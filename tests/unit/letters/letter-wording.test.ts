@@ -5,7 +5,7 @@
  * units' names.
  */
 import { CAUTIONS, SCREENING_CAUTION } from '../../../shared/cautions';
-import { FLAGGED_LETTER_WORDS, flaggedLetterWarning, flaggedLetterWords, REFERRAL_UNIT_LABELS, REFERRAL_UNITS } from '../../../shared/letters';
+import { FLAGGED_LETTER_WORDS, flaggedLetterWarning, flaggedLetterWords, letterItemWarnings, REFERRAL_UNIT_LABELS, REFERRAL_UNITS } from '../../../shared/letters';
 
 describe('flaggedLetterWords', () => {
   it('finds nothing in ordinary requests for records', () => {
@@ -53,6 +53,14 @@ describe('flaggedLetterWords', () => {
   it('covers the words the owners named: risk, score, digit, pattern, Benford, fraud, suspicion, penalty', () => {
     const listed = FLAGGED_LETTER_WORDS.map((f) => f.word);
     for (const w of ['risk', 'score', 'digit', 'pattern', 'Benford', 'fraud', 'suspicion', 'penalty']) expect(listed).toContain(w);
+  });
+
+  it('lists the items with flagged words for the API answer, by index', () => {
+    expect(letterItemWarnings(['Payslips from each employer', 'Bank statements'])).toEqual([]);
+    expect(letterItemWarnings(['Payslips', 'Proof against fraud', 'Receipts', 'Your score'])).toEqual([
+      { item: 1, words: ['fraud'] },
+      { item: 3, words: ['score'] },
+    ]);
   });
 
   it('gives a soft warning naming the words, or null', () => {
