@@ -8,6 +8,7 @@ import type { Server } from 'node:http';
 import type PgBoss from 'pg-boss';
 import type { DataSource } from 'typeorm';
 import { createApp } from './app';
+import { cleanUploadSpool } from './batches/intake/upload-spool';
 import { ConfigError, loadConfig } from './config';
 import { createDataSource } from './db/data-source';
 import { createMailer, type Mailer } from './mail/mailer';
@@ -38,6 +39,7 @@ process.on('SIGTERM', () => void stop('SIGTERM'));
 
 async function main() {
   const config = loadConfig();
+  cleanUploadSpool(); // upload files left by a server that crashed mid-read
   dataSource = createDataSource(config.DATABASE_URL, { applicationName: 'plumbline-server' });
   await dataSource.initialize();
   boss = createBoss(config.DATABASE_URL, 'server');

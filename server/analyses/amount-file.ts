@@ -7,14 +7,17 @@
  * "amount" (any case). A one-column file whose first cell is an amount has no header. In
  * XLSX the first sheet having the column is read; number cells are read like the batch
  * intake reads them (server/batches/intake/cell-text.ts): within a millionth of a cent of a
- * cent amount is that amount. Files are streamed, never read whole.
+ * cent amount is that amount. Files are streamed, never read whole, under the reading caps
+ * of server/batches/intake/caps.ts (rows, cells, shared strings, inflated size); the server
+ * runs this in a worker thread (server/batches/intake/upload-worker.ts).
  */
 import fs from 'node:fs';
 import path from 'node:path';
 import readline from 'node:readline';
-import { parse as parseCsv } from 'csv-parse';
-import ExcelJS from 'exceljs';
-import { AmountParseError, centsFromNumber, centsFromString } from '../../shared/digits';
+import { CsvError, parse as parseCsv } from 'csv-parse';
+import { AmountParseError, centsFromNumber, centsFromString } from '../../shared/digits/parse';
+import { CapCounter, capError, DEFAULT_READ_CAPS, type ReadCaps } from '../batches/intake/caps';
+import { WorkbookError, XlsxReader } from '../batches/intake/xlsx-source';
 
 /** The file cannot be used as asked (wrong column, unreadable, old format…): one clear line. */
 export class AmountFileError extends Error {}
@@ -38,13 +41,17 @@ export class CentsBuffer {
   }
 }
 
-async function readTextFile(file: string, out: CentsBuffer): Promise<string> {
+async function readTextFile(file: string, out: CentsBuffer, caps: ReadCaps): Promise<string> {
   const rl = readline.createInterface({ input: fs.createReadStream(file), crlfDelay: Infinity });
+  const counter = new CapCounter(caps);
+  const where = path.basename(file);
   let line = 0;
   for await (const raw of rl) {
     line++;
+    if (raw.length > caps.maxLineChars) throw capError('maxLineChars', caps, where);
     const text = (line === 1 ? raw.replace(/^\uFEFF/, '') : raw).trim();
     if (text === '') continue;
+    counter.row(out.length + 1, 1, where);
     out.push(centsFromString(text, `line ${line}`));
   }
   return 'one amount a line';
@@ -78,34 +85,41 @@ function isAmountText(text: string): boolean {
   }
 }
 
-async function readCsvFile(file: string, wanted: string | null, out: CentsBuffer): Promise<string> {
+async function readCsvFile(file: string, wanted: string | null, out: CentsBuffer, caps: ReadCaps): Promise<string> {
   const parser = fs
     .createReadStream(file)
-    .pipe(parseCsv({ bom: true, info: true, skip_empty_lines: true, relax_column_count: true }));
+    .pipe(parseCsv({ bom: true, info: true, skip_empty_lines: true, relax_column_count: true, max_record_size: caps.maxLineChars }));
+  const counter = new CapCounter(caps);
+  const where = path.basename(file);
+  let rows = 0;
   let index = -1; // column of the amounts, -1 until the first row is read
   let name = '';
-  for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
-    const { record, info } = item;
-    if (index < 0) {
-      const col = chooseColumn(record, wanted, path.basename(file));
-      if (col !== null) {
-        index = col;
-        name = record[col].trim();
-        continue;
+  try {
+    for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
+      const { record, info } = item;
+      counter.row(++rows, record.length, where);
+      if (index < 0) {
+        const col = chooseColumn(record, wanted, where);
+        if (col !== null) {
+          index = col;
+          name = record[col].trim();
+          continue;
+        }
+        index = 0; // no header: this row is an amount too
       }
-      index = 0; // no header: this row is an amount too
+      const position = name ? `line ${info.lines}, column "${name}"` : `line ${info.lines}`;
+      const cell = record[index];
+      if (cell === undefined) throw new AmountParseError(undefined, position, 'is missing (the row is too short)');
+      out.push(centsFromString(cell.trim(), position));
     }
-    const position = name ? `line ${info.lines}, column "${name}"` : `line ${info.lines}`;
-    const cell = record[index];
-    if (cell === undefined) throw new AmountParseError(undefined, position, 'is missing (the row is too short)');
-    out.push(centsFromString(cell.trim(), position));
+  } catch (e) {
+    if (e instanceof CsvError && e.code === 'CSV_MAX_RECORD_SIZE') throw capError('maxLineChars', caps, where);
+    throw e;
+  } finally {
+    parser.destroy();
   }
   if (index < 0) return 'empty CSV file';
   return name ? `column "${name}"` : 'one column, no header';
-}
-
-interface StreamedWorksheet extends AsyncIterable<ExcelJS.Row> {
-  name?: string;
 }
 
 /** An XLSX cell as cents, under the batch intake's reading rules (see the module comment). */
@@ -142,49 +156,58 @@ function cellHeader(v: unknown): string {
   return v === null || v === undefined ? '' : String(v);
 }
 
-async function readXlsxFile(file: string, wanted: string | null, out: CentsBuffer): Promise<string> {
-  const input = fs.createReadStream(file);
-  const reader = new ExcelJS.stream.xlsx.WorkbookReader(input, {
-    worksheets: 'emit',
-    sharedStrings: 'cache',
-    hyperlinks: 'ignore',
-    styles: 'ignore',
-    entries: 'ignore',
-  });
+async function readXlsxFile(file: string, wanted: string | null, out: CentsBuffer, caps: ReadCaps): Promise<string> {
+  let reader: XlsxReader;
+  try {
+    reader = await XlsxReader.open(file, caps, path.basename(file));
+  } catch (e) {
+    if (e instanceof WorkbookError) throw new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
+    throw e;
+  }
   const skipped: string[] = [];
   try {
-    for await (const ws of reader as unknown as AsyncIterable<StreamedWorksheet>) {
-      const sheet = ws.name ?? `sheet ${skipped.length + 1}`;
+    for (const ws of reader.sheets) {
+      const sheet = ws.name || `sheet ${skipped.length + 1}`;
       let index = -1; // column of the amounts (0-based), -1 until the first row is read
       let name = '';
-      for await (const row of ws) {
-        const values = row.values as unknown[];
-        if (index < 0) {
-          const header = values.slice(1).map(cellHeader);
-          let col: number | null;
-          try {
-            col = chooseColumn(header, wanted, `sheet "${sheet}"`);
-          } catch (e) {
-            if (!(e instanceof AmountFileError)) throw e;
-            break; // the column is not on this sheet: look at the next one
+      let next = false;
+      for await (const rows of reader.rows(ws, `${path.basename(file)}, sheet "${sheet}"`)) {
+        for (const row of rows) {
+          const values = row.values;
+          if (index < 0) {
+            const header = values.slice(1).map(cellHeader);
+            if (header.every((h) => h.trim() === '')) continue; // exceljs never gave empty rows
+            let col: number | null;
+            try {
+              col = chooseColumn(header, wanted, `sheet "${sheet}"`);
+            } catch (e) {
+              if (!(e instanceof AmountFileError)) throw e;
+              next = true; // the column is not on this sheet: look at the next one
+              break;
+            }
+            if (col !== null) {
+              index = col;
+              name = header[col].trim();
+              continue;
+            }
+            index = 0; // no header: this row is an amount too
           }
-          if (col !== null) {
-            index = col;
-            name = header[col].trim();
-            continue;
-          }
-          index = 0; // no header: this row is an amount too
+          if (values.length <= 1) continue; // an empty row (formatting only)
+          const position = `sheet "${sheet}" cell ${columnLetter(index + 1)}${row.number}`;
+          out.push(cellCents(values[index + 1], position));
         }
-        const position = `sheet "${sheet}" cell ${columnLetter(index + 1)}${row.number}`;
-        out.push(cellCents(values[index + 1], position));
+        if (next) break;
       }
       if (index >= 0) {
         return name ? `sheet "${sheet}", column "${name}"` : `sheet "${sheet}", one column, no header`;
       }
       skipped.push(`"${sheet}"`);
     }
+  } catch (e) {
+    if (e instanceof WorkbookError) throw new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
+    throw e;
   } finally {
-    input.destroy();
+    await reader.close();
   }
   const sheets = skipped.join(', ') || 'none';
   if (wanted !== null) throw new AmountFileError(`${path.basename(file)}: no sheet has a column "${wanted}" (sheets: ${sheets})`);
@@ -206,15 +229,17 @@ function columnLetter(n: number): string {
  * @param file path of the file
  * @param column the column to read (CSV/XLSX), or null to pick it as described above
  * @param kind 'csv' | 'xlsx' | 'text'; by default from the file's extension
+ * @param caps reading limits (server/batches/intake/caps.ts)
  * @returns the amounts (signed integer cents) and a description of what was read
- * @throws AmountFileError or AmountParseError (naming the offending value and its position)
+ * @throws AmountFileError or AmountParseError (naming the offending value and its position),
+ *   CapError (a reading limit crossed)
  */
-export async function readAmountsFile(file: string, column: string | null, kind?: 'csv' | 'xlsx' | 'text'): Promise<{ cents: Float64Array; what: string }> {
+export async function readAmountsFile(file: string, column: string | null, kind?: 'csv' | 'xlsx' | 'text', caps: ReadCaps = DEFAULT_READ_CAPS): Promise<{ cents: Float64Array; what: string }> {
   const ext = path.extname(file).toLowerCase();
   const k = kind ?? (ext === '.csv' ? 'csv' : ext === '.xlsx' ? 'xlsx' : 'text');
   if (ext === '.xls') throw new AmountFileError(`${path.basename(file)}: old .xls workbooks are not read; save it as .xlsx`);
   if (column !== null && k === 'text') throw new AmountFileError('A column name applies to CSV and XLSX files; a text file has one amount a line');
   const cents = new CentsBuffer();
-  const what = k === 'csv' ? await readCsvFile(file, column, cents) : k === 'xlsx' ? await readXlsxFile(file, column, cents) : await readTextFile(file, cents);
+  const what = k === 'csv' ? await readCsvFile(file, column, cents, caps) : k === 'xlsx' ? await readXlsxFile(file, column, cents, caps) : await readTextFile(file, cents, caps);
   return { cents: cents.values(), what };
 }

@@ -1,9 +1,8 @@
-import fs from 'node:fs';
-import os from 'node:os';
 import multer from 'multer';
 import { DigitAnalysisRequestSchema } from '../../shared/analyses';
-import type { AppDeps } from '../app-deps';
+import type { AppDeps } from '../app';
 import { allow, secureRouter } from '../auth/access';
+import { removeSpooled, spoolStorage } from '../batches/intake/upload-spool';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
 import { analyseAmounts, analyseFile } from './analyses.service';
@@ -11,16 +10,22 @@ import { analyseAmounts, analyseFile } from './analyses.service';
 /** Largest file for an ad-hoc digit analysis. */
 const MAX_FILE_BYTES = 50 * 1024 * 1024;
 
-/** `POST /api/analyses/digits`: JSON {amounts} or multipart `file` (+ optional `column`). */
+/**
+ * `POST /api/analyses/digits`: JSON {amounts} or multipart `file` (+ optional `column`).
+ * The file waits in the upload spool (server/batches/intake/upload-spool.ts) and is read in
+ * a worker thread under reading caps; it is removed when the answer is sent.
+ */
 export function analysesRoutes(_deps: AppDeps) {
   const r = secureRouter();
-  const upload = multer({ dest: os.tmpdir(), limits: { fileSize: MAX_FILE_BYTES, files: 1, fields: 5 } }).single('file');
+  const upload = multer({ storage: spoolStorage(), limits: { fileSize: MAX_FILE_BYTES, files: 1, fields: 5 } }).single('file');
   r.post('/analyses/digits', allow('analyse'), (req, res, next) => {
     if (!req.is('multipart/form-data')) return next();
     upload(req, res, (err: unknown) => {
       if (err instanceof multer.MulterError) {
-        return next(new HttpError(err.code === 'LIMIT_FILE_SIZE' ? 413 : 422, err.code === 'LIMIT_FILE_SIZE' ? `The file is larger than ${MAX_FILE_BYTES / 1024 / 1024} MB.` : `Upload problem: ${err.message}. Send one file in the field "file".`));
+        return next(new HttpError(err.code === 'LIMIT_FILE_SIZE' ? 413 : 422, err.code === 'LIMIT_FILE_SIZE' ? `The file is larger than ${MAX_FILE_BYTES / 1024 / 1024} MB. Split the amounts into several smaller files and analyse each on its own.` : `Upload problem: ${err.message}. Send one file in the field "file".`));
       }
+      // busboy's errors: the body is not a well-formed multipart form (cut short, bad boundary…).
+      if (err instanceof Error) return next(new HttpError(400, `The upload is not a readable multipart form (${err.message}). Choose the file again and send it.`));
       if (err) return next(err);
       const file = req.file;
       if (!file) return next(new HttpError(422, 'No file: send the amounts as the multipart field "file".'));
@@ -28,7 +33,7 @@ export function analysesRoutes(_deps: AppDeps) {
       analyseFile(file.path, file.originalname, column)
         .then((profile) => res.json(profile))
         .catch(next)
-        .finally(() => fs.rm(file.path, { force: true }, () => undefined));
+        .finally(() => void removeSpooled([file]));
     });
   }, validate(DigitAnalysisRequestSchema), (req, res) => {
     res.json(analyseAmounts(req.body.amounts));

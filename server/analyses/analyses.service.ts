@@ -2,10 +2,19 @@
  * Digit analysis of a list of amounts or an uploaded file: the same profile the `digits`
  * command prints (shared/digits).
  */
+import fs from 'node:fs';
 import path from 'node:path';
-import { findAmountErrors, profileAmounts, profileCents, AmountParseError, type DigitProfile } from '../../shared/digits';
+import { findAmountErrors, profileAmounts, profileCents, type DigitProfile } from '../../shared/digits';
 import { HttpError } from '../http/errors';
-import { AmountFileError, readAmountsFile } from './amount-file';
+import { CapError, DEFAULT_READ_CAPS, EXCEL_MAX_ROWS, type ReadCaps } from '../batches/intake/caps';
+import { sniff } from '../batches/intake/sources';
+import { readAmountsInThread, ReaderDiedError } from '../batches/intake/upload-worker';
+
+/**
+ * Reading caps of an amounts file: one Excel sheet's rows; the rest as for any upload
+ * (server/batches/intake/caps.ts).
+ */
+export const AMOUNT_FILE_CAPS: ReadCaps = { ...DEFAULT_READ_CAPS, maxRows: EXCEL_MAX_ROWS };
 
 /** Profiles JSON amounts; every bad value is reported at once (422). */
 export function analyseAmounts(amounts: (number | string)[]): DigitProfile {
@@ -18,16 +27,49 @@ export function analyseAmounts(amounts: (number | string)[]): DigitProfile {
   return profileAmounts(amounts);
 }
 
-/** Profiles a column of an uploaded file (text, CSV or XLSX, by the original name's extension). */
-export async function analyseFile(storedPath: string, originalName: string, column: string | null): Promise<DigitProfile> {
+async function firstBytes(file: string): Promise<Buffer> {
+  const fh = await fs.promises.open(file, 'r');
+  try {
+    const buf = Buffer.alloc(512);
+    const { bytesRead } = await fh.read(buf, 0, buf.length, 0);
+    return buf.subarray(0, bytesRead);
+  } finally {
+    await fh.close();
+  }
+}
+
+/**
+ * Profiles a column of an uploaded file (text, CSV or XLSX, by the original name's
+ * extension). The file is read in a worker thread under {@link AMOUNT_FILE_CAPS}.
+ * @throws HttpError 422 for a file that is not what its name says or holds a bad value,
+ *   413 for a file over a reading limit (the message names it and how to split the file)
+ */
+export async function analyseFile(storedPath: string, originalName: string, column: string | null, caps: ReadCaps = AMOUNT_FILE_CAPS): Promise<DigitProfile> {
   const ext = path.extname(originalName).toLowerCase();
   const kind = ext === '.csv' ? 'csv' : ext === '.xlsx' ? 'xlsx' : ext === '.txt' || ext === '' ? 'text' : null;
   if (!kind) throw new HttpError(422, `"${originalName}" is not a .txt, .csv or .xlsx file. Save the amounts in one of those formats.`);
+  const found = sniff(await firstBytes(storedPath));
+  if (kind === 'xlsx' && found !== 'zip') {
+    const what = found === 'ole' ? 'an old Excel 97–2003 workbook (.xls)' : found === 'pdf' ? 'a PDF' : found === 'text' ? 'a text file' : 'not an Excel workbook';
+    throw new HttpError(422, `"${originalName}" is named .xlsx but is ${what}. Open it in Excel and save it as an Excel Workbook (.xlsx), or send the amounts as CSV.`);
+  }
+  if (kind !== 'xlsx' && (found === 'zip' || found === 'ole' || found === 'pdf' || found === 'binary')) {
+    throw new HttpError(422, `"${originalName}" is named ${ext || 'as text'} but holds ${found === 'zip' ? 'a ZIP file (an .xlsx workbook?)' : 'binary data'}. Send amounts as text, CSV UTF-8 or an .xlsx workbook named as such.`);
+  }
+  // The reader names the file by its stored name; the sender knows it by theirs.
+  const stored = path.basename(storedPath);
+  const named = (message: string) => {
+    const m = message.split(stored).join(originalName);
+    return m.startsWith(originalName) ? m : `${originalName}: ${m}`;
+  };
   try {
-    const { cents } = await readAmountsFile(storedPath, column, kind);
+    const { cents } = await readAmountsInThread(storedPath, column, kind, caps);
     return profileCents(cents);
   } catch (e) {
-    if (e instanceof AmountParseError || e instanceof AmountFileError) throw new HttpError(422, `${originalName}: ${e.message}`);
+    if (e instanceof CapError) throw new HttpError(413, named(e.message), { limit: e.cap });
+    if (e instanceof ReaderDiedError) throw new HttpError(e.reason === 'memory' ? 413 : 422, named(e.message));
+    const kindOf = (e as { kind?: string }).kind;
+    if (kindOf === 'amount-file' || kindOf === 'amount-parse') throw new HttpError(422, named((e as Error).message));
     throw e;
   }
 }

@@ -7,9 +7,6 @@
  *  - `GET /api/batches?page=&pageSize=` and `GET /api/batches/:id` (clerk, supervisor);
  *  - `GET /api/batches/:id/report.xlsx` (clerk, supervisor): the validation report.
  */
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
 import type { RequestHandler } from 'express';
 import multer from 'multer';
 import { BatchListQuerySchema, sizeText, type BatchRejected, type BatchTable } from '../../shared/returns/batch-rows';
@@ -21,6 +18,7 @@ import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
 import { getBatch, ingestUpload, listBatches, uploadFromParts, writeBatchReport, type IntakeDeps } from './batch.service';
 import type { UploadedFile } from './intake/sources';
+import { removeSpooled, spoolStorage } from './intake/upload-spool';
 import { isUuid } from '../../shared/ids';
 
 const PARTS = ['file', 'returns', 'line_items', 'statements'] as const;
@@ -32,39 +30,40 @@ export function intakeLimits(config: AppDeps['config']) {
 }
 
 /**
- * Receives the multipart upload onto disk (never whole into memory), with the size limit,
- * and turns multer's own errors into the batch error format.
+ * Receives the multipart upload onto disk (never whole into memory) in the upload spool
+ * (files 0600 in the project's data folder), with the size limit, and turns multer's own
+ * errors into the batch error format; a body that is not a readable multipart form is 400.
  */
 function receiveUpload(maxFileBytes: number): RequestHandler {
-  const dir = path.join(os.tmpdir(), 'plumbline-uploads');
-  fs.mkdirSync(dir, { recursive: true });
   const mw = multer({
-    storage: multer.diskStorage({ destination: dir }),
+    storage: spoolStorage(),
     limits: { fileSize: maxFileBytes, files: PARTS.length, fields: 10, parts: 20 },
     defParamCharset: 'utf8',
   }).fields(PARTS.map((name) => ({ name, maxCount: 1 })));
   return (req, res, next) => {
+    const problem = (status: number, message: string, file = '') => {
+      const body: BatchRejected = { error: message, batchId: null, errorCount: 1, errors: [{ file, row: null, column: null, message }] };
+      res.status(status).json(body);
+    };
     mw(req, res, (err: unknown) => {
       if (!err) return next();
       if (err instanceof multer.MulterError) {
         const file = (err as { filename?: string }).filename ?? err.field ?? '';
-        const problem = (status: number, message: string) => {
-          const body: BatchRejected = { error: message, batchId: null, errorCount: 1, errors: [{ file, row: null, column: null, message }] };
-          res.status(status).json(body);
-        };
-        if (err.code === 'LIMIT_FILE_SIZE') return problem(413, `The file is larger than the ${sizeText(maxFileBytes)} a batch file may be. Split the batch into smaller batches.`);
+        if (err.code === 'LIMIT_FILE_SIZE') return problem(413, `The file is larger than the ${sizeText(maxFileBytes)} a batch file may be. Split the batch into smaller batches.`, file);
         if (err.code === 'LIMIT_UNEXPECTED_FILE') {
-          return problem(422, `Unexpected upload part "${err.field}". Send one XLSX workbook as "file", or CSV files as "returns", "line_items" and optionally "statements".`);
+          return problem(422, `Unexpected upload part "${err.field}". Send one XLSX workbook as "file", or CSV files as "returns", "line_items" and optionally "statements".`, file);
         }
-        return problem(422, `The upload could not be read (${err.message}). Send one XLSX workbook, or the CSV files of one batch.`);
+        return problem(422, `The upload could not be read (${err.message}). Send one XLSX workbook, or the CSV files of one batch.`, file);
       }
+      // busboy's errors: the body is not a well-formed multipart form (cut short, bad boundary…).
+      if (err instanceof Error) return problem(400, `The upload is not a readable multipart form (${err.message}). Choose the files again and send them; if it happens again, the connection may have been cut.`);
       next(err);
     });
   };
 }
 
-function removeUploads(files: Record<string, Express.Multer.File[]> | undefined): void {
-  for (const list of Object.values(files ?? {})) for (const f of list) fs.rm(f.path, { force: true }, () => undefined);
+function removeUploads(files: Record<string, Express.Multer.File[]> | undefined): Promise<void> {
+  return removeSpooled(Object.values(files ?? {}).flat());
 }
 
 /** The batch routes. */
@@ -104,7 +103,7 @@ export function batchRoutes(deps: AppDeps) {
       else if (outcome.kind === 'duplicate') res.status(409).json(outcome.body);
       else res.status(422).json(outcome.body);
     } finally {
-      removeUploads(files);
+      await removeUploads(files);
     }
   });
 

@@ -10,7 +10,6 @@
  * batch with errors is rolled back (none of its rows stay) and one without is committed.
  */
 import fs from 'node:fs';
-import os from 'node:os';
 import path from 'node:path';
 import readline from 'node:readline';
 import type { z } from 'zod';
@@ -35,7 +34,8 @@ import { formatCents, MAX_LINES_PER_RETURN } from '../../../shared/returns/money
 import { maskTin } from '../../../shared/access-log';
 import { copyText, IntakeTransaction, type CopyWriter, type TotalsRow } from '../batch.repository';
 import type { DataSource } from 'typeorm';
-import { SourceError, type RawRow, type TableSource } from './sources';
+import { SourceError, type RawRow, type TableSource } from './source-types';
+import { ensureUploadSpool } from './upload-spool';
 import { uuid7Factory } from './uuid7';
 
 /** The errors of a batch: every one counted, the first {@link MAX_REPORTED_ERRORS} kept. */
@@ -91,7 +91,7 @@ export interface IntakeOptions {
   batchId: string;
   limits: IntakeLimits;
   years: TaxYearRange;
-  /** Folder for spooling sheets that come before `returns` in a workbook. */
+  /** Folder for spooling sheets that come before `returns` (default: the upload spool, ./upload-spool.ts). */
   tmpDir?: string;
   /** Told how long each phase took (the ingest benchmark prints them). */
   trace?: (phase: string, ms: number) => void;
@@ -583,10 +583,10 @@ class Intake {
   // Sheets stored before `returns`
 
   private async spool(src: TableSource): Promise<TableSource> {
-    const dir = await fs.promises.mkdtemp(path.join(this.opts.tmpDir ?? os.tmpdir(), 'plumbline-spool-'));
+    const dir = await fs.promises.mkdtemp(path.join(this.opts.tmpDir ?? ensureUploadSpool(), `${process.pid}-sheet-`));
     const file = path.join(dir, `${src.table}.ndjson`);
     this.spools.push(dir);
-    const out = fs.createWriteStream(file);
+    const out = fs.createWriteStream(file, { mode: 0o600 });
     try {
       for await (const batch of src.rows) {
         const text = batch.map((r) => JSON.stringify([r.row, r.cells, r.problems])).join('\n') + '\n';

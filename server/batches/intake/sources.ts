@@ -1,61 +1,22 @@
 /**
  * Reading an upload: what kind of file each part is, its hash, and its tables as a stream
- * of rows. CSV files are decoded as strict UTF-8 and parsed by csv-parse; XLSX workbooks
- * are read sheet by sheet with exceljs's streaming WorkbookReader. Neither holds a whole
- * file in memory.
+ * of rows. CSV files are read by ./csv-source.ts and XLSX workbooks by ./xlsx-source.ts,
+ * both under the reading caps of ./caps.ts; neither holds a whole file in memory. The
+ * server reads uploads through ./upload-worker.ts, in a worker thread with its own memory
+ * limit, so a hostile file costs a refused upload, never the server.
  */
 import { createHash } from 'node:crypto';
 import fs from 'node:fs';
-import { Readable } from 'node:stream';
-import { CsvError, parse } from 'csv-parse';
-import ExcelJS from 'exceljs';
 import { BATCH_TABLES, normaliseHeader, sizeText, type BatchIssue, type BatchTable, type IntakeLimits } from '../../../shared/returns/batch-rows';
+import { CapError, DEFAULT_READ_CAPS, EXCEL_MAX_ROWS, type ReadCaps } from './caps';
 import { cellText } from './cell-text';
+import { csvTables as csvTablesInline } from './csv-source';
+import { uploadTables } from './upload-worker';
+import { ROWS_PER_BATCH, SourceError, type BatchUpload, type RawRow, type TableSource, type UploadedFile } from './source-types';
+import { WorkbookError, XlsxReader, type SheetRow } from './xlsx-source';
 
-/** A file as received (multer wrote it to a temporary path). */
-export interface UploadedFile {
-  /** Name on the clerk's computer, e.g. "returns.csv". */
-  originalName: string;
-  path: string;
-  size: number;
-}
-
-/** What was uploaded: one workbook, or one CSV file per table. */
-export type BatchUpload =
-  | { format: 'xlsx'; workbook: UploadedFile }
-  | { format: 'csv'; parts: Partial<Record<BatchTable, UploadedFile>> };
-
-/** One row as read: its number as a spreadsheet shows it, its cells as trimmed text. */
-export interface RawRow {
-  row: number;
-  cells: string[];
-  /** Per cell, why it could not be read (XLSX only: formulas without values, errors…). */
-  problems: (string | undefined)[] | null;
-}
-
-/**
- * One table of the upload and its rows (the header row first), in batches of rows: one
- * await per batch instead of per row matters at a million rows.
- */
-export interface TableSource {
-  table: BatchTable;
-  /** How errors name it: "returns.csv" or "batch.xlsx › returns". */
-  label: string;
-  rows: AsyncIterable<RawRow[]>;
-}
-
-/** Rows handed on per batch. */
-const ROWS_PER_BATCH = 4096;
-
-/** A file that cannot be read any further; `fatal` stops the whole upload. */
-export class SourceError extends Error {
-  constructor(
-    readonly issue: BatchIssue,
-    readonly fatal: boolean,
-  ) {
-    super(issue.message);
-  }
-}
+export { csvRows } from './csv-source';
+export { ROWS_PER_BATCH, SourceError, type BatchUpload, type RawRow, type TableSource, type UploadedFile } from './source-types';
 
 /** What the first bytes say a file is. */
 export type Sniffed = 'zip' | 'ole' | 'pdf' | 'text' | 'binary';
@@ -145,232 +106,37 @@ export function uploadFileNames(upload: BatchUpload): string[] {
 }
 
 // ---------------------------------------------------------------------------------------
-// CSV
-
-class Utf8Problem extends Error {
-  constructor(readonly line: number) {
-    super('not UTF-8');
-  }
-}
-
-/**
- * Decodes a file as strict UTF-8 in chunks (a leading byte-order mark is dropped). A file
- * saved in another encoding (Windows-1252, say) fails here instead of turning accented
- * names into replacement characters.
- */
-async function* utf8Text(path: string, chunkBytes = 1 << 20): AsyncGenerator<string> {
-  const decoder = new TextDecoder('utf-8', { fatal: true });
-  let lines = 1;
-  for await (const chunk of fs.createReadStream(path, { highWaterMark: chunkBytes })) {
-    let text: string;
-    try {
-      text = decoder.decode(chunk as Buffer, { stream: true });
-    } catch {
-      const loose = new TextDecoder('utf-8').decode(chunk as Buffer);
-      const bad = loose.indexOf('\uFFFD');
-      throw new Utf8Problem(lines + countNewlines(loose, bad < 0 ? loose.length : bad));
-    }
-    lines += countNewlines(text, text.length);
-    if (text) yield text;
-  }
-  const tail = decoder.decode();
-  if (tail) yield tail;
-}
-
-function countNewlines(s: string, end: number): number {
-  let n = 0;
-  for (let i = s.indexOf('\n'); i >= 0 && i < end; i = s.indexOf('\n', i + 1)) n++;
-  return n;
-}
-
-/**
- * Rows of one CSV file. Windows (CRLF) and Unix line endings are both read; blank lines
- * come through as blank rows (so row numbers match what a spreadsheet shows) and the
- * intake skips them.
- *
- * Files without a double quote (nearly every batch) are split by {@link plainCsvRows},
- * which reads them exactly as csv-parse does at a fraction of its cost; as soon as it meets
- * a quote (or a bare CR line ending) it stops, and csv-parse reads the file from the start,
- * passing over the rows already handed on, so quoted fields, CsvErrors and their line
- * numbers are exactly csv-parse's.
- * @param opts for tests: the read size, and `plain: false` to read with csv-parse alone
- */
-export async function* csvRows(file: UploadedFile, opts: { chunkBytes?: number; plain?: boolean } = {}): AsyncGenerator<RawRow[]> {
-  try {
-    const done = opts.plain === false ? 0 : yield* plainCsvRows(file.path, opts.chunkBytes);
-    if (done < 0) return;
-    yield* parsedCsvRows(file.path, done, opts.chunkBytes);
-  } catch (e) {
-    const at = (line: number | null, message: string) => new SourceError({ file: file.originalName, row: line, column: null, message }, false);
-    if (e instanceof Utf8Problem) {
-      throw at(e.line, `The file is not UTF-8 text (an unreadable character on line ${e.line}). In Excel choose "Save as… CSV UTF-8 (Comma delimited)" and upload it again.`);
-    }
-    if (e instanceof CsvError) {
-      const line = typeof (e as { lines?: number }).lines === 'number' ? (e as unknown as { lines: number }).lines : null;
-      throw at(line, `The CSV cannot be read past line ${line}: ${csvProblem(e)} Check that every value containing a comma, quote or line break is enclosed in double quotes, and that quotes inside a value are doubled ("").`);
-    }
-    throw e;
-  }
-}
-
-/** Splits one line (no quotes in it) into trimmed cells, as csv-parse + trim would. */
-function plainCells(line: string): string[] {
-  const cells = line.split(',');
-  for (let i = 0; i < cells.length; i++) cells[i] = cells[i].trim();
-  return cells;
-}
-
-/**
- * The unquoted case of csv-parse's reading (`bom`, no quotes, the record delimiter found
- * as csv-parse finds it: the first CRLF or LF, and then only that one; a CR or LF that is
- * not the delimiter is an ordinary character of its field, which the trim may remove).
- * @returns -1 when the whole file was read; otherwise the number of rows handed on before
- *   something only csv-parse reads (a double quote, or a bare CR as the line ending)
- */
-async function* plainCsvRows(path: string, chunkBytes?: number): AsyncGenerator<RawRow[], number> {
-  let row = 0;
-  let carry = '';
-  let delim = ''; // '' until the first line ending is seen
-  let first = true;
-  let batch: RawRow[] = [];
-  let stopped = false;
-  for await (const chunk of utf8Text(path, chunkBytes)) {
-    let text = chunk;
-    if (first) {
-      first = false;
-      if (text.charCodeAt(0) === 0xfeff) text = text.slice(1); // a second BOM (csv-parse's bom option)
-    }
-    if (text.indexOf('"') >= 0) {
-      stopped = true;
-      break;
-    }
-    const s = carry === '' ? text : carry + text;
-    if (delim === '') {
-      const nl = s.indexOf('\n');
-      const cr = s.indexOf('\r');
-      if (cr >= 0 && (nl < 0 || cr < nl)) {
-        if (cr + 1 === s.length) {
-          carry = s; // CR at the end of the chunk: CRLF or CR, the next chunk tells
-          continue;
-        }
-        if (s.charCodeAt(cr + 1) !== 10) {
-          stopped = true; // old Mac CR line endings: csv-parse
-          break;
-        }
-        delim = '\r\n';
-      } else if (nl >= 0) delim = '\n';
-      else {
-        carry = s;
-        continue;
-      }
-    }
-    const dl = delim.length;
-    let start = 0;
-    for (let e = s.indexOf(delim); e >= 0; e = s.indexOf(delim, start)) {
-      batch.push({ row: ++row, cells: plainCells(s.slice(start, e)), problems: null });
-      start = e + dl;
-      if (batch.length >= ROWS_PER_BATCH) {
-        yield batch;
-        batch = [];
-      }
-    }
-    carry = s.slice(start);
-  }
-  // Whole lines read so far were csv-parse's records too; hand them on before any stop.
-  if (!stopped && carry !== '') {
-    if (delim === '' && carry.charCodeAt(carry.length - 1) === 13) stopped = true; // ends in a lone CR: csv-parse
-    else batch.push({ row: ++row, cells: plainCells(carry), problems: null });
-  }
-  if (batch.length) yield batch;
-  return stopped ? row : -1;
-}
-
-/** Rows of one CSV file by csv-parse, the first `skip` rows not handed on (already were). */
-async function* parsedCsvRows(path: string, skip: number, chunkBytes?: number): AsyncGenerator<RawRow[]> {
-  const parser = parse({ bom: true, relax_column_count: true, skip_empty_lines: false, relax_quotes: false });
-  const source = Readable.from(utf8Text(path, chunkBytes));
-  source.on('error', (e) => parser.destroy(e));
-  source.pipe(parser);
-  // Records are taken with read() in a synchronous loop and handed on in batches; iterating
-  // the parser record by record would cost a promise per row.
-  let ended = false;
-  let failure: unknown = null;
-  let wake: (() => void) | null = null;
-  const signal = () => {
-    const w = wake;
-    wake = null;
-    w?.();
-  };
-  parser.on('readable', signal);
-  parser.on('end', () => {
-    ended = true;
-    signal();
-  });
-  parser.on('error', (e) => {
-    failure = e;
-    signal();
-  });
-  let row = 0;
-  try {
-    for (;;) {
-      const batch: RawRow[] = [];
-      let record: string[] | null;
-      while (batch.length < ROWS_PER_BATCH && (record = parser.read() as string[] | null) !== null) {
-        row++;
-        if (row <= skip) continue;
-        for (let i = 0; i < record.length; i++) record[i] = record[i].trim();
-        batch.push({ row, cells: record, problems: null });
-      }
-      if (batch.length) {
-        yield batch;
-        continue;
-      }
-      if (failure) {
-        if (failure instanceof CsvError && typeof (failure as { lines?: number }).lines !== 'number') Object.assign(failure, { lines: row + 1 });
-        throw failure;
-      }
-      if (ended) return;
-      await new Promise<void>((resolve) => (wake = resolve));
-    }
-  } finally {
-    source.destroy();
-    parser.destroy();
-  }
-}
-
-function csvProblem(e: CsvError): string {
-  switch (e.code) {
-    case 'CSV_QUOTE_NOT_CLOSED':
-      return 'a quoted value is opened and never closed.';
-    case 'CSV_INVALID_CLOSING_QUOTE':
-    case 'CSV_NON_TRIMABLE_CHAR_AFTER_CLOSING_QUOTE':
-      return 'there is text right after a closing quote.';
-    default:
-      return `${e.message.replace(/\.$/, '')}.`;
-  }
-}
-
-/** The tables of a CSV upload, returns first (the line items refer to them). */
-export async function* csvTables(parts: Partial<Record<BatchTable, UploadedFile>>): AsyncGenerator<TableSource> {
-  for (const table of BATCH_TABLES) {
-    const f = parts[table];
-    if (f) yield { table, label: f.originalName, rows: csvRows(f) };
-  }
-}
-
-// ---------------------------------------------------------------------------------------
 // XLSX
 
-/** A worksheet as exceljs's streaming reader yields it (its typings omit these). */
-interface StreamedWorksheet extends AsyncIterable<ExcelJS.Row> {
-  name?: string;
+function unreadable(file: UploadedFile, e: unknown): SourceError {
+  if (e instanceof SourceError) return e;
+  const issue = (message: string) => new SourceError({ file: file.originalName, row: null, column: null, message }, true);
+  if (e instanceof CapError) return issue(e.message);
+  if (e instanceof WorkbookError) return issue(`The workbook cannot be read: ${e.message}. Open it in Excel, save it as an Excel Workbook (.xlsx) and upload it again.`);
+  return issue(`The workbook cannot be read (${e instanceof Error ? e.message : String(e)}). Open it in Excel, save it as an Excel Workbook (.xlsx) and upload it again.`);
 }
 
-async function* sheetRows(ws: StreamedWorksheet, file: UploadedFile): AsyncGenerator<RawRow[]> {
+/** A sheet's rows as the intake reads them: cells as text, with the problems of cells that have none. */
+function rawRow(r: SheetRow): RawRow {
+  const values = r.values;
+  const cells: string[] = [];
+  let problems: (string | undefined)[] | null = null;
+  for (let c = 1; c < values.length; c++) {
+    const t = cellText(values[c]);
+    cells.push(t.text);
+    if (t.problem) {
+      problems ??= [];
+      problems[c - 1] = t.problem;
+    }
+  }
+  return { row: r.number, cells, problems };
+}
+
+async function* sheetRows(reader: XlsxReader, sheet: { name: string; part: string }, file: UploadedFile): AsyncGenerator<RawRow[]> {
   try {
     let batch: RawRow[] = [];
-    for await (const r of readSheetRows(ws)) {
-      batch.push(r);
+    for await (const rows of reader.rows(sheet, `${file.originalName} › ${sheet.name}`)) {
+      for (const r of rows) batch.push(rawRow(r));
       if (batch.length >= ROWS_PER_BATCH) {
         yield batch;
         batch = [];
@@ -382,60 +148,58 @@ async function* sheetRows(ws: StreamedWorksheet, file: UploadedFile): AsyncGener
   }
 }
 
-function unreadable(file: UploadedFile, e: unknown): SourceError {
-  if (e instanceof SourceError) return e;
-  return new SourceError(
-    {
-      file: file.originalName,
-      row: null,
-      column: null,
-      message: `The workbook cannot be read (${e instanceof Error ? e.message : String(e)}). Open it in Excel, save it as an Excel Workbook (.xlsx) and upload it again.`,
-    },
-    true,
-  );
+/**
+ * The tables of a workbook: every sheet is reported through `onSheet` in the order of its
+ * tabs (a null table for sheets other than returns, line_items and statements), and the
+ * tables are then handed on returns first, as a CSV upload's are, so the line items never
+ * wait on disk for their returns.
+ */
+async function* xlsxTablesInline(file: UploadedFile, onSheet: (name: string, table: BatchTable | null) => void, caps: ReadCaps): AsyncGenerator<TableSource> {
+  let reader: XlsxReader;
+  try {
+    reader = await XlsxReader.open(file.path, caps, file.originalName);
+  } catch (e) {
+    throw unreadable(file, e);
+  }
+  try {
+    const found: { table: BatchTable; sheet: { name: string; part: string } }[] = [];
+    for (const sheet of reader.sheets) {
+      const key = normaliseHeader(sheet.name);
+      const table = (BATCH_TABLES as readonly string[]).includes(key) ? (key as BatchTable) : null;
+      onSheet(sheet.name, table);
+      if (table) found.push({ table, sheet });
+    }
+    found.sort((a, b) => BATCH_TABLES.indexOf(a.table) - BATCH_TABLES.indexOf(b.table));
+    for (const { table, sheet } of found) yield { table, label: `${file.originalName} › ${sheet.name}`, rows: sheetRows(reader, sheet, file) };
+  } finally {
+    await reader.close();
+  }
 }
 
-async function* readSheetRows(ws: StreamedWorksheet): AsyncGenerator<RawRow> {
-  for await (const r of ws) {
-    const values = r.values as unknown[];
-    const cells: string[] = [];
-    let problems: (string | undefined)[] | null = null;
-    for (let c = 1; c < values.length; c++) {
-      const t = cellText(values[c]);
-      cells.push(t.text);
-      if (t.problem) {
-        problems ??= [];
-        problems[c - 1] = t.problem;
-      }
-    }
-    yield { row: r.number, cells, problems };
-  }
+/** The tables of an upload, read in this thread (the worker thread runs this). */
+export function uploadTablesInline(upload: BatchUpload, caps: ReadCaps, onSheet: (name: string, table: BatchTable | null) => void): AsyncIterable<TableSource> {
+  return upload.format === 'xlsx' ? xlsxTablesInline(upload.workbook, onSheet, caps) : csvTablesInline(upload.parts, caps);
 }
 
 /**
- * The sheets of a workbook in the order they are stored. Sheets other than returns,
- * line_items and statements are reported through `onSheet` with a null table and skipped.
+ * Reading caps of a batch upload. The row cap sits just past a full Excel sheet and past
+ * the configured row limit, so the intake's own row limit (with its per-table message)
+ * speaks first; the cap only stops a file that would go on far beyond it.
  */
-export async function* xlsxTables(file: UploadedFile, onSheet: (name: string, table: BatchTable | null) => void): AsyncGenerator<TableSource> {
-  const input = fs.createReadStream(file.path, { highWaterMark: 1 << 20 });
-  const reader = new ExcelJS.stream.xlsx.WorkbookReader(input, {
-    worksheets: 'emit',
-    sharedStrings: 'cache',
-    hyperlinks: 'ignore',
-    styles: 'ignore',
-    entries: 'ignore',
-  });
-  try {
-    for await (const ws of reader as unknown as AsyncIterable<StreamedWorksheet>) {
-      const name = ws.name ?? '';
-      const key = normaliseHeader(name);
-      const table = (BATCH_TABLES as readonly string[]).includes(key) ? (key as BatchTable) : null;
-      onSheet(name, table);
-      if (table) yield { table, label: `${file.originalName} › ${name}`, rows: sheetRows(ws, file) };
-    }
-  } catch (e) {
-    throw unreadable(file, e);
-  } finally {
-    input.destroy();
-  }
+export function batchReadCaps(maxRows = EXCEL_MAX_ROWS): ReadCaps {
+  return { ...DEFAULT_READ_CAPS, maxRows: Math.max(maxRows, EXCEL_MAX_ROWS) + 2 };
+}
+
+/**
+ * The tables of a workbook, read in a worker thread (./upload-worker.ts): every sheet is
+ * reported through `onSheet` in the order of its tabs, then the tables are handed on
+ * returns first.
+ */
+export function xlsxTables(file: UploadedFile, onSheet: (name: string, table: BatchTable | null) => void, caps: ReadCaps = batchReadCaps()): AsyncGenerator<TableSource> {
+  return uploadTables({ format: 'xlsx', workbook: file }, caps, onSheet);
+}
+
+/** The tables of a CSV upload, returns first, read in a worker thread (./upload-worker.ts). */
+export function csvTables(parts: Partial<Record<BatchTable, UploadedFile>>, caps: ReadCaps = batchReadCaps()): AsyncGenerator<TableSource> {
+  return uploadTables({ format: 'csv', parts }, caps, () => undefined);
 }
