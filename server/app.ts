@@ -22,6 +22,7 @@ import { healthRoutes } from './health/health.routes';
 import { letterRoutes } from './letters/letters.routes';
 import { replyRoutes } from './letters/replies.routes';
 import { userRoutes } from './users/user.routes';
+import { openapiRoutes } from './openapi/openapi.routes';
 import { apiNotFound, errorHandler } from './http/errors';
 
 export type { AppDeps } from './app-deps';
@@ -70,6 +71,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(workloadRoutes({ dataSource }));
   api.use(letterRoutes({ dataSource, mailer, publicUrl: config.publicUrl }));
   api.use(replyRoutes(deps));
+  api.use(openapiRoutes());
   app.use('/api', api);
   app.use('/api', apiNotFound);
 

@@ -1,0 +1,555 @@
+/**
+ * Every API route with the shared zod schemas of its request and its answers: the one list
+ * the OpenAPI document (server/openapi/openapi-document.ts) is built from.
+ *
+ * Adding a route to a router without adding it here fails tests/api/openapi.test.ts, which
+ * walks the app's registered routes; answers of the main routes are checked against the
+ * document there too. Who may call a route is not restated here: the route's own access rule
+ * decides (shared/permissions.ts), and the document only says whether a session is needed.
+ */
+import { z } from 'zod';
+import { DigitAnalysisRequestSchema } from '../../shared/analyses';
+import { AccessLogPageSchema, AccessLogQuerySchema } from '../../shared/access-log';
+import { LoginRequestSchema, SessionResponseSchema } from '../../shared/auth';
+import {
+  BulkReassignResultSchema,
+  BulkReassignSchema,
+  CaseChangedSchema,
+  CaseDetailSchema,
+  CaseListQuerySchema,
+  CaseListSchema,
+  CaseNoteSchema,
+  ExaminerListSchema,
+  RevealedTinSchema,
+  WorkloadSchema,
+} from '../../shared/case-api';
+import { AssignRequestSchema, NoteRequestSchema, TransitionRequestSchema } from '../../shared/cases';
+import { digitProfileSchema } from '../../shared/digits/schema';
+import { HealthResponseSchema } from '../../shared/health';
+import {
+  DocumentRequestInputSchema,
+  LetterCreatedSchema,
+  LetterListSchema,
+  REPLY_FILE_TYPES,
+  REPLY_MAX_FILES,
+  ReferralInputSchema,
+  ReplyClosedSchema,
+  ReplyReceiptSchema,
+  ReplyRequestSchema,
+} from '../../shared/letters';
+import {
+  BatchCreatedSchema,
+  BatchDetailSchema,
+  BatchDuplicateSchema,
+  BatchListQuerySchema,
+  BatchListSchema,
+  BatchRejectedSchema,
+} from '../../shared/returns/batch-rows';
+import { NewProfileSchema, PerformanceSchema, ProfileListSchema, ProfileVersionSchema, RescoreSchema } from '../../shared/scoring/profile-api';
+import { CreateUserSchema, ResetPasswordSchema, UpdateUserSchema, UserListSchema, UserSchema } from '../../shared/users';
+
+/**
+ * The body of every error answer (server/http/errors.ts; server/http/validate.ts adds
+ * `issues` for a 422). Some routes add fields of their own, so other fields are allowed.
+ */
+export const ApiErrorSchema = z.looseObject({
+  error: z.string(),
+  issues: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
+});
+
+/** Answer of `POST /api/batches/:id/rescore`: the profile version the batch is re-scored under. */
+export const RescoreAcceptedSchema = z.object({ version: z.number().int() });
+
+/**
+ * Answer schemas by the name they carry in the document's components. Every JSON answer of a
+ * route must be one of these (the document builder refuses others), so each shape has a name
+ * a client generator can use.
+ */
+export const COMPONENTS = {
+  ApiError: ApiErrorSchema,
+  SessionResponse: SessionResponseSchema,
+  HealthResponse: HealthResponseSchema,
+  User: UserSchema,
+  UserList: UserListSchema,
+  AccessLogPage: AccessLogPageSchema,
+  DigitProfile: digitProfileSchema,
+  ProfileVersion: ProfileVersionSchema,
+  ProfileList: ProfileListSchema,
+  Performance: PerformanceSchema,
+  RescoreAccepted: RescoreAcceptedSchema,
+  BatchCreated: BatchCreatedSchema,
+  BatchRejected: BatchRejectedSchema,
+  BatchDuplicate: BatchDuplicateSchema,
+  BatchList: BatchListSchema,
+  BatchDetail: BatchDetailSchema,
+  CaseList: CaseListSchema,
+  CaseDetail: CaseDetailSchema,
+  CaseChanged: CaseChangedSchema,
+  CaseNote: CaseNoteSchema,
+  RevealedTin: RevealedTinSchema,
+  BulkReassignResult: BulkReassignResultSchema,
+  ExaminerList: ExaminerListSchema,
+  Workload: WorkloadSchema,
+  LetterCreated: LetterCreatedSchema,
+  LetterList: LetterListSchema,
+  ReplyRequest: ReplyRequestSchema,
+  ReplyClosed: ReplyClosedSchema,
+  ReplyReceipt: ReplyReceiptSchema,
+} satisfies Record<string, z.ZodType>;
+
+/** What an answer carries. */
+export type ApiBody =
+  /** JSON in the shape of a shared schema (one of {@link COMPONENTS}). */
+  | { json: z.ZodType }
+  /** A file: its media types. */
+  | { file: readonly string[] }
+  /** Any JSON object (the OpenAPI document itself). */
+  | { anyJson: true }
+  /** No body (204). */
+  | { empty: true };
+
+/** One answer of a route. */
+export interface ApiResponse {
+  description: string;
+  body: ApiBody;
+}
+
+/** A multipart upload: its parts, each a file or a text field. */
+export interface MultipartBody {
+  parts: Record<string, { kind: 'file' | 'files' | 'text'; description: string; required?: boolean; mediaTypes?: readonly string[] }>;
+}
+
+/** One route. */
+export interface ApiRoute {
+  method: 'get' | 'post' | 'patch' | 'put' | 'delete';
+  /** The full path as Express registers it (`/api/cases/:id`). */
+  path: string;
+  operationId: string;
+  /** The group it is listed under. */
+  tag: 'session' | 'status' | 'users' | 'access log' | 'analyses' | 'scoring' | 'batches' | 'cases' | 'letters' | 'replies' | 'api';
+  summary: string;
+  description?: string;
+  /** Open without a session (the route's rule is `publicAccess`). */
+  public?: boolean;
+  /** The query string, validated by this schema (its input form). */
+  query?: z.ZodType;
+  /** A JSON body, validated by this schema (its input form). */
+  body?: z.ZodType;
+  /** A multipart body (as well as, or instead of, a JSON body). */
+  multipart?: MultipartBody;
+  /** Answers by status. 401/403 (routes with a session), 422 (routes with input) and 500 are added. */
+  responses: Record<number, ApiResponse>;
+}
+
+const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
+const json = (schema: z.ZodType, description: string): ApiResponse => ({ description, body: { json: schema } });
+const error = (description: string): ApiResponse => json(ApiErrorSchema, description);
+const file = (mediaTypes: readonly string[], description: string): ApiResponse => ({ description, body: { file: mediaTypes } });
+const empty = (description: string): ApiResponse => ({ description, body: { empty: true } });
+const noCase = error('No such case (or an id that is not a case id).');
+
+/** Every route of the API, grouped as the routers are. */
+export const API_ROUTES: readonly ApiRoute[] = [
+  // server/openapi/openapi.routes.ts
+  {
+    method: 'get',
+    path: '/api/openapi.json',
+    operationId: 'getOpenApiDocument',
+    tag: 'api',
+    public: true,
+    summary: 'This document',
+    description: 'The OpenAPI 3.1 description of the API. It describes the routes and holds no data, so it is open.',
+    responses: { 200: { description: 'The document.', body: { anyJson: true } } },
+  },
+
+  // server/health/health.routes.ts
+  {
+    method: 'get',
+    path: '/api/health',
+    operationId: 'getHealth',
+    tag: 'status',
+    public: true,
+    summary: 'Health of the database, job queue and mail',
+    responses: { 200: json(HealthResponseSchema, 'Everything is up.'), 503: json(HealthResponseSchema, 'Something is down; each check says why.') },
+  },
+
+  // server/auth/auth.routes.ts
+  {
+    method: 'post',
+    path: '/api/auth/login',
+    operationId: 'signIn',
+    tag: 'session',
+    public: true,
+    summary: 'Sign in',
+    description: 'Starts a session (cookie) and answers the CSRF token that every later state-changing request sends in the X-CSRF-Token header.',
+    body: LoginRequestSchema,
+    responses: {
+      200: json(SessionResponseSchema, 'Signed in.'),
+      401: error('Wrong user name or password, or the account is deactivated.'),
+      429: error('Too many failed sign-ins; the Retry-After header says when to try again.'),
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/auth/logout',
+    operationId: 'signOut',
+    tag: 'session',
+    summary: 'Sign out',
+    responses: { 204: empty('Signed out; the session is gone.') },
+  },
+  {
+    method: 'get',
+    path: '/api/auth/me',
+    operationId: 'getSession',
+    tag: 'session',
+    summary: 'The signed-in user and the CSRF token',
+    responses: { 200: json(SessionResponseSchema, 'The session.') },
+  },
+
+  // server/users/user.routes.ts
+  {
+    method: 'get',
+    path: '/api/users',
+    operationId: 'listUsers',
+    tag: 'users',
+    summary: 'Staff accounts',
+    responses: { 200: json(UserListSchema, 'Every account.') },
+  },
+  {
+    method: 'post',
+    path: '/api/users',
+    operationId: 'createUser',
+    tag: 'users',
+    summary: 'Create an account',
+    body: CreateUserSchema,
+    responses: { 201: json(UserSchema, 'The new account.'), 409: error('The user name is taken.') },
+  },
+  {
+    method: 'patch',
+    path: '/api/users/:id',
+    operationId: 'updateUser',
+    tag: 'users',
+    summary: 'Change an account’s name, role or active flag',
+    body: UpdateUserSchema,
+    responses: {
+      200: json(UserSchema, 'The account afterwards.'),
+      404: error('No such user.'),
+      409: error('An administrator may not deactivate themselves or drop their own role.'),
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/users/:id/password',
+    operationId: 'resetPassword',
+    tag: 'users',
+    summary: 'Set a new password',
+    body: ResetPasswordSchema,
+    responses: { 204: empty('Changed.'), 404: error('No such user.') },
+  },
+
+  // server/access-log/access-log.routes.ts
+  {
+    method: 'get',
+    path: '/api/access-log',
+    operationId: 'listAccessLog',
+    tag: 'access log',
+    summary: 'Who viewed or changed which taxpayer’s data, newest first',
+    query: AccessLogQuerySchema,
+    responses: { 200: json(AccessLogPageSchema, 'One page of the log.') },
+  },
+
+  // server/analyses/analyses.routes.ts
+  {
+    method: 'post',
+    path: '/api/analyses/digits',
+    operationId: 'analyseDigits',
+    tag: 'analyses',
+    summary: 'Digit analysis of a set of amounts',
+    description: 'Send the amounts as JSON, or a .txt, .csv or .xlsx file as multipart.',
+    body: DigitAnalysisRequestSchema,
+    multipart: {
+      parts: {
+        file: { kind: 'file', required: true, description: 'The amounts: a .txt file (one a line), or a .csv or .xlsx file with an amount column.' },
+        column: { kind: 'text', description: 'The column that holds the amounts, when the file has several.' },
+      },
+    },
+    responses: { 200: json(digitProfileSchema, 'The digit profile.'), 413: error('The file is over the size or reading limit.') },
+  },
+
+  // server/scoring/scoring-profile.routes.ts
+  {
+    method: 'get',
+    path: '/api/scoring/profiles',
+    operationId: 'listScoringProfiles',
+    tag: 'scoring',
+    summary: 'Scoring profile versions, newest first',
+    responses: { 200: json(ProfileListSchema, 'Every version.') },
+  },
+  {
+    method: 'post',
+    path: '/api/scoring/profiles',
+    operationId: 'addScoringProfile',
+    tag: 'scoring',
+    summary: 'Add a scoring profile version (and activate it unless told not to)',
+    body: NewProfileSchema,
+    responses: { 201: json(ProfileVersionSchema, 'The new version.') },
+  },
+  {
+    method: 'post',
+    path: '/api/scoring/profiles/:version/activate',
+    operationId: 'activateScoringProfile',
+    tag: 'scoring',
+    summary: 'Make a version the one new batches are scored under',
+    responses: { 204: empty('Activated.'), 404: error('No such version.') },
+  },
+  {
+    method: 'get',
+    path: '/api/scoring/performance',
+    operationId: 'getFactorPerformance',
+    tag: 'scoring',
+    summary: 'How often each factor’s closed cases were adjusted, with suggested weights',
+    responses: { 200: json(PerformanceSchema, 'The performance of the active version.') },
+  },
+  {
+    method: 'post',
+    path: '/api/batches/:id/rescore',
+    operationId: 'rescoreBatch',
+    tag: 'scoring',
+    summary: 'Score a batch again under a profile version',
+    body: RescoreSchema,
+    responses: {
+      202: json(RescoreAcceptedSchema, 'Queued.'),
+      404: error('No such batch or version.'),
+      409: error('The batch is not scored yet, or was already scored under that version.'),
+    },
+  },
+
+  // server/batches/batch.routes.ts
+  {
+    method: 'post',
+    path: '/api/batches',
+    operationId: 'uploadBatch',
+    tag: 'batches',
+    summary: 'Load a batch of filed returns',
+    description: 'One XLSX workbook as `file`, or the CSV files as `returns`, `line_items` and optionally `statements`. A batch with any error is refused whole.',
+    multipart: {
+      parts: {
+        file: { kind: 'file', description: 'One .xlsx workbook with the sheets returns, line_items and (optionally) statements.', mediaTypes: [XLSX] },
+        returns: { kind: 'file', description: 'returns.csv', mediaTypes: ['text/csv'] },
+        line_items: { kind: 'file', description: 'line_items.csv', mediaTypes: ['text/csv'] },
+        statements: { kind: 'file', description: 'statements.csv (optional)', mediaTypes: ['text/csv'] },
+      },
+    },
+    responses: {
+      201: json(BatchCreatedSchema, 'Stored and queued for scoring.'),
+      409: json(BatchDuplicateSchema, 'The same file was loaded before.'),
+      413: json(BatchRejectedSchema, 'A file is over the size limit.'),
+      422: json(BatchRejectedSchema, 'Refused whole: every problem with its file, row and column.'),
+    },
+  },
+  {
+    method: 'get',
+    path: '/api/batches',
+    operationId: 'listBatches',
+    tag: 'batches',
+    summary: 'Batches, newest first',
+    query: BatchListQuerySchema,
+    responses: { 200: json(BatchListSchema, 'One page of batches.') },
+  },
+  {
+    method: 'get',
+    path: '/api/batches/:id',
+    operationId: 'getBatch',
+    tag: 'batches',
+    summary: 'A batch with its validation report',
+    responses: { 200: json(BatchDetailSchema, 'The batch.'), 404: error('No such batch.') },
+  },
+  {
+    method: 'get',
+    path: '/api/batches/:id/report.xlsx',
+    operationId: 'getBatchReport',
+    tag: 'batches',
+    summary: 'The validation report as a workbook',
+    responses: { 200: file([XLSX], 'The workbook.'), 404: error('No such batch.') },
+  },
+
+  // server/cases/case.routes.ts
+  {
+    method: 'get',
+    path: '/api/cases',
+    operationId: 'listCases',
+    tag: 'cases',
+    summary: 'The examination queue',
+    query: CaseListQuerySchema,
+    responses: { 200: json(CaseListSchema, 'One page of cases.') },
+  },
+  {
+    method: 'get',
+    path: '/api/cases/export.xlsx',
+    operationId: 'exportCases',
+    tag: 'cases',
+    summary: 'The queue, filtered as for the list, as a workbook',
+    query: CaseListQuerySchema,
+    responses: { 200: file([XLSX], 'The workbook (streamed).') },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/reassign',
+    operationId: 'reassignCases',
+    tag: 'cases',
+    summary: 'Give a selection of cases to one examiner',
+    body: BulkReassignSchema,
+    responses: { 200: json(BulkReassignResultSchema, 'What moved and what was refused, with the reason.') },
+  },
+  {
+    method: 'get',
+    path: '/api/examiners',
+    operationId: 'listExaminers',
+    tag: 'cases',
+    summary: 'Examiners one can give cases to',
+    responses: { 200: json(ExaminerListSchema, 'Active examiners.') },
+  },
+  {
+    method: 'get',
+    path: '/api/cases/:id',
+    operationId: 'getCase',
+    tag: 'cases',
+    summary: 'One case: the return, its score breakdown, history, notes and what the caller may do',
+    responses: { 200: json(CaseDetailSchema, 'The case.'), 404: noCase },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/claim',
+    operationId: 'claimCase',
+    tag: 'cases',
+    summary: 'Take an open case',
+    responses: { 200: json(CaseChangedSchema, 'The case is the caller’s.'), 404: noCase, 409: error('The case is not open any more.') },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/assign',
+    operationId: 'assignCase',
+    tag: 'cases',
+    summary: 'Give or move a case to an examiner',
+    body: AssignRequestSchema,
+    responses: { 200: json(CaseChangedSchema, 'The case afterwards.'), 404: noCase, 409: error('The case cannot be assigned in its state.') },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/transition',
+    operationId: 'moveCase',
+    tag: 'cases',
+    summary: 'Move a case to another state',
+    body: TransitionRequestSchema,
+    responses: { 200: json(CaseChangedSchema, 'The case afterwards.'), 404: noCase, 409: error('The move is not allowed from the case’s state.') },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/notes',
+    operationId: 'addCaseNote',
+    tag: 'cases',
+    summary: 'Add a note (notes are never edited)',
+    body: NoteRequestSchema,
+    responses: { 201: json(CaseNoteSchema, 'The note.'), 404: noCase },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/reveal-tin',
+    operationId: 'revealTin',
+    tag: 'cases',
+    summary: 'The full TIN of the case’s taxpayer (written to the access log)',
+    responses: { 200: json(RevealedTinSchema, 'The TIN.'), 404: noCase },
+  },
+
+  // server/cases/workload.routes.ts
+  {
+    method: 'get',
+    path: '/api/workload',
+    operationId: 'getWorkload',
+    tag: 'cases',
+    summary: 'Each examiner’s open, overdue and recently finished cases',
+    responses: { 200: json(WorkloadSchema, 'The workload.') },
+  },
+
+  // server/letters/letters.routes.ts
+  {
+    method: 'post',
+    path: '/api/cases/:id/document-requests',
+    operationId: 'sendDocumentRequest',
+    tag: 'letters',
+    summary: 'Ask the taxpayer for records, by mail with a one-time reply link',
+    body: DocumentRequestInputSchema,
+    responses: {
+      201: json(LetterCreatedSchema, 'Sent; the case awaits the reply.'),
+      404: noCase,
+      409: error('The case is not in review.'),
+      502: error('The mail server refused the letter; nothing was stored.'),
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/referral',
+    operationId: 'referCase',
+    tag: 'letters',
+    summary: 'Refer a case to a unit with a memo',
+    body: ReferralInputSchema,
+    responses: { 201: json(LetterCreatedSchema, 'The memo; the case is referred.'), 404: noCase, 409: error('The case cannot be referred in its state.') },
+  },
+  {
+    method: 'get',
+    path: '/api/cases/:id/letters',
+    operationId: 'listLetters',
+    tag: 'letters',
+    summary: 'The case’s letters, newest first',
+    responses: { 200: json(LetterListSchema, 'The letters.'), 404: noCase },
+  },
+  {
+    method: 'get',
+    path: '/api/cases/:id/letters/:letterId/pdf',
+    operationId: 'getLetterPdf',
+    tag: 'letters',
+    summary: 'The office copy of a letter',
+    responses: { 200: file(['application/pdf'], 'The PDF.'), 404: error('No such letter on this case.') },
+  },
+  {
+    method: 'get',
+    path: '/api/cases/:id/reply-uploads/:uploadId',
+    operationId: 'getReplyUpload',
+    tag: 'letters',
+    summary: 'A file the taxpayer sent (always as a download)',
+    responses: { 200: file(REPLY_FILE_TYPES, 'The file as received.'), 404: error('No such file on this case.') },
+  },
+
+  // server/letters/replies.routes.ts
+  {
+    method: 'get',
+    path: '/api/replies/:token',
+    operationId: 'getReplyRequest',
+    tag: 'replies',
+    public: true,
+    summary: 'What a one-time reply link asks for',
+    description: 'The token in the path is the key; no account is needed.',
+    responses: {
+      200: json(ReplyRequestSchema, 'The request is open.'),
+      404: error('Unknown link.'),
+      410: json(ReplyClosedSchema, 'The link was used or has expired.'),
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/replies/:token',
+    operationId: 'sendReply',
+    tag: 'replies',
+    public: true,
+    summary: 'Send the records asked for (uses the link up)',
+    multipart: {
+      parts: { files: { kind: 'files', required: true, description: `Up to ${REPLY_MAX_FILES} PDF, JPEG or PNG files.`, mediaTypes: REPLY_FILE_TYPES } },
+    },
+    responses: {
+      201: json(ReplyReceiptSchema, 'Received.'),
+      404: error('Unknown link.'),
+      410: json(ReplyClosedSchema, 'The link was used or has expired.'),
+      413: error('A file, or all together, is over the size limit.'),
+    },
+  },
+];
