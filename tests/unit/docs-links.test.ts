@@ -9,6 +9,9 @@
  * - A `file.md#anchor` names a heading of that file (GitHub's heading ids); a bare
  *   `(#anchor)` link in a markdown file names one of its own headings.
  * - A `file.md "Heading"` (or `file.md, "Heading"`) names the start of one of its headings.
+ * - A repository path in backticks in the project's own documents (README.md,
+ *   DEVELOPERS.md, docs/) names a file that exists, so a renamed module cannot leave the
+ *   docs pointing at nothing (paths with placeholders such as `<name>` are patterns, skipped).
  */
 import fs from 'node:fs';
 import path from 'node:path';
@@ -69,6 +72,9 @@ function resolveDoc(name: string, from: string): string | null {
 // `[\w.-]*\.md` preceded by nothing path-like; optional `#anchor`; optional quoted heading.
 const MD_REF = /(?<![\w/.@-])((?:[\w.-]+\/)*[\w.-]+\.md)(?![\w])(#[\w-]+)?(?:,?\s+"([^"\n]+)")?/g;
 const SELF_ANCHOR = /\]\((#[\w-]+)\)/g;
+// `a/b.ts`, `shared/digits/` … in backticks: at least one slash, a known extension, no placeholders.
+const CODE_PATH = /`((?:[\w.-]+\/)+[\w.-]+\.(?:ts|tsx|js|json|md))`/g;
+const PROJECT_DOCS = ['README.md', 'DEVELOPERS.md', 'docs'];
 
 interface Problem {
   file: string;
@@ -102,6 +108,11 @@ function check(): Problem[] {
       if (quoted && !anchor) {
         const q = quoted.trim().toLowerCase();
         if (!headingsOf(target).some((h) => h.toLowerCase().startsWith(q))) problems.push({ ...at, problem: `${name} "${quoted}": no heading starts so` });
+      }
+    }
+    if (isMarkdown && PROJECT_DOCS.some((d) => rel === d || rel.startsWith(`${d}/`))) {
+      for (const m of text.matchAll(CODE_PATH)) {
+        if (!resolveDoc(m[1], file)) problems.push({ file: rel, line: lineOf(text, m.index ?? 0), problem: `names ${m[1]}, which is not in the repository` });
       }
     }
     if (file.endsWith('.md')) {
