@@ -3,6 +3,7 @@
  * token on state-changing requests, and every response parsed with its shared zod schema.
  */
 import type { z } from 'zod';
+import { CSRF_HEADER } from '../shared/auth';
 
 /** Base URL: same origin in the served web build; EXPO_PUBLIC_API_URL for `expo start`. */
 export const API_BASE = process.env.EXPO_PUBLIC_API_URL ?? '';
@@ -57,7 +58,7 @@ export async function apiGet<T>(path: string, schema: z.ZodType<T>, opts: { acce
 /** POST/PUT/PATCH/DELETE a JSON body (or FormData) and parse the answer. */
 export async function apiSend<T>(method: 'POST' | 'PUT' | 'PATCH' | 'DELETE', path: string, body: unknown, schema: z.ZodType<T>): Promise<T> {
   const headers: Record<string, string> = { Accept: 'application/json' };
-  if (csrfToken) headers['X-CSRF-Token'] = csrfToken;
+  if (csrfToken) headers[CSRF_HEADER] = csrfToken;
   const isForm = typeof FormData !== 'undefined' && body instanceof FormData;
   if (!isForm && body !== undefined) headers['Content-Type'] = 'application/json';
   const res = await fetch(API_BASE + path, {

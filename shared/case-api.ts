@@ -8,7 +8,7 @@
  */
 import { z } from 'zod';
 import { noControlChars } from './text';
-import { CASE_STATES, CaseStateSchema, type CaseState } from './cases';
+import { CASE_STATES, CaseStateSchema, FINAL_STATES, type CaseState } from './cases';
 import { ACTIVITY_CODES, LINE_CODES } from './returns/line-codes';
 import { ScoreBreakdownSchema } from './scoring/breakdown';
 
@@ -33,7 +33,7 @@ export const StateFilterSchema = z
   .transform((s, ctx): CaseState[] | undefined => {
     if (s === '' || s === 'all') return undefined;
     if (s === 'active') return [...ACTIVE_STATES];
-    if (s === 'finished') return ['referred', 'closed_no_change', 'closed_adjusted'];
+    if (s === 'finished') return [...FINAL_STATES];
     const parts = s.split(',').map((p) => p.trim());
     const bad = parts.filter((p) => !(CASE_STATES as readonly string[]).includes(p));
     if (bad.length) {

@@ -20,8 +20,13 @@ export const CASE_STATE_LABELS: Record<CaseState, string> = {
   closed_adjusted: 'Closed, adjusted',
 };
 
-/** States from which a case may be finished. */
+/** The finished states: a case here has an outcome and can change no more. The one list of them. */
 export const FINAL_STATES: readonly CaseState[] = ['referred', 'closed_no_change', 'closed_adjusted'];
+
+/** True for a finished case (referred or closed). */
+export function isFinalState(state: CaseState): boolean {
+  return FINAL_STATES.includes(state);
+}
 
 /**
  * The moves a case may make (docs/design.md#case-states). `open → assigned` happens only by claim
@@ -57,7 +62,7 @@ export const TransitionRequestSchema = z
     if (v.to === 'closed_adjusted' && !v.adjustedAmount) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Closing as adjusted needs the adjusted amount' });
     if (v.to === 'closed_adjusted' && v.adjustedAmount && Number(v.adjustedAmount) <= 0) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'The adjusted amount must be more than 0' });
     if (v.to !== 'closed_adjusted' && v.adjustedAmount) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Only a case closed as adjusted has an adjusted amount' });
-    if ((v.to === 'closed_no_change' || v.to === 'closed_adjusted' || v.to === 'referred') && !v.outcome) ctx.addIssue({ code: 'custom', path: ['outcome'], message: 'Say in a sentence what was found or why the case moves on' });
+    if (isFinalState(v.to) && !v.outcome) ctx.addIssue({ code: 'custom', path: ['outcome'], message: 'Say in a sentence what was found or why the case moves on' });
   });
 export type TransitionRequest = z.infer<typeof TransitionRequestSchema>;
 

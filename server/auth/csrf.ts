@@ -5,6 +5,7 @@
  */
 import { randomBytes, timingSafeEqual } from 'node:crypto';
 import type { Request, RequestHandler } from 'express';
+import { CSRF_HEADER } from '../../shared/auth';
 import { HttpError } from '../http/errors';
 
 const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
@@ -18,9 +19,9 @@ export function csrfTokenFor(req: Request): string {
 /** Rejects state-changing requests of a signed-in session without the right token. */
 export const csrfProtection: RequestHandler = (req, _res, next) => {
   if (SAFE.has(req.method) || !req.user) return next();
-  const sent = req.get('X-CSRF-Token') ?? '';
+  const sent = req.get(CSRF_HEADER) ?? '';
   const expected = req.session.csrfToken ?? '';
   const ok = sent.length > 0 && sent.length === expected.length && timingSafeEqual(Buffer.from(sent), Buffer.from(expected));
-  if (!ok) return next(new HttpError(403, 'Missing or out-of-date security token (X-CSRF-Token). Reload the page and try again.'));
+  if (!ok) return next(new HttpError(403, `Missing or out-of-date security token (${CSRF_HEADER}). Reload the page and try again.`));
   next();
 };

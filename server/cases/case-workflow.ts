@@ -7,7 +7,7 @@
  */
 import type { DataSource, EntityManager } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
-import { canTransition, CASE_STATE_LABELS, CASE_TRANSITIONS, FINAL_STATES, type CaseState } from '../../shared/cases';
+import { canTransition, CASE_STATE_LABELS, CASE_TRANSITIONS, isFinalState, type CaseState } from '../../shared/cases';
 import { isUuid } from '../../shared/ids';
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
@@ -44,11 +44,6 @@ export function mayAct(actor: Pick<SessionUser, 'id' | 'role'>, assigneeId: stri
 export function assertMayAct(actor: Pick<SessionUser, 'id' | 'role'>, c: Pick<ExamCase, 'assigneeId'>): void {
   if (mayAct(actor, c.assigneeId)) return;
   throw new HttpError(403, c.assigneeId ? 'This case is assigned to another examiner.' : 'Claim this case before working on it.');
-}
-
-/** True for a finished case (referred or closed): nothing more can change. */
-export function isFinished(state: CaseState): boolean {
-  return FINAL_STATES.includes(state);
 }
 
 /** Appends a case event (actor null: Plumbline itself, or a taxpayer through a reply link). */
@@ -90,7 +85,7 @@ export async function moveCase(m: EntityManager, audit: StaffAudit, caseId: stri
   c.state = to;
   c.updatedAt = new Date();
   if (opts.dueDate !== undefined) c.dueDate = opts.dueDate;
-  if (isFinished(to)) {
+  if (isFinalState(to)) {
     c.closedAt = new Date();
     c.outcome = opts.outcome ?? null;
     c.adjustedAmount = to === 'closed_adjusted' ? (opts.adjustedAmount ?? null) : null;

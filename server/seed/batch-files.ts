@@ -8,7 +8,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import ExcelJS from 'exceljs';
 import { generateReturns, HABIT_KINDS, PLANT_KINDS, type GenerateOptions, type PlantLabel, type ReturnAnswer } from '../../shared/demo/aldermere';
-import { BATCH_COLUMNS, columnsOf, type BatchTable } from '../../shared/returns/batch-rows';
+import { columnsOf, type BatchTable } from '../../shared/returns/batch-rows';
 
 /** Counts of what was written. */
 export interface WrittenBatch {
@@ -151,10 +151,3 @@ export function writeAnswers(dir: string, opts: GenerateOptions, answers: readon
   fs.writeFileSync(csv, lines.join('\n') + '\n');
   return { json, csv };
 }
-
-/** The header lines, for tests that build small files by hand. */
-export const CSV_HEADERS: Record<BatchTable, string> = {
-  returns: [...BATCH_COLUMNS.returns.required, ...BATCH_COLUMNS.returns.optional].join(','),
-  line_items: BATCH_COLUMNS.line_items.required.join(','),
-  statements: BATCH_COLUMNS.statements.required.join(','),
-};

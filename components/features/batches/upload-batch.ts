@@ -3,6 +3,7 @@
  * upload progress. Same session cookie and CSRF header as every other API call.
  */
 import { API_BASE, getCsrfToken } from '../../../hooks/api-client';
+import { CSRF_HEADER } from '../../../shared/auth';
 import { BatchCreatedSchema, BatchDuplicateSchema, BatchRejectedSchema, type BatchCreated, type BatchRejected, type BatchTable } from '../../../shared/returns/batch-rows';
 
 /** A file chosen by the clerk: a browser File on the web, a local uri on a phone. */
@@ -69,7 +70,7 @@ export function uploadBatch(parts: UploadParts, onProgress: (share: number) => v
     xhr.withCredentials = true;
     xhr.setRequestHeader('Accept', 'application/json');
     const token = getCsrfToken();
-    if (token) xhr.setRequestHeader('X-CSRF-Token', token);
+    if (token) xhr.setRequestHeader(CSRF_HEADER, token);
     xhr.upload.onprogress = (e) => {
       if (e.lengthComputable && e.total > 0) onProgress(e.loaded / e.total);
     };

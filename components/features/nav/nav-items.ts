@@ -1,7 +1,9 @@
 /**
- * Where each role may go (docs/design.md#roles): navigation shows only these.
- * Add a feature's screen here with the roles that may use it.
+ * Where each role may go (docs/design.md#roles): navigation shows only these. Each screen
+ * takes its roles from the capability it needs in the policy table (shared/permissions.ts),
+ * so the roles are stated once, where the server's routes read them too.
  */
+import { CAN } from '../../../shared/permissions';
 import type { Role } from '../../../shared/roles';
 import type { NavItem } from '../../ui/app-shell';
 
@@ -11,12 +13,12 @@ interface RoleNavItem extends NavItem {
 
 export const NAV_ITEMS: readonly RoleNavItem[] = [
   { href: '/', label: 'Status', roles: 'all' },
-  { href: '/queue', label: 'Queue', roles: ['examiner', 'supervisor'] },
-  { href: '/workload', label: 'Workload', roles: ['supervisor'] },
-  { href: '/batches', label: 'Batches', roles: ['clerk', 'supervisor'] },
-  { href: '/scoring', label: 'Scoring', roles: ['supervisor'] },
-  { href: '/users', label: 'Users', roles: ['admin'] },
-  { href: '/access-log', label: 'Access log', roles: ['admin'] },
+  { href: '/queue', label: 'Queue', roles: CAN.readCases },
+  { href: '/workload', label: 'Workload', roles: CAN.readWorkload },
+  { href: '/batches', label: 'Batches', roles: CAN.readBatches },
+  { href: '/scoring', label: 'Scoring', roles: CAN.editScoring },
+  { href: '/users', label: 'Users', roles: CAN.manageUsers },
+  { href: '/access-log', label: 'Access log', roles: CAN.readAccessLog },
   { href: '/about', label: 'About', roles: 'all' },
 ];
 

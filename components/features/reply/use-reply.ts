@@ -4,6 +4,7 @@
  */
 import { useMutation, useQuery } from '@tanstack/react-query';
 import { API_BASE, ApiError, getCsrfToken } from '../../../hooks/api-client';
+import { CSRF_HEADER } from '../../../shared/auth';
 import { ReplyClosedSchema, ReplyReceiptSchema, ReplyRequestSchema, type ReplyClosed, type ReplyReceipt, type ReplyRequestDto } from '../../../shared/letters';
 
 /** What the page can show for a link: the request, or that it was used or expired. */
@@ -42,7 +43,7 @@ export function uploadReply(token: string, files: readonly File[], onProgress: (
     xhr.setRequestHeader('Accept', 'application/json');
     // Only matters if office staff open a taxpayer's link while signed in (CSRF rule).
     const csrf = getCsrfToken();
-    if (csrf) xhr.setRequestHeader('X-CSRF-Token', csrf);
+    if (csrf) xhr.setRequestHeader(CSRF_HEADER, csrf);
     xhr.upload.onprogress = (e) => {
       if (e.lengthComputable) onProgress(e.loaded / e.total);
     };
