@@ -48,6 +48,8 @@ const BENCH_CLUSTER: ClusterSpec = {
   database: 'plumbline_bench',
   user: 'plumbline',
   password: 'plumbline-local',
+  owner: { user: 'plumbline_owner', password: 'plumbline-owner-local' },
+  app: { user: 'plumbline_app', password: 'plumbline-app-local' },
 };
 const PASSWORD = 'bench-queue-password';
 const log = (m: string) => console.log(`bench  | ${m}`);

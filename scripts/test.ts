@@ -10,8 +10,7 @@ import 'reflect-metadata';
 import { spawn } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { createDataSource, runMigrations } from '../server/db/data-source';
-import { createBoss, ensureQueues } from '../server/queue/queues';
+import { prepareAppDatabase } from './lib/app-database';
 import { projectRoot, testSetup as T } from './lib/local-services';
 import { connectionString, recreateDatabase, startCluster, stopCluster } from './lib/pg';
 import { isPortFree, startMaildev, stopProcess, waitForPort, type Managed } from './lib/processes';
@@ -47,18 +46,13 @@ async function freePortFrom(start: number): Promise<number> {
   throw new Error(`no free port near ${start}`);
 }
 
+/**
+ * Migrations, pg-boss's schema and queues, and the application role's grants, once: each
+ * cloned database keeps them (grants live in the database; roles are cluster-wide).
+ */
 async function prepareTemplate(): Promise<void> {
   await recreateDatabase(T.cluster, TEMPLATE_DB);
-  const url = connectionString(T.cluster, TEMPLATE_DB);
-  const ds = createDataSource(url, { poolSize: 2 });
-  await ds.initialize();
-  await runMigrations(ds);
-  await ds.destroy();
-  // Install pg-boss's schema and queues once, so each cloned database has them ready.
-  const boss = createBoss(url, 'server');
-  await boss.start();
-  await ensureQueues(boss);
-  await boss.stop({ graceful: false, wait: true });
+  await prepareAppDatabase(T.cluster, TEMPLATE_DB);
 }
 
 async function main(): Promise<number> {
@@ -77,8 +71,9 @@ async function main(): Promise<number> {
     const mailDir = `${T.maildevDir}-${process.pid}`;
     fs.rmSync(mailDir, { recursive: true, force: true });
     maildev = startMaildev(smtpPort, mailWebPort, mailDir, true);
-    await waitForPort(smtpPort);
-    await waitForPort(mailWebPort);
+    // Generous: with several runs on two shared cores MailDev has taken over 30 s to listen.
+    await waitForPort(smtpPort, '127.0.0.1', 120_000);
+    await waitForPort(mailWebPort, '127.0.0.1', 120_000);
     if (!process.env.PLUMBLINE_SKIP_WEB_BUILD) ensureWebBuild(log);
 
     const env = {

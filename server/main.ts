@@ -9,6 +9,7 @@ import type PgBoss from 'pg-boss';
 import type { DataSource } from 'typeorm';
 import { createApp } from './app';
 import { cleanUploadSpool } from './batches/intake/upload-spool';
+import { recoverInterruptedIntake } from './batches/batch.service';
 import { ConfigError, loadConfig } from './config';
 import { createDataSource } from './db/data-source';
 import { createMailer, type Mailer } from './mail/mailer';
@@ -42,6 +43,11 @@ async function main() {
   cleanUploadSpool(); // upload files left by a server that crashed mid-read
   dataSource = createDataSource(config.DATABASE_URL, { applicationName: 'plumbline-server' });
   await dataSource.initialize();
+  // A batch a crash (of this server's previous run) left half-checked is ended here, so its
+  // file can be sent again at once.
+  for (const b of await recoverInterruptedIntake(dataSource)) {
+    console.log(`[server] batch ${b.id} (${b.fileNames.length} file${b.fileNames.length === 1 ? '' : 's'}) was left unfinished by a stop; marked rejected, nothing of it kept; its file may be uploaded again`);
+  }
   boss = createBoss(config.DATABASE_URL, 'server');
   boss.on('error', (e) => console.error('[server] queue error:', e.message));
   await boss.start();

@@ -4,14 +4,17 @@
  */
 import 'reflect-metadata';
 import type { DataSource } from 'typeorm';
-import { createDataSource, runMigrations } from '../../server/db/data-source';
+import { createDataSource } from '../../server/db/data-source';
 import { User } from '../../server/users/user.entity';
 import { startSetup } from './local-services';
-import { connectionString, findPgBin, isReady, recreateDatabase, startCluster, stopCluster } from './pg';
+import { prepareAppDatabase } from './app-database';
+import { findPgBin, isReady, recreateDatabase, startCluster, stopCluster } from './pg';
 
 /** An open benchmark database. */
 export interface BenchDb {
+  /** The application role's connection string (for servers and workers). */
   url: string;
+  /** `ds` is the owner's connection (set-up, checks). */
   ds: DataSource;
   clerkId: string;
   close(): Promise<void>;
@@ -28,10 +31,9 @@ export async function freshBenchDb(name: string): Promise<BenchDb> {
     startedHere = true;
   }
   await recreateDatabase(spec, name);
-  const url = connectionString(spec, name);
-  const ds = createDataSource(url, { poolSize: 6, applicationName: 'plumbline-bench' });
+  const { ownerUrl, appUrl: url } = await prepareAppDatabase(spec, name);
+  const ds = createDataSource(ownerUrl, { poolSize: 6, applicationName: 'plumbline-bench' });
   await ds.initialize();
-  await runMigrations(ds);
   const clerk = await ds.getRepository(User).save({ username: 'bench-clerk', displayName: 'Bench clerk', role: 'clerk' as const, active: true });
   return { url, ds, clerkId: clerk.id, close: () => ds.destroy() };
 }

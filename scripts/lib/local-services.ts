@@ -22,8 +22,12 @@ export const startSetup: LocalSetup = {
     dataDir: path.join(projectRoot, '.pg', 'data'),
     port: Number(process.env.PLUMBLINE_PG_PORT ?? 54329),
     database: 'plumbline',
+    // The cluster's superuser (creates databases and roles only); the owner runs migrations;
+    // the server and worker log in as the application role (server/db/roles.ts).
     user: 'plumbline',
     password: 'plumbline-local',
+    owner: { user: 'plumbline_owner', password: 'plumbline-owner-local' },
+    app: { user: 'plumbline_app', password: 'plumbline-app-local' },
   },
   smtpPort: Number(process.env.SMTP_PORT ?? 1025),
   mailWebPort: Number(process.env.MAILDEV_WEB_PORT ?? 1080),
@@ -37,8 +41,12 @@ export const testSetup: LocalSetup = {
     dataDir: path.join(projectRoot, '.pg-test', 'data'),
     port: 54339,
     database: 'plumbline_test',
+    // The cluster's superuser (creates databases and roles only); the owner runs migrations;
+    // the server and worker log in as the application role (server/db/roles.ts).
     user: 'plumbline',
     password: 'plumbline-local',
+    owner: { user: 'plumbline_owner', password: 'plumbline-owner-local' },
+    app: { user: 'plumbline_app', password: 'plumbline-app-local' },
   },
   smtpPort: 1026,
   mailWebPort: 1081,

@@ -100,6 +100,37 @@ export async function deleteBatchRecord(ds: DataSource, id: string): Promise<voi
   await ds.query(`DELETE FROM filing_batch WHERE id = $1 AND state IN ('received', 'validating')`, [id]);
 }
 
+/**
+ * Ends every batch left in `received`/`validating` by a server that stopped mid-intake, in
+ * one transaction: whatever rows carry its id are removed (the intake stores in one
+ * transaction, so normally there are none), and it is marked rejected with `reason` as its
+ * only issue. Its file hash is replaced by a marker that no SHA-256 can equal, so the same
+ * file may be sent again at once instead of meeting the duplicate check. Call only when no
+ * intake can be running (at server start-up: one server per office).
+ * @returns the batches recovered
+ */
+export async function recoverInterruptedBatches(ds: DataSource, reason: BatchIssue): Promise<{ id: string; fileNames: string[] }[]> {
+  return ds.transaction(async (m) => {
+    const stuck: { id: string }[] = await m.query(`SELECT id FROM filing_batch WHERE state IN ('received', 'validating') ORDER BY id FOR UPDATE`);
+    if (!stuck.length) return [];
+    const ids = stuck.map((r) => r.id);
+    await m.query(`DELETE FROM third_party_statement WHERE batch_id = ANY($1::uuid[])`, [ids]);
+    // Deleting returns removes their line items too (trigger tax_return_delete_lines).
+    await m.query(`DELETE FROM tax_return WHERE batch_id = ANY($1::uuid[])`, [ids]);
+    return returnedRows<{ id: string; fileNames: string[] }>(
+      await m.query(
+        `UPDATE filing_batch
+            SET state = 'rejected', file_hash = 'interrupted:' || replace(id::text, '-', ''),
+                errors = jsonb_build_array($2::jsonb), error_count = 1, notices = '[]',
+                return_count = 0, line_item_count = 0, statement_count = 0, amended_count = 0, updated_at = now()
+          WHERE id = ANY($1::uuid[])
+          RETURNING id, file_names AS "fileNames"`,
+        [ids, JSON.stringify(reason)],
+      ),
+    );
+  });
+}
+
 /** A page of batches, newest first. */
 export async function findBatches(ds: DataSource, page: number, pageSize: number): Promise<{ rows: BatchRecord[]; total: number }> {
   const [rows, count] = await Promise.all([

@@ -28,6 +28,7 @@ import {
   findBatches,
   insertBatchRecord,
   markRejected,
+  recoverInterruptedBatches,
   takeOverStaleBatch,
   type BatchRecord,
 } from './batch.repository';
@@ -151,6 +152,21 @@ function duplicateMessage(state: string, createdAt: Date): string {
   if (state === 'rejected') return `This file was uploaded before (${when} UTC) and rejected. Open that batch to see what to fix, then upload the corrected file.`;
   if (state === 'validating' || state === 'received') return `This file is being checked right now (uploaded ${when} UTC). Wait for that batch to finish.`;
   return `This file was already uploaded (${when} UTC) and accepted; it is not stored twice.`;
+}
+
+/**
+ * At server start-up: a batch a crash left `validating` (or `received`) is marked rejected
+ * with the reason, its rows removed, and its file freed for a new upload at once.
+ * @returns the batches recovered (for the start-up log)
+ */
+export async function recoverInterruptedIntake(ds: DataSource, now: Date = new Date()): Promise<{ id: string; fileNames: string[] }[]> {
+  const when = now.toISOString().slice(0, 16).replace('T', ' ');
+  return recoverInterruptedBatches(ds, {
+    file: '',
+    row: null,
+    column: null,
+    message: `The server stopped while this batch was being checked, so it was not finished (recovered at start-up, ${when} UTC). Nothing of it was stored. Upload the same file again.`,
+  });
 }
 
 /** Hands an accepted batch to the scoring worker. The batch stays `queued` until a worker takes it. */

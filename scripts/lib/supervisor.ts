@@ -1,0 +1,98 @@
+/**
+ * Keeps a child process running: when it exits without being asked to, it is started again
+ * after a back-off (1 s, doubling to 30 s; back to 1 s once a run has lasted a minute), with
+ * a log line each time. Used by `npm start` for the server, the worker and MailDev, so one
+ * crash takes down neither the rest nor itself for good (issue 12).
+ */
+import { stopProcess, type Managed } from './processes';
+
+/** Back-off settings; the defaults are for `npm start`, tests pass small ones. */
+export interface BackOff {
+  /** Wait before the first restart. */
+  initialDelayMs: number;
+  /** Longest wait between restarts. */
+  maxDelayMs: number;
+  /** A run at least this long counts as healthy: the next crash waits initialDelayMs again. */
+  resetAfterMs: number;
+}
+
+export const DEFAULT_BACK_OFF: BackOff = { initialDelayMs: 1000, maxDelayMs: 30_000, resetAfterMs: 60_000 };
+
+/** A supervised child. */
+export interface Supervised {
+  readonly name: string;
+  /** The child running now (or the last one, while a restart waits). */
+  current(): Managed;
+  /** How many times it has been restarted. */
+  restarts(): number;
+  /** Resolves once the next run after the current one has started (for tests and tools). */
+  nextStart(): Promise<Managed>;
+  /** Stops supervising and stops the child; no restart happens after this is called. */
+  stop(graceMs?: number): Promise<void>;
+}
+
+/** How a child ended, for the log line. */
+function ending(code: number | null, signal: NodeJS.Signals | null): string {
+  return signal ? `was killed by ${signal}` : `exited with code ${code}`;
+}
+
+function seconds(ms: number): string {
+  return ms < 10_000 ? `${(ms / 1000).toFixed(1)} s` : `${Math.round(ms / 1000)} s`;
+}
+
+/**
+ * Starts `start()` now and again after every unrequested exit.
+ * @param start starts one run of the child (a fresh process each call)
+ */
+export function supervise(
+  name: string,
+  start: () => Managed,
+  log: (line: string) => void,
+  backOff: BackOff = DEFAULT_BACK_OFF,
+  now: () => number = Date.now,
+): Supervised {
+  let stopping = false;
+  let restarts = 0;
+  let delay = backOff.initialDelayMs;
+  let timer: NodeJS.Timeout | null = null;
+  let current: Managed;
+  let waiters: ((m: Managed) => void)[] = [];
+
+  const run = () => {
+    const startedAt = now();
+    const m = start();
+    current = m;
+    const ready = waiters;
+    waiters = [];
+    for (const w of ready) w(m);
+    m.child.once('exit', (code, signal) => {
+      if (stopping) return;
+      const upFor = now() - startedAt;
+      // A run that lasted long enough was healthy: start the back-off from the beginning.
+      if (upFor >= backOff.resetAfterMs) delay = backOff.initialDelayMs;
+      const wait = delay;
+      delay = Math.min(delay * 2, backOff.maxDelayMs);
+      log(`${name} ${ending(code, signal)} after ${seconds(upFor)}; restarting in ${seconds(wait)} (restart ${restarts + 1})`);
+      timer = setTimeout(() => {
+        timer = null;
+        if (stopping) return;
+        restarts += 1;
+        run();
+      }, wait);
+    });
+  };
+  run();
+
+  return {
+    name,
+    current: () => current,
+    restarts: () => restarts,
+    nextStart: () => new Promise<Managed>((resolve) => waiters.push(resolve)),
+    async stop(graceMs?: number) {
+      stopping = true;
+      if (timer) clearTimeout(timer);
+      timer = null;
+      await stopProcess(current, graceMs);
+    },
+  };
+}
