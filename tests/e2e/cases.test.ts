@@ -78,6 +78,8 @@ describe('case work (browser)', () => {
       await page.waitForURL((u) => u.pathname === '/queue');
       await page.getByRole('heading', { name: 'Examination queue' }).waitFor();
       await page.getByTestId(wide ? 'queue-table' : 'queue-cards').waitFor();
+      // The short caution, in full, above the queue as on the case screen (docs/design.md#cautions).
+      expect(await page.getByTestId('screening-caution').textContent()).toContain(SCREENING_CAUTION);
       expect(await page.getByTestId('queue-total').textContent()).toMatch(/^1–\d+ of \d+ cases being worked · by priority$/);
       await screenshot(page, `queue-${name}`);
       await screenshotWhole(page, `queue-whole-${name}`);
