@@ -25,8 +25,6 @@ import { userRoutes } from './users/user.routes';
 import { openapiRoutes } from './openapi/openapi.routes';
 import { apiNotFound, errorHandler } from './http/errors';
 
-export type { AppDeps } from './app-deps';
-
 /** Builds the application. */
 export function createApp(deps: AppDeps): Express {
   const app = express();

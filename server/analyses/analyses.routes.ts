@@ -1,6 +1,6 @@
 import multer from 'multer';
 import { DigitAnalysisRequestSchema } from '../../shared/analyses';
-import type { AppDeps } from '../app';
+import type { AppDeps } from '../app-deps';
 import { allow, secureRouter } from '../auth/access';
 import { removeSpooled, spoolStorage } from '../batches/intake/upload-spool';
 import { HttpError } from '../http/errors';
