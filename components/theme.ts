@@ -3,23 +3,38 @@
  * palette is cord-and-brass on paper: deep slate-teal ink, a brass accent, warm paper.
  * Type: Atkinson Hyperlegible for reading (made for legibility), IBM Plex Mono for figures
  * so amounts line up. Both ship in fonts/ (SIL Open Font License).
+ *
+ * Contrast (WCAG 2.1 AA, success criteria 1.4.3 and 1.4.11): every text colour here is at
+ * least 4.5:1 on the grounds it is used on (paper, surface, white and its own soft tint), and
+ * the edges of controls at least 3:1; tests/e2e/accessibility.test.ts checks every screen
+ * with axe-core.
  */
 export const colours = {
   ink: '#1E3B3F',
   inkSoft: '#4A6366',
-  inkFaint: '#7D8E8F',
+  /** Quiet text (captions, line numbers): still 4.5:1 on paper, surface and white. */
+  inkFaint: '#5A6B6C',
   paper: '#F6F3EC',
   surface: '#FFFDF8',
   line: '#DCD5C6',
+  /** Edges of controls (inputs, checkboxes, unselected choices): 3:1 on paper and surface. */
+  control: '#7E786B',
+  /** The brass of fills, bars and borders. Too light for text: text uses brassInk. */
   brass: '#B0791E',
+  /** Brass for text (links, quiet buttons): 4.5:1 on paper, surface and brassSoft. */
+  brassInk: '#83580A',
   brassSoft: '#F1E2C4',
   cord: '#2F5D62',
   ok: '#3F6F4A',
   okSoft: '#DDEBDC',
-  warn: '#9A6A0B',
+  warn: '#8A4B08',
   warnSoft: '#F6E7C3',
   alert: '#9C3324',
   alertSoft: '#F4DAD3',
+  /** A neutral ground for states that are no verdict (e.g. a referral). */
+  neutralSoft: '#E7E4DD',
+  /** Quiet text on the ink top bar and score panel: 6.9:1 on ink. */
+  onInkSoft: '#B9C8C6',
   white: '#FFFFFF',
 } as const;
 

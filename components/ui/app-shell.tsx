@@ -23,6 +23,12 @@ export interface AppShellProps {
 /**
  * The frame around every signed-in screen: a top bar with the mark; on wide screens a left
  * rail of destinations, on phones a scrolling row of them under the bar.
+ *
+ * Landmarks (WCAG 1.3.1, 2.4.1): the top bar is the banner (react-native-web renders
+ * role="banner" as <header>), the destinations a navigation (<nav>) and the screen the main
+ * region (<main>), so screen-reader users can jump between them and no content sits
+ * outside one. The main region scrolls and takes the focus itself, so the keyboard can
+ * scroll a screen that has no control in it (axe: scrollable-region-focusable).
  */
 export function AppShell({ nav, accessory, children }: AppShellProps) {
   const wide = useIsWide();
@@ -31,7 +37,8 @@ export function AppShell({ nav, accessory, children }: AppShellProps) {
   const navLinks = nav.map((n) => (
     <Link key={n.href} href={n.href as never} asChild>
       <Pressable
-        accessibilityRole="link"
+        role="link"
+        aria-current={isActive(n.href) ? 'page' : undefined}
         style={{
           paddingVertical: space.sm,
           paddingHorizontal: space.md,
@@ -51,6 +58,7 @@ export function AppShell({ nav, accessory, children }: AppShellProps) {
   return (
     <View style={{ flex: 1, backgroundColor: colours.paper }}>
       <View
+        role="banner"
         style={{
           backgroundColor: colours.ink,
           paddingHorizontal: space.lg,
@@ -61,35 +69,35 @@ export function AppShell({ nav, accessory, children }: AppShellProps) {
         }}
       >
         <PlumbMark />
-        <Txt variant="lead" bold tone="white" accessibilityRole="header">
+        {/* The product's name, not a heading: each screen's own title is its first heading. */}
+        <Txt variant="lead" bold tone="white">
           Plumbline
         </Txt>
-        <Txt variant="small" style={{ color: '#B9C8C6', marginLeft: space.xs }} numberOfLines={1}>
-          {wide ? 'Aldermere Revenue Office' : ''}
-        </Txt>
+        {wide && (
+          <Txt variant="small" style={{ color: colours.onInkSoft, marginLeft: space.xs }} numberOfLines={1}>
+            Aldermere Revenue Office
+          </Txt>
+        )}
         <View style={{ flex: 1 }} />
         {accessory}
       </View>
       {wide ? (
         <View style={{ flex: 1, flexDirection: 'row' }}>
-          <View style={{ width: 210, borderRightWidth: 1, borderRightColor: colours.line, padding: space.md, gap: 2 }}>
+          <View role="navigation" aria-label="Screens" style={{ width: 210, borderRightWidth: 1, borderRightColor: colours.line, padding: space.md, gap: 2 }}>
             {navLinks}
           </View>
-          <ScrollView style={{ flex: 1 }} contentContainerStyle={{ padding: space.xl }}>
+          <ScrollView role="main" tabIndex={0} style={{ flex: 1 }} contentContainerStyle={{ padding: space.xl }}>
             <View style={{ width: '100%', maxWidth: MAX_CONTENT_WIDTH }}>{children}</View>
           </ScrollView>
         </View>
       ) : (
         <>
-          <ScrollView
-            horizontal
-            showsHorizontalScrollIndicator={false}
-            style={{ flexGrow: 0, borderBottomWidth: 1, borderBottomColor: colours.line, backgroundColor: colours.surface }}
-            contentContainerStyle={{ paddingHorizontal: space.sm, paddingVertical: space.xs, gap: space.xs }}
-          >
-            {navLinks}
-          </ScrollView>
-          <ScrollView style={{ flex: 1 }} contentContainerStyle={{ padding: space.lg }}>
+          <View role="navigation" aria-label="Screens" style={{ flexGrow: 0, borderBottomWidth: 1, borderBottomColor: colours.line, backgroundColor: colours.surface }}>
+            <ScrollView horizontal showsHorizontalScrollIndicator={false} contentContainerStyle={{ paddingHorizontal: space.sm, paddingVertical: space.xs, gap: space.xs }}>
+              {navLinks}
+            </ScrollView>
+          </View>
+          <ScrollView role="main" tabIndex={0} style={{ flex: 1 }} contentContainerStyle={{ padding: space.lg }}>
             {children}
           </ScrollView>
         </>

@@ -22,8 +22,10 @@ export function Button({ label, kind = 'primary', busy, disabled, style, ...rest
   const off = disabled || busy;
   return (
     <Pressable
-      accessibilityRole="button"
-      accessibilityState={{ disabled: !!off, busy: !!busy }}
+      role="button"
+      // aria-* props, not accessibilityState: react-native-web renders only these to the DOM.
+      aria-disabled={!!off}
+      aria-busy={!!busy}
       disabled={off}
       {...rest}
       style={(state) => [

@@ -11,7 +11,12 @@ export interface ChoiceRowProps<T extends string> {
   testID?: string;
 }
 
-/** A row of mutually exclusive choices (a segmented picker that works on web and phone). */
+/**
+ * A row of mutually exclusive choices (a segmented picker that works on web and phone): a
+ * radio group named by its label, each choice a radio with aria-checked (react-native-web
+ * renders aria-* props, not accessibilityState), reachable with Tab and chosen with Enter
+ * or Space.
+ */
 export function ChoiceRow<T extends string>({ label, options, value, onChange, testID }: ChoiceRowProps<T>) {
   return (
     <View style={{ gap: space.xs }} testID={testID}>
@@ -20,14 +25,14 @@ export function ChoiceRow<T extends string>({ label, options, value, onChange, t
           {label}
         </Txt>
       )}
-      <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.xs }} accessibilityRole="radiogroup">
+      <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.xs }} role="radiogroup" aria-label={label}>
         {options.map((o) => {
           const on = o.value === value;
           return (
             <Pressable
               key={o.value}
-              accessibilityRole="radio"
-              accessibilityState={{ checked: on }}
+              role="radio"
+              aria-checked={on}
               testID={testID ? `${testID}-${o.value}` : undefined}
               onPress={() => onChange(o.value)}
               style={{
@@ -35,7 +40,7 @@ export function ChoiceRow<T extends string>({ label, options, value, onChange, t
                 paddingVertical: space.xs + 2,
                 borderRadius: radius.lg,
                 borderWidth: 1.5,
-                borderColor: on ? colours.ink : colours.line,
+                borderColor: on ? colours.ink : colours.control,
                 backgroundColor: on ? colours.ink : colours.surface,
               }}
             >

@@ -20,6 +20,7 @@ export const Field = forwardRef<TextInput, FieldProps>(function Field({ label, e
       <TextInput
         ref={ref}
         accessibilityLabel={label}
+        aria-invalid={error ? true : undefined}
         placeholderTextColor={colours.inkFaint}
         {...rest}
         style={[
@@ -29,7 +30,8 @@ export const Field = forwardRef<TextInput, FieldProps>(function Field({ label, e
             color: colours.ink,
             backgroundColor: colours.white,
             borderWidth: 1.5,
-            borderColor: error ? colours.alert : colours.line,
+            // The edge is what shows where to type: 3:1 against the page (WCAG 1.4.11).
+            borderColor: error ? colours.alert : colours.control,
             borderRadius: radius.md,
             paddingHorizontal: space.md,
             paddingVertical: space.sm + 2,

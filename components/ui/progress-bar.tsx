@@ -19,9 +19,11 @@ export function ProgressBar({ value, label, tone = 'cord', testID }: ProgressBar
   return (
     <View
       testID={testID}
-      accessibilityRole="progressbar"
-      accessibilityLabel={label}
-      accessibilityValue={{ min: 0, max: 100, now: Math.round(share * 100) }}
+      role="progressbar"
+      aria-label={label}
+      aria-valuemin={0}
+      aria-valuemax={100}
+      aria-valuenow={Math.round(share * 100)}
       style={{ height: 10, borderRadius: radius.sm, backgroundColor: colours.line, overflow: 'hidden' }}
     >
       <View style={{ width: `${share * 100}%`, height: '100%', backgroundColor: fill[tone], borderRadius: radius.sm }} />

@@ -9,6 +9,7 @@ export interface TxtProps extends TextProps {
   bold?: boolean;
   /** Figures in the monospaced face, so columns of amounts line up. */
   figures?: boolean;
+  /** Text colour; 'brass' is the darker text brass (colours.brassInk), readable on paper. */
   tone?: 'ink' | 'soft' | 'faint' | 'brass' | 'ok' | 'warn' | 'alert' | 'white';
 }
 
@@ -16,7 +17,7 @@ const toneColour: Record<NonNullable<TxtProps['tone']>, string> = {
   ink: colours.ink,
   soft: colours.inkSoft,
   faint: colours.inkFaint,
-  brass: colours.brass,
+  brass: colours.brassInk,
   ok: colours.ok,
   warn: colours.warn,
   alert: colours.alert,

@@ -24,19 +24,20 @@ export function SignInScreen() {
   return (
     <ScrollView style={{ flex: 1, backgroundColor: colours.ink }} contentContainerStyle={{ flexGrow: 1, justifyContent: 'center', padding: space.lg }}>
       <View style={{ width: '100%', maxWidth: 420, alignSelf: 'center', gap: space.lg }}>
-        <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.sm }}>
+        {/* Landmarks: the name of the product is the banner, the form the main region. */}
+        <View role="banner" style={{ flexDirection: 'row', alignItems: 'center', gap: space.sm }}>
           <PlumbMark size={40} />
           <View>
-            <Txt variant="display" bold tone="white" accessibilityRole="header">
+            <Txt variant="display" bold tone="white">
               Plumbline
             </Txt>
-            <Txt variant="small" style={{ color: '#B9C8C6' }}>
+            <Txt variant="small" style={{ color: colours.onInkSoft }}>
               Aldermere Revenue Office · examinations
             </Txt>
           </View>
         </View>
-        <Card style={{ gap: space.lg, padding: space.xl }}>
-          <Txt variant="title" bold>
+        <Card role="main" style={{ gap: space.lg, padding: space.xl }}>
+          <Txt variant="title" bold role="heading" aria-level={1}>
             Sign in
           </Txt>
           <FormField

@@ -3,7 +3,7 @@ import { Pressable, View } from 'react-native';
 import { useSignOut } from '../../../hooks/use-session';
 import type { SessionUserDto } from '../../../shared/auth';
 import { ROLE_LABELS } from '../../../shared/roles';
-import { space } from '../../theme';
+import { colours, space } from '../../theme';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
 
@@ -19,14 +19,14 @@ export function UserBadge({ user }: { user: SessionUserDto }) {
           <Txt variant="small" bold tone="white" testID="signed-in-name">
             {user.displayName}
           </Txt>
-          <Txt variant="caption" style={{ color: '#B9C8C6' }} testID="signed-in-role">
+          <Txt variant="caption" style={{ color: colours.onInkSoft }} testID="signed-in-role">
             {ROLE_LABELS[user.role]}
           </Txt>
         </View>
       )}
       <Pressable
         testID="sign-out"
-        accessibilityRole="button"
+        role="button"
         onPress={() => signOut.mutate(undefined, { onSettled: () => router.replace('/sign-in') })}
         style={{ borderWidth: 1, borderColor: '#6F8A8C', borderRadius: 6, paddingHorizontal: space.sm, paddingVertical: 4 }}
       >

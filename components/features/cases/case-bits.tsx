@@ -31,12 +31,15 @@ export function age(iso: string, now = Date.now()): string {
   return days <= 0 ? 'today' : `${days} day${days === 1 ? '' : 's'}`;
 }
 
-const STATE_LOOK: Record<CaseState, { bg: string; fg: 'ink' | 'brass' | 'warn' | 'ok' | 'alert' | 'soft' }> = {
+/** Each state's badge colours (exported for the test that holds the Referred badge neutral). */
+export const STATE_LOOK: Record<CaseState, { bg: string; fg: 'ink' | 'brass' | 'warn' | 'ok' | 'alert' | 'soft' }> = {
   open: { bg: colours.brassSoft, fg: 'ink' },
   assigned: { bg: '#E3ECEA', fg: 'ink' },
   in_review: { bg: '#D6E4E5', fg: 'ink' },
   awaiting_reply: { bg: colours.warnSoft, fg: 'warn' },
-  referred: { bg: colours.alertSoft, fg: 'alert' },
+  // A referral hands the case to another unit; it is no finding, so it wears a neutral colour,
+  // never the alert red.
+  referred: { bg: colours.neutralSoft, fg: 'ink' },
   closed_no_change: { bg: colours.okSoft, fg: 'ok' },
   closed_adjusted: { bg: colours.okSoft, fg: 'ok' },
 };

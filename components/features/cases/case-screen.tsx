@@ -45,7 +45,7 @@ function Section({ title, children, testID, right }: { title: string; children: 
   return (
     <Card style={{ gap: space.md }} testID={testID}>
       <View style={{ flexDirection: 'row', justifyContent: 'space-between', alignItems: 'baseline', gap: space.sm }}>
-        <Txt variant="title" bold accessibilityRole="header">
+        <Txt variant="title" bold role="heading" aria-level={2}>
           {title}
         </Txt>
         {right}
@@ -124,7 +124,7 @@ function ScoreSummary({ d }: { d: CaseDetail }) {
     <Card style={{ gap: space.md, backgroundColor: colours.ink, borderColor: colours.ink }} testID="case-score">
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.xl, alignItems: 'flex-end' }}>
         <View>
-          <Txt variant="caption" style={{ color: '#B9C8C6' }}>
+          <Txt variant="caption" style={{ color: colours.onInkSoft }}>
             Risk score
           </Txt>
           <Txt figures bold tone="white" style={{ fontSize: 40, lineHeight: 46 }} testID="case-risk-score">
@@ -136,7 +136,7 @@ function ScoreSummary({ d }: { d: CaseDetail }) {
           </Txt>
         </View>
         <View>
-          <Txt variant="caption" style={{ color: '#B9C8C6' }}>
+          <Txt variant="caption" style={{ color: colours.onInkSoft }}>
             Amount at stake
           </Txt>
           <Txt figures bold tone="white" variant="title">
@@ -144,7 +144,7 @@ function ScoreSummary({ d }: { d: CaseDetail }) {
           </Txt>
         </View>
         <View>
-          <Txt variant="caption" style={{ color: '#B9C8C6' }}>
+          <Txt variant="caption" style={{ color: colours.onInkSoft }}>
             Priority
           </Txt>
           <Txt figures tone="white" variant="lead">

@@ -29,23 +29,26 @@ function receivedWhen(iso: string): string {
   return `${longDate(isoToday(d))} at ${String(d.getHours()).padStart(2, '0')}:${String(d.getMinutes()).padStart(2, '0')}`;
 }
 
-/** The frame: the office's name on the app's ink bar, one readable column. */
+/**
+ * The frame: the office's name on the app's ink bar (the banner landmark), one readable
+ * column (the main landmark, focusable so the keyboard can scroll it).
+ */
 function Frame({ children }: { children: React.ReactNode }) {
   const wide = useIsWide();
   return (
     <View style={{ flex: 1, backgroundColor: colours.paper }}>
-      <View style={{ backgroundColor: colours.ink, paddingHorizontal: space.lg, paddingVertical: space.md, flexDirection: 'row', alignItems: 'center', gap: space.sm }}>
+      <View role="banner" style={{ backgroundColor: colours.ink, paddingHorizontal: space.lg, paddingVertical: space.md, flexDirection: 'row', alignItems: 'center', gap: space.sm }}>
         <PlumbMark />
         <View>
-          <Txt variant="lead" bold tone="white" accessibilityRole="header">
+          <Txt variant="lead" bold tone="white">
             {OFFICE.name}
           </Txt>
-          <Txt variant="caption" style={{ color: '#B9C8C6' }}>
+          <Txt variant="caption" style={{ color: colours.onInkSoft }}>
             {OFFICE.unit}
           </Txt>
         </View>
       </View>
-      <ScrollView style={{ flex: 1 }} contentContainerStyle={{ padding: wide ? space.xxl : space.lg }}>
+      <ScrollView role="main" tabIndex={0} style={{ flex: 1 }} contentContainerStyle={{ padding: wide ? space.xxl : space.lg }}>
         <View style={{ width: '100%', maxWidth: 680, alignSelf: 'center', gap: space.lg }}>{children}</View>
       </ScrollView>
     </View>

@@ -34,14 +34,14 @@ function Count({ n, alert, bold }: { n: number; alert?: boolean; bold?: boolean 
 
 function Checkbox({ checked, onPress, label, testID }: { checked: boolean; onPress(): void; label: string; testID?: string }) {
   return (
-    <Pressable accessibilityRole="checkbox" accessibilityState={{ checked }} accessibilityLabel={label} onPress={onPress} testID={testID} hitSlop={8}>
+    <Pressable role="checkbox" aria-checked={checked} aria-label={label} onPress={onPress} testID={testID} hitSlop={8}>
       <View
         style={{
           width: 22,
           height: 22,
           borderRadius: radius.sm,
           borderWidth: 2,
-          borderColor: checked ? colours.ink : colours.inkFaint,
+          borderColor: checked ? colours.ink : colours.control,
           backgroundColor: checked ? colours.ink : colours.white,
           alignItems: 'center',
           justifyContent: 'center',
