@@ -177,7 +177,13 @@ describe('taxpayer reply page in the browser', () => {
       expect(await panel.textContent()).toContain('No letters yet.');
 
       await page.getByTestId('open-document-request').click();
+      // A soft check on the examiner's own words: a flagged word shows a warning under the item,
+      // which goes once the item is reworded (docs/design.md#letters-and-replies).
+      await page.getByTestId('request-item-0').fill('Receipts behind the risky pattern of round amounts');
+      await page.getByTestId('request-item-0-warning').waitFor();
+      expect(await page.getByTestId('request-item-0-warning').textContent()).toContain('"risk", "pattern"');
       await page.getByTestId('request-item-0').fill('Receipts for the vehicle expenses claimed for 2024');
+      await page.getByTestId('request-item-0-warning').waitFor({ state: 'detached' });
       await page.getByTestId('request-item-add').click();
       await page.getByTestId('request-item-1').fill('Bank statements for the business account, 2024');
       // The taxpayer has no address on file: the server says so, and the form shows it.
