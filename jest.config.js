@@ -5,6 +5,10 @@
  *  - app:  React Native components through the jest-expo preset (babel-preset-expo).
  *  - e2e:  headless Chromium against the real server serving the built web app.
  * scripts/test.ts starts PostgreSQL and MailDev first and passes their addresses in env.
+ *
+ * Timeouts are sized for a busy two-core machine (several runs at once), not for a quiet
+ * laptop: jest's 5 s default failed API tests by timing alone. testTimeout is a global
+ * option in jest 29, so the browser project raises its own in tests/helpers/e2e-setup.ts.
  */
 const swc = [
   '@swc/jest',
@@ -19,6 +23,8 @@ const swc = [
 ];
 
 module.exports = {
+  // Node and app tests: 90 s each (a route-policy sweep runs well past 5 s under load).
+  testTimeout: 90_000,
   projects: [
     {
       displayName: 'node',
@@ -45,6 +51,7 @@ module.exports = {
       transform: { '^.+\\.(t|j)s$': swc },
       moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
       setupFiles: ['reflect-metadata'],
+      setupFilesAfterEnv: ['<rootDir>/tests/helpers/e2e-setup.ts'],
     },
   ],
 };

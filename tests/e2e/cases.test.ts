@@ -9,7 +9,7 @@ import fs from 'node:fs';
 import type { Browser, Page } from 'playwright-core';
 import { SCREENING_CAUTION } from '../../shared/cautions';
 import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
-import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS } from '../helpers/browser';
+import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS, waitForCount, waitForText, waitForValue } from '../helpers/browser';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
 
 jest.setTimeout(240_000);
@@ -37,21 +37,10 @@ async function screenshotWhole(page: Page, name: string): Promise<void> {
     return most;
   });
   await page.setViewportSize({ width: size.width, height: Math.min(9000, size.height + extra) });
-  await page.waitForTimeout(300);
+  // Let the layout settle at the new size: two animation frames, not a fixed pause.
+  await page.evaluate(() => new Promise<void>((r) => requestAnimationFrame(() => requestAnimationFrame(() => r()))));
   await screenshot(page, name);
   await page.setViewportSize(size);
-}
-
-async function waitForText(page: Page, testId: string, text: string | RegExp) {
-  await page.waitForFunction(
-    ([id, t, isRe]) => {
-      const el = document.querySelector(`[data-testid="${id}"]`);
-      const s = el?.textContent ?? '';
-      return isRe ? new RegExp(t).test(s) : s === t;
-    },
-    [testId, text instanceof RegExp ? text.source : text, text instanceof RegExp] as const,
-    { timeout: 15_000 },
-  );
 }
 
 describe('case work (browser)', () => {
@@ -79,8 +68,8 @@ describe('case work (browser)', () => {
       await page.getByRole('heading', { name: 'Examination queue' }).waitFor();
       await page.getByTestId(wide ? 'queue-table' : 'queue-cards').waitFor();
       // The short caution, in full, above the queue as on the case screen (docs/design.md#cautions).
-      expect(await page.getByTestId('screening-caution').textContent()).toContain(SCREENING_CAUTION);
-      expect(await page.getByTestId('queue-total').textContent()).toMatch(/^1–\d+ of \d+ cases being worked · by priority$/);
+      await waitForText(page.getByTestId('screening-caution'), SCREENING_CAUTION);
+      await waitForText(page.getByTestId('queue-total'), /^1–\d+ of \d+ cases being worked · by priority$/);
       await screenshot(page, `queue-${name}`);
       await screenshotWhole(page, `queue-whole-${name}`);
 
@@ -100,35 +89,32 @@ describe('case work (browser)', () => {
       await page.getByTestId(`${wide ? 'queue-row' : 'queue-card'}-${ref}`).click();
       await page.waitForURL(/\/cases\/[0-9a-f-]{36}$/);
       await page.getByTestId('case-screen').waitFor();
-      expect(await page.getByTestId('case-ref').textContent()).toBe(ref);
-      expect(await page.getByTestId('screening-caution').textContent()).toContain(SCREENING_CAUTION);
-      expect(await page.getByTestId('case-tin').textContent()).toMatch(/^TIN ••• ••• \d{3}$/);
+      await waitForText(page.getByTestId('case-ref'), ref, { exact: true });
+      await waitForText(page.getByTestId('screening-caution'), SCREENING_CAUTION);
+      await waitForText(page.getByTestId('case-tin'), /^TIN ••• ••• \d{3}$/);
       // Each factor that fired shows "+N" points with its evidence; the chart is an SVG with digits 1–9.
       const factors = page.locator('[data-testid^="factor-"]');
-      expect(await factors.count()).toBeGreaterThan(0);
-      expect(await factors.first().textContent()).toMatch(/^\+\d+\.\d/);
+      await waitForText(factors.first(), /^\+\d+\.\d/);
       const chart = page.getByTestId('digit-chart-return').locator('svg').first();
       await chart.waitFor();
-      const labels = await chart.locator('text').allTextContents();
-      expect(labels).toEqual(expect.arrayContaining(['1', '2', '3', '4', '5', '6', '7', '8', '9']));
-      expect(await page.getByTestId('letters-panel').count()).toBe(1);
+      for (const d of ['1', '2', '3', '4', '5', '6', '7', '8', '9']) await chart.locator('text', { hasText: new RegExp(`^${d}$`) }).first().waitFor();
+      await waitForCount(page.getByTestId('letters-panel'), 1);
       await screenshot(page, `case-${name}`);
       await screenshotWhole(page, `case-whole-${name}`);
 
       await page.getByTestId('case-claim').click();
-      await waitForText(page, 'case-state', 'Assigned');
+      await waitForText(page.getByTestId('case-state'), 'Assigned', { exact: true });
       await page.getByTestId('reveal-tin').click();
-      await waitForText(page, 'case-tin', /^TIN \d{3} \d{3} \d{3}$/);
+      await waitForText(page.getByTestId('case-tin'), /^TIN \d{3} \d{3} \d{3}$/);
       await page.getByTestId('case-move-in_review').click();
-      await waitForText(page, 'case-state', 'In review');
+      await waitForText(page.getByTestId('case-state'), 'In review', { exact: true });
 
       const note = `Asked for the ${name} ledger; receipts look rounded.`;
       await page.getByTestId('note-text').fill(note);
       await page.getByTestId('note-submit').click();
       const written = page.locator('[data-testid^="note-item-"]', { hasText: note });
-      await written.waitFor();
-      expect(await written.textContent()).toMatch(/^Ivo Brackley · \d{4}-\d{2}-\d{2} \d{2}:\d{2}/);
-      expect(await page.getByTestId('note-text').inputValue()).toBe('');
+      await waitForText(written, /^Ivo Brackley · \d{4}-\d{2}-\d{2} \d{2}:\d{2}/);
+      await waitForValue(page.getByTestId('note-text'), '');
 
       await page.getByTestId('case-move-closed_adjusted').click();
       await page.getByTestId('close-form').waitFor();
@@ -140,9 +126,9 @@ describe('case work (browser)', () => {
       await page.getByText('Give the adjusted amount as a number with at most 2 decimals, e.g. 1250.00').waitFor();
       await page.getByTestId('close-amount').fill('1250.00');
       await page.getByTestId('close-submit').click();
-      await waitForText(page, 'case-state', 'Closed, adjusted');
-      expect(await page.getByTestId('case-outcome').textContent()).toContain('Adjusted amount 1,250.00');
-      expect(await page.getByTestId('case-history').textContent()).toContain('Ivo Brackley moved the case from in review to closed, adjusted, adjusted amount 1250.00');
+      await waitForText(page.getByTestId('case-state'), 'Closed, adjusted', { exact: true });
+      await waitForText(page.getByTestId('case-outcome'), 'Adjusted amount 1,250.00');
+      await waitForText(page.getByTestId('case-history'), 'Ivo Brackley moved the case from in review to closed, adjusted, adjusted amount 1250.00');
       await screenshot(page, `case-closed-${name}`);
       await screenshotWhole(page, `case-closed-whole-${name}`);
 
@@ -160,7 +146,11 @@ describe('case work (browser)', () => {
       await signInThroughUi(page, s.server.baseUrl, 'supervisor', DEMO_PASSWORD);
       await page.waitForURL((u) => u.pathname === '/workload');
       await page.getByTestId('workload-examiner').waitFor();
-      const notStarted = async (user: string) => Number(await page.getByTestId(`workload-${user}-assigned`).textContent().then((t) => t!.replace(/\D/g, '')));
+      // "Not started" for an examiner: the figure at the end of the cell (on a phone the cell
+      // also holds its label). The first read is the baseline; later ones wait for a figure.
+      const notStartedCell = (user: string) => page.getByTestId(`workload-${user}-assigned`);
+      const notStarted = async (user: string) => Number((await waitForText(notStartedCell(user), /\d+$/)).match(/(\d+)$/)![1]);
+      const waitNotStarted = (user: string, n: number) => waitForText(notStartedCell(user), new RegExp(`(^|\\D)${n}$`));
       const ivoBefore = await notStarted('examiner');
       const nellBefore = await notStarted('examiner2');
       await screenshot(page, `workload-${name}`);
@@ -175,29 +165,26 @@ describe('case work (browser)', () => {
       for (const r of refs) await panel.getByTestId(`pick-${r}`).click();
       await panel.getByRole('radio', { name: /^Ivo Brackley/ }).click();
       await panel.getByTestId('reassign-submit').click();
-      await waitForText(page, 'reassign-result', /^2 cases moved\./);
-      await page.waitForFunction((id) => Number(document.querySelector(`[data-testid="${id}"]`)?.textContent?.replace(/\D/g, '')) > 0, 'workload-examiner-assigned');
-      expect(await notStarted('examiner')).toBe(ivoBefore + 2);
+      await waitForText(page.getByTestId('reassign-result'), /^2 cases moved\./);
+      await waitNotStarted('examiner', ivoBefore + 2);
 
       // Move one of them on to Nell.
       await page.getByTestId('workload-examiner-reassign').click();
       await panel.getByTestId(`pick-${refs[0]}`).waitFor();
       await panel.getByTestId(`pick-${refs[0]}`).click();
       await panel.getByRole('radio', { name: /^Nell Quarrender/ }).click();
-      expect(await panel.getByTestId('reassign-submit').textContent()).toBe('Move 1 case to Nell Quarrender');
+      await waitForText(panel.getByTestId('reassign-submit'), 'Move 1 case to Nell Quarrender', { exact: true });
       await screenshot(page, `reassign-${name}`);
       await screenshotWhole(page, `reassign-whole-${name}`);
       await panel.getByTestId('reassign-submit').click();
-      await waitForText(page, 'reassign-result', /^1 case moved\./);
-      await page.waitForFunction(([id, n]) => Number(document.querySelector(`[data-testid="${id}"]`)?.textContent?.replace(/\D/g, '')) === n, ['workload-examiner2-assigned', nellBefore + 1] as const);
+      await waitForText(page.getByTestId('reassign-result'), /^1 case moved\./);
+      await waitNotStarted('examiner2', nellBefore + 1);
 
       // The case shows who had it and who has it now.
       await page.goto(`${s.server.baseUrl}/queue?state=all&q=${encodeURIComponent(refs[0])}`, { waitUntil: 'networkidle' });
       await page.getByTestId(`${wide ? 'queue-row' : 'queue-card'}-${refs[0]}`).click();
-      await page.getByTestId('case-history').waitFor();
-      const history = await page.getByTestId('case-history').textContent();
-      expect(history).toContain('Maud Fennick assigned the case to Ivo Brackley');
-      expect(history).toContain('Maud Fennick reassigned the case from Ivo Brackley to Nell Quarrender');
+      await waitForText(page.getByTestId('case-history'), 'Maud Fennick assigned the case to Ivo Brackley');
+      await waitForText(page.getByTestId('case-history'), 'Maud Fennick reassigned the case from Ivo Brackley to Nell Quarrender');
       await screenshot(page, `case-reassigned-${name}`);
 
       if (wide) {
@@ -209,7 +196,7 @@ describe('case work (browser)', () => {
         const file = await (await download).path();
         const wb = new ExcelJS.Workbook();
         await wb.xlsx.load(fs.readFileSync(file!) as unknown as ArrayBuffer);
-        const total = Number((await page.getByTestId('queue-total').textContent())!.match(/of ([\d,]+) case/)![1].replace(/,/g, ''));
+        const total = Number((await waitForText(page.getByTestId('queue-total'), /of [\d,]+ case/)).match(/of ([\d,]+) case/)![1].replace(/,/g, ''));
         expect(wb.getWorksheet('Queue')!.rowCount).toBe(total + 1);
       }
       expect(errors).toEqual([]);

@@ -1,9 +1,9 @@
 import type { Browser } from 'playwright-core';
 import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
-import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS } from '../helpers/browser';
+import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS, waitForText } from '../helpers/browser';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
 
-jest.setTimeout(120_000);
+jest.setTimeout(240_000);
 
 describe('scoring profile screen (supervisor, browser)', () => {
   let s: SeededServer;
@@ -25,9 +25,9 @@ describe('scoring profile screen (supervisor, browser)', () => {
     await page.getByTestId('profile-note').fill('Less weight on cash-heavy trades');
     await page.getByTestId('save-profile').click();
     await page.getByText('Saved as version 2; new batches are scored with it.').waitFor();
-    const versions = await page.getByTestId('profile-versions').textContent();
-    expect(versions).toContain('v2');
-    expect(versions).toContain('Less weight on cash-heavy trades');
+    // The list of versions refetches after the save: wait for the new one to show.
+    await waitForText(page.getByTestId('profile-versions'), 'v2');
+    await waitForText(page.getByTestId('profile-versions'), 'Less weight on cash-heavy trades');
     await screenshot(page, 'scoring-wide');
     await page.close();
   });

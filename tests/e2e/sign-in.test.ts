@@ -2,7 +2,7 @@ import type { Browser } from 'playwright-core';
 import { START_PATH } from '../../components/features/nav/start-path';
 import { NAV_ITEMS } from '../../components/features/nav/nav-items';
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from '../../server/seed/demo-seed';
-import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS } from '../helpers/browser';
+import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS, waitForCount, waitForText } from '../helpers/browser';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
 
 jest.setTimeout(180_000);
@@ -27,8 +27,7 @@ describe('signing in as each demo role (browser)', () => {
       await page.getByTestId('sign-in-username').fill('clerk');
       await page.getByTestId('sign-in-password').fill('not-the-password');
       await page.getByTestId('sign-in-submit').click();
-      await page.getByTestId('sign-in-error').waitFor();
-      expect(await page.getByTestId('sign-in-error').textContent()).toBe('The user name or password is wrong.');
+      await waitForText(page.getByTestId('sign-in-error'), 'The user name or password is wrong.', { exact: true });
       await screenshot(page, `sign-in-${name}`);
       await page.close();
     }
@@ -39,11 +38,11 @@ describe('signing in as each demo role (browser)', () => {
       const page = await browser.newPage({ viewport: VIEWPORTS.wide });
       await signInThroughUi(page, s.server.baseUrl, account.username, DEMO_PASSWORD);
       await page.waitForURL((u) => u.pathname === START_PATH[account.role]);
-      await page.getByTestId('signed-in-name').waitFor();
-      expect(await page.getByTestId('signed-in-name').textContent()).toBe(account.displayName);
+      await waitForText(page.getByTestId('signed-in-name'), account.displayName, { exact: true });
+      const nav = page.getByRole('navigation');
       for (const item of NAV_ITEMS) {
         const shown = item.roles === 'all' || item.roles.includes(account.role);
-        expect({ item: item.label, shown: (await page.getByRole('link', { name: item.label, exact: true }).count()) > 0 }).toEqual({ item: item.label, shown });
+        await waitForCount(nav.getByRole('link', { name: item.label, exact: true }), shown ? 1 : 0);
       }
       await page.getByTestId('sign-out').click();
       await page.waitForURL(/\/sign-in$/);

@@ -1,9 +1,9 @@
 import type { Browser } from 'playwright-core';
 import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
-import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS } from '../helpers/browser';
+import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS, waitForText } from '../helpers/browser';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
 
-jest.setTimeout(120_000);
+jest.setTimeout(240_000);
 
 describe('status screen in the browser (built web app served by the real server)', () => {
   let s: SeededServer;
@@ -25,9 +25,8 @@ describe('status screen in the browser (built web app served by the real server)
       page.on('pageerror', (e) => errors.push(e.message));
       await signInThroughUi(page, s.server.baseUrl, 'supervisor', DEMO_PASSWORD);
       await page.goto(s.server.baseUrl + '/', { waitUntil: 'networkidle' });
-      await page.getByTestId('health-database-state').waitFor();
-      expect(await page.getByTestId('health-database-state').textContent()).toBe('Up');
-      expect(await page.getByTestId('health-overall').textContent()).toBe('All services are up.');
+      await waitForText(page.getByTestId('health-database-state'), 'Up', { exact: true });
+      await waitForText(page.getByTestId('health-overall'), 'All services are up.', { exact: true });
 
       // The heading is set in the shipped typeface, and the browser really loaded it.
       const heading = page.getByRole('heading', { name: 'System status' });
@@ -49,9 +48,7 @@ describe('status screen in the browser (built web app served by the real server)
     const page = await browser.newPage({ viewport: VIEWPORTS.phone });
     await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
     await page.goto(s.server.baseUrl + '/about', { waitUntil: 'networkidle' });
-    const cautions = page.getByTestId('cautions');
-    await cautions.waitFor();
-    expect(await cautions.textContent()).toMatch(/prove nothing alone/);
+    await waitForText(page.getByTestId('cautions'), /prove nothing alone/);
     await screenshot(page, 'about-phone');
     await page.close();
   });
