@@ -6,6 +6,7 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import type { StatementKind } from '../../shared/returns/line-codes';
 import type { LineCode } from '../../shared/returns/line-codes';
+import type { PeerFigures } from '../../shared/scoring/factors';
 
 type Db = DataSource | EntityManager;
 
@@ -23,18 +24,31 @@ export async function batchReturnIds(db: Db, batchId: string): Promise<string[]>
   return rows.map((r) => r.id);
 }
 
-/** Income, charity and medical of each return of the batch, for peer percentiles. */
-export async function batchDeductionFigures(db: Db, batchId: string): Promise<{ income: number; charity: number; medical: number }[]> {
-  const rows: { income: string; charity: string; medical: string }[] = await db.query(
+/** Income, charity, medical, receipts and each business cost line of each return of the batch, for peer percentiles. */
+export async function batchDeductionFigures(db: Db, batchId: string): Promise<PeerFigures[]> {
+  const rows: Record<string, string>[] = await db.query(
     `SELECT (r.computed_income * 100)::bigint AS income,
             coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.charity'), 0) * 100 AS charity,
-            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.medical'), 0) * 100 AS medical
-       FROM tax_return r LEFT JOIN line_item li ON li.return_id = r.id AND li.line_code IN ('ded.charity', 'ded.medical')
+            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.medical'), 0) * 100 AS medical,
+            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'inc.business.receipts'), 0) * 100 AS receipts,
+            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'exp.business.supplies'), 0) * 100 AS supplies,
+            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'exp.business.vehicle'), 0) * 100 AS vehicle,
+            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'exp.business.travel'), 0) * 100 AS travel,
+            coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'exp.business.other'), 0) * 100 AS other
+       FROM tax_return r LEFT JOIN line_item li ON li.return_id = r.id
+        AND li.line_code IN ('ded.charity', 'ded.medical', 'inc.business.receipts', 'exp.business.supplies', 'exp.business.vehicle', 'exp.business.travel', 'exp.business.other')
       WHERE r.batch_id = $1
       GROUP BY r.id`,
     [batchId],
   );
-  return rows.map((r) => ({ income: Number(r.income), charity: Math.round(Number(r.charity)), medical: Math.round(Number(r.medical)) }));
+  const n = (x: string) => Math.round(Number(x));
+  return rows.map((r) => ({
+    income: Number(r.income),
+    charity: n(r.charity),
+    medical: n(r.medical),
+    receipts: n(r.receipts),
+    costs: { 'exp.business.supplies': n(r.supplies), 'exp.business.vehicle': n(r.vehicle), 'exp.business.travel': n(r.travel), 'exp.business.other': n(r.other) },
+  }));
 }
 
 /** First-digit counts of every current return of each preparer that has returns in the batch. */
@@ -203,4 +217,140 @@ export async function taxpayerDigitCounts(db: Db, taxpayerIds: string[]): Promis
     out.set(r.taxpayer_id, c);
   }
   return out;
+}
+
+/**
+ * The batch's amounts as slots: one per (return, line code, absolute amount), so a bill
+ * entered twelve times on one line counts once, with whether the return is a whole-unit
+ * filer (no itemised amount with cents, at least three amounts). A temporary table for the
+ * context pass's aggregates, dropped at the end of the caller's transaction.
+ */
+export async function createBatchSlots(m: EntityManager, batchId: string): Promise<void> {
+  await m.query(
+    `CREATE TEMP TABLE batch_slot ON COMMIT DROP AS
+     WITH w AS (
+       SELECT li.return_id, bool_and(li.amount = trunc(li.amount)) AND count(*) >= 3 AS whole
+         FROM tax_return r JOIN line_item li ON li.return_id = r.id
+        WHERE r.batch_id = $1 AND NOT r.superseded AND ${ITEMISED_SQL}
+        GROUP BY 1)
+     SELECT r.id AS return_id, r.taxpayer_id, r.preparer_id, li.line_code, abs(li.amount) AS a, count(*)::int AS c, w.whole,
+            substr(ltrim(replace(abs(li.amount)::text, '.', ''), '0'), 1, 1)::int AS d
+       FROM tax_return r JOIN line_item li ON li.return_id = r.id JOIN w ON w.return_id = r.id
+      WHERE r.batch_id = $1 AND NOT r.superseded AND ${ITEMISED_SQL}
+      GROUP BY r.id, r.taxpayer_id, r.preparer_id, li.line_code, abs(li.amount), w.whole`,
+    [batchId],
+  );
+}
+
+/** Per line code: returns carrying it, and returns with `counts`-many equal amounts on it (a schedule). */
+export async function slotRecurrence(m: EntityManager, counts: readonly number[]): Promise<Record<string, { returns: number; recurring: number }>> {
+  const rows: { line_code: string; returns: string; recurring: string }[] = await m.query(
+    `SELECT line_code, count(DISTINCT return_id) AS returns, count(DISTINCT return_id) FILTER (WHERE c = ANY($1::int[])) AS recurring FROM batch_slot GROUP BY 1`,
+    [counts],
+  );
+  return Object.fromEntries(rows.map((r) => [r.line_code, { returns: Number(r.returns), recurring: Number(r.recurring) }]));
+}
+
+/** Per line code: amounts >= 100 and round hundreds among them, for whole-unit filers and filers with cents. */
+export async function slotRoundRates(m: EntityManager): Promise<Record<string, [number, number, number, number]>> {
+  const rows: { line_code: string; wn: string; wr: string; cn: string; cr: string }[] = await m.query(
+    `SELECT line_code,
+            count(*) FILTER (WHERE whole) AS wn, count(*) FILTER (WHERE whole AND floor(a) % 100 = 0) AS wr,
+            count(*) FILTER (WHERE NOT whole) AS cn, count(*) FILTER (WHERE NOT whole AND floor(a) % 100 = 0) AS cr
+       FROM batch_slot WHERE a >= 100 GROUP BY 1`,
+  );
+  return Object.fromEntries(rows.map((r) => [r.line_code, [Number(r.wn), Number(r.wr), Number(r.cn), Number(r.cr)]]));
+}
+
+/** Amounts (>= min cents) on two or more slots: [cents, slots of whole-unit filers, slots of filers with cents, taxpayers]; and all slots. */
+export async function slotPopularity(m: EntityManager, minCents: number): Promise<{ popular: [number, number, number, number][]; slots: [number, number] }> {
+  const rows: { cents: string; w: string; c: string; t: string }[] = await m.query(
+    `SELECT (a * 100)::bigint AS cents, count(*) FILTER (WHERE whole) AS w, count(*) FILTER (WHERE NOT whole) AS c, count(DISTINCT taxpayer_id) AS t
+       FROM batch_slot WHERE a >= $1 GROUP BY a HAVING count(*) >= 2`,
+    [minCents / 100],
+  );
+  const all: { w: string; c: string }[] = await m.query(`SELECT count(*) FILTER (WHERE whole) AS w, count(*) FILTER (WHERE NOT whole) AS c FROM batch_slot WHERE a >= $1`, [minCents / 100]);
+  return { popular: rows.map((r) => [Number(r.cents), Number(r.w), Number(r.c), Number(r.t)]), slots: [Number(all[0].w), Number(all[0].c)] };
+}
+
+/** First-digit counts per line code over the batch's slots, and per preparer and line code. */
+export async function slotDigitCounts(m: EntityManager): Promise<{ lineCodes: Record<string, number[]>; preparers: Record<string, Record<string, number[]>> }> {
+  const rows: { preparer_id: string | null; line_code: string; d: number; n: string }[] = await m.query(
+    `SELECT preparer_id, line_code, d, count(*) AS n FROM batch_slot WHERE d BETWEEN 1 AND 9 GROUP BY 1, 2, 3`,
+  );
+  const lineCodes: Record<string, number[]> = {};
+  const preparers: Record<string, Record<string, number[]>> = {};
+  for (const r of rows) {
+    const n = Number(r.n);
+    (lineCodes[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += n;
+    if (r.preparer_id) ((preparers[r.preparer_id] ??= {})[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += n;
+  }
+  return { lineCodes, preparers };
+}
+
+/** Per preparer: distinct taxpayers in the batch, and amounts (>= min) carried by two or more of them; and all taxpayers. */
+export async function slotPreparerSharing(m: EntityManager, minCents: number): Promise<{ clients: Record<string, number>; shared: Record<string, number[]>; taxpayers: number }> {
+  const clients: { preparer_id: string; n: string }[] = await m.query(`SELECT preparer_id, count(DISTINCT taxpayer_id) AS n FROM batch_slot WHERE preparer_id IS NOT NULL GROUP BY 1`);
+  const shared: { preparer_id: string; cents: string }[] = await m.query(
+    `SELECT preparer_id, (a * 100)::bigint AS cents FROM batch_slot WHERE preparer_id IS NOT NULL AND a >= $1
+      GROUP BY 1, a HAVING min(taxpayer_id::text) <> max(taxpayer_id::text)`,
+    [minCents / 100],
+  );
+  const all: { n: string }[] = await m.query(`SELECT count(DISTINCT taxpayer_id) AS n FROM batch_slot`);
+  const out: Record<string, number[]> = {};
+  for (const r of shared) (out[r.preparer_id] ??= []).push(Number(r.cents));
+  return { clients: Object.fromEntries(clients.map((c) => [c.preparer_id, Number(c.n)])), shared: out, taxpayers: Number(all[0].n) };
+}
+
+/**
+ * First-digit counts per taxpayer and line code over all their current returns (one per
+ * return, code and amount), for the history pools; `sampleOf` > 1 keeps about one taxpayer
+ * in that many (for estimating the spread between taxpayers in the context pass).
+ */
+export async function taxpayerCodeDigitCounts(db: Db, opts: { taxpayerIds: string[] } | { batchId: string; sampleOf: number }): Promise<Map<string, Record<string, number[]>>> {
+  const where =
+    'taxpayerIds' in opts
+      ? `r.taxpayer_id = ANY($1::uuid[])`
+      : `r.taxpayer_id IN (SELECT DISTINCT taxpayer_id FROM tax_return WHERE batch_id = $1 AND abs(hashtext(taxpayer_id::text)) % $2 = 0)`;
+  const params = 'taxpayerIds' in opts ? [opts.taxpayerIds] : [opts.batchId, Math.max(1, Math.floor(opts.sampleOf))];
+  const rows: { taxpayer_id: string; line_code: string; d: number; n: string }[] = await db.query(
+    `WITH s AS (SELECT DISTINCT r.taxpayer_id, r.id, li.line_code, abs(li.amount) AS a
+                  FROM tax_return r JOIN line_item li ON li.return_id = r.id
+                 WHERE ${where} AND NOT r.superseded AND ${ITEMISED_SQL})
+     SELECT taxpayer_id, line_code, substr(ltrim(replace(a::text, '.', ''), '0'), 1, 1)::int AS d, count(*) AS n FROM s GROUP BY 1, 2, 3`,
+    params,
+  );
+  const out = new Map<string, Record<string, number[]>>();
+  for (const r of rows) {
+    if (r.d < 1 || r.d > 9) continue;
+    const t = out.get(r.taxpayer_id) ?? {};
+    (t[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += Number(r.n);
+    out.set(r.taxpayer_id, t);
+  }
+  return out;
+}
+
+/** Pattern p-values of a run's scores (ids and p), for the Benjamini–Hochberg step. */
+export async function runPatternPs(db: Db, batchId: string, version: number): Promise<{ id: string; p: number }[]> {
+  const rows: { id: string; p: number }[] = await db.query(
+    `SELECT id, (breakdown->'pattern'->>'p')::float8 AS p FROM return_score
+      WHERE batch_id = $1 AND profile_version = $2 AND status = 'scored' AND breakdown ? 'pattern'`,
+    [batchId, version],
+  );
+  return rows.map((r) => ({ id: String(r.id), p: Number(r.p) }));
+}
+
+/** Writes each score's q-value and replaces `pending` in the evidence of component `index` with its text. */
+export async function writePatternQs(db: Db, index: number, pending: string, rows: { id: string; q: number; t: string }[]): Promise<void> {
+  if (!rows.length) return;
+  await db.query(
+    `UPDATE return_score s
+        SET breakdown = jsonb_set(
+              jsonb_set(s.breakdown, '{pattern,q}', to_jsonb(u.q)),
+              ARRAY['components', $1::text, 'evidence'],
+              to_jsonb(replace(s.breakdown #>> ARRAY['components', $1::text, 'evidence'], $2, u.t)))
+       FROM json_to_recordset($3::json) AS u(id bigint, q float8, t text)
+      WHERE s.id = u.id`,
+    [String(index), pending, JSON.stringify(rows)],
+  );
 }

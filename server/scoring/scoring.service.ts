@@ -10,24 +10,32 @@ import type PgBoss from 'pg-boss';
 import type { DataSource, EntityManager } from 'typeorm';
 import type { StatementKind } from '../../shared/returns/line-codes';
 import type { ScoreBreakdown } from '../../shared/scoring/breakdown';
+import { benjaminiHochberg, formatP } from '../../shared/scoring/calibration';
 import { buildPeerBands, incomeBand, type PeerBands, type ReturnFacts } from '../../shared/scoring/factors';
-import { judgeFirstDigitCounts, type PooledDigits } from '../../shared/scoring/pools';
-import { scoreReturn, type ScoreContext } from '../../shared/scoring/score-return';
-import { ScoringSettingsSchema, type ScoringSettings } from '../../shared/scoring/settings';
+import { thousands } from '../../shared/scoring/format';
+import { combineCodeCounts, estimateConcentration, expectedForPool, judgePool, pearson, totalCounts, type CodeDigitCounts } from '../../shared/scoring/pools';
+import { PERIODIC_COUNTS, type RecurrenceRates } from '../../shared/scoring/recurring';
+import { PENDING_Q_TEXT, scoreReturn, type BatchNulls, type ScoreContext } from '../../shared/scoring/score-return';
+import { COMPONENTS, ScoringSettingsSchema, type ScoringSettings } from '../../shared/scoring/settings';
 import { openCasesForScores } from '../cases/case-open.repository';
 import { QUEUES } from '../queue/queues';
 import {
   activeProfileVersion,
   batchDeductionFigures,
   batchReturnIds,
+  createBatchSlots,
   historyOf,
-  lineCodeDigitCounts,
   linesOf,
-  preparerDigitCounts,
-  preparerSharedAmounts,
+  runPatternPs,
+  slotDigitCounts,
+  slotPopularity,
+  slotPreparerSharing,
+  slotRecurrence,
+  slotRoundRates,
   statementsOf,
-  taxpayerDigitCounts,
+  taxpayerCodeDigitCounts,
   unscoredReturns,
+  writePatternQs,
 } from './scoring.repository';
 import { returnedRows } from '../db/returned-rows';
 
@@ -41,12 +49,28 @@ export interface ChunkJob {
   toId: string;
 }
 
-/** The stored batch-wide context of a run (JSON). */
+/**
+ * The stored batch-wide context of a run (JSON): peer percentiles, the batch's per-code
+ * digit profile, each preparer's per-code digits and shared amounts, the spread between
+ * pools (Dirichlet-multinomial concentrations; null = none beyond chance), and the null
+ * models of the pattern components (docs/methods.md, "Scoring").
+ */
 export interface RunContext {
   peerLimits: PeerBands['limits'];
-  preparers: Record<string, PooledDigits & { firstDigitCounts: number[] }>;
+  costLimits: NonNullable<PeerBands['costLimits']>;
+  lineCodes: CodeDigitCounts;
+  preparers: Record<string, CodeDigitCounts>;
+  preparerClients: Record<string, number>;
+  taxpayers: number;
   shared: Record<string, number[]>;
-  lineCodes: Record<string, PooledDigits & { firstDigitCounts: number[] }>;
+  alphaPreparer: number | null;
+  alphaHistory: number | null;
+  nulls: {
+    recurrence: RecurrenceRates;
+    round: Record<string, [number, number, number, number]>;
+    popular: [number, number, number, number][];
+    slots: [number, number];
+  };
 }
 
 async function loadSettings(db: DataSource | EntityManager, version: number): Promise<ScoringSettings> {
@@ -67,19 +91,48 @@ function withWorkMem<T>(ds: DataSource, fn: (m: EntityManager) => Promise<T>): P
   });
 }
 
-/** Batch-wide context: computed once per run; the four aggregates run side by side. */
+/** Taxpayers sampled for the spread between history pools. */
+const HISTORY_SAMPLE = 1500;
+
+/**
+ * Batch-wide context, computed once per run. The batch's amounts are gathered once into
+ * slots (one per return, line code and amount: a recurring bill counts once) and every
+ * null model is read from them; the peer percentiles run beside it.
+ */
 export async function computeRunContext(ds: DataSource, batchId: string, settings: ScoringSettings): Promise<RunContext> {
   const p = settings.params;
-  const [figures, preparerCounts, sharedAmounts, lineCodeCounts] = await Promise.all([
+  const [figures, slots] = await Promise.all([
     withWorkMem(ds, (m) => batchDeductionFigures(m, batchId)),
-    withWorkMem(ds, (m) => preparerDigitCounts(m, batchId)),
-    withWorkMem(ds, (m) => preparerSharedAmounts(m, batchId, p.repeatMinCents)),
-    withWorkMem(ds, (m) => lineCodeDigitCounts(m, batchId)),
+    withWorkMem(ds, async (m) => {
+      await createBatchSlots(m, batchId);
+      const recurrence = await slotRecurrence(m, PERIODIC_COUNTS);
+      const round = await slotRoundRates(m);
+      const popularity = await slotPopularity(m, p.repeatMinCents);
+      const digits = await slotDigitCounts(m);
+      const sharing = await slotPreparerSharing(m, p.repeatMinCents);
+      return { recurrence, round, popularity, digits, sharing };
+    }),
   ]);
-  const { limits: peerLimits } = buildPeerBands(figures, p);
-  const judged = (pools: Map<string, number[]>) =>
-    Object.fromEntries([...pools].map(([key, counts]) => [key, { ...judgeFirstDigitCounts(counts, p.pooledFixedThresholdMinN), firstDigitCounts: counts }]));
-  return { peerLimits, preparers: judged(preparerCounts), shared: Object.fromEntries(sharedAmounts), lineCodes: judged(lineCodeCounts) };
+  const { limits: peerLimits, costLimits } = buildPeerBands(figures, p);
+  const { lineCodes, preparers } = slots.digits;
+  const spread = (pools: CodeDigitCounts[]) => {
+    const a = estimateConcentration(pools.map((byCode) => ({ n: totalCounts(byCode).reduce((s, x) => s + x, 0), x2: pearson(totalCounts(byCode), expectedForPool(byCode, lineCodes)) })));
+    return Number.isFinite(a) ? a : null;
+  };
+  const sampleOf = Math.max(1, Math.ceil(slots.sharing.taxpayers / HISTORY_SAMPLE));
+  const histories = await taxpayerCodeDigitCounts(ds, { batchId, sampleOf });
+  return {
+    peerLimits,
+    costLimits: costLimits ?? {},
+    lineCodes,
+    preparers,
+    preparerClients: slots.sharing.clients,
+    taxpayers: slots.sharing.taxpayers,
+    shared: slots.sharing.shared,
+    alphaPreparer: spread(Object.values(preparers)),
+    alphaHistory: spread([...histories.values()]),
+    nulls: { recurrence: slots.recurrence, round: slots.round, popular: slots.popularity.popular, slots: slots.popularity.slots },
+  };
 }
 
 /** Creates the run for (batch, version) once, and returns it with the batch's return ids. */
@@ -150,14 +203,42 @@ export async function scoreBatchNow(ds: DataSource, batchId: string, version?: n
   return { runId, scored, failed };
 }
 
+/**
+ * Marks the run finished once every return is scored or failed, and then, in the same
+ * transaction, gives each score its Benjamini–Hochberg q-value over the whole batch's
+ * pattern p-values (the q needs every p, so it is the run's finishing step; the chunk that
+ * scores the last returns does it, under the run row's lock, so it happens exactly once and
+ * a crash before the commit leaves the run unfinished for the retried chunk to finish).
+ */
 async function finishIfDone(db: DataSource | EntityManager, runId: string): Promise<boolean> {
-  const r = returnedRows<{ batch_id: string }>(await db.query(
-    `UPDATE scoring_run SET finished_at = now() WHERE id = $1 AND finished_at IS NULL AND scored + failed >= total RETURNING batch_id`,
+  if (!('queryRunner' in db) || !db.queryRunner) {
+    // Not inside a transaction yet: take one, so the finish and the q-values commit together.
+    return (db as DataSource).transaction((m) => finishIfDone(m, runId));
+  }
+  const r = returnedRows<{ batch_id: string; profile_version: number }>(await db.query(
+    `UPDATE scoring_run SET finished_at = now() WHERE id = $1 AND finished_at IS NULL AND scored + failed >= total RETURNING batch_id, profile_version`,
     [runId],
   ));
   if (!r.length) return false;
+  await writeBatchQValues(db, r[0].batch_id, Number(r[0].profile_version));
   await db.query(`UPDATE filing_batch SET state = 'scored', updated_at = now() WHERE id = $1 AND state = 'scoring'`, [r[0].batch_id]);
   return true;
+}
+
+/** Benjamini–Hochberg over the run's pattern p-values; writes q and its sentence into each score. */
+async function writeBatchQValues(db: EntityManager, batchId: string, version: number): Promise<void> {
+  const ps = await runPatternPs(db, batchId, version);
+  if (!ps.length) return;
+  const qs = benjaminiHochberg(ps.map((x) => x.p));
+  const index = COMPONENTS.indexOf('digits');
+  const rows = ps.map((x, i) => ({
+    id: x.id,
+    q: qs[i],
+    t:
+      `Across the batch's ${thousands(ps.length)} scored returns: ${formatP(qs[i], 'q')} (Benjamini–Hochberg; ` +
+      (qs[i] < 0.05 ? 'among returns with q below 0.05, at most about 1 in 20 is expected to be ordinary).' : 'not unusual once so many returns are looked at).'),
+  }));
+  for (let i = 0; i < rows.length; i += 5000) await writePatternQs(db, index, PENDING_Q_TEXT, rows.slice(i, i + 5000));
 }
 
 function toHistoryTotals(h: Awaited<ReturnType<typeof historyOf>>[number]) {
@@ -176,6 +257,22 @@ function toHistoryTotals(h: Awaited<ReturnType<typeof historyOf>>[number]) {
     refund: h.refund,
     reported: { income: null, deductions: null, refund: null },
   };
+}
+
+/** First-digit counts per line code of one return's itemised lines, one per code and amount (as the pools count). */
+function ownCodeDigitCounts(lines: readonly { code: string; cents: number }[]): CodeDigitCounts {
+  const seen = new Set<string>();
+  const out: CodeDigitCounts = {};
+  for (const l of lines) {
+    if (l.cents === 0 || l.code.startsWith('tot.') || l.code === 'tax.refund') continue;
+    const a = Math.abs(l.cents);
+    const key = `${l.code}|${a}`;
+    if (seen.has(key)) continue;
+    seen.add(key);
+    const d = Number(String(a).replace(/^0+/, '')[0]);
+    (out[l.code] ??= new Array(9).fill(0))[d - 1]++;
+  }
+  return out;
 }
 
 /** One scored (or failed) return, ready to store. */
@@ -215,14 +312,22 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     linesOf(ds, ids),
     statementsOf(ds, [...new Set(todo.map((r) => r.tin))]),
     historyOf(ds, taxpayerIds),
-    taxpayerDigitCounts(ds, taxpayerIds),
+    taxpayerCodeDigitCounts(ds, { taxpayerIds }),
   ]);
   trace('load', t);
   t = performance.now();
   const historyByTaxpayer = new Map<string, typeof history>();
   for (const h of history) historyByTaxpayer.set(h.taxpayerId, [...(historyByTaxpayer.get(h.taxpayerId) ?? []), h]);
-  const peers: PeerBands = { bandOf: incomeBand, limits: context.peerLimits };
+  const peers: PeerBands = { bandOf: incomeBand, limits: context.peerLimits, costLimits: context.costLimits };
   const sharedSets = new Map<string, Set<number>>();
+  const batch: BatchNulls = {
+    recurrence: context.nulls.recurrence,
+    round: context.nulls.round,
+    popularity: new Map(context.nulls.popular.map(([c, w, k, tp]) => [c, [w, k, tp] as const])),
+    slots: context.nulls.slots,
+  };
+  const alpha = (a: number | null) => (a === null ? Infinity : a);
+  const pp = settings.params;
 
   const outcomes: Outcome[] = todo.map((r) => {
     try {
@@ -241,13 +346,18 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
         shared = new Set(context.shared[r.preparerId] ?? []);
         sharedSets.set(r.preparerId, shared);
       }
-      const historyCounts = others.length ? tpCounts.get(r.taxpayerId) : undefined;
+      // This return's own slots, left out of its pools.
+      const ownCounts = ownCodeDigitCounts(own);
+      const tp = others.length ? tpCounts.get(r.taxpayerId) : undefined;
+      const prep = r.preparerId ? context.preparers[r.preparerId] : undefined;
+      const clients = r.preparerId ? (context.preparerClients[r.preparerId] ?? 1) : 0;
       const ctx: ScoreContext = {
         settings,
         peers,
-        preparer: r.preparerId ? (context.preparers[r.preparerId] ?? null) : null,
-        history: historyCounts ? judgeFirstDigitCounts(historyCounts, settings.params.pooledFixedThresholdMinN) : null,
-        sharedWithClients: shared ?? new Set(),
+        preparer: prep ? judgePool(combineCodeCounts(prep, ownCounts, -1), context.lineCodes, alpha(context.alphaPreparer), pp.pooledFixedThresholdMinN, pp.patternPStart, pp.patternPFull) : null,
+        history: tp ? judgePool(combineCodeCounts(tp, ownCounts, -1), context.lineCodes, alpha(context.alphaHistory), pp.pooledFixedThresholdMinN, pp.patternPStart, pp.patternPFull) : null,
+        batch,
+        sharing: r.preparerId && context.taxpayers > 1 ? { shared: shared ?? new Set(), poolShare: Math.max(0, clients - 1) / (context.taxpayers - 1) } : null,
       };
       const s = scoreReturn(facts, ctx);
       return { returnId: r.id, taxpayerId: r.taxpayerId, status: 'scored', riskScore: s.riskScore, stakeCents: s.amountAtStakeCents, priority: s.priority, breakdown: s.breakdown, reason: null };

@@ -5,7 +5,8 @@
  * A factor that does not apply says so with strength 0, so the breakdown explains every line.
  */
 import { binomialUpperTail } from '../digits';
-import { computeTotals, STATEMENT_KIND_LINE, type CentsLine, type LineCode, type ReturnTotals, type StatementKind } from '../returns/line-codes';
+import { formatP, poissonBinomialUpperTail, poissonUpperTail, simes, strengthFromP } from './calibration';
+import { computeTotals, LINE_CODE_DEFS, STATEMENT_KIND_LINE, type CentsLine, type LineCode, type ReturnTotals, type StatementKind } from '../returns/line-codes';
 import { clamp01, money, pct } from './format';
 import type { ScoringSettings } from './settings';
 
@@ -91,14 +92,27 @@ export function incomeBelowStatements(f: ReturnFacts, p: Params): FactorResult {
   return { strength, evidence: `${found.join('; ')}.`, stakeIncomeCents: stake, stakeTaxCents: 0 };
 }
 
-/** Per income band, the percentile of each deduction's share of income among peers. */
+/** Per income band, the percentile of each deduction's share of income among peers; per cost line, the percentile of its share of receipts. */
 export interface PeerBands {
   bandOf(incomeCents: number): string;
   limits: Record<string, { charity: number | null; medical: number | null; n: number }>;
+  /** Per business cost line: the percentile of (line total / receipts) among returns with receipts, and how many. Absent on runs made before version 2. */
+  costLimits?: Record<string, { limit: number | null; n: number }>;
 }
 
 /** Income bands for peer comparison (Aldermere's, invented): edges in whole units. */
 export const INCOME_BAND_EDGES = [20_000, 50_000, 100_000, 250_000];
+
+/**
+ * Deductions are compared as a share of max(income, the first band edge): below 20,000 of
+ * income (or with a loss) a ratio to income says little (a retiree with 300 of interest and
+ * 900 of medical bills is at 300 %), and the lowest band is judged on the same footing as
+ * the next.
+ */
+export const DEDUCTION_BASE_FLOOR_CENTS = INCOME_BAND_EDGES[0] * 100;
+
+/** Business cost lines compared with peers as a share of receipts. */
+export const COST_CODES = ['exp.business.supplies', 'exp.business.vehicle', 'exp.business.travel', 'exp.business.other'] as const;
 
 /** Band name of an income. */
 export function incomeBand(incomeCents: number): string {
@@ -111,16 +125,32 @@ export function incomeBand(incomeCents: number): string {
   return `${lo.toLocaleString('en-US')}+`;
 }
 
-/** Builds peer percentiles from many returns' figures (returns with positive income only). */
-export function buildPeerBands(all: readonly Pick<ReturnTotals, 'income' | 'charity' | 'medical'>[], p: Params): PeerBands {
+/** One return's figures for peer comparison. */
+export interface PeerFigures {
+  income: number;
+  charity: number;
+  medical: number;
+  /** Receipts and per-cost-line totals (version 2 on; absent = not compared). */
+  receipts?: number;
+  costs?: Partial<Record<(typeof COST_CODES)[number], number>>;
+}
+
+/** Builds peer percentiles from many returns' figures. */
+export function buildPeerBands(all: readonly PeerFigures[], p: Params): PeerBands {
   const shares = new Map<string, { charity: number[]; medical: number[] }>();
+  const costShares = new Map<string, number[]>();
   for (const t of all) {
-    if (t.income <= 0) continue;
-    const b = incomeBand(t.income);
+    const base = Math.max(t.income, DEDUCTION_BASE_FLOOR_CENTS);
+    const b = incomeBand(Math.max(t.income, 0));
     const s = shares.get(b) ?? { charity: [], medical: [] };
-    s.charity.push(t.charity / t.income);
-    s.medical.push(t.medical / t.income);
+    s.charity.push(t.charity / base);
+    s.medical.push(t.medical / base);
     shares.set(b, s);
+    if (t.receipts && t.receipts > 0 && t.costs) for (const c of COST_CODES) {
+      const list = costShares.get(c) ?? [];
+      list.push((t.costs[c] ?? 0) / t.receipts);
+      costShares.set(c, list);
+    }
   }
   const q = (xs: number[]) => {
     if (xs.length < p.deductionMinPeers) return null;
@@ -129,42 +159,57 @@ export function buildPeerBands(all: readonly Pick<ReturnTotals, 'income' | 'char
   };
   const limits: PeerBands['limits'] = {};
   for (const [b, s] of shares) limits[b] = { charity: q(s.charity), medical: q(s.medical), n: s.charity.length };
-  return { bandOf: incomeBand, limits };
+  const costLimits: NonNullable<PeerBands['costLimits']> = {};
+  for (const [c, xs] of costShares) costLimits[c] = { limit: q(xs), n: xs.length };
+  return { bandOf: incomeBand, limits, costLimits };
 }
 
-/** Deductions large against income, against peers in the same income band. */
-export function deductionsLarge(t: ReturnTotals, peers: PeerBands, p: Params): FactorResult {
-  if (t.deductions <= 0) return none('No deductions claimed.');
-  if (t.income <= 0) {
-    return {
-      strength: 0.7,
-      evidence: `Deductions of ${money(t.deductions)} claimed against no positive income.`,
-      stakeIncomeCents: t.deductions,
-      stakeTaxCents: 0,
-    };
-  }
-  const band = peers.bandOf(t.income);
-  const lim = peers.limits[band];
-  if (!lim) return none(`Too few peers in the income band ${band} to compare deductions.`);
+/**
+ * Deductions and business costs large against peers: charitable gifts and medical costs as
+ * a share of max(income, 20,000) against the same share's percentile among peers in the
+ * same income band; each business cost line as a share of receipts against that line's
+ * percentile among returns with receipts (an invented monthly "rent" hides from the pattern
+ * tests as a recurring bill, but not from its peers).
+ */
+export function deductionsLarge(t: ReturnTotals, peers: PeerBands, p: Params, costs?: Partial<Record<(typeof COST_CODES)[number], number>>): FactorResult {
   const found: string[] = [];
   let strength = 0;
   let stake = 0;
-  for (const [key, label] of [
-    ['charity', 'charitable gifts'],
-    ['medical', 'medical costs'],
-  ] as const) {
-    const limit = lim[key];
-    const amount = t[key];
-    if (limit === null || amount <= 0) continue;
-    const share = amount / t.income;
-    if (share <= limit) continue;
-    found.push(`${label} are ${pct(share, 1)} of income; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${lim.n} peers with income ${band} is ${pct(limit, 1)}`);
-    // Just above the percentile is where 5 % of typical peers sit by construction, and ordinary
-    // medical bills have a long tail: strength grows with the log of the excess, full at 8×.
-    strength = Math.max(strength, clamp01(Math.log(share / Math.max(limit, 0.0001)) / Math.log(8)));
-    stake += amount - Math.round(limit * t.income);
+  const base = Math.max(t.income, DEDUCTION_BASE_FLOOR_CENTS);
+  const band = peers.bandOf(Math.max(t.income, 0));
+  const lim = peers.limits[band];
+  // Just above the percentile is where 5 % of typical peers sit by construction, and medical
+  // bills have a long tail: strength grows with the log of the excess, full at 8×.
+  const grade = (share: number, limit: number) => clamp01(Math.log(share / Math.max(limit, 0.0001)) / Math.log(8));
+  if (t.deductions > 0 && lim) {
+    for (const [key, label] of [
+      ['charity', 'charitable gifts'],
+      ['medical', 'medical costs'],
+    ] as const) {
+      const limit = lim[key];
+      const amount = t[key];
+      if (limit === null || amount <= 0) continue;
+      const share = amount / base;
+      if (share <= limit) continue;
+      const of = t.income >= DEDUCTION_BASE_FLOOR_CENTS ? 'income' : `${money(DEDUCTION_BASE_FLOOR_CENTS)} (the floor used below that income)`;
+      found.push(`${label} are ${pct(share, 1)} of ${of}; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${lim.n} peers with income ${band} is ${pct(limit, 1)}`);
+      strength = Math.max(strength, grade(share, limit));
+      stake += amount - Math.round(limit * base);
+    }
   }
-  if (!found.length) return none(`Deductions are within the usual range for income ${band}.`);
+  if (costs && t.receipts > 0 && peers.costLimits) {
+    for (const c of COST_CODES) {
+      const cl = peers.costLimits[c];
+      const amount = costs[c] ?? 0;
+      if (!cl || cl.limit === null || amount <= 0) continue;
+      const share = amount / t.receipts;
+      if (share <= cl.limit) continue;
+      found.push(`${LINE_CODE_DEFS[c].label.toLowerCase()} are ${pct(share, 1)} of receipts; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${cl.n} returns with receipts is ${pct(cl.limit, 1)}`);
+      strength = Math.max(strength, grade(share, cl.limit));
+      stake += amount - Math.round(cl.limit * t.receipts);
+    }
+  }
+  if (!found.length) return none(t.deductions > 0 || t.businessExpenses > 0 ? `Deductions and business costs are within the usual range of peers (income ${band}).` : 'No deductions claimed.');
   return { strength, evidence: `${found.join('; ')}.`, stakeIncomeCents: stake, stakeTaxCents: 0 };
 }
 
@@ -213,31 +258,46 @@ export function cashHeavy(f: ReturnFacts, p: Params): FactorResult {
   return { strength: 1, evidence: `Activity "${f.activityCode}" is on the office's cash-heavy list (${p.cashHeavyActivities.join(', ')}).`, stakeIncomeCents: 0, stakeTaxCents: 0 };
 }
 
-/** Excess round amounts: amounts >= 100 whose whole-unit part ends in 00, vs Binomial(k, 0.01). */
-export function roundAmounts(amounts: readonly number[], p: Params): FactorResult {
-  let k = 0;
-  let round = 0;
-  for (const c of amounts) {
-    const a = Math.abs(c);
-    if (a < 10_000) continue;
-    k++;
-    if (Math.floor(a / 100) % 100 === 0) round++;
-  }
-  if (k === 0) return none('No amounts of 100 or more.');
-  const pValue = binomialUpperTail(round, k, 0.01);
-  if (pValue >= p.roundTailP) return none(`${round} of ${k} amounts of 100 or more end in 00 (about 1 % expected).`);
-  return {
-    strength: clamp01(0.4 + (-Math.log10(pValue) - -Math.log10(p.roundTailP)) / 6),
-    evidence: `${round} of ${k} amounts of 100 or more end in 00 (${pct(round / k)}; about 1 % expected; binomial tail p = ${pValue.toExponential(1)}).`,
-    stakeIncomeCents: 0,
-    stakeTaxCents: 0,
-  };
+/** Whole units of an amount in cents end in 00 (100, 2,500, 13,400 …). */
+export function isRoundHundred(cents: number): boolean {
+  const a = Math.abs(cents);
+  return a >= 10_000 && Math.floor(a / 100) % 100 === 0;
 }
 
 /**
- * Amounts bunched just under the office's thresholds: count in [band × T, T) against the
- * share a smooth log-spread of the return's own amounts would put there,
- * log10(1/band) / log10(max/min) (at least one decade), by the binomial tail.
+ * Excess round amounts, against the batch's own rate for each line code and kind of filer
+ * (whole-unit filers against whole-unit filers): X = amounts of 100 or more whose whole
+ * units end in 00, each with its code's rate r_i (shrunk toward the batch's overall rate),
+ * and p = P(X >= x) under the Poisson-binomial law of those rates. Recurring bills arrive
+ * here counted once.
+ *
+ * @param lines itemised lines, recurring bills counted once
+ * @param rateOf the null rate of a round amount on a code
+ */
+export function roundAmounts(lines: readonly CentsLine[], rateOf: (code: LineCode) => number, p: Params): FactorResult & { p: number | null } {
+  const rates: number[] = [];
+  let round = 0;
+  for (const l of lines) {
+    if (Math.abs(l.cents) < 10_000) continue;
+    rates.push(rateOf(l.code));
+    if (isRoundHundred(l.cents)) round++;
+  }
+  const k = rates.length;
+  if (k === 0) return { ...none('No amounts of 100 or more.'), p: null };
+  const expected = rates.reduce((s, r) => s + r, 0);
+  const pValue = poissonBinomialUpperTail(round, rates);
+  const what = `${round} of ${k} amounts of 100 or more end in 00; ordinary filers of these lines would show about ${expected.toFixed(1)} (${formatP(pValue)})`;
+  const strength = strengthFromP(pValue, p.patternPStart, p.patternPFull);
+  return { strength, evidence: `${what}.`, stakeIncomeCents: 0, stakeTaxCents: 0, p: pValue };
+}
+
+/**
+ * Amounts bunched just under the office's thresholds: the count b in [band × T, T) against
+ * what the return's own amounts near the threshold would put there if spread smoothly on a
+ * log scale: lambda = k × w_band / (w_window − w_band), k the amounts in the window
+ * [T / 2, 2T) outside the band, w the log widths (at least the share a smooth spread of all
+ * the return's amounts would give: log10(1/band) / log10(max/min), times n); p = P(Poisson(lambda) >= b).
+ * A return whose bills simply sit around 2,000–3,000 then has an ordinary count just under 2,500.
  */
 export function thresholdBunching(amounts: readonly number[], p: Params): FactorResult {
   const pos = amounts.map(Math.abs).filter((a) => a >= 100);
@@ -249,16 +309,20 @@ export function thresholdBunching(amounts: readonly number[], p: Params): Factor
     if (a > hi) hi = a;
   }
   const decades = Math.max(1, Math.log10(hi / lo));
-  const pIn = Math.min(0.5, Math.log10(1 / p.bunchingBand) / decades);
+  const wBand = Math.log10(1 / p.bunchingBand);
+  const pIn = Math.min(0.5, wBand / decades);
+  const wWindow = Math.log10(4);
   const found: string[] = [];
   let best = 1;
   for (const T of p.thresholdsCents) {
     const from = Math.ceil(p.bunchingBand * T);
     const inBand = pos.filter((a) => a >= from && a < T).length;
     if (inBand < 2) continue;
-    const pValue = binomialUpperTail(inBand, pos.length, pIn);
+    const near = pos.filter((a) => a >= T / 2 && a < 2 * T && !(a >= from && a < T)).length;
+    const lambda = Math.max((near * wBand) / (wWindow - wBand), pIn * (pos.length - inBand));
+    const pValue = poissonUpperTail(inBand, lambda);
     if (pValue < p.bunchingTailP) {
-      found.push(`${inBand} of ${pos.length} amounts lie in [${money(from)}, ${money(T)}) just under ${money(T)} (about ${(pIn * pos.length).toFixed(1)} expected; p = ${pValue.toExponential(1)})`);
+      found.push(`${inBand} of ${pos.length} amounts lie in [${money(from)}, ${money(T)}) just under ${money(T)}; the return's other amounts near it would put about ${lambda.toFixed(1)} there (${formatP(pValue)})`);
       best = Math.min(best, pValue);
     }
   }
@@ -266,33 +330,64 @@ export function thresholdBunching(amounts: readonly number[], p: Params): Factor
   return { strength: clamp01(0.5 + (-Math.log10(best) - 2) / 6), evidence: `${found.join('; ')}.`, stakeIncomeCents: 0, stakeTaxCents: 0 };
 }
 
-/** A sharp income drop from the previous year on file: |ln(x_t / x_(t-1))| > ln 2 on lines above 5,000. */
+/**
+ * A sharp income drop from the previous year on file: |ln(x_t / x_(t-1))| > ln 2 on lines
+ * above 5,000. A drop the third parties confirm is ordinary (retirement, a lost job: the
+ * employer's and bank's statements for this year agree with the return), so wages and
+ * interest count only where this year's statements do not back the figure, and the total
+ * income is judged after taking out a confirmed change.
+ */
 export function incomeDrop(f: ReturnFacts, t: ReturnTotals, p: Params): FactorResult {
   const prev = f.history.find((h) => h.taxYear === f.taxYear - 1);
   if (!prev) return none('No return on file for the previous year.');
+  const stated = (kind: StatementKind) => f.statements.filter((s) => s.kind === kind).reduce((a, s) => a + s.cents, 0);
+  // Confirmed: what the return reports is at least what this year's statements say (and, with
+  // no statement at all, nothing is reported either: no employer or bank reports pay).
+  const confirmed = (kind: StatementKind, reported: number) => {
+    const st = stated(kind);
+    return st > 0 ? reported >= st - Math.max(p.statementShortfallMinCents, p.statementShortfallShare * st) : reported === 0;
+  };
+  const wagesConfirmed = confirmed('wages', t.wages);
+  const interestConfirmed = confirmed('interest', t.interest);
+  // A business that shrinks (or stops, at retirement) loses its costs with its receipts; receipts
+  // cut while costs stay is what an under-reported year looks like.
+  const receiptsRatio = prev.totals.receipts > 0 ? t.receipts / prev.totals.receipts : 1;
+  const costsRatio = prev.totals.businessExpenses > 0 ? t.businessExpenses / prev.totals.businessExpenses : 0;
+  const businessShrank = costsRatio <= Math.max(2 * receiptsRatio, receiptsRatio + 0.15);
+  const explained =
+    (wagesConfirmed ? prev.totals.wages - t.wages : 0) +
+    (interestConfirmed ? prev.totals.interest - t.interest : 0) +
+    (businessShrank ? prev.totals.receipts - prev.totals.businessExpenses - (t.receipts - t.businessExpenses) : 0);
   const found: string[] = [];
+  const calm: string[] = [];
   let strength = 0;
   let stake = 0;
-  for (const [label, now, before] of [
-    ['wages', t.wages, prev.totals.wages],
-    ['business receipts', t.receipts, prev.totals.receipts],
-    ['total income', t.income, prev.totals.income],
+  for (const [label, now, before, ok] of [
+    ['wages', t.wages, prev.totals.wages, wagesConfirmed],
+    ['business receipts', t.receipts, prev.totals.receipts, businessShrank],
+    ['total income', t.income + Math.max(0, explained), prev.totals.income, false],
   ] as const) {
     if (before <= p.incomeDropMinCents) continue;
     const ratio = Math.log(Math.max(now, 1) / before);
     if (-ratio <= p.incomeDropLogRatio) continue;
-    found.push(`${label} fell from ${money(before)} in ${f.taxYear - 1} to ${money(now)} (${pct(1 - Math.max(now, 0) / before)} lower)`);
+    if (ok) {
+      calm.push(`${label} fell from ${money(before)} to ${money(now)}, ${label === 'wages' ? 'as this year\'s third-party statements confirm' : 'with business costs falling alongside'}`);
+      continue;
+    }
+    found.push(`${label}${label === 'total income' && explained > 0 ? ' (leaving out the confirmed change in wages and interest and a business shrinking as a whole)' : ''} fell from ${money(before)} in ${f.taxYear - 1} to ${money(now)} (${pct(1 - Math.max(now, 0) / before)} lower)`);
     strength = Math.max(strength, clamp01(0.25 + (-ratio - p.incomeDropLogRatio) / (2 * p.incomeDropLogRatio)));
     stake = Math.max(stake, Math.round((before - Math.max(now, 0)) / 2));
   }
-  if (!found.length) return none(`No sharp drop from ${f.taxYear - 1}.`);
+  if (!found.length) return none(calm.length ? `${calm.join('; ')}: ordinary.` : `No sharp drop from ${f.taxYear - 1}.`);
   return { strength, evidence: `${found.join('; ')}.`, stakeIncomeCents: stake, stakeTaxCents: 0 };
 }
 
 /**
- * Refund large against tax withheld. When the return's own lines give that refund (no tax
- * due, say, on a low income) it is noted at a quarter of the strength: large, but what the
- * rules give.
+ * Refund large against tax withheld, counting only what is not already a totals mismatch:
+ * a refund the return's own lines give (no tax due on a low income: the whole withholding
+ * comes back) is ordinary and scores nothing; a claimed refund above what the lines give is
+ * a totals mismatch, and this factor shares the "totals" group with that one, so the
+ * difference counts once.
  */
 export function refundLarge(t: ReturnTotals, p: Params): FactorResult {
   const refund = t.reported.refund ?? t.refund;
@@ -300,37 +395,89 @@ export function refundLarge(t: ReturnTotals, p: Params): FactorResult {
   const ratio = refund / t.withheld;
   if (ratio <= p.refundRatio) return none(`Refund is ${pct(ratio)} of tax withheld (threshold ${pct(p.refundRatio)}).`);
   const supported = refund <= t.refund + p.totalsToleranceCents;
-  const strength = clamp01(0.5 + (ratio - p.refundRatio) / (2 * (1 - p.refundRatio + 0.01)));
+  if (supported) return none(`Refund of ${money(refund)} is ${pct(ratio)} of tax withheld; the return's lines give this refund (tax due ${money(t.tax)}), which is ordinary.`);
   return {
-    strength: supported ? strength / 4 : strength,
-    evidence:
-      `Refund of ${money(refund)} is ${pct(ratio)} of tax withheld ${money(t.withheld)} (threshold ${pct(p.refundRatio)})` +
-      (supported ? '; the return\'s lines give this refund (tax due is low).' : `; the lines give ${money(t.refund)}.`),
+    strength: clamp01(0.5 + (ratio - p.refundRatio) / (2 * (1 - p.refundRatio + 0.01))),
+    evidence: `Refund of ${money(refund)} is ${pct(ratio)} of tax withheld ${money(t.withheld)} (threshold ${pct(p.refundRatio)}); the lines give ${money(t.refund)}.`,
     stakeIncomeCents: 0,
     stakeTaxCents: 0,
   };
 }
 
+/** How common an exact amount is in the batch (absolute cents), for the repeat null models. */
+export interface AmountPopularity {
+  /** Share of the batch's amounts (>= the repeat minimum, one per return and line code) equal to `cents`, among filers of the same kind; leave-one-out. */
+  share(cents: number, wholeUnit: boolean, ownSlots: number): number;
+  /** Other taxpayers in the batch whose returns carry `cents` (leave-one-out). */
+  otherTaxpayers(cents: number): number;
+}
+
 /**
- * The same amount repeated: on `repeatMinCount` or more lines of this return, or also on
- * other clients' returns of the same preparer (`sharedWithClients`).
+ * The same amount repeated, against chance (a birthday model with the batch's own
+ * frequencies): for each amount v on this return (recurring bills counted once) that
+ * appears c >= 2 times among its n amounts, p_v = P(Binomial(n − 1, pi_v) >= c − 1), pi_v
+ * being how often v is among the amounts of filers of the same kind (round and whole-unit
+ * amounts are common, so their repeats are expected); Bonferroni over the amounts tested.
+ * Shared with other clients of the same preparer: if clients were spread over preparers at
+ * random, an amount carried by m other taxpayers would turn up at the same preparer with
+ * probability 1 − (1 − s)^m, s the preparer's share of the batch's other taxpayers; the
+ * count of shared amounts is referred to the Poisson-binomial law of those probabilities.
+ * The component's p is Simes' combination of the two.
  */
-export function repeatedAmounts(amounts: readonly number[], sharedWithClients: ReadonlySet<number>, p: Params): FactorResult {
-  const counts = new Map<number, number>();
-  for (const c of amounts) {
-    const a = Math.abs(c);
+export function repeatedAmounts(
+  lines: readonly CentsLine[],
+  wholeUnit: boolean,
+  pop: AmountPopularity,
+  sharing: { shared: ReadonlySet<number>; poolShare: number } | null,
+  p: Params,
+): FactorResult & { p: number | null; pWithin: number | null; pShared: number | null } {
+  const counts = new Map<number, { n: number; codes: Set<string> }>();
+  for (const l of lines) {
+    const a = Math.abs(l.cents);
     if (a < p.repeatMinCents) continue;
-    counts.set(a, (counts.get(a) ?? 0) + 1);
+    const e = counts.get(a) ?? { n: 0, codes: new Set<string>() };
+    e.n++;
+    e.codes.add(l.code);
+    counts.set(a, e);
   }
-  const repeated = [...counts].filter(([, n]) => n >= p.repeatMinCount).sort((a, b) => b[1] - a[1] || b[0] - a[0]);
-  const shared = [...counts.keys()].filter((a) => sharedWithClients.has(a)).sort((a, b) => b - a);
-  if (!repeated.length && !shared.length) return none('No amount of note repeats.');
+  const n = [...counts.values()].reduce((s, e) => s + e.n, 0);
+  if (!counts.size) return { ...none('No amount of 100 or more to compare.'), p: null, pWithin: null, pShared: null };
+  const repeated = [...counts].filter(([, e]) => e.n >= p.repeatMinCount).sort((a, b) => b[1].n - a[1].n || b[0] - a[0]);
+  let pWithin = 1;
+  const repParts: string[] = [];
+  for (const [a, e] of repeated) {
+    const pi = Math.min(1, Math.max(pop.share(a, wholeUnit, e.codes.size), 1e-9));
+    const pv = binomialUpperTail(e.n - 1, n - 1, pi);
+    pWithin = Math.min(pWithin, pv);
+    if (repParts.length < 4) repParts.push(`${money(a)} × ${e.n}`);
+  }
+  pWithin = Math.min(1, pWithin * counts.size);
+  let pShared: number | null = null;
+  let sharedExpected = 0;
+  const shared: number[] = [];
+  if (sharing) {
+    const probs: number[] = [];
+    for (const a of counts.keys()) {
+      const m = pop.otherTaxpayers(a);
+      probs.push(m > 0 ? 1 - Math.pow(1 - sharing.poolShare, m) : 0);
+      if (sharing.shared.has(a)) shared.push(a);
+    }
+    pShared = poissonBinomialUpperTail(shared.length, probs);
+    sharedExpected = probs.reduce((s, x) => s + x, 0);
+    shared.sort((x, y) => y - x);
+  }
+  const pValue = simes([repeated.length ? pWithin : null, pShared]);
   const parts: string[] = [];
-  if (repeated.length) parts.push(`on this return: ${repeated.slice(0, 4).map(([a, n]) => `${money(a)} × ${n}`).join(', ')}${repeated.length > 4 ? ` and ${repeated.length - 4} more` : ''}`);
-  if (shared.length) parts.push(`also on other clients' returns of the same preparer: ${shared.slice(0, 4).map(money).join(', ')}${shared.length > 4 ? ` and ${shared.length - 4} more` : ''}`);
-  // A repeat on this return weighs twice a coincidence with another client's return.
-  const extra = repeated.reduce((s, [, n]) => s + n - 1, 0);
-  return { strength: clamp01(0.2 * extra + 0.1 * shared.length), evidence: `Repeated amounts ${parts.join('; ')}.`, stakeIncomeCents: 0, stakeTaxCents: 0 };
+  if (repeated.length) parts.push(`on this return ${repParts.join(', ')}${repeated.length > 4 ? ` and ${repeated.length - 4} more` : ''} (chance for amounts this common: ${formatP(pWithin)})`);
+  if (shared.length) {
+    const expected = sharedExpected;
+    parts.push(
+      `${shared.length} amount${shared.length === 1 ? '' : 's'} also on other clients' returns of the same preparer (${shared.slice(0, 3).map(money).join(', ')}${shared.length > 3 ? ' …' : ''}); a firm of this size would share about ${expected.toFixed(1)} by chance (${formatP(pShared ?? 1)})`,
+    );
+  }
+  if (!parts.length) return { ...none('No amount of note repeats.'), p: pValue, pWithin: repeated.length ? pWithin : null, pShared };
+  const strength = strengthFromP(pValue, p.patternPStart, p.patternPFull);
+  return { strength, evidence: `Repeated amounts: ${parts.join('; ')}.`, stakeIncomeCents: 0, stakeTaxCents: 0, p: pValue, pWithin: repeated.length ? pWithin : null, pShared };
 }
 
 export { computeTotals };

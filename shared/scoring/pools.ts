@@ -1,12 +1,25 @@
 /**
- * Pooled digit figures: many amounts from one preparer's clients, one taxpayer's years, or
- * one line code across a batch. Only here, with N large, do the fixed published MAD
- * thresholds apply (Nigrini 2012; METHODS.md "Small samples"); below
- * `pooledFixedThresholdMinN` amounts the size-aware figure decides instead, because the
- * fixed lines fail most honest samples of a few hundred (P(MAD > 0.015) = 0.33 at N = 300).
+ * Pooled digit figures: many amounts from one preparer's clients or one taxpayer's years
+ * (docs/methods.md, "Scoring"). Three rules keep the pooled test fair:
+ *
+ * - the return being scored is left out of its own pools (its figures would count twice);
+ * - the pool is compared with the batch's own first-digit profile of the same line codes,
+ *   weighted by the pool's mix of codes, not with Benford's law alone (a firm of landlords
+ *   has other digits than a firm of shopkeepers, and that is ordinary);
+ * - pools differ by more than multinomial chance (clients are people with habits), so the
+ *   Pearson statistic is calibrated by a Dirichlet-multinomial model whose concentration is
+ *   estimated from all pools of the batch (empirical Bayes): under it E[X^2] is
+ *   df (n + alpha) / (1 + alpha), so X^2 (1 + alpha) / (n + alpha) is referred to
+ *   chi-square(df) (Mosimann 1962, Biometrika 49; the moment estimate after Brier 1980,
+ *   Biometrika 67). Small pools are thereby shrunk toward the batch; large ones speak for
+ *   themselves.
+ *
+ * The fixed published MAD thresholds (Nigrini 2012) are still shown for pools of at least
+ * `pooledFixedThresholdMinN` amounts, but the strength follows the calibrated p-value.
  */
-import { DigitCounter, evaluateDigitTest, sizeAwareFigure, type Conformity, type SizeAwareVerdict } from '../digits';
-import { clamp01 } from './format';
+import { EXPECTED, evaluateDigitTest, sizeAwareFigure, type Conformity, type SizeAwareVerdict } from '../digits';
+import { chiSquareSurvival } from '../digits/stats';
+import { strengthFromP } from './calibration';
 
 /** What a pool's digits say, and how strongly that points at its returns. */
 export interface PooledDigits {
@@ -14,44 +27,120 @@ export interface PooledDigits {
   mad: number | null;
   /** Fixed-threshold conformity of the first digit; 'too_few' below the pooled minimum. */
   conformity: Conformity;
-  /** Size-aware verdict of the first digit. */
+  /** Size-aware verdict of the first digit (against Benford's law). */
   verdict: SizeAwareVerdict;
   zScore: number | null;
-  /** 0–1: 1 for nonconformity (or a high size-aware z), 0.5 for marginal (or elevated). */
+  /** 0–1 from the calibrated p-value. */
   strength: number;
-  /** Which rule decided: the fixed thresholds (large N) or the size-aware figure. */
+  /** Which rule is shown: the fixed thresholds (large N) or the size-aware figure. */
   judgedBy: 'fixed' | 'size-aware' | 'none';
+  /** Calibrated p-value against the batch's profile of the same line codes (null: too few). */
+  p?: number | null;
+}
+
+/** First-digit counts (digits 1..9) per line code. */
+export type CodeDigitCounts = Record<string, number[]>;
+
+/** Fewest amounts in a pool before it is tested (about 5 expected in the rarest digit, 9: 0.046 × 110). */
+export const POOL_MIN_N = 110;
+
+/** Adds or subtracts per-code counts (for leaving a return out of its pool). */
+export function combineCodeCounts(a: CodeDigitCounts, b: CodeDigitCounts, sign: 1 | -1): CodeDigitCounts {
+  const out: CodeDigitCounts = {};
+  for (const [code, c] of Object.entries(a)) out[code] = [...c];
+  for (const [code, c] of Object.entries(b)) {
+    const t = out[code] ?? new Array(9).fill(0);
+    out[code] = t.map((x, i) => Math.max(0, x + sign * c[i]));
+  }
+  return out;
+}
+
+/** Totals over codes. */
+export function totalCounts(byCode: CodeDigitCounts): number[] {
+  const t = new Array(9).fill(0);
+  for (const c of Object.values(byCode)) for (let i = 0; i < 9; i++) t[i] += c[i];
+  return t;
 }
 
 /**
- * Digit-pattern strength from a size-aware z: 0 below z = 2 (about 3 % of honest samples
- * reach it, shared/digits/size-aware.ts), rising to 1 at z = 4.5.
+ * Expected first-digit proportions of a pool: the batch's profile of each line code (with
+ * one Benford-shaped pseudo-amount per digit so an empty code is defined), weighted by how
+ * many of the pool's amounts are on that code.
  */
-export function strengthFromZ(z: number | null): number {
-  return z === null ? 0 : clamp01((z - 2) / 2.5);
+export function expectedForPool(pool: CodeDigitCounts, batch: CodeDigitCounts): number[] {
+  const e = new Array(9).fill(0);
+  let n = 0;
+  for (const [code, c] of Object.entries(pool)) {
+    const k = c.reduce((s, x) => s + x, 0);
+    if (!k) continue;
+    const b = batch[code] ?? new Array(9).fill(0);
+    const bn = b.reduce((s, x) => s + x, 0);
+    for (let i = 0; i < 9; i++) e[i] += (k * (b[i] + 9 * EXPECTED.firstDigit[i])) / (bn + 9);
+    n += k;
+  }
+  return n ? e.map((x) => x / n) : [...EXPECTED.firstDigit];
+}
+
+/** Pearson chi-square of counts against proportions. */
+export function pearson(counts: readonly number[], expected: readonly number[]): number {
+  const n = counts.reduce((s, x) => s + x, 0);
+  let x2 = 0;
+  for (let i = 0; i < counts.length; i++) {
+    const ec = n * expected[i];
+    if (ec > 0) x2 += ((counts[i] - ec) * (counts[i] - ec)) / ec;
+  }
+  return x2;
 }
 
 /**
- * Judges a pool from its first-digit counts (digits 1..9), so large pools can be counted in
- * SQL without bringing every amount into memory.
+ * Dirichlet-multinomial concentration alpha from many pools' Pearson statistics: each pool
+ * gives phi_i = X_i^2 / df and, where phi_i > 1, alpha_i = (n_i − phi_i) / (phi_i − 1)
+ * (from E[X^2] = df (n + alpha)/(1 + alpha)); the median over pools is taken (robust to the
+ * few pools that really differ). Infinity (plain multinomial) when most pools show no extra
+ * spread.
+ *
+ * @param pools each pool's size and Pearson statistic (pools below {@link POOL_MIN_N} are ignored)
+ * @param df degrees of freedom (8 for first digits)
  */
-export function judgeFirstDigitCounts(counts: ArrayLike<number>, fixedMinN: number): PooledDigits {
+export function estimateConcentration(pools: readonly { n: number; x2: number }[], df = 8): number {
+  const alphas = pools
+    .filter((p) => p.n >= POOL_MIN_N)
+    .map((p) => {
+      const phi = p.x2 / df;
+      return phi <= 1 ? Infinity : Math.max(0, (p.n - phi) / (phi - 1));
+    })
+    .sort((a, b) => a - b);
+  if (!alphas.length) return Infinity;
+  return alphas[Math.floor(alphas.length / 2)];
+}
+
+/** The calibrated p-value of a pool against its expected profile under the concentration alpha. */
+export function poolPValue(counts: readonly number[], expected: readonly number[], alpha: number): number {
+  const n = counts.reduce((s, x) => s + x, 0);
+  const x2 = pearson(counts, expected);
+  const inflate = Number.isFinite(alpha) ? (n + alpha) / (1 + alpha) : 1;
+  return chiSquareSurvival(x2 / Math.max(1, inflate), 8);
+}
+
+/**
+ * Judges a pool from its per-code first-digit counts.
+ *
+ * @param byCode the pool's counts per line code (the return already left out)
+ * @param batch the batch's counts per line code
+ * @param alpha the Dirichlet-multinomial concentration estimated for this kind of pool
+ * @param fixedMinN pools this large also show the fixed thresholds
+ * @param pStart, pFull the profile's p-value scale for strength
+ */
+export function judgePool(byCode: CodeDigitCounts, batch: CodeDigitCounts, alpha: number, fixedMinN: number, pStart: number, pFull: number): PooledDigits & { firstDigitCounts: number[] } {
+  const counts = totalCounts(byCode);
   const fd = evaluateDigitTest('firstDigit', counts);
   const sa = sizeAwareFigure('firstDigit', fd.n, fd.mad);
-  if (fd.n >= fixedMinN) {
-    const c = fd.conformity;
-    const strength = c === 'nonconformity' ? 1 : c === 'marginal' ? 0.5 : 0;
-    return { n: fd.n, mad: fd.mad, conformity: c, verdict: sa.verdict, zScore: sa.zScore, strength, judgedBy: 'fixed' };
+  const firstDigitCounts = counts;
+  if (fd.n < POOL_MIN_N) {
+    return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: sa.verdict, zScore: sa.zScore, strength: 0, judgedBy: 'none', p: null, firstDigitCounts };
   }
-  if (sa.verdict === 'too_few') {
-    return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: 'too_few', zScore: null, strength: 0, judgedBy: 'none' };
-  }
-  return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: sa.verdict, zScore: sa.zScore, strength: strengthFromZ(sa.zScore), judgedBy: 'size-aware' };
-}
-
-/** Judges one pool of amounts (signed integer cents; zeros are left out). */
-export function judgePool(cents: ArrayLike<number>, fixedMinN: number): PooledDigits {
-  const counter = new DigitCounter();
-  counter.addAll(cents);
-  return judgeFirstDigitCounts(counter.counts('firstDigit'), fixedMinN);
+  const p = poolPValue(counts, expectedForPool(byCode, batch), alpha);
+  const strength = strengthFromP(p, pStart, pFull);
+  if (fd.n >= fixedMinN) return { n: fd.n, mad: fd.mad, conformity: fd.conformity, verdict: sa.verdict, zScore: sa.zScore, strength, judgedBy: 'fixed', p, firstDigitCounts };
+  return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: sa.verdict, zScore: sa.zScore, strength, judgedBy: 'size-aware', p, firstDigitCounts };
 }

@@ -8,6 +8,8 @@
  * findings.
  */
 import { z } from 'zod';
+import { MIN_N_FOR_CONFORMITY } from '../digits/tests';
+import { FACTORS } from './registry';
 import { ACTIVITY_CODES, ALDERMERE_THRESHOLDS, DEFAULT_CASH_HEAVY_ACTIVITIES } from '../returns/line-codes';
 
 /** Every scored component, in the order screens list them. */
@@ -29,23 +31,8 @@ export const COMPONENTS = [
 ] as const;
 export type ComponentKey = (typeof COMPONENTS)[number];
 
-/** Words for each component on screen and in memos. */
-export const COMPONENT_LABELS: Record<ComponentKey, string> = {
-  digits: 'Digit pattern of this return',
-  historyDigits: 'Digit pattern of the taxpayer\'s years on file',
-  preparerDigits: 'Digit pattern of the preparer\'s returns',
-  totalsMismatch: 'Totals do not add up',
-  incomeBelowStatements: 'Income below third-party statements',
-  deductionsLarge: 'Deductions large against income',
-  expensesNearReceipts: 'Business expenses near receipts',
-  repeatedLosses: 'Business losses in most recent years',
-  cashHeavy: 'Cash-heavy activity',
-  roundAmounts: 'Excess round amounts',
-  thresholdBunching: 'Amounts bunched under a threshold',
-  incomeDrop: 'Sharp income drop',
-  refundLarge: 'Refund large against tax withheld',
-  repeatedAmounts: 'Same amount repeated',
-};
+/** Words for each component on screen and in memos (from the factor records, shared/scoring/registry.ts). */
+export const COMPONENT_LABELS: Record<ComponentKey, string> = Object.fromEntries(COMPONENTS.map((c) => [c, FACTORS[c].label])) as Record<ComponentKey, string>;
 
 const points = z.number().min(0).max(100);
 const share = z.number().min(0).max(1);
@@ -89,32 +76,41 @@ export const ScoringSettingsSchema = z.object({
     repeatMinCents: cents,
     /** The same amount on at least this many lines of one return. */
     repeatMinCount: z.number().int().min(2),
-    /** Pooled digit tests use the fixed published MAD thresholds only from this many amounts on. */
-    pooledFixedThresholdMinN: z.number().int().min(100),
+    /**
+     * Pooled digit tests show the fixed published MAD thresholds only from this many amounts on;
+     * never below what those thresholds accept (shared/digits/tests.ts MIN_N_FOR_CONFORMITY),
+     * where they would answer "too few" and switch the test off.
+     */
+    pooledFixedThresholdMinN: z
+      .number()
+      .int()
+      .refine((n) => n >= MIN_N_FOR_CONFORMITY.firstDigit, {
+        message: `must be at least ${MIN_N_FOR_CONFORMITY.firstDigit}: below that the fixed first-digit thresholds answer "too few amounts" and the pooled test would count nothing`,
+      }),
     /** Share of itemised expenses and deductions taken as at stake when only patterns point at them. */
     patternStakeShare: share,
+    // Version 2 on (docs/methods.md "Scoring"); the defaults let version-1 settings parse.
+    /** A pattern component's p-value starts to count below this… */
+    patternPStart: z.number().positive().max(0.2).default(0.01),
+    /** …and counts fully at or below this. */
+    patternPFull: z.number().positive().max(0.01).default(1e-6),
+    /** Share of a code's returns with a recurring group from which the code counts as periodic in a batch. */
+    recurrenceMinRate: share.default(0.01),
+    /** Strength (in amounts) of the batch prior that a line code's round-amount rate is shrunk toward. */
+    roundPriorStrength: z.number().min(0).default(200),
+    /** Strength (in amounts) of the batch prior that a small pool's digit profile is shrunk toward. */
+    poolPriorStrength: z.number().min(0).default(300),
   }),
 });
 export type ScoringSettings = z.infer<typeof ScoringSettingsSchema>;
 
-/** The first profile version, written by the migration that creates profiles. */
+/**
+ * The default profile: version 2 (server/db/migrations/1764950000000-scoring-v2.ts writes it,
+ * frozen there). Weights come from the factor records; version 1 stays frozen in its own
+ * migration.
+ */
 export const DEFAULT_SCORING_SETTINGS: ScoringSettings = {
-  weights: {
-    digits: 25,
-    historyDigits: 5,
-    preparerDigits: 20,
-    totalsMismatch: 35,
-    incomeBelowStatements: 40,
-    deductionsLarge: 25,
-    expensesNearReceipts: 25,
-    repeatedLosses: 15,
-    cashHeavy: 5,
-    roundAmounts: 25,
-    thresholdBunching: 25,
-    incomeDrop: 15,
-    refundLarge: 12,
-    repeatedAmounts: 25,
-  },
+  weights: Object.fromEntries(COMPONENTS.map((c) => [c, FACTORS[c].defaultWeight])) as Record<ComponentKey, number>,
   selectionCut: 30,
   params: {
     totalsToleranceCents: 100,
@@ -138,5 +134,10 @@ export const DEFAULT_SCORING_SETTINGS: ScoringSettings = {
     repeatMinCount: 2,
     pooledFixedThresholdMinN: 1000,
     patternStakeShare: 0.25,
+    patternPStart: 0.01,
+    patternPFull: 1e-6,
+    recurrenceMinRate: 0.01,
+    roundPriorStrength: 200,
+    poolPriorStrength: 300,
   },
 };

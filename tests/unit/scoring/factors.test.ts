@@ -17,9 +17,11 @@ import {
   roundAmounts,
   thresholdBunching,
   totalsMismatch,
+  type AmountPopularity,
   type ReturnFacts,
 } from '../../../shared/scoring/factors';
-import { judgePool } from '../../../shared/scoring/pools';
+import { combineCodeCounts, estimateConcentration, judgePool, pearson, poolPValue } from '../../../shared/scoring/pools';
+import { chiSquareSurvival } from '../../../shared/digits/stats';
 import { scoreReturn, type ScoreContext } from '../../../shared/scoring/score-return';
 import { COMPONENTS, DEFAULT_SCORING_SETTINGS, ScoringSettingsSchema } from '../../../shared/scoring/settings';
 import { ScoreBreakdownSchema } from '../../../shared/scoring/breakdown';
@@ -72,11 +74,32 @@ describe('deductions against peers', () => {
     const r = deductionsLarge(t, bands, P);
     expect(r.strength).toBeGreaterThan(0.4);
     expect(r.evidence).toMatch(/charitable gifts are 15\.0 % of income; the 95th percentile of 200 peers with income 50,000–100,000/);
+    // strength = ln(share / limit) / ln 8 (full at 8 × the percentile)
+    const limit = bands.limits['50,000–100,000'].charity!;
+    expect(r.strength).toBeCloseTo(Math.log(0.15 / limit) / Math.log(8), 6);
     const ordinary = deductionsLarge(computeTotals([L('inc.wages', 60_000), L('ded.charity', 600)]), bands, P);
     expect(ordinary.strength).toBe(0);
   });
-  it('says so when a band has too few peers', () => {
-    expect(deductionsLarge(computeTotals([L('inc.wages', 60_000), L('ded.charity', 9_000)]), noPeers, P).evidence).toMatch(/Too few peers/);
+  it('judges low incomes on max(income, 20,000): 900 of medical bills on 300 of interest is 4.5 %, not 300 %', () => {
+    const rng = mulberry32(8);
+    const peers = Array.from({ length: 200 }, () => computeTotals([L('inc.interest', 300 + rng() * 5000), L('ded.medical', 200 + rng() * 1200)]));
+    const bands = buildPeerBands(peers, P);
+    expect(deductionsLarge(computeTotals([L('inc.interest', 300), L('ded.medical', 900)]), bands, P).strength).toBe(0);
+  });
+  it('compares each business cost line with its peers as a share of receipts (an invented monthly rent)', () => {
+    const rng = mulberry32(9);
+    const peers = Array.from({ length: 300 }, () => {
+      const receipts = 100_000 + rng() * 50_000;
+      const other = receipts * (0.05 + 0.1 * rng());
+      return { income: 50_000_00, charity: 0, medical: 0, receipts: Math.round(receipts * 100), costs: { 'exp.business.other': Math.round(other * 100) } };
+    });
+    const bands = buildPeerBands(peers, P);
+    const lines = [L('inc.business.receipts', 120_000), ...Array.from({ length: 12 }, () => L('exp.business.other', 3_000))];
+    const t = computeTotals(lines);
+    const r = deductionsLarge(t, bands, P, { 'exp.business.other': 3_600_000 });
+    expect(r.evidence).toMatch(/other business costs are 30\.0 % of receipts; the 95th percentile of 300 returns with receipts/);
+    expect(r.strength).toBeGreaterThan(0.25);
+    expect(deductionsLarge(t, noPeers, P, { 'exp.business.other': 3_600_000 }).strength).toBe(0);
   });
 });
 
@@ -112,28 +135,47 @@ describe('cash-heavy, round amounts, bunching, income drop, refund, repeats', ()
     expect(cashHeavy(facts([], { activityCode: 'food-service' }), P).strength).toBe(1);
     expect(cashHeavy(facts([], { activityCode: 'consulting' }), P).strength).toBe(0);
   });
-  it('round amounts: 6 of 20 ending in 00 is far beyond Binomial(20, 0.01)', () => {
+  it('round amounts: 6 of 20 ending in 00 against a line rate of 0.01 (Poisson-binomial = Binomial(20, 0.01) here)', () => {
     const amounts = [...Array(6).fill(0).map((_, i) => (i + 2) * 100_000), ...Array.from({ length: 14 }, (_, i) => 12_345 + i * 1_017)];
-    const r = roundAmounts(amounts, P);
+    const lines = amounts.map((cents) => ({ code: 'exp.business.other' as const, cents }));
+    const r = roundAmounts(lines, () => 0.01, P);
+    // P(X >= 6), X ~ Binomial(20, 0.01): C(20,6)·0.01^6·0.99^14 + … ≈ 3.4e-8 (jstat binomial: 1 − cdf(5, 20, 0.01))
+    expect(r.p).toBeCloseTo(3.4e-8, 9);
     expect(r.strength).toBeGreaterThan(0.4);
-    expect(r.evidence).toMatch(/^6 of 20 amounts of 100 or more end in 00 \(30 %/);
-    expect(roundAmounts([12_345, 67_891, 23_456], P).strength).toBe(0);
+    expect(r.evidence).toMatch(/^6 of 20 amounts of 100 or more end in 00; ordinary filers of these lines would show about 0\.2/);
+    expect(roundAmounts(lines.slice(0, 3), () => 0.01, P).p).toBeCloseTo(1e-6, 8);
+    // The same six round amounts on a line where half of all amounts are round (rent in whole hundreds) say little.
+    expect(roundAmounts(lines, () => 0.5, P).strength).toBe(0);
+    expect(roundAmounts([12_345, 67_891, 23_456].map((cents) => ({ code: 'ded.medical' as const, cents })), () => 0.01, P).strength).toBe(0);
   });
-  it('bunching: several amounts just under 2,500', () => {
+  it('bunching: several amounts just under 2,500, against the return\'s own amounts near it', () => {
     const amounts = [249_000, 248_000, 246_500, 249_900, 12_000, 55_000, 130_000, 7_700, 980_000, 31_000];
     const r = thresholdBunching(amounts, P);
     expect(r.strength).toBeGreaterThan(0.4);
     expect(r.evidence).toContain('just under 2,500.00');
+    // Bills spread evenly (on a log scale) over 1,300–4,800: a few fall under 2,500 by chance.
+    const spread = Array.from({ length: 40 }, (_, i) => Math.round(130_000 * Math.pow(480_000 / 130_000, i / 39)));
+    expect(thresholdBunching(spread, P).strength).toBe(0);
   });
-  it('income drop: receipts halved and more', () => {
-    const prev = { taxYear: 2023, totals: computeTotals([L('inc.business.receipts', 80_000)]) };
-    const f = facts([L('inc.business.receipts', 30_000)], { history: [prev] });
+  it('income drop: receipts cut while costs stay', () => {
+    const prev = { taxYear: 2023, totals: computeTotals([L('inc.business.receipts', 80_000), L('exp.business.other', 30_000)]) };
+    const f = facts([L('inc.business.receipts', 30_000), L('exp.business.other', 30_000)], { history: [prev] });
     const r = incomeDrop(f, computeTotals(f.lines), P);
     expect(r.evidence).toContain('business receipts fell from 80,000.00 in 2023 to 30,000.00 (63 % lower)');
-    const mild = facts([L('inc.business.receipts', 50_000)], { history: [prev] });
+    const mild = facts([L('inc.business.receipts', 50_000), L('exp.business.other', 30_000)], { history: [prev] });
     expect(incomeDrop(mild, computeTotals(mild.lines), P).strength).toBe(0);
   });
-  it('refund of 95 % of withholding: strong when the lines do not give it, a quarter when they do', () => {
+  it('income drop at retirement is ordinary: wages confirmed by the statements, a business shrinking with its costs', () => {
+    const prev = { taxYear: 2023, totals: computeTotals([L('inc.wages', 60_000), L('inc.business.receipts', 80_000), L('exp.business.other', 40_000)]) };
+    const f = facts([L('inc.wages', 15_000), L('inc.business.receipts', 20_000), L('exp.business.other', 10_000)], { history: [prev], statements: [{ kind: 'wages', cents: 1_500_000 }] });
+    const r = incomeDrop(f, computeTotals(f.lines), P);
+    expect(r.strength).toBe(0);
+    expect(r.evidence).toContain('as this year\'s third-party statements confirm');
+    // When the employer's statement says more than the return, the drop is not confirmed.
+    const unconfirmed = facts([...f.lines], { history: [prev], statements: [{ kind: 'wages', cents: 6_000_000 }] });
+    expect(incomeDrop(unconfirmed, computeTotals(unconfirmed.lines), P).strength).toBeGreaterThan(0);
+  });
+  it('refund of 95 % of withholding: strong when the lines do not give it, nothing when they do', () => {
     // wages 30,000 → taxable 18,000 → tax 1,800; withheld 2,000 → the rules give 200, 1,900 is claimed
     const claimed = refundLarge(computeTotals([L('inc.wages', 30_000), L('tax.withheld', 2_000), L('tax.refund', 1_900), L('tot.income', 30_000)]), P);
     expect(claimed.strength).toBeGreaterThan(0.5);
@@ -141,47 +183,81 @@ describe('cash-heavy, round amounts, bunching, income drop, refund, repeats', ()
     expect(claimed.evidence).toContain('the lines give 200.00');
     // wages 13,000 → taxable 1,000 → tax 100; withheld 2,000 → the rules give 1,900 themselves
     const supported = refundLarge(computeTotals([L('inc.wages', 13_000), L('tax.withheld', 2_000), L('tax.refund', 1_900), L('tot.income', 13_000)]), P);
-    expect(supported.strength).toBeCloseTo(claimed.strength / 4, 5);
+    expect(supported.strength).toBe(0);
     expect(supported.evidence).toContain("the return's lines give this refund");
   });
-  it('repeats: same amount on three lines and one shared with another client', () => {
-    const r = repeatedAmounts([123_400, 123_400, 123_400, 55_500, 999], new Set([55_500]), P);
+  const pop = (share: number, others: number): AmountPopularity => ({ share: () => share, otherTaxpayers: () => others });
+  const lines = (xs: number[]) => xs.map((cents) => ({ code: 'exp.business.supplies' as const, cents }));
+  it('repeats: the birthday model with the batch\'s frequency of the amount (worked example)', () => {
+    // 10 amounts >= 100, one of them 3 times; pi = 0.01: p_v = P(Bin(9, 0.01) >= 2) = 0.003436 (by hand),
+    // Bonferroni over the 8 distinct amounts: 0.02749.
+    const amounts = [123_400, 123_400, 123_400, 55_500, 61_234, 71_111, 81_234, 91_234, 101_234, 111_234];
+    const r = repeatedAmounts(lines(amounts), false, pop(0.01, 0), null, P);
+    expect(r.pWithin).toBeCloseTo(8 * (1 - 0.99 ** 9 - 9 * 0.01 * 0.99 ** 8), 6);
     expect(r.evidence).toContain('1,234.00 × 3');
-    expect(r.evidence).toContain("other clients' returns of the same preparer: 555.00");
-    expect(repeatedAmounts([123_400, 55_500], new Set(), P).strength).toBe(0);
+    // The same repeat of a rare amount (1 in 100,000) is far beyond chance.
+    expect(repeatedAmounts(lines(amounts), false, pop(1e-5, 0), null, P).strength).toBeGreaterThan(0.4);
+    expect(repeatedAmounts(lines([123_400, 55_500]), false, pop(1e-5, 0), null, P).strength).toBe(0);
+  });
+  it('shared with other clients: against what a firm of this size shares by chance', () => {
+    // s = 0.1 of the batch's other taxpayers are the firm's; an amount 5 others carry turns up
+    // at the firm with probability 1 − 0.9^5 = 0.40951 (by hand); two such amounts both shared:
+    // P(X >= 2) = 0.40951^2 = 0.16770.
+    const r = repeatedAmounts(lines([55_500, 66_600]), false, pop(1e-4, 5), { shared: new Set([55_500, 66_600]), poolShare: 0.1 }, P);
+    expect(r.pShared).toBeCloseTo(0.40951 ** 2, 5);
+    expect(r.strength).toBe(0);
+    expect(r.evidence).toContain("a firm of this size would share about 0.8 by chance");
+    // Amounts nobody else in the batch carries cannot be shared by chance: two shared ones are telling.
+    const odd = repeatedAmounts(lines([55_512, 66_634]), false, pop(1e-4, 1), { shared: new Set([55_512, 66_634]), poolShare: 0.001 }, P);
+    expect(odd.pShared).toBeCloseTo(1e-6, 9);
   });
 });
 
 describe('pooled digits', () => {
-  it('judges a large Benford pool by the fixed thresholds and finds it conforming', () => {
-    // 2^k for k = 0..1999 conform to Benford (math fact); as cents of whole amounts
-    const pool: number[] = [];
-    let x = 1;
-    for (let k = 0; k < 50; k++, x *= 2) pool.push(x * 100); // small exact powers
-    const rng = mulberry32(3);
-    for (let i = 0; i < 3000; i++) pool.push(Math.round(10 ** (2 + rng() * 5)));
-    const j = judgePool(pool, 1000);
+  const benford = (n: number, seed: number) => {
+    const rng = mulberry32(seed);
+    const c = new Array(9).fill(0);
+    for (let i = 0; i < n; i++) c[Math.floor(10 ** rng()) - 1]++;
+    return c;
+  };
+  it('a large pool drawn from the batch\'s own profile passes; the fixed thresholds are shown from the pooled minimum on', () => {
+    const batch = { 'exp.business.other': benford(20_000, 1) };
+    const j = judgePool({ 'exp.business.other': benford(3000, 2) }, batch, Infinity, 1000, P.patternPStart, P.patternPFull);
     expect(j.judgedBy).toBe('fixed');
-    expect(['close', 'acceptable']).toContain(j.conformity);
+    expect(j.p!).toBeGreaterThan(0.01);
     expect(j.strength).toBe(0);
   });
-  it('flags a pool of invented uniform amounts', () => {
-    const rng = mulberry32(4);
-    const pool = Array.from({ length: 2000 }, () => Math.round((100 + rng() * 900) * 100));
-    const j = judgePool(pool, 1000);
-    expect(j.conformity).toBe('nonconformity');
+  it('flags a pool of invented uniform first digits', () => {
+    const batch = { 'exp.business.other': benford(20_000, 3) };
+    const j = judgePool({ 'exp.business.other': new Array(9).fill(120) }, batch, Infinity, 1000, P.patternPStart, P.patternPFull);
+    expect(j.p!).toBeLessThan(1e-10);
     expect(j.strength).toBe(1);
   });
-  it('uses the size-aware figure below the pooled minimum', () => {
-    const rng = mulberry32(5);
-    const j = judgePool(Array.from({ length: 200 }, () => Math.round(10 ** (2 + rng() * 4))), 1000);
-    expect(j.judgedBy).toBe('size-aware');
-    expect(j.conformity).toBe('too_few');
+  it('Dirichlet-multinomial calibration: X² is divided by (n + α)/(1 + α) (by hand: n = 1000, α = 99 → 10.99)', () => {
+    const counts = [361, 176, 125, 97, 79, 67, 58, 31, 6]; // n = 1000
+    const e = [...Array(9)].map((_, i) => Math.log10(1 + 1 / (i + 1)));
+    expect(poolPValue(counts, e, 99)).toBeCloseTo(chiSquareSurvival(pearson(counts, e) / 10.99, 8), 12);
+    expect(poolPValue(counts, e, Infinity)).toBeCloseTo(chiSquareSurvival(pearson(counts, e), 8), 12);
+    // α estimated from pools whose X²/df is 3 at n = 201: (201 − 3)/(3 − 1) = 99 (by hand)
+    expect(estimateConcentration([{ n: 201, x2: 24 }, { n: 201, x2: 24 }, { n: 201, x2: 24 }])).toBeCloseTo(99, 10);
+    expect(estimateConcentration([{ n: 500, x2: 6 }])).toBe(Infinity);
+  });
+  it('says "too few" below the pool minimum; leaving a return out subtracts its counts', () => {
+    const j = judgePool({ 'ded.charity': [20, 10, 8, 6, 5, 4, 3, 3, 2] }, {}, Infinity, 1000, P.patternPStart, P.patternPFull);
+    expect(j.judgedBy).toBe('none');
+    expect(combineCodeCounts({ a: [5, 5, 5, 5, 5, 5, 5, 5, 5] }, { a: [1, 0, 0, 0, 0, 0, 0, 0, 9] }, -1).a).toEqual([4, 5, 5, 5, 5, 5, 5, 5, 0]);
+  });
+  it('the pooled-minimum setting cannot go below what the fixed thresholds accept', () => {
+    const bad = { ...DEFAULT_SCORING_SETTINGS, params: { ...DEFAULT_SCORING_SETTINGS.params, pooledFixedThresholdMinN: 100 } };
+    const r = ScoringSettingsSchema.safeParse(bad);
+    expect(r.success).toBe(false);
+    expect(JSON.stringify(r.error?.issues)).toContain('pooledFixedThresholdMinN');
+    expect(ScoringSettingsSchema.safeParse({ ...bad, params: { ...bad.params, pooledFixedThresholdMinN: 800 } }).success).toBe(true);
   });
 });
 
 describe('blend', () => {
-  const ctx = (over: Partial<ScoreContext> = {}): ScoreContext => ({ settings: DEFAULT_SCORING_SETTINGS, peers: noPeers, preparer: null, history: null, sharedWithClients: new Set(), ...over });
+  const ctx = (over: Partial<ScoreContext> = {}): ScoreContext => ({ settings: DEFAULT_SCORING_SETTINGS, peers: noPeers, preparer: null, history: null, ...over });
   const honestLines = (seed: number) => {
     const rng = mulberry32(seed);
     const lines: CentsLine[] = [L('inc.wages', 30_000 + rng() * 40_000)];
@@ -197,7 +273,8 @@ describe('blend', () => {
     expect(b.components.map((c) => c.key)).toEqual([...COMPONENTS]);
     const sum = b.components.reduce((a, c) => a + c.points, 0);
     expect(s.riskScore).toBeCloseTo(Math.min(100, sum), 0);
-    for (const c of b.components) expect(c.points).toBeCloseTo(c.weight * c.strength, 0);
+    // Every component adds weight × strength, except group members below their group's strongest (shown, not added).
+    for (const c of b.components) expect(c.points === 0 || Math.abs(c.points - c.weight * c.strength) < 0.2).toBe(true);
     expect(b.components.find((c) => c.key === 'cashHeavy')!.points).toBe(DEFAULT_SCORING_SETTINGS.weights.cashHeavy);
     expect(b.selected).toBe(s.riskScore >= DEFAULT_SCORING_SETTINGS.selectionCut);
   });
@@ -227,6 +304,45 @@ describe('blend', () => {
         return a.riskScore >= 0 && a.riskScore <= 100 && b.riskScore >= a.riskScore - 1e-9;
       }),
       { numRuns: 150 },
+    );
+  });
+
+  it('counts a recurring bill once, in plain words (12 × 850.00 rent)', () => {
+    const lines = [...honestLines(5), ...Array.from({ length: 12 }, () => L('exp.business.other', 850))];
+    const b = scoreReturn(facts(lines), ctx()).breakdown;
+    const digits = b.components.find((c) => c.key === 'digits')!;
+    expect(digits.evidence).toContain('12 equal payments of 850.00 on other business costs: counted once, as a recurring bill');
+    expect(b.components.find((c) => c.key === 'repeatedAmounts')!.strength).toBe(0);
+    expect(b.pattern!.p).toBeGreaterThan(0.01);
+  });
+
+  it('a group adds only its strongest member (12 × 4,500.00: the issue\'s 69.3 points were digits + round + repeats added up)', () => {
+    const lines = [L('inc.business.receipts', 200_000), ...Array.from({ length: 12 }, () => L('exp.business.supplies', 4_500))];
+    const b = scoreReturn(facts(lines), ctx()).breakdown;
+    const made = b.components.filter((c) => ['digits', 'roundAmounts', 'repeatedAmounts'].includes(c.key));
+    expect(made.filter((c) => c.points > 0).length).toBeLessThanOrEqual(1);
+    expect(made.reduce((a, c) => a + c.points, 0)).toBeLessThanOrEqual(Math.max(...made.map((c) => c.weight)));
+  });
+
+  it('property: adding a recurring bill to a typical return never raises its pattern evidence by more than one group\'s worth', () => {
+    const groupPoints = (b: ReturnType<typeof scoreReturn>['breakdown']) => b.components.filter((c) => ['digits', 'roundAmounts', 'repeatedAmounts'].includes(c.key)).reduce((a, c) => a + c.points, 0);
+    const groupWeight = Math.max(...(['digits', 'roundAmounts', 'repeatedAmounts'] as const).map((k) => DEFAULT_SCORING_SETTINGS.weights[k]));
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 10_000 }),
+        fc.integer({ min: 2_000, max: 900_000 }),
+        fc.boolean(),
+        fc.constantFrom('exp.business.other' as const, 'exp.business.vehicle' as const, 'ded.charity' as const, 'ded.medical' as const),
+        fc.constantFrom(4, 6, 12, 13),
+        (seed, cents, round, code, n) => {
+          const amount = round ? Math.max(100, Math.round(cents / 10_000) * 10_000) : cents;
+          const base = honestLines(seed);
+          const before = scoreReturn(facts(base), ctx()).breakdown;
+          const after = scoreReturn(facts([...base, ...Array.from({ length: n }, () => ({ code, cents: amount }))]), ctx()).breakdown;
+          return groupPoints(after) - groupPoints(before) <= groupWeight + 1e-9 && after.pattern!.p >= 0;
+        },
+      ),
+      { numRuns: 120 },
     );
   });
 

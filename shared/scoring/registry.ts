@@ -1,0 +1,163 @@
+/**
+ * Every risk factor as one record: its key, its words, its default weight, the group it
+ * shares points with, the profile parameters it reads, and the function that judges a
+ * return. Adding a factor is one entry here (and its key in COMPONENTS, the stored order);
+ * scoring, screens and profiles read this list (docs/methods.md, "Scoring").
+ */
+import type { ComponentKey, ScoringSettings } from './settings';
+import {
+  cashHeavy,
+  deductionsLarge,
+  expensesNearReceipts,
+  incomeBelowStatements,
+  incomeDrop,
+  refundLarge,
+  repeatedLosses,
+  thresholdBunching,
+  totalsMismatch,
+  type FactorResult,
+} from './factors';
+import type { PrepareResult } from './score-return';
+
+type Params = ScoringSettings['params'];
+
+/**
+ * Groups of components that look at one concern from several sides; a group adds at most
+ * its strongest member's points, so one concern is not counted twice.
+ */
+export const GROUPS = {
+  madeUp: 'Figures look made up',
+  related: 'Figures of related returns',
+  totals: 'Totals and refund',
+  losses: 'Business losses',
+} as const;
+export type GroupKey = keyof typeof GROUPS;
+
+/** One risk factor. */
+export interface FactorRecord {
+  key: ComponentKey;
+  label: string;
+  /** Points at full strength in the default profile. */
+  defaultWeight: number;
+  group: GroupKey | null;
+  /** Profile parameters the factor reads (for the profile screen and docs). */
+  params: readonly (keyof Params)[];
+  /** Judges one prepared return. */
+  run(r: PrepareResult): FactorResult & { p?: number | null };
+}
+
+/** The factors, in COMPONENTS order. */
+export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
+  digits: {
+    key: 'digits',
+    label: 'Digit pattern of this return',
+    defaultWeight: 35,
+    group: 'madeUp',
+    params: ['patternPStart', 'patternPFull'],
+    run: (r) => r.digitResult,
+  },
+  historyDigits: {
+    key: 'historyDigits',
+    label: 'Digit pattern of the taxpayer\'s other years on file',
+    defaultWeight: 10,
+    group: 'related',
+    params: ['pooledFixedThresholdMinN', 'poolPriorStrength', 'patternPStart', 'patternPFull'],
+    run: (r) => r.poolResult('on the taxpayer\'s other returns on file', r.ctx.history),
+  },
+  preparerDigits: {
+    key: 'preparerDigits',
+    label: 'Digit pattern of the preparer\'s other returns',
+    defaultWeight: 30,
+    group: 'related',
+    params: ['pooledFixedThresholdMinN', 'poolPriorStrength', 'patternPStart', 'patternPFull'],
+    run: (r) => r.poolResult('on the preparer\'s other returns in the batch', r.ctx.preparer),
+  },
+  totalsMismatch: {
+    key: 'totalsMismatch',
+    label: 'Totals do not add up',
+    defaultWeight: 35,
+    group: 'totals',
+    params: ['totalsToleranceCents'],
+    run: (r) => totalsMismatch(r.totals, r.p),
+  },
+  incomeBelowStatements: {
+    key: 'incomeBelowStatements',
+    label: 'Income below third-party statements',
+    defaultWeight: 40,
+    group: null,
+    params: ['statementShortfallMinCents', 'statementShortfallShare'],
+    run: (r) => incomeBelowStatements(r.facts, r.p),
+  },
+  deductionsLarge: {
+    key: 'deductionsLarge',
+    label: 'Deductions or business costs large against peers',
+    defaultWeight: 25,
+    group: null,
+    params: ['deductionPercentile', 'deductionMinPeers'],
+    run: (r) => deductionsLarge(r.totals, r.ctx.peers, r.p, r.costs),
+  },
+  expensesNearReceipts: {
+    key: 'expensesNearReceipts',
+    label: 'Business expenses near receipts',
+    defaultWeight: 25,
+    group: 'losses',
+    params: ['expenseRatio', 'typicalExpenseRatio'],
+    run: (r) => expensesNearReceipts(r.totals, r.p),
+  },
+  repeatedLosses: {
+    key: 'repeatedLosses',
+    label: 'Business losses in most recent years',
+    defaultWeight: 15,
+    group: 'losses',
+    params: ['lossYears', 'lossWindowYears'],
+    run: (r) => repeatedLosses(r.facts, r.totals, r.p),
+  },
+  cashHeavy: {
+    key: 'cashHeavy',
+    label: 'Cash-heavy activity',
+    defaultWeight: 5,
+    group: null,
+    params: ['cashHeavyActivities'],
+    run: (r) => cashHeavy(r.facts, r.p),
+  },
+  roundAmounts: {
+    key: 'roundAmounts',
+    label: 'Excess round amounts',
+    defaultWeight: 30,
+    group: 'madeUp',
+    params: ['roundPriorStrength', 'patternPStart', 'patternPFull'],
+    run: (r) => r.roundResult,
+  },
+  thresholdBunching: {
+    key: 'thresholdBunching',
+    label: 'Amounts bunched under a threshold',
+    defaultWeight: 25,
+    group: null,
+    params: ['thresholdsCents', 'bunchingBand', 'bunchingTailP'],
+    run: (r) => thresholdBunching(r.collapsed.amounts, r.p),
+  },
+  incomeDrop: {
+    key: 'incomeDrop',
+    label: 'Sharp income drop',
+    defaultWeight: 15,
+    group: null,
+    params: ['incomeDropLogRatio', 'incomeDropMinCents'],
+    run: (r) => incomeDrop(r.facts, r.totals, r.p),
+  },
+  refundLarge: {
+    key: 'refundLarge',
+    label: 'Refund large against tax withheld',
+    defaultWeight: 12,
+    group: 'totals',
+    params: ['refundRatio', 'totalsToleranceCents'],
+    run: (r) => refundLarge(r.totals, r.p),
+  },
+  repeatedAmounts: {
+    key: 'repeatedAmounts',
+    label: 'Same amount repeated',
+    defaultWeight: 35,
+    group: 'madeUp',
+    params: ['repeatMinCents', 'repeatMinCount', 'patternPStart', 'patternPFull'],
+    run: (r) => r.repeatResult,
+  },
+};
