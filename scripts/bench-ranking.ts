@@ -35,7 +35,22 @@ import { DEFAULT_INTAKE_LIMITS } from '../shared/returns/batch-rows';
 import type { ComponentResult } from '../shared/scoring/breakdown';
 import type { ComponentKey } from '../shared/scoring/settings';
 import { freshBenchDb, releaseBenchCluster } from './lib/bench-db';
-import { projectRoot } from './lib/local-services';
+import { projectRoot, startSetup } from './lib/local-services';
+import { connectionString } from './lib/pg';
+
+/** This run's own database, so two runs at once (several people share the machine) do not drop each other's. */
+const DB_NAME = `plumbline_bench_ranking_${process.pid}`;
+
+async function dropBenchDb(): Promise<void> {
+  const { Client } = await import('pg');
+  const c = new Client({ connectionString: connectionString(startSetup.cluster, 'postgres') });
+  await c.connect();
+  try {
+    await c.query(`DROP DATABASE IF EXISTS "${DB_NAME}"`);
+  } finally {
+    await c.end();
+  }
+}
 
 function arg(name: string, dflt: string): string {
   const i = process.argv.indexOf(`--${name}`);
@@ -89,8 +104,9 @@ export function rankingFigures(rows: Row[], score: (r: Row) => number) {
 async function runBatch(seed: string, returns: number, plantShare: number, habits: HabitShares, tag: string): Promise<Row[]> {
   const dir = path.join(projectRoot, 'bench-output', `ranking-${seed}-${returns}-${tag}`);
   const opts = { seed, returns, plantShare, refPrefix: 'RNK', habits };
+  const t = performance.now();
   const w = await writeCsvBatch(dir, opts);
-  const db = await freshBenchDb('plumbline_bench_ranking');
+  const db = await freshBenchDb(DB_NAME);
   try {
     const size = (f: string) => fs.statSync(f).size;
     const part = (t: 'returns' | 'line_items' | 'statements') => ({ originalName: `${t}.csv`, path: w.files[t]!, size: size(w.files[t]!) });
@@ -102,7 +118,7 @@ async function runBatch(seed: string, returns: number, plantShare: number, habit
     const batchId = out.batch.id;
     const t0 = performance.now();
     await scoreBatchNow(db.ds, batchId);
-    console.log(`bench  | ${seed} (${tag}): ${w.counts.returns} returns, ${w.labels.length} planted; scored in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+    console.log(`bench  | ${seed} (${tag}): ${w.counts.returns} returns, ${w.labels.length} planted; generated and loaded in ${((t0 - t) / 1000).toFixed(1)} s, scored in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
     const answers = new Map(w.answers.map((a) => [a.returnRef, a]));
     const rows: { return_ref: string; components: ComponentResult[] | null; risk_score: string | null; selected: boolean | null; cut: string | null; q: string | null }[] = await db.ds.query(
       `SELECT r.return_ref, s.risk_score, s.breakdown->'components' AS components, (s.breakdown->>'selected')::boolean AS selected,
@@ -130,6 +146,7 @@ async function runBatch(seed: string, returns: number, plantShare: number, habit
     });
   } finally {
     await db.close();
+    await dropBenchDb();
   }
 }
 
