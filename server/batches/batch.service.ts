@@ -18,20 +18,12 @@ import {
   type BatchSummary,
   type BatchTable,
   type IntakeLimits,
+  maskIssueForListing,
 } from '../../shared/returns/batch-rows';
 import { safeCellText } from '../../shared/spreadsheet-text';
 import { QUEUES } from '../queue/queues';
-import {
-  deleteBatchRecord,
-  findBatch,
-  findBatchByHash,
-  findBatches,
-  insertBatchRecord,
-  markRejected,
-  recoverInterruptedBatches,
-  takeOverStaleBatch,
-  type BatchRecord,
-} from './batch.repository';
+import { deleteBatchRecord, findBatchByHash, insertBatchRecord, markRejected, recoverInterruptedBatches, takeOverStaleBatch } from './batch-intake.repository';
+import { findBatch, findBatches, type BatchRecord } from './batch-read.repository';
 import { IssueList, runIntake } from './intake/ingest';
 import { checkUploadFiles, csvTables, uploadFileNames, uploadHash, xlsxTables, type BatchUpload, type TableSource, type UploadedFile } from './intake/sources';
 
@@ -209,7 +201,8 @@ export async function listBatches(ds: DataSource, q: { page: number; pageSize: n
 export async function getBatch(ds: DataSource, id: string): Promise<BatchDetail | null> {
   const r = await findBatch(ds, id);
   if (!r) return null;
-  return { ...summary(r), errors: r.errors, notices: r.notices };
+  // Rejected values can be TINs: listed masked (the report workbook shows the same).
+  return { ...summary(r), errors: r.errors.map(maskIssueForListing), notices: r.notices.map(maskIssueForListing) };
 }
 
 /**

@@ -32,7 +32,7 @@ import {
 import { LINE_CODE_DEFS, LINE_CODE_INDEX, LINE_CODES, totalsFromSums, type LineSums } from '../../../shared/returns/line-codes';
 import { formatCents, MAX_LINES_PER_RETURN } from '../../../shared/returns/money';
 import { maskTin } from '../../../shared/access-log';
-import { copyText, IntakeTransaction, type CopyWriter, type TotalsRow } from '../batch.repository';
+import { copyText, IntakeTransaction, type CopyWriter, type TotalsRow } from '../batch-store.repository';
 import type { DataSource } from 'typeorm';
 import { SourceError, type RawRow, type TableSource } from './source-types';
 import { ensureUploadSpool } from './upload-spool';

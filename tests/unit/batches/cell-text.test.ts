@@ -1,6 +1,6 @@
 import { cellText, numberText } from '../../../server/batches/intake/cell-text';
 import { uuid7Factory } from '../../../server/batches/intake/uuid7';
-import { copyText } from '../../../server/batches/batch.repository';
+import { copyText } from '../../../server/batches/batch-store.repository';
 
 describe('XLSX cell text', () => {
   it('reads numbers as an accountant typed them, within floating-point noise', () => {
