@@ -201,6 +201,14 @@ describe('habits of typical filers', () => {
     for (const a of habitBatch.answers) if (a.habits.length) expect(a.habitDetail.length).toBeGreaterThan(5);
   });
 
+  it('writes only rows the intake accepts, habits and all', () => {
+    const rs = returnRowSchema(years);
+    const ss = statementRowSchema(years);
+    for (const r of habitBatch.returns) if (!rs.safeParse(r).success) throw new Error(JSON.stringify(r));
+    for (const l of habitBatch.lineItems) if (!LineItemRowSchema.safeParse(l).success) throw new Error(JSON.stringify(l));
+    for (const x of habitBatch.statements) if (!ss.safeParse(x).success) throw new Error(JSON.stringify(x));
+  });
+
   it('sets each share by option: one habit alone, or none', () => {
     const only = generate({ seed: 'unit-habits-one', returns: 2000, plantShare: 0.05, habits: { whole_units: 0.6 } });
     const tins = new Set(only.answers.filter((a) => a.habits.includes('whole_units')).map((a) => a.tin));
