@@ -115,6 +115,9 @@ export function batchRoutes(deps: AppDeps) {
     const id = String(req.params.id);
     const batch = isUuid(id) ? await getBatch(deps.dataSource, id) : null;
     if (!batch) throw new HttpError(404, `There is no batch ${id}.`);
+    // A rejection report lists values from the file (TIN-like ones masked): its read is logged
+    // like any read of taxpayer data. Batches without errors are not: the screen polls them.
+    if (batch.errors.length) await recordAccess(deps.dataSource, staffAuditOf(req), { action: 'view', recordType: 'filing_batch', recordId: id, detail: 'rejection report' });
     res.json(batch);
   });
 

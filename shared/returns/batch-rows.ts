@@ -376,6 +376,29 @@ export const BatchIssueSchema = z.object({
 });
 export type BatchIssue = z.infer<typeof BatchIssueSchema>;
 
+/** Every digit but the last three replaced by "•" (separators kept): "012-345-678" → "•••-•••-678". */
+function maskDigits(text: string): string {
+  const total = (text.match(/\d/g) ?? []).length;
+  let seen = 0;
+  return text.replace(/\d/g, (d) => (++seen <= total - 3 ? '•' : d));
+}
+
+/**
+ * An issue as the batch screens and the report list it: a value in the tin column (and any
+ * run of 5 or more digits in its message; years stay) shows only its last three digits, and
+ * so does a 9-digit run in any other column but amounts (a TIN typed into the wrong column).
+ * The row and column still point to the cell; the clerk has the file itself.
+ */
+export function maskIssueForListing(issue: BatchIssue): BatchIssue {
+  const tinColumn = issue.column === 'tin';
+  if (!tinColumn && issue.column === 'amount') return issue;
+  const mask = (text: string) =>
+    tinColumn
+      ? text.replace(/\d(?:[\d .-]*\d)?/g, (run) => ((run.match(/\d/g) ?? []).length >= 5 ? maskDigits(run) : run))
+      : text.replace(/(?<!\d)\d{9}(?!\d)/g, maskDigits);
+  return { ...issue, message: mask(issue.message), ...(issue.value == null ? {} : { value: mask(issue.value) }) };
+}
+
 export const BatchCountsSchema = z.object({
   returns: z.number().int(),
   lineItems: z.number().int(),

@@ -7,7 +7,9 @@ import { randomUUID } from 'node:crypto';
 import request from 'supertest';
 import { createApp } from '../../server/app';
 import { LoginThrottle } from '../../server/auth/throttle';
+import { maskIssueForListing } from '../../shared/returns/batch-rows';
 import { createUser, signIn } from '../helpers/auth';
+import { csv, LINES_HEADER, RETURNS_HEADER, upload } from '../helpers/batches';
 import { createTestContext, testConfig, type TestContext } from '../helpers/test-app';
 
 jest.setTimeout(120_000);
@@ -100,6 +102,43 @@ describe('hardening: sign-in and free text', () => {
       // Ordinary multi-line text passes validation (and then meets the unknown case: 404).
       const ok = await examiner.agent.post(`/api/cases/${randomUUID()}/notes`).set('X-CSRF-Token', examiner.csrf).send({ text: 'Line one\n\tline two\r\n' });
       expect(ok.status).toBe(404);
+    });
+  });
+
+  describe('a rejected batch\'s report', () => {
+    it('lists TIN-like values masked, and its read is access-logged', async () => {
+      const clerk = await signIn(ctx, 'clerk');
+      const returns = csv([
+        RETURNS_HEADER,
+        'R-1,12345678,2024,Ana Vell,none,,,', // 8 digits: a TIN that lost a digit
+        'R-2,987-65-4321,2024,Bo Tarr,none,,,', // separators
+        'R-3,555123456,2024,Cy Moor,bogus,,,', // good TIN, bad activity code
+      ]);
+      const lines = csv([LINES_HEADER, 'R-1,inc.wages,100.00', 'R-2,inc.wages,100.00', 'R-3,inc.wages,100.00']);
+      const res = await upload(clerk, { returns: { name: 'returns.csv', content: returns }, line_items: { name: 'line_items.csv', content: lines } });
+      expect(res.status).toBe(422);
+      const id: string = res.body.batchId;
+      const detail = await clerk.agent.get(`/api/batches/${id}`);
+      expect(detail.status).toBe(200);
+      const text = JSON.stringify(detail.body.errors);
+      for (const raw of ['12345678', '987-65-4321', '987654321', '555123456']) expect(text).not.toContain(raw);
+      expect(detail.body.errors).toEqual(
+        expect.arrayContaining([
+          expect.objectContaining({ row: 2, column: 'tin', message: expect.stringMatching(/^tin "•••••678" has 8 digits; a TIN has 9/) }),
+          expect.objectContaining({ row: 3, column: 'tin', message: expect.stringMatching(/"•••-••-•321" must be 9 digits .* e\.g\. ••••••321/) }),
+        ]),
+      );
+      const logged = await ctx.dataSource.query(`SELECT action, record_type, detail FROM access_log WHERE record_id = $1 AND user_id = $2 AND action = 'view'`, [id, clerk.user.id]);
+      expect(logged).toEqual([{ action: 'view', record_type: 'filing_batch', detail: 'rejection report' }]);
+    });
+
+    it('masks only what can be a TIN (years, rows and amounts stay readable)', () => {
+      const issue = { file: 'returns.csv', row: 4, column: 'tin', value: '1234567', message: '"1234567" has 7 digits; a TIN has 9 (tax year 2024)' };
+      expect(maskIssueForListing(issue)).toEqual({ ...issue, value: '••••567', message: '"••••567" has 7 digits; a TIN has 9 (tax year 2024)' });
+      const amount = { file: 'line_items.csv', row: 9, column: 'amount', value: '123456789.123', message: '"123456789.123" has more than 2 decimals' };
+      expect(maskIssueForListing(amount)).toEqual(amount);
+      const elsewhere = { file: 'returns.csv', row: 2, column: 'taxpayer_name', value: 'Ana 123456789', message: 'contains 123456789' };
+      expect(maskIssueForListing(elsewhere)).toEqual({ ...elsewhere, value: 'Ana ••••••789', message: 'contains ••••••789' });
     });
   });
 });
