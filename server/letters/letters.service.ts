@@ -320,6 +320,8 @@ export async function replyUploadFile(ds: DataSource, audit: StaffAudit, caseId:
   const c = await caseForRead(ds, caseId);
   const u = isUuid(uploadId) ? await findUploadContent(ds, caseId, uploadId) : null;
   if (!u) throw new HttpError(404, 'This case has no such reply file.');
-  await recordAccess(ds, audit, { action: 'view', recordType: 'reply_upload', recordId: uploadId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `reply file ${u.fileName}` });
+  // The name the taxpayer gave the file stays out of the log: the administrator reads the
+  // log without access to taxpayer data, and names like "J Smith bank 2024.pdf" are such data.
+  await recordAccess(ds, audit, { action: 'view', recordType: 'reply_upload', recordId: uploadId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: 'reply file' });
   return u;
 }
