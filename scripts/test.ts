@@ -7,7 +7,7 @@
  * (tests/helpers/test-db.ts). Extra arguments go to jest: `npm test -- tests/unit`.
  */
 import 'reflect-metadata';
-import { spawn } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { prepareAppDatabase } from './lib/app-database';
@@ -55,9 +55,24 @@ async function prepareTemplate(): Promise<void> {
   await prepareAppDatabase(T.cluster, TEMPLATE_DB);
 }
 
+/**
+ * `npm run lint` (ESLint, then `prettier --check`) before a full run, so the conventions hold
+ * like the tests do. Skipped when jest gets arguments (one file while working) or with
+ * PLUMBLINE_SKIP_LINT=1.
+ */
+function lintPasses(jestArgs: string[]): boolean {
+  if (process.env.PLUMBLINE_SKIP_LINT === '1' || jestArgs.length > 0) return true;
+  log('lint: npm run lint (eslint, prettier --check); PLUMBLINE_SKIP_LINT=1 skips it');
+  const r = spawnSync('npm', ['run', '--silent', 'lint'], { cwd: projectRoot, stdio: 'inherit' });
+  if (r.status === 0) return true;
+  log('lint failed: `npm run format` fixes the layout and what eslint can fix; fix the rest by hand');
+  return false;
+}
+
 async function main(): Promise<number> {
   const t0 = Date.now();
   const jestArgs = process.argv.slice(2);
+  if (!lintPasses(jestArgs)) return 1;
   let maildev: Managed | null = null;
   fs.mkdirSync(runsDir, { recursive: true });
   fs.writeFileSync(path.join(runsDir, String(process.pid)), '');

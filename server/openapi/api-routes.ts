@@ -331,7 +331,8 @@ export const API_ROUTES: readonly ApiRoute[] = [
     operationId: 'uploadBatch',
     tag: 'batches',
     summary: 'Load a batch of filed returns',
-    description: 'One XLSX workbook as `file`, or the CSV files as `returns`, `line_items` and optionally `statements`. A batch with any error is refused whole.',
+    description:
+      'One XLSX workbook as `file`, or the CSV files as `returns`, `line_items` and optionally `statements`. A batch with any error is refused whole.',
     multipart: {
       parts: {
         file: { kind: 'file', description: 'One .xlsx workbook with the sheets returns, line_items and (optionally) statements.', mediaTypes: [XLSX] },

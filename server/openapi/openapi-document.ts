@@ -83,7 +83,12 @@ function queryParameters(schema: z.ZodType, where: string): JsonSchema[] {
 
 function operation(route: ApiRoute, names: Map<z.ZodType, string>): Record<string, unknown> {
   const where = `${route.method.toUpperCase()} ${route.path}`;
-  const parameters: JsonSchema[] = [...route.path.matchAll(/:([A-Za-z0-9_]+)/g)].map((m) => ({ name: m[1], in: 'path', required: true, schema: { type: 'string' } }));
+  const parameters: JsonSchema[] = [...route.path.matchAll(/:([A-Za-z0-9_]+)/g)].map((m) => ({
+    name: m[1],
+    in: 'path',
+    required: true,
+    schema: { type: 'string' },
+  }));
   if (route.query) parameters.push(...queryParameters(route.query, where));
 
   const requestContent: Record<string, unknown> = {};
@@ -99,7 +104,10 @@ function operation(route: ApiRoute, names: Map<z.ZodType, string>): Record<strin
   const standard: Record<number, string> = {};
   if (!route.public) {
     standard[401] = 'Not signed in.';
-    standard[403] = route.method === 'get' ? 'The caller’s role may not do this.' : `The caller’s role may not do this, or the ${CSRF_HEADER} header is missing or out of date.`;
+    standard[403] =
+      route.method === 'get'
+        ? 'The caller’s role may not do this.'
+        : `The caller’s role may not do this, or the ${CSRF_HEADER} header is missing or out of date.`;
   }
   if (route.body || route.query || route.multipart) standard[422] = 'The input is not valid: every problem with its path.';
   standard[500] = 'Something went wrong on the server (logged; no details in the answer).';

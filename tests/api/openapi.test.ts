@@ -55,7 +55,10 @@ describe('the OpenAPI document', () => {
   function expectDocumented(method: string, path: string, res: request.Response) {
     const validate = documented(method, path, res.status);
     const ok = validate(res.body);
-    expect({ route: `${method.toUpperCase()} ${path} → ${res.status}`, errors: ok ? [] : validate.errors }).toEqual({ route: `${method.toUpperCase()} ${path} → ${res.status}`, errors: [] });
+    expect({ route: `${method.toUpperCase()} ${path} → ${res.status}`, errors: ok ? [] : validate.errors }).toEqual({
+      route: `${method.toUpperCase()} ${path} → ${res.status}`,
+      errors: [],
+    });
   }
 
   beforeAll(async () => {

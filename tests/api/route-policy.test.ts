@@ -104,14 +104,18 @@ describe('route × role policy', () => {
     });
     // Admins see no taxpayer data: no capability on batches, cases, scoring or analyses.
     for (const [cap, roles] of Object.entries(CAN)) {
-      if (!['manageUsers', 'readAccessLog'].includes(cap)) expect({ cap, admin: (roles as readonly string[]).includes('admin') }).toEqual({ cap, admin: false });
+      if (!['manageUsers', 'readAccessLog'].includes(cap))
+        expect({ cap, admin: (roles as readonly string[]).includes('admin') }).toEqual({ cap, admin: false });
     }
   });
 
   it('every registered route is in the table, every table entry is registered, and each carries an access rule', () => {
     expect(routes.length).toBeGreaterThan(5);
     const registered = routes.map(key);
-    expect({ notInTable: registered.filter((k) => !(k in EXPECTED)), notRegistered: Object.keys(EXPECTED).filter((k) => !registered.includes(k)) }).toEqual({ notInTable: [], notRegistered: [] });
+    expect({ notInTable: registered.filter((k) => !(k in EXPECTED)), notRegistered: Object.keys(EXPECTED).filter((k) => !registered.includes(k)) }).toEqual({
+      notInTable: [],
+      notRegistered: [],
+    });
     expect(routes.filter((r) => !r.rule).map(key)).toEqual([]);
   });
 
