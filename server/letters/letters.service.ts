@@ -17,7 +17,6 @@ import { z } from 'zod';
 import { maskTin } from '../../shared/access-log';
 import { CASE_STATE_LABELS, type CaseState } from '../../shared/cases';
 import {
-  isoToday,
   REFERRAL_UNIT_LABELS,
   type DocumentRequestInput,
   type DocumentRequestState,
@@ -29,6 +28,7 @@ import {
 import { ACTIVITY_CODES } from '../../shared/returns/line-codes';
 import { centsFromNumeric } from '../../shared/returns/money';
 import { recordAccess } from '../access-log/access-log.service';
+import { today as clockToday } from '../clock';
 import type { StaffAudit } from '../access-log/audit-context';
 import { assertMayAct, lockCase, moveCase, taxpayerLabelOf } from '../cases/case-workflow';
 import { HttpError } from '../http/errors';
@@ -86,7 +86,7 @@ const ACTIVITY_WORDS: Record<(typeof ACTIVITY_CODES)[number], string> = {
 };
 
 /** The effective state: an unanswered request past its due date has expired. */
-export function effectiveRequestState(state: DocumentRequestState, dueDate: string, today = isoToday()): DocumentRequestState {
+export function effectiveRequestState(state: DocumentRequestState, dueDate: string, today = clockToday()): DocumentRequestState {
   return state === 'sent' && dueDate < today ? 'expired' : state;
 }
 
@@ -151,7 +151,7 @@ export async function sendDocumentRequest(deps: LetterDeps, audit: StaffAudit, c
     const reference = `DR-${letterId.slice(0, 8).toUpperCase()}`;
     const letter: DocumentRequestLetter = {
       reference,
-      date: isoToday(),
+      date: clockToday(),
       taxpayerName: ctx.taxpayerName,
       postalAddress: ctx.postalAddress,
       taxYear: ctx.taxYear,
@@ -239,7 +239,7 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
     const reference = `RM-${letterId.slice(0, 8).toUpperCase()}`;
     const pdf = await renderReferralMemoPdf({
       reference,
-      date: isoToday(),
+      date: clockToday(),
       unitLabel,
       summary: input.summary,
       author: actor.displayName,

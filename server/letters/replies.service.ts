@@ -8,8 +8,9 @@
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
 import { canTransition } from '../../shared/cases';
-import { isoToday, longDate, OFFICE, REPLY_FILE_TYPES, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES, type ReplyReceipt, type ReplyRequestDto } from '../../shared/letters';
+import { longDate, OFFICE, REPLY_FILE_TYPES, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES, type ReplyReceipt, type ReplyRequestDto } from '../../shared/letters';
 import { recordAccess } from '../access-log/access-log.service';
+import { today } from '../clock';
 import { addCaseEvent, lockCase } from '../cases/case-workflow';
 import { ExamCase } from '../cases/exam-case.entity';
 import { HttpError } from '../http/errors';
@@ -40,7 +41,7 @@ export async function openRequest(ds: DataSource, token: string): Promise<Reques
   const r = TOKEN.test(token) ? await findRequestByTokenHash(ds, hashReplyToken(token)) : null;
   if (!r) throw new HttpError(404, NOT_FOUND);
   if (r.state === 'answered') throw closed('answered', r.dueDate);
-  if (r.state === 'expired' || r.dueDate < isoToday()) {
+  if (r.state === 'expired' || r.dueDate < today()) {
     // Record what the date already says, so staff lists and this page agree.
     await markExpired(ds, r.id);
     throw closed('expired', r.dueDate);
@@ -77,7 +78,7 @@ export async function receiveReply(ds: DataSource, token: string, files: Incomin
     const r = await findRequestByTokenHash(m, hash, true);
     if (!r) throw new HttpError(404, NOT_FOUND);
     if (r.state === 'answered') throw closed('answered', r.dueDate);
-    if (r.state === 'expired' || r.dueDate < isoToday()) return { kind: 'expired' as const, request: r };
+    if (r.state === 'expired' || r.dueDate < today()) return { kind: 'expired' as const, request: r };
     const receivedAt = await storeReply(m, r.id, checked);
 
     // The taxpayer is not a session user: the event has no actor, and the move is the one
