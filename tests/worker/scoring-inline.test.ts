@@ -2,6 +2,8 @@ import { createTestContext, type TestContext } from '../helpers/test-app';
 import { loadGeneratedBatch } from '../helpers/scored-batch';
 import { scoreBatchNow } from '../../server/scoring/scoring.service';
 import { ScoreBreakdownSchema } from '../../shared/scoring/breakdown';
+import { benjaminiHochberg } from '../../shared/scoring/calibration';
+import { PENDING_Q_TEXT } from '../../shared/scoring/score-return';
 
 jest.setTimeout(60_000);
 
@@ -34,6 +36,25 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
     expect(() => ScoreBreakdownSchema.parse(one.breakdown)).not.toThrow();
   });
 
+  it('the run\'s finishing step gives every score its Benjamini–Hochberg q-value over the whole batch, in the evidence too', async () => {
+    const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-bh', returns: 120, plantShare: 0.1 });
+    await scoreBatchNow(ctx.dataSource, b.batchId);
+    const rows: { p: number; q: number; evidence: string }[] = await ctx.dataSource.query(
+      `SELECT (breakdown->'pattern'->>'p')::float8 AS p, (breakdown->'pattern'->>'q')::float8 AS q,
+              (SELECT c->>'evidence' FROM jsonb_array_elements(breakdown->'components') c WHERE c->>'key' = 'digits') AS evidence
+         FROM return_score WHERE batch_id = $1 AND status = 'scored'`,
+      [b.batchId],
+    );
+    expect(rows).toHaveLength(120);
+    const expected = benjaminiHochberg(rows.map((r) => r.p));
+    rows.forEach((r, i) => {
+      expect(r.q).toBeCloseTo(expected[i], 12);
+      expect(r.q).toBeGreaterThanOrEqual(r.p - 1e-15);
+      expect(r.evidence).not.toContain(PENDING_Q_TEXT);
+      expect(r.evidence).toContain("Across the batch's 120 scored returns: q = ");
+    });
+  });
+
   it('records a return that cannot be scored, with the reason, and finishes the batch', async () => {
     const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-2', returns: 60, plantShare: 0 });
     const victim = [...b.returnIdOf.values()][7];
@@ -48,16 +69,17 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
   it('re-scoring under a new profile version keeps the old scores', async () => {
     const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-3', returns: 80, plantShare: 0.1 });
     await scoreBatchNow(ctx.dataSource, b.batchId);
-    const before = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 1 ORDER BY return_id`, [b.batchId]);
+    // The active (default) profile is version 2 (server/db/migrations/1764960000000-scoring-v2.ts).
+    const before = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 2 ORDER BY return_id`, [b.batchId]);
     // One case is closed before the re-score: it must keep the score it was decided on.
     const closed = (await ctx.dataSource.query(`UPDATE exam_case SET state = 'closed_no_change' WHERE id = (SELECT id FROM exam_case WHERE batch_id = $1 LIMIT 1) RETURNING id, score_id`, [b.batchId]))[0][0];
-    await ctx.dataSource.query(`INSERT INTO scoring_profile (version, settings, note) SELECT 2, jsonb_set(settings, '{weights,cashHeavy}', '40'), 'test' FROM scoring_profile WHERE version = 1`);
-    await scoreBatchNow(ctx.dataSource, b.batchId, 2);
+    await ctx.dataSource.query(`INSERT INTO scoring_profile (version, settings, note) SELECT 3, jsonb_set(settings, '{weights,cashHeavy}', '40'), 'test' FROM scoring_profile WHERE version = 2`);
+    await scoreBatchNow(ctx.dataSource, b.batchId, 3);
     const kept = (await ctx.dataSource.query(`SELECT score_id FROM exam_case WHERE id = $1`, [closed.id]))[0];
     expect(kept.score_id).toBe(closed.score_id);
-    const after = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 1 ORDER BY return_id`, [b.batchId]);
+    const after = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 2 ORDER BY return_id`, [b.batchId]);
     expect(after).toEqual(before);
-    const v2 = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM return_score WHERE batch_id = $1 AND profile_version = 2`, [b.batchId]);
-    expect(v2[0].n).toBe(80);
+    const v3 = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM return_score WHERE batch_id = $1 AND profile_version = 3`, [b.batchId]);
+    expect(v3[0].n).toBe(80);
   });
 });
