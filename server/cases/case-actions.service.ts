@@ -63,7 +63,7 @@ export async function addNote(ds: DataSource, audit: StaffAudit, caseId: string,
       taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
       detail: `note ${n.id} added`,
     });
-    return { id: n.id, at: n.at.toISOString(), authorId: n.author_id, authorName: n.author_name, text: n.text };
+    return { id: n.id, at: n.at.toISOString(), authorId: n.authorId, authorName: n.authorName, text: n.text };
   });
 }
 
@@ -77,7 +77,7 @@ export async function revealTin(ds: DataSource, audit: StaffAudit, caseId: strin
     assertMayAct(audit.actor, c);
     const t = await findCaseTin(m, caseId);
     if (!t) throw new HttpError(404, 'No such case.');
-    await recordAccess(m, audit, { action: 'reveal-tin', recordType: 'case', recordId: caseId, taxpayerId: t.taxpayer_id, taxpayerLabel: maskTin(t.tin) });
+    await recordAccess(m, audit, { action: 'reveal-tin', recordType: 'case', recordId: caseId, taxpayerId: t.taxpayerId, taxpayerLabel: maskTin(t.tin) });
     return { tin: String(t.tin) };
   });
 }

@@ -15,8 +15,10 @@ import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import type { SessionUser } from '../auth/access';
 import { HttpError } from '../http/errors';
-import { findCaseDetail, findCaseEvents, findCaseLetters, findCaseNotes, findExaminers, findLineItems, userNames, type CaseEventRow } from './case.repository';
+import { findCaseDetail, findCaseEvents, findCaseLetters, findCaseNotes, findExaminers, findLineItems, userNames, type CaseEventRecord } from './case.repository';
 import { mayAct } from './case-workflow';
+import { caseDeadline } from './case-deadline.service';
+import { ASSESSMENT_DEADLINE_CAUTION } from '../../shared/returns/assessment-deadline';
 
 /** What the caller may do now; the transition route makes every move listed here. */
 export function actionsFor(actor: Pick<SessionUser, 'id' | 'role'>, state: CaseState, assigneeId: string | null): CaseActions {
@@ -34,8 +36,8 @@ export function actionsFor(actor: Pick<SessionUser, 'id' | 'role'>, state: CaseS
 const stateWord = (s: string | null) => (s && s in CASE_STATE_LABELS ? CASE_STATE_LABELS[s as CaseState].toLowerCase() : (s ?? '?'));
 
 /** The history line in words. */
-function summarise(e: CaseEventRow, names: Map<string, string>): string {
-  const who = e.actor_name ?? 'Plumbline';
+function summarise(e: CaseEventRecord, names: Map<string, string>): string {
+  const who = e.actorName ?? 'Plumbline';
   const d = e.detail ?? {};
   const name = (id: unknown) => (typeof id === 'string' ? (names.get(id) ?? 'an examiner no longer listed') : 'nobody');
   switch (e.kind) {
@@ -56,11 +58,11 @@ function summarise(e: CaseEventRow, names: Map<string, string>): string {
     case 'reply-received': {
       // Written by the reply link with no actor: the taxpayer, never "Plumbline".
       const files = typeof d.files === 'number' ? ` (${d.files} file${d.files === 1 ? '' : 's'})` : '';
-      const back = e.to_state === 'in_review' ? '; the case is back in review' : e.to_state ? `; the case moved to ${stateWord(e.to_state)}` : '';
+      const back = e.toState === 'in_review' ? '; the case is back in review' : e.toState ? `; the case moved to ${stateWord(e.toState)}` : '';
       return `The taxpayer replied through the reply link${files}${back}`;
     }
     default: {
-      let s = `${who} moved the case from ${stateWord(e.from_state)} to ${stateWord(e.to_state)}`;
+      let s = `${who} moved the case from ${stateWord(e.fromState)} to ${stateWord(e.toState)}`;
       if (typeof d.adjustedAmount === 'string') s += `, adjusted amount ${d.adjustedAmount}`;
       if (typeof d.outcome === 'string') s += `: ${d.outcome}`;
       return s;
@@ -73,66 +75,68 @@ export async function getCaseDetail(ds: DataSource, audit: StaffAudit, caseId: s
   if (!isUuid(caseId)) throw new HttpError(404, 'No such case.');
   const c = await findCaseDetail(ds, caseId);
   if (!c) throw new HttpError(404, 'No such case.');
-  const [lines, events, notes, letters] = await Promise.all([findLineItems(ds, c.return_id), findCaseEvents(ds, caseId), findCaseNotes(ds, caseId), findCaseLetters(ds, caseId)]);
+  const [lines, events, notes, letters, deadline] = await Promise.all([findLineItems(ds, c.returnId), findCaseEvents(ds, caseId), findCaseNotes(ds, caseId), findCaseLetters(ds, caseId), caseDeadline(ds, caseId)]);
   const mentioned = new Set<string>();
   for (const e of events) for (const k of ['from', 'to', 'assigneeId']) if (typeof e.detail?.[k] === 'string') mentioned.add(e.detail[k] as string);
   const names = await userNames(ds, [...mentioned].filter(isUuid));
-  await recordAccess(ds, audit, { action: 'view', recordType: 'case', recordId: caseId, taxpayerId: c.taxpayer_id, taxpayerLabel: maskTin(String(c.tin)) });
+  await recordAccess(ds, audit, { action: 'view', recordType: 'case', recordId: caseId, taxpayerId: c.taxpayerId, taxpayerLabel: maskTin(String(c.tin)) });
   const history: CaseHistoryEntry[] = events.map((e) => ({
     id: e.id,
     at: e.at.toISOString(),
     kind: e.kind,
-    actorName: e.actor_name,
-    fromState: e.from_state,
-    toState: e.to_state,
+    actorName: e.actorName,
+    fromState: e.fromState,
+    toState: e.toState,
     summary: summarise(e, names),
   }));
   return {
     id: c.id,
     state: c.state,
-    assignee: c.assignee_id ? { id: c.assignee_id, name: c.assignee_name ?? 'an examiner no longer listed' } : null,
-    riskScore: Number(c.risk_score),
+    selection: c.selection,
+    assignee: c.assigneeId ? { id: c.assigneeId, name: c.assigneeName ?? 'an examiner no longer listed' } : null,
+    riskScore: Number(c.riskScore),
     priority: Number(c.priority),
-    amountAtStake: c.amount_at_stake,
-    openedAt: c.opened_at.toISOString(),
-    updatedAt: c.updated_at.toISOString(),
-    closedAt: c.closed_at ? c.closed_at.toISOString() : null,
-    dueDate: c.due_date,
+    amountAtStake: c.amountAtStake,
+    openedAt: c.openedAt.toISOString(),
+    updatedAt: c.updatedAt.toISOString(),
+    closedAt: c.closedAt ? c.closedAt.toISOString() : null,
+    dueDate: c.dueDate,
+    deadline: { ...deadline, caution: ASSESSMENT_DEADLINE_CAUTION },
     outcome: c.outcome,
-    adjustedAmount: c.adjusted_amount,
-    taxpayer: { id: c.taxpayer_id, name: c.taxpayer_name, maskedTin: maskTin(String(c.tin)), activityCode: c.activity_code as CaseDetail['taxpayer']['activityCode'] },
+    adjustedAmount: c.adjustedAmount,
+    taxpayer: { id: c.taxpayerId, name: c.taxpayerName, maskedTin: maskTin(String(c.tin)), activityCode: c.activityCode as CaseDetail['taxpayer']['activityCode'] },
     return: {
-      id: c.return_id,
-      returnRef: c.return_ref,
-      taxYear: Number(c.tax_year),
-      batchId: c.batch_id,
-      preparerCode: c.preparer_code,
+      id: c.returnId,
+      returnRef: c.returnRef,
+      taxYear: Number(c.taxYear),
+      batchId: c.batchId,
+      preparerCode: c.preparerCode,
       totals: {
-        wages: c.total_wages,
-        interest: c.total_interest,
-        receipts: c.total_receipts,
-        businessExpenses: c.total_business_expenses,
-        income: c.computed_income,
-        reportedIncome: c.reported_income,
-        deductions: c.computed_deductions,
-        reportedDeductions: c.reported_deductions,
-        taxable: c.taxable_income,
-        tax: c.computed_tax,
-        withheld: c.tax_withheld,
-        refund: c.computed_refund,
-        reportedRefund: c.reported_refund,
+        wages: c.totalWages,
+        interest: c.totalInterest,
+        receipts: c.totalReceipts,
+        businessExpenses: c.totalBusinessExpenses,
+        income: c.computedIncome,
+        reportedIncome: c.reportedIncome,
+        deductions: c.computedDeductions,
+        reportedDeductions: c.reportedDeductions,
+        taxable: c.taxableIncome,
+        tax: c.computedTax,
+        withheld: c.taxWithheld,
+        refund: c.computedRefund,
+        reportedRefund: c.reportedRefund,
       },
     },
-    lineItems: lines.map((l) => ({ lineNo: Number(l.line_no), lineCode: l.line_code as LineCode, amount: l.amount })),
-    score: { profileVersion: Number(c.profile_version), scoredAt: c.scored_at.toISOString(), breakdown: ScoreBreakdownSchema.parse(c.breakdown) },
+    lineItems: lines.map((l) => ({ lineNo: Number(l.lineNo), lineCode: l.lineCode as LineCode, amount: l.amount })),
+    score: { profileVersion: Number(c.profileVersion), scoredAt: c.scoredAt.toISOString(), breakdown: ScoreBreakdownSchema.parse(c.breakdown) },
     history,
-    notes: notes.map((n) => ({ id: n.id, at: n.at.toISOString(), authorId: n.author_id, authorName: n.author_name, text: n.text })),
-    letters: letters.map((l) => ({ id: l.id, kind: l.kind, createdAt: l.created_at.toISOString() })),
-    actions: actionsFor(audit.actor, c.state, c.assignee_id),
+    notes: notes.map((n) => ({ id: n.id, at: n.at.toISOString(), authorId: n.authorId, authorName: n.authorName, text: n.text })),
+    letters: letters.map((l) => ({ id: l.id, kind: l.kind, createdAt: l.createdAt.toISOString() })),
+    actions: actionsFor(audit.actor, c.state, c.assigneeId),
   };
 }
 
 /** Active examiners one can filter by or assign to. */
 export async function listExaminers(ds: DataSource): Promise<Examiner[]> {
-  return (await findExaminers(ds)).map((e) => ({ id: e.id, username: e.username, displayName: e.display_name }));
+  return (await findExaminers(ds)).map((e) => ({ id: e.id, username: e.username, displayName: e.displayName }));
 }

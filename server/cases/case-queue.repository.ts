@@ -6,7 +6,10 @@
  */
 import type { CaseState } from '../../shared/cases';
 import type { CaseListQuery, CaseSort } from '../../shared/case-api';
+import { addDays } from '../../shared/letters';
+import { today } from '../clock';
 import type { Db } from '../db/db';
+import type { ExamCase } from './exam-case.entity';
 
 /** The queue's filters after the route resolved `me` to the caller. */
 export interface CaseFilter {
@@ -17,6 +20,8 @@ export interface CaseFilter {
   taxYear?: number;
   activity?: string;
   q?: string;
+  /** Only cases whose assessment deadline is on or before this date (YYYY-MM-DD). */
+  assessByUpTo?: string;
 }
 
 /** Builds the filter from a parsed query for the signed-in user. */
@@ -28,28 +33,23 @@ export function caseFilterOf(q: CaseListQuery, me: string): CaseFilter {
     taxYear: q.taxYear,
     activity: q.activity,
     q: q.q || undefined,
+    assessByUpTo: q.deadlineWithin === undefined ? undefined : addDays(today(), q.deadlineWithin),
   };
 }
 
-/** A queue row as the database returns it. */
-export interface CaseRow {
-  id: string;
-  state: CaseState;
-  risk_score: string;
-  priority: string;
-  amount_at_stake: string;
-  assignee_id: string | null;
-  assignee_name: string | null;
-  opened_at: Date;
-  due_date: string | null;
-  batch_id: string;
-  return_ref: string;
-  tax_year: number;
+/**
+ * A queue line: the case's own fields under the entity's names (ExamCase), and the
+ * return's, taxpayer's and examiner's display fields beside them.
+ */
+export type QueueCase = Pick<ExamCase, 'id' | 'state' | 'selection' | 'riskScore' | 'priority' | 'amountAtStake' | 'assigneeId' | 'openedAt' | 'batchId' | 'taxpayerId' | 'dueDate'> & {
+  assigneeName: string | null;
+  returnRef: string;
+  taxYear: number;
   tin: string;
-  taxpayer_id: string;
-  taxpayer_name: string;
-  activity_code: string;
-}
+  taxpayerName: string;
+  activityCode: string;
+  assessBy: string | null;
+};
 
 // Each order matches an index column for column, so PostgreSQL reads the index in order and
 // stops after OFFSET + LIMIT rows instead of sorting every case.
@@ -57,6 +57,8 @@ const ORDER: Record<CaseSort, string> = {
   priority: 'c.priority DESC, c.id',
   score: 'c.risk_score DESC, c.id',
   age: 'c.opened_at, c.id',
+  // Soonest first; no limit (null) last: idx_case_assess_by.
+  deadline: 'c.assess_by NULLS LAST, c.id',
 };
 
 const escapeLike = (s: string) => s.replace(/[\\%_]/g, (m) => `\\${m}`);
@@ -77,6 +79,7 @@ function where(f: CaseFilter, params: unknown[]): string {
   if (f.assignee === null) parts.push('c.assignee_id IS NULL');
   else if (f.assignee) parts.push(`c.assignee_id = ${p(f.assignee)}`);
   if (f.batch) parts.push(`c.batch_id = ${p(f.batch)}`);
+  if (f.assessByUpTo) parts.push(`c.assess_by <= ${p(f.assessByUpTo)}::date`);
   if (f.taxYear !== undefined) parts.push(`EXISTS (SELECT 1 FROM tax_return r WHERE r.id = c.return_id AND r.tax_year = ${p(f.taxYear)})`);
   if (f.activity) parts.push(`EXISTS (SELECT 1 FROM taxpayer t WHERE t.id = c.taxpayer_id AND t.activity_code = ${p(f.activity)})`);
   if (f.q) {
@@ -97,14 +100,14 @@ function where(f: CaseFilter, params: unknown[]): string {
  * (an index walk that skips OFFSET entries without touching other tables); only those
  * rows are joined to their return, taxpayer and examiner.
  */
-export async function findCasePage(db: Db, f: CaseFilter, sort: CaseSort, page: number, pageSize: number): Promise<CaseRow[]> {
+export async function findCasePage(db: Db, f: CaseFilter, sort: CaseSort, page: number, pageSize: number): Promise<QueueCase[]> {
   const params: unknown[] = [];
   const w = where(f, params);
   params.push(pageSize, (page - 1) * pageSize);
   return db.query(
-    `SELECT c.id, c.state, c.risk_score, c.priority, c.amount_at_stake, c.assignee_id, u.display_name AS assignee_name,
-            c.opened_at, to_char(c.due_date, 'YYYY-MM-DD') AS due_date, c.batch_id,
-            r.return_ref, r.tax_year, t.tin, t.id AS taxpayer_id, t.name AS taxpayer_name, t.activity_code
+    `SELECT c.id, c.state, c.selection, c.risk_score AS "riskScore", c.priority, c.amount_at_stake AS "amountAtStake", c.assignee_id AS "assigneeId",
+            u.display_name AS "assigneeName", c.opened_at AS "openedAt", to_char(c.due_date, 'YYYY-MM-DD') AS "dueDate", to_char(c.assess_by, 'YYYY-MM-DD') AS "assessBy", c.batch_id AS "batchId",
+            r.return_ref AS "returnRef", r.tax_year AS "taxYear", t.tin, t.id AS "taxpayerId", t.name AS "taxpayerName", t.activity_code AS "activityCode"
        FROM (SELECT c.id FROM exam_case c ${w} ORDER BY ${ORDER[sort]} LIMIT $${params.length - 1} OFFSET $${params.length}) pg
        JOIN exam_case c ON c.id = pg.id
        JOIN tax_return r ON r.id = c.return_id
@@ -123,7 +126,7 @@ export async function countCases(db: Db, f: CaseFilter): Promise<number> {
 }
 
 /** Every matching case in queue order, streamed in pages of `chunk` (for the export). */
-export async function* iterateCases(db: Db, f: CaseFilter, sort: CaseSort, chunk = 2000): AsyncGenerator<CaseRow[]> {
+export async function* iterateCases(db: Db, f: CaseFilter, sort: CaseSort, chunk = 2000): AsyncGenerator<QueueCase[]> {
   for (let page = 1; ; page++) {
     const rows = await findCasePage(db, f, sort, page, chunk);
     if (rows.length) yield rows;

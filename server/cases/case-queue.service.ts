@@ -18,25 +18,27 @@ import { SCREENING_CAUTION } from '../../shared/cautions';
 import { safeCellText } from '../../shared/spreadsheet-text';
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
-import { caseFilterOf, countCases, findCasePage, iterateCases, type CaseFilter, type CaseRow } from './case-queue.repository';
+import { caseFilterOf, countCases, findCasePage, iterateCases, type CaseFilter, type QueueCase } from './case-queue.repository';
 
-function toItem(r: CaseRow): CaseListItem {
+function toItem(r: QueueCase): CaseListItem {
   return {
     id: r.id,
-    returnRef: r.return_ref,
-    taxYear: Number(r.tax_year),
-    riskScore: Number(r.risk_score),
+    returnRef: r.returnRef,
+    taxYear: Number(r.taxYear),
+    riskScore: Number(r.riskScore),
     priority: Number(r.priority),
-    amountAtStake: r.amount_at_stake,
+    amountAtStake: r.amountAtStake,
     state: r.state,
-    assignee: r.assignee_id,
-    assigneeName: r.assignee_name,
-    taxpayerName: r.taxpayer_name,
+    selection: r.selection,
+    assignee: r.assigneeId,
+    assigneeName: r.assigneeName,
+    taxpayerName: r.taxpayerName,
     maskedTin: maskTin(String(r.tin)),
-    activityCode: r.activity_code as CaseListItem['activityCode'],
-    batchId: r.batch_id,
-    openedAt: r.opened_at.toISOString(),
-    dueDate: r.due_date,
+    activityCode: r.activityCode as CaseListItem['activityCode'],
+    batchId: r.batchId,
+    openedAt: r.openedAt.toISOString(),
+    dueDate: r.dueDate,
+    assessBy: r.assessBy,
   };
 }
 
@@ -73,7 +75,7 @@ async function queueTotal(ds: DataSource, f: CaseFilter): Promise<number> {
   if (f.assignee !== undefined || f.q) return countCases(ds, f);
   const byFilter = totals.get(ds) ?? new Map<string, CachedTotal>();
   totals.set(ds, byFilter);
-  const key = JSON.stringify([f.states, f.batch, f.taxYear, f.activity]);
+  const key = JSON.stringify([f.states, f.batch, f.taxYear, f.activity, f.assessByUpTo]);
   const generation = generations.get(ds) ?? 0;
   const hit = byFilter.get(key);
   if (hit && hit.generation === generation && Date.now() - hit.at < QUEUE_TOTAL_TTL_MS) return hit.total;
@@ -94,7 +96,7 @@ export async function listCases(ds: DataSource, audit: StaffAudit, q: CaseListQu
   await recordAccess(
     ds,
     audit,
-    rows.map((r) => ({ action: 'view' as const, recordType: 'case' as const, recordId: r.id, taxpayerId: r.taxpayer_id, taxpayerLabel: maskTin(String(r.tin)), detail: `queue page ${q.page}` })),
+    rows.map((r) => ({ action: 'view' as const, recordType: 'case' as const, recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(String(r.tin)), detail: `queue page ${q.page}` })),
   );
   return { items: rows.map(toItem), total, page: q.page, pageSize: q.pageSize };
 }
@@ -107,6 +109,7 @@ function describeFilter(f: CaseFilter, q: CaseListQuery): string {
     f.batch ? `batch ${f.batch}` : null,
     f.taxYear ? `tax year ${f.taxYear}` : null,
     f.activity ? `activity ${f.activity}` : null,
+    f.assessByUpTo ? `assessment deadline by ${f.assessByUpTo}` : null,
     // A full TIN in a log line would show the administrator taxpayer data: mask it.
     f.q ? `search "${/^\d{9}$/.test(f.q) ? maskTin(f.q) : f.q}"` : null,
     `sorted by ${q.sort}`,
@@ -146,6 +149,7 @@ export async function exportCases(ds: DataSource, audit: StaffAudit, q: CaseList
     { header: 'Examiner', key: 'assignee', width: 22 },
     { header: 'Opened', key: 'opened', width: 12, style: { numFmt: 'yyyy-mm-dd' } },
     { header: 'Due', key: 'due', width: 12 },
+    { header: 'Assess by', key: 'assessBy', width: 12 },
     { header: 'Case id', key: 'id', width: 38 },
   ];
   ws.getRow(1).font = { bold: true };
@@ -153,19 +157,20 @@ export async function exportCases(ds: DataSource, audit: StaffAudit, q: CaseList
   for await (const rows of iterateCases(ds, f, q.sort)) {
     for (const r of rows) {
       ws.addRow({
-        ref: safeCellText(r.return_ref),
-        year: Number(r.tax_year),
-        name: safeCellText(r.taxpayer_name),
+        ref: safeCellText(r.returnRef),
+        year: Number(r.taxYear),
+        name: safeCellText(r.taxpayerName),
         tin: safeCellText(maskTin(String(r.tin))),
-        activity: safeCellText(r.activity_code),
-        score: Number(r.risk_score),
+        activity: safeCellText(r.activityCode),
+        score: Number(r.riskScore),
         // A spreadsheet figure is a binary float anyway; the database keeps the exact decimal.
-        stake: Number(r.amount_at_stake),
+        stake: Number(r.amountAtStake),
         priority: Number(r.priority),
         state: safeCellText(CASE_STATE_LABELS[r.state]),
-        assignee: r.assignee_name === null ? null : safeCellText(r.assignee_name),
-        opened: r.opened_at,
-        due: r.due_date === null ? null : safeCellText(r.due_date),
+        assignee: r.assigneeName === null ? null : safeCellText(r.assigneeName),
+        opened: r.openedAt,
+        due: r.dueDate === null ? null : safeCellText(r.dueDate),
+        assessBy: r.assessBy === null ? null : safeCellText(r.assessBy),
         id: r.id,
       }).commit();
       written++;

@@ -7,60 +7,56 @@
 import type { EntityManager } from 'typeorm';
 import type { CaseState } from '../../shared/cases';
 import type { Db } from '../db/db';
+import type { CaseEvent } from './case-event.entity';
+import type { CaseNote } from './case-note.entity';
 import { ExamCase } from './exam-case.entity';
 
-/** The case with its return, taxpayer, preparer, score and assignee, for the case screen. */
-export interface CaseDetailRow {
-  id: string;
-  state: CaseState;
-  assignee_id: string | null;
-  assignee_name: string | null;
-  risk_score: string;
-  priority: string;
-  amount_at_stake: string;
-  opened_at: Date;
-  updated_at: Date;
-  closed_at: Date | null;
-  due_date: string | null;
-  outcome: string | null;
-  adjusted_amount: string | null;
-  taxpayer_id: string;
+/**
+ * The case with its return, taxpayer, preparer, score and assignee, for the case screen: the
+ * case's own fields under the entity's names (ExamCase), the rest beside them.
+ */
+export type CaseDetailRecord = Pick<
+  ExamCase,
+  'id' | 'state' | 'selection' | 'assigneeId' | 'riskScore' | 'priority' | 'amountAtStake' | 'openedAt' | 'updatedAt' | 'closedAt' | 'dueDate' | 'outcome' | 'adjustedAmount' | 'taxpayerId' | 'returnId' | 'batchId'
+> & {
+  assigneeName: string | null;
   tin: string;
-  taxpayer_name: string;
-  activity_code: string;
-  return_id: string;
-  return_ref: string;
-  tax_year: number;
-  batch_id: string;
-  preparer_code: string | null;
-  total_wages: string;
-  total_interest: string;
-  total_receipts: string;
-  total_business_expenses: string;
-  computed_income: string;
-  reported_income: string | null;
-  computed_deductions: string;
-  reported_deductions: string | null;
-  taxable_income: string;
-  computed_tax: string;
-  tax_withheld: string;
-  computed_refund: string;
-  reported_refund: string | null;
-  profile_version: number;
-  scored_at: Date;
+  taxpayerName: string;
+  activityCode: string;
+  returnRef: string;
+  taxYear: number;
+  preparerCode: string | null;
+  totalWages: string;
+  totalInterest: string;
+  totalReceipts: string;
+  totalBusinessExpenses: string;
+  computedIncome: string;
+  reportedIncome: string | null;
+  computedDeductions: string;
+  reportedDeductions: string | null;
+  taxableIncome: string;
+  computedTax: string;
+  taxWithheld: string;
+  computedRefund: string;
+  reportedRefund: string | null;
+  profileVersion: number;
+  scoredAt: Date;
   breakdown: unknown;
-}
+};
 
 /** One case with everything the case screen shows about the return, or null. */
-export async function findCaseDetail(db: Db, caseId: string): Promise<CaseDetailRow | null> {
+export async function findCaseDetail(db: Db, caseId: string): Promise<CaseDetailRecord | null> {
   const r = await db.query(
-    `SELECT c.id, c.state, c.assignee_id, u.display_name AS assignee_name, c.risk_score, c.priority, c.amount_at_stake,
-            c.opened_at, c.updated_at, c.closed_at, to_char(c.due_date, 'YYYY-MM-DD') AS due_date, c.outcome, c.adjusted_amount,
-            t.id AS taxpayer_id, t.tin, t.name AS taxpayer_name, t.activity_code,
-            r.id AS return_id, r.return_ref, r.tax_year, r.batch_id, p.code AS preparer_code,
-            r.total_wages, r.total_interest, r.total_receipts, r.total_business_expenses, r.computed_income, r.reported_income,
-            r.computed_deductions, r.reported_deductions, r.taxable_income, r.computed_tax, r.tax_withheld, r.computed_refund, r.reported_refund,
-            s.profile_version, s.scored_at, s.breakdown
+    `SELECT c.id, c.state, c.selection, c.assignee_id AS "assigneeId", u.display_name AS "assigneeName", c.risk_score AS "riskScore", c.priority,
+            c.amount_at_stake AS "amountAtStake", c.opened_at AS "openedAt", c.updated_at AS "updatedAt", c.closed_at AS "closedAt",
+            to_char(c.due_date, 'YYYY-MM-DD') AS "dueDate", c.outcome, c.adjusted_amount AS "adjustedAmount",
+            t.id AS "taxpayerId", t.tin, t.name AS "taxpayerName", t.activity_code AS "activityCode",
+            r.id AS "returnId", r.return_ref AS "returnRef", r.tax_year AS "taxYear", r.batch_id AS "batchId", p.code AS "preparerCode",
+            r.total_wages AS "totalWages", r.total_interest AS "totalInterest", r.total_receipts AS "totalReceipts",
+            r.total_business_expenses AS "totalBusinessExpenses", r.computed_income AS "computedIncome", r.reported_income AS "reportedIncome",
+            r.computed_deductions AS "computedDeductions", r.reported_deductions AS "reportedDeductions", r.taxable_income AS "taxableIncome",
+            r.computed_tax AS "computedTax", r.tax_withheld AS "taxWithheld", r.computed_refund AS "computedRefund", r.reported_refund AS "reportedRefund",
+            s.profile_version AS "profileVersion", s.scored_at AS "scoredAt", s.breakdown
        FROM exam_case c
        JOIN tax_return r ON r.id = c.return_id
        JOIN taxpayer t ON t.id = c.taxpayer_id
@@ -74,25 +70,21 @@ export async function findCaseDetail(db: Db, caseId: string): Promise<CaseDetail
 }
 
 /** The return's lines in filing order. */
-export async function findLineItems(db: Db, returnId: string): Promise<{ line_no: number; line_code: string; amount: string }[]> {
-  return db.query(`SELECT line_no, line_code, amount FROM line_item WHERE return_id = $1 ORDER BY line_no`, [returnId]);
+export async function findLineItems(db: Db, returnId: string): Promise<{ lineNo: number; lineCode: string; amount: string }[]> {
+  return db.query(`SELECT line_no AS "lineNo", line_code AS "lineCode", amount FROM line_item WHERE return_id = $1 ORDER BY line_no`, [returnId]);
 }
 
-/** A case event with its actor's name. */
-export interface CaseEventRow {
-  id: string;
-  at: Date;
-  kind: string;
-  actor_name: string | null;
-  from_state: CaseState | null;
-  to_state: CaseState | null;
-  detail: Record<string, unknown>;
-}
+/** A case event (the entity's fields) with its actor's name. */
+export type CaseEventRecord = Pick<CaseEvent, 'id' | 'at' | 'kind' | 'detail'> & {
+  actorName: string | null;
+  fromState: CaseState | null;
+  toState: CaseState | null;
+};
 
 /** The case's history, oldest first. */
-export async function findCaseEvents(db: Db, caseId: string): Promise<CaseEventRow[]> {
+export async function findCaseEvents(db: Db, caseId: string): Promise<CaseEventRecord[]> {
   return db.query(
-    `SELECT e.id::text AS id, e.at, e.kind, u.display_name AS actor_name, e.from_state, e.to_state, e.detail
+    `SELECT e.id::text AS id, e.at, e.kind, u.display_name AS "actorName", e.from_state AS "fromState", e.to_state AS "toState", e.detail
        FROM case_event e LEFT JOIN app_user u ON u.id = e.actor_id
       WHERE e.case_id = $1 ORDER BY e.at, e.id`,
     [caseId],
@@ -106,19 +98,13 @@ export async function userNames(db: Db, ids: string[]): Promise<Map<string, stri
   return new Map(rows.map((r) => [r.id, r.display_name]));
 }
 
-/** A note with its author's name. */
-export interface CaseNoteRow {
-  id: string;
-  at: Date;
-  author_id: string;
-  author_name: string;
-  text: string;
-}
+/** A note (the entity's fields) with its author's name. */
+export type CaseNoteRecord = Pick<CaseNote, 'id' | 'at' | 'authorId' | 'text'> & { authorName: string };
 
 /** The case's notes, oldest first. */
-export async function findCaseNotes(db: Db, caseId: string): Promise<CaseNoteRow[]> {
+export async function findCaseNotes(db: Db, caseId: string): Promise<CaseNoteRecord[]> {
   return db.query(
-    `SELECT n.id::text AS id, n.at, n.author_id, u.display_name AS author_name, n.text
+    `SELECT n.id::text AS id, n.at, n.author_id AS "authorId", u.display_name AS "authorName", n.text
        FROM case_note n JOIN app_user u ON u.id = n.author_id
       WHERE n.case_id = $1 ORDER BY n.at, n.id`,
     [caseId],
@@ -126,10 +112,10 @@ export async function findCaseNotes(db: Db, caseId: string): Promise<CaseNoteRow
 }
 
 /** Appends a note; returns it with its author's name. */
-export async function insertCaseNote(db: Db, caseId: string, authorId: string, text: string): Promise<CaseNoteRow> {
+export async function insertCaseNote(db: Db, caseId: string, authorId: string, text: string): Promise<CaseNoteRecord> {
   const r = await db.query(
     `WITH n AS (INSERT INTO case_note (case_id, author_id, text) VALUES ($1, $2, $3) RETURNING id, at, author_id, text)
-     SELECT n.id::text AS id, n.at, n.author_id, u.display_name AS author_name, n.text FROM n JOIN app_user u ON u.id = n.author_id`,
+     SELECT n.id::text AS id, n.at, n.author_id AS "authorId", u.display_name AS "authorName", n.text FROM n JOIN app_user u ON u.id = n.author_id`,
     [caseId, authorId, text],
   );
   return r[0];
@@ -139,21 +125,21 @@ export async function insertCaseNote(db: Db, caseId: string, authorId: string, t
  * Letters kept with the case, from the letters feature's `letter` table when it exists
  * (the case screen works before that feature is installed, and after).
  */
-export async function findCaseLetters(db: Db, caseId: string): Promise<{ id: string; kind: string; created_at: Date }[]> {
+export async function findCaseLetters(db: Db, caseId: string): Promise<{ id: string; kind: string; createdAt: Date }[]> {
   const t = await db.query(`SELECT to_regclass('public.letter') IS NOT NULL AS present`);
   if (!t[0].present) return [];
-  return db.query(`SELECT id::text AS id, kind, created_at FROM letter WHERE case_id = $1 ORDER BY created_at`, [caseId]);
+  return db.query(`SELECT id::text AS id, kind, created_at AS "createdAt" FROM letter WHERE case_id = $1 ORDER BY created_at`, [caseId]);
 }
 
 /** The full TIN and taxpayer of a case, or null. */
-export async function findCaseTin(db: Db, caseId: string): Promise<{ tin: string; taxpayer_id: string } | null> {
-  const r = await db.query(`SELECT t.tin, t.id AS taxpayer_id FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`, [caseId]);
+export async function findCaseTin(db: Db, caseId: string): Promise<{ tin: string; taxpayerId: string } | null> {
+  const r = await db.query(`SELECT t.tin, t.id AS "taxpayerId" FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`, [caseId]);
   return r[0] ?? null;
 }
 
 /** Active examiners, by name. */
-export async function findExaminers(db: Db): Promise<{ id: string; username: string; display_name: string }[]> {
-  return db.query(`SELECT id, username, display_name FROM app_user WHERE role = 'examiner' AND active ORDER BY display_name, username`);
+export async function findExaminers(db: Db): Promise<{ id: string; username: string; displayName: string }[]> {
+  return db.query(`SELECT id, username, display_name AS "displayName" FROM app_user WHERE role = 'examiner' AND active ORDER BY display_name, username`);
 }
 
 /** Loads a case FOR UPDATE inside a transaction, or null. */

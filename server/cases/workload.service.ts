@@ -5,29 +5,24 @@
  */
 import type { DataSource } from 'typeorm';
 import type { Workload } from '../../shared/case-api';
+import { today } from '../clock';
 import { countUnassigned, workloadCounts } from './workload.repository';
 
-/** Today's date as YYYY-MM-DD in the server's time zone (due dates are calendar dates). */
-function today(now = new Date()): string {
-  const p = (n: number) => String(n).padStart(2, '0');
-  return `${now.getFullYear()}-${p(now.getMonth() + 1)}-${p(now.getDate())}`;
-}
-
-/** Per-examiner counts and the open cases nobody holds. */
-export async function getWorkload(ds: DataSource, now = new Date()): Promise<Workload> {
-  const asOf = today(now);
+/** Per-examiner counts and the open cases nobody holds, as of the office clock's today (server/clock.ts). */
+export async function getWorkload(ds: DataSource, asOf: string = today()): Promise<Workload> {
   const [rows, unassigned] = await Promise.all([workloadCounts(ds, asOf), countUnassigned(ds)]);
   return {
     examiners: rows.map((r) => ({
       examinerId: r.id,
       username: r.username,
-      displayName: r.display_name,
+      displayName: r.displayName,
       assigned: r.assigned,
-      inReview: r.in_review,
-      awaitingReply: r.awaiting_reply,
+      inReview: r.inReview,
+      awaitingReply: r.awaitingReply,
       overdue: r.overdue,
-      open: r.assigned + r.in_review + r.awaiting_reply,
-      finished30d: r.finished_30d,
+      deadlinesNear: r.deadlinesNear,
+      open: r.assigned + r.inReview + r.awaitingReply,
+      finished30d: r.finished30d,
     })),
     unassigned,
     asOf,

@@ -3,11 +3,10 @@
  * caller's transaction (EntityManager) so writes commit together with the case's move.
  * Dates come back as text (`::text`) so a calendar date never shifts with a time zone.
  */
-import type { DataSource, EntityManager } from 'typeorm';
+import type { EntityManager } from 'typeorm';
 import type { DocumentRequestState, LetterKind, ReplyFileType } from '../../shared/letters';
 import type { ScoreBreakdown } from '../../shared/scoring/breakdown';
-
-type Db = DataSource | EntityManager;
+import type { Db } from '../db/db';
 
 /** What letters need to know about a case, its return and its taxpayer. */
 export interface CaseContext {
