@@ -1,4 +1,4 @@
-import { Link, usePathname } from 'expo-router';
+import { Link, usePathname, type Href } from 'expo-router';
 import type { ReactNode } from 'react';
 import { Pressable, ScrollView, View } from 'react-native';
 import { colours, MAX_CONTENT_WIDTH, space } from '../theme';
@@ -8,7 +8,8 @@ import { Txt } from './text';
 
 /** One navigation entry. */
 export interface NavItem {
-  href: string;
+  /** A screen of the app (checked against app/ when typed routes are generated). */
+  href: Extract<Href, string>;
   label: string;
 }
 
@@ -35,7 +36,7 @@ export function AppShell({ nav, accessory, children }: AppShellProps) {
   const pathname = usePathname();
   const isActive = (href: string) => (href === '/' ? pathname === '/' : pathname.startsWith(href));
   const navLinks = nav.map((n) => (
-    <Link key={n.href} href={n.href as never} asChild>
+    <Link key={n.href} href={n.href} asChild>
       <Pressable
         role="link"
         aria-current={isActive(n.href) ? 'page' : undefined}

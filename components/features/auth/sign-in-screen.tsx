@@ -18,7 +18,7 @@ export function SignInScreen() {
   const signIn = useSignIn();
   const form = useForm<LoginRequest>({ resolver: zodResolver(LoginRequestSchema), defaultValues: { username: '', password: '' } });
 
-  if (session.data) return <Redirect href={START_PATH[session.data.user.role] as never} />;
+  if (session.data) return <Redirect href={START_PATH[session.data.user.role]} />;
 
   const submit = form.handleSubmit((values) => signIn.mutate(values));
   return (

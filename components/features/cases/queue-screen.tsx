@@ -41,7 +41,7 @@ function useQueueParams() {
   const set = (next: Partial<Params>, keepPage = false) => {
     const merged: Params = { ...p, ...next, ...(keepPage ? {} : { page: undefined }) };
     // setParams keeps keys it is not given; empty values clear them.
-    router.setParams(Object.fromEntries(Object.entries({ state: undefined, sort: undefined, page: undefined, q: undefined, taxYear: undefined, activity: undefined, assignee: undefined, batch: undefined, ...merged }).map(([k, v]) => [k, v ?? ''])) as never);
+    router.setParams(Object.fromEntries(Object.entries({ state: undefined, sort: undefined, page: undefined, q: undefined, taxYear: undefined, activity: undefined, assignee: undefined, batch: undefined, ...merged }).map(([k, v]) => [k, v ?? ''])));
   };
   return { p, set };
 }
@@ -77,7 +77,7 @@ function TableHeader() {
 
 function TableRow({ c }: { c: CaseListItem }) {
   return (
-    <Link href={`/cases/${c.id}` as never} asChild>
+    <Link href={{ pathname: '/cases/[id]', params: { id: c.id } }} asChild>
       {/* No accessibilityLabel: the link is named by the text it shows, so what a voice user
           reads on screen is what they can say (WCAG 2.5.3). */}
       <Pressable
@@ -131,7 +131,7 @@ function TableRow({ c }: { c: CaseListItem }) {
 
 function CaseCard({ c }: { c: CaseListItem }) {
   return (
-    <Link href={`/cases/${c.id}` as never} asChild>
+    <Link href={{ pathname: '/cases/[id]', params: { id: c.id } }} asChild>
       {/* Named by its visible text (WCAG 2.5.3), as the table row is. */}
       <Pressable role="link" testID={`queue-card-${c.returnRef}`}>
         <Card style={{ gap: space.sm, padding: space.md, borderLeftWidth: 4, borderLeftColor: colours.brass }}>

@@ -2,6 +2,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useEffect } from 'react';
 import { useForm } from 'react-hook-form';
 import { View } from 'react-native';
+import type { z } from 'zod';
 import { NewProfileSchema, type NewProfileInput, type Performance, type ProfileVersion } from '../../../shared/scoring/profile-api';
 import { COMPONENT_LABELS, COMPONENTS } from '../../../shared/scoring/settings';
 import { colours, space } from '../../theme';
@@ -17,8 +18,8 @@ const num = (v: string) => (v.trim() === '' || Number.isNaN(Number(v)) ? (v as u
 function WeightsForm({ active, performance }: { active: ProfileVersion; performance: Performance | undefined }) {
   const add = useAddProfile();
   const wide = useIsWide();
-  const form = useForm<NewProfileInput>({
-    resolver: zodResolver(NewProfileSchema) as never,
+  const form = useForm<z.input<typeof NewProfileSchema>, unknown, NewProfileInput>({
+    resolver: zodResolver(NewProfileSchema),
     defaultValues: { settings: active.settings, note: '', activate: true },
   });
   useEffect(() => form.reset({ settings: active.settings, note: '', activate: true }), [active.version]); // eslint-disable-line react-hooks/exhaustive-deps

@@ -282,7 +282,7 @@ export function WorkloadScreen() {
               </Txt>
             </View>
             <View style={{ flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' }}>
-              <Link href={'/queue?state=open&assignee=none' as never} asChild>
+              <Link href={{ pathname: '/queue', params: { state: 'open', assignee: 'none' } }} asChild>
                 <Pressable accessibilityRole="link" style={{ paddingVertical: space.sm }}>
                   <Txt bold tone="brass">
                     See them in the queue →
