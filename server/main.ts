@@ -10,6 +10,7 @@ import type { DataSource } from 'typeorm';
 import { createApp } from './app';
 import { cleanUploadSpool } from './batches/intake/upload-spool';
 import { recoverInterruptedIntake } from './batches/batch.service';
+import { fillMissingDeadlines } from './cases/case-deadline.service';
 import { ConfigError, loadConfig } from './config';
 import { createDataSource } from './db/data-source';
 import { createMailer, type Mailer } from './mail/mailer';
@@ -48,6 +49,9 @@ async function main() {
   for (const b of await recoverInterruptedIntake(dataSource)) {
     console.log(`[server] batch ${b.id} (${b.fileNames.length} file${b.fileNames.length === 1 ? '' : 's'}) was left unfinished by a stop; marked rejected, nothing of it kept; its file may be uploaded again`);
   }
+  // Cases opened before assessment deadlines were kept (issue 13) get theirs now.
+  const filled = await fillMissingDeadlines(dataSource);
+  if (filled) console.log(`[server] assessment deadlines worked out for ${filled} earlier case${filled === 1 ? '' : 's'}`);
   boss = createBoss(config.DATABASE_URL, 'server');
   boss.on('error', (e) => console.error('[server] queue error:', e.message));
   await boss.start();

@@ -1,0 +1,62 @@
+/**
+ * SQL behind assessment deadlines (issue 13): the facts the rule in
+ * shared/returns/assessment-deadline.ts needs per case, and the stored result on exam_case
+ * (assess_by, assess_basis), which the queue filters and sorts on through idx_case_assess_by.
+ */
+import type { Db } from '../db/db';
+
+/** What the rule needs about one case's return; money as numeric text. */
+export interface DeadlineFacts {
+  caseId: string;
+  taxYear: number;
+  /** The filing date: the return's filed_on, or else the date its batch was received. */
+  filedOn: string | null;
+  /** Gross income the return reported: wages + interest + business receipts. */
+  grossIncome: string;
+  /** Income third-party statements show beyond the return's own lines, summed over kinds. */
+  statementExcess: string;
+  /** Income the examiner's corrected figures add, when the case was closed adjusted (null: none). */
+  correctedExcess: string | null;
+}
+
+/**
+ * The facts for some cases. Statements are matched by TIN and tax year, each kind against
+ * its income line (shared/returns/line-codes.ts STATEMENT_KIND_LINE); only the part of a
+ * kind's statements above what the return reported counts as left out.
+ */
+export async function findDeadlineFacts(db: Db, caseIds: string[]): Promise<DeadlineFacts[]> {
+  if (!caseIds.length) return [];
+  const hasCorrections = (await db.query(`SELECT to_regclass('public.case_correction') IS NOT NULL AS present`))[0].present as boolean;
+  return db.query(
+    `SELECT c.id AS "caseId", r.tax_year AS "taxYear",
+            to_char(coalesce(r.filed_on, b.created_at::date), 'YYYY-MM-DD') AS "filedOn",
+            (r.total_wages + r.total_interest + r.total_receipts)::text AS "grossIncome",
+            coalesce((SELECT sum(greatest(0, s.amount - CASE s.kind WHEN 'wages' THEN r.total_wages WHEN 'interest' THEN r.total_interest ELSE r.total_receipts END))
+                        FROM (SELECT kind, sum(amount) AS amount FROM third_party_statement st
+                               WHERE st.tin = t.tin AND st.tax_year = r.tax_year GROUP BY kind) s), 0)::text AS "statementExcess",
+            ${hasCorrections ? `(SELECT k.income_added::text FROM case_correction k WHERE k.case_id = c.id)` : 'NULL'} AS "correctedExcess"
+       FROM exam_case c
+       JOIN tax_return r ON r.id = c.return_id
+       JOIN taxpayer t ON t.id = c.taxpayer_id
+       JOIN filing_batch b ON b.id = r.batch_id
+      WHERE c.id = ANY($1::uuid[])`,
+    [caseIds],
+  );
+}
+
+/** Stores computed deadlines on their cases. */
+export async function storeDeadlines(db: Db, rows: { caseId: string; assessBy: string | null; basis: string }[]): Promise<void> {
+  if (!rows.length) return;
+  await db.query(
+    `UPDATE exam_case c SET assess_by = u.assess_by, assess_basis = u.basis
+       FROM unnest($1::uuid[], $2::date[], $3::text[]) AS u(id, assess_by, basis)
+      WHERE c.id = u.id`,
+    [rows.map((r) => r.caseId), rows.map((r) => r.assessBy), rows.map((r) => r.basis)],
+  );
+}
+
+/** Ids of cases with no stored deadline yet (opened before the deadline was kept), at most `limit`. */
+export async function findCasesWithoutDeadline(db: Db, limit = 5000): Promise<string[]> {
+  const rows: { id: string }[] = await db.query(`SELECT id FROM exam_case WHERE assess_basis IS NULL LIMIT $1`, [limit]);
+  return rows.map((r) => r.id);
+}
