@@ -114,7 +114,7 @@ describe('access log', () => {
     const b = await loadScoredBatch(ctx.dataSource, { seed: 'access-log-types', returns: 20, plantShare: 0.1 });
     const added = await sup.agent.post('/api/scoring/profiles').set('X-CSRF-Token', sup.csrf).send({ settings: DEFAULT_SCORING_SETTINGS, note: 'same weights, second version', activate: false });
     expect(added.status).toBe(201);
-    expect((await sup.agent.post(`/api/batches/${b.batchId}/rescore`).set('X-CSRF-Token', sup.csrf).send({ version: 2 })).status).toBe(202);
+    expect((await sup.agent.post(`/api/batches/${b.batchId}/rescore`).set('X-CSRF-Token', sup.csrf).send({ version: added.body.version })).status).toBe(202);
     expect((await clerk.agent.get(`/api/batches/${b.batchId}/report.xlsx`)).status).toBe(200);
     const rows: { record_type: string }[] = await ctx.dataSource.query(`SELECT DISTINCT record_type FROM access_log WHERE record_id = $1`, [b.batchId]);
     expect(rows).toEqual([{ record_type: 'filing_batch' }]);
