@@ -35,14 +35,25 @@ export function sniffType(bytes: Buffer): ReplyFileType | null {
 const EXTENSION: Record<ReplyFileType, string> = { 'application/pdf': '.pdf', 'image/jpeg': '.jpg', 'image/png': '.png' };
 
 /**
- * A safe display name: the last path segment, without control or quote characters, at most
- * 120 characters, with an extension that matches the real type.
+ * The name as sent, reduced to its last path segment without control or quote characters;
+ * '' when nothing usable is left ("", "..", "dir/").
  */
-export function cleanFileName(original: string, type: ReplyFileType, index: number): string {
+function usableName(original: string): string {
   const base = original.replace(/\\/g, '/').split('/').pop() ?? '';
   // eslint-disable-next-line no-control-regex
-  let name = base.replace(/[\u0000-\u001f\u007f"<>|*?:]/g, '').replace(/\s+/g, ' ').trim();
-  if (!name || name === '.' || name === '..') name = `document-${index + 1}`;
+  const name = base.replace(/[\u0000-\u001f\u007f"<>|*?:]/g, '').replace(/\s+/g, ' ').trim();
+  return name === '.' || name === '..' ? '' : name;
+}
+
+/**
+ * A safe display name: the last path segment, without control or quote characters, at most
+ * 120 characters, with an extension that matches the real type. A part whose name leaves
+ * nothing usable ("", "..", "dir/") is named `document-N` (N its place in the reply), never
+ * dropped: a reply is stored whole or not at all.
+ */
+export function cleanFileName(original: string, type: ReplyFileType, index: number): string {
+  let name = usableName(original);
+  if (!name) name = `document-${index + 1}`;
   const ext = EXTENSION[type];
   const hasRightExt = type === 'image/jpeg' ? /\.jpe?g$/i.test(name) : name.toLowerCase().endsWith(ext);
   if (!hasRightExt) name = `${name.replace(/\.[A-Za-z0-9]{1,5}$/, '')}${ext}`;
@@ -63,7 +74,7 @@ export function checkReplyFiles(files: readonly IncomingFile[]): CheckedFile[] {
   const problems: string[] = [];
   const out: CheckedFile[] = [];
   files.forEach((f, i) => {
-    const shown = f.originalName || `File ${i + 1}`;
+    const shown = usableName(f.originalName).slice(0, 120) || `File ${i + 1}`;
     if (f.bytes.length === 0) return void problems.push(`${shown} is empty.`);
     if (f.bytes.length > REPLY_MAX_FILE_BYTES) return void problems.push(`${shown} is larger than ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB.`);
     const type = sniffType(f.bytes);

@@ -4,6 +4,7 @@
  * unknown links 404, and the case back in review with an actor-less 'reply-received' event.
  */
 import { randomBytes } from 'node:crypto';
+import { Client } from 'pg';
 import request from 'supertest';
 import { REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../shared/letters';
 import { signIn, type SignedIn } from '../helpers/auth';
@@ -27,7 +28,7 @@ describe('reply links', () => {
 
   beforeAll(async () => {
     ctx = await createTestContext();
-    await loadScoredBatch(ctx.dataSource, { seed: 'replies', returns: 200, plantShare: 0.1 });
+    await loadScoredBatch(ctx.dataSource, { seed: 'replies', returns: 400, plantShare: 0.1 });
     examiner = await signIn(ctx, 'examiner');
   });
   afterAll(async () => {
@@ -218,6 +219,118 @@ describe('reply links', () => {
     const ok = await upload(token, [{ name: 'receipts', bytes: PDF, type: 'application/octet-stream' }]);
     expect(ok.status).toBe(201);
     expect(ok.body.received[0].fileName).toBe('receipts.pdf');
+  });
+
+  /** A multipart body built by hand: test clients clean file names, the point here is the names as sent. */
+  function rawMultipart(parts: { filename: string; type: string; bytes: Buffer }[]): { body: Buffer; contentType: string } {
+    const boundary = `----plumbline-${randomBytes(8).toString('hex')}`;
+    const chunks: Buffer[] = [];
+    for (const p of parts) {
+      chunks.push(Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="files"; filename="${p.filename}"\r\nContent-Type: ${p.type}\r\n\r\n`), p.bytes, Buffer.from('\r\n'));
+    }
+    chunks.push(Buffer.from(`--${boundary}--\r\n`));
+    return { body: Buffer.concat(chunks), contentType: `multipart/form-data; boundary=${boundary}` };
+  }
+  const sendRaw = (token: string, parts: { filename: string; type: string; bytes: Buffer }[]) => {
+    const { body, contentType } = rawMultipart(parts);
+    return request(ctx.app).post(`/api/replies/${token}`).set('Content-Type', contentType).send(body);
+  };
+
+  it('keeps a part whose name is empty, ".." or "dir/" under a safe generated name: every file is stored (issue 12)', async () => {
+    const { token, requestId } = await requestSent();
+    const res = await sendRaw(token, [
+      { filename: '..', type: 'application/pdf', bytes: PDF },
+      { filename: 'dir/', type: 'image/png', bytes: PNG },
+      { filename: '', type: 'image/jpeg', bytes: JPEG },
+      { filename: 'letter.pdf', type: 'application/pdf', bytes: PDF },
+    ]);
+    expect(res.status).toBe(201);
+    expect(res.body.received.map((f: { fileName: string }) => f.fileName)).toEqual(['document-1.pdf', 'document-2.png', 'document-3.jpg', 'letter.pdf']);
+    const stored = await ctx.dataSource.query(`SELECT file_name, size FROM reply_upload WHERE document_request_id = $1 ORDER BY file_name`, [requestId]);
+    expect(stored).toEqual([
+      { file_name: 'document-1.pdf', size: PDF.length },
+      { file_name: 'document-2.png', size: PNG.length },
+      { file_name: 'document-3.jpg', size: JPEG.length },
+      { file_name: 'letter.pdf', size: PDF.length },
+    ]);
+  });
+
+  it('stores every file of a reply or none, and after none the link stays usable (issue 12)', async () => {
+    const { token, requestId } = await requestSent();
+    const count = async () => (await ctx.dataSource.query(`SELECT count(*)::int AS n FROM reply_upload WHERE document_request_id = $1`, [requestId]))[0].n;
+    const state = async () => (await ctx.dataSource.query(`SELECT state FROM document_request WHERE id = $1`, [requestId]))[0].state;
+
+    // A refused part (not a document, and with an unusable name): nothing stored, link open.
+    const refused = await sendRaw(token, [
+      { filename: 'good.pdf', type: 'application/pdf', bytes: PDF },
+      { filename: '..', type: 'application/octet-stream', bytes: Buffer.from('MZ not a document') },
+    ]);
+    expect(refused.status).toBe(422);
+    expect(refused.body.problems).toEqual(['File 2 is not a PDF, JPEG or PNG file.']);
+    expect(await count()).toBe(0);
+    expect(await state()).toBe('sent');
+
+    // A fault while storing the second file (a trigger stands in for a full disk): the first is
+    // rolled back with it, the link stays usable, and nothing of the token reaches the log.
+    const asOwner = async (sql: string) => {
+      const c = new Client({ connectionString: ctx.db.ownerUrl });
+      await c.connect();
+      try {
+        await c.query(sql);
+      } finally {
+        await c.end();
+      }
+    };
+    await asOwner(`CREATE FUNCTION test_refuse_upload() RETURNS trigger LANGUAGE plpgsql AS $$
+      BEGIN IF NEW.file_name = 'second.pdf' THEN RAISE EXCEPTION 'disk full (test)'; END IF; RETURN NEW; END $$;
+      CREATE TRIGGER test_refuse_upload BEFORE INSERT ON reply_upload FOR EACH ROW EXECUTE FUNCTION test_refuse_upload()`);
+    const logged: string[] = [];
+    const spy = jest.spyOn(console, 'error').mockImplementation((...args: unknown[]) => void logged.push(args.map(String).join(' ')));
+    let fault;
+    try {
+      fault = await sendRaw(token, [
+        { filename: 'first.pdf', type: 'application/pdf', bytes: PDF },
+        { filename: 'second.pdf', type: 'application/pdf', bytes: PDF },
+      ]);
+    } finally {
+      spy.mockRestore();
+      await asOwner(`DROP TRIGGER test_refuse_upload ON reply_upload; DROP FUNCTION test_refuse_upload()`);
+    }
+    expect(fault.status).toBe(500);
+    expect(await count()).toBe(0);
+    expect(await state()).toBe('sent');
+    expect(logged.join('\n')).toMatch(/POST \/api\/replies\/:token failed/);
+    expect(logged.join('\n')).not.toContain(token);
+    expect((await request(ctx.app).get(`/api/replies/${token}`)).status).toBe(200);
+
+    // Sent again: every file is stored.
+    const ok = await sendRaw(token, [
+      { filename: 'first.pdf', type: 'application/pdf', bytes: PDF },
+      { filename: 'second.pdf', type: 'application/pdf', bytes: PDF },
+    ]);
+    expect(ok.status).toBe(201);
+    expect(await count()).toBe(2);
+    expect(await state()).toBe('answered');
+  });
+
+  it('answers a broken multipart body with 400 and writes no token to the log (issue 12)', async () => {
+    const { token } = await requestSent();
+    const logged: string[] = [];
+    const spies = (['error', 'warn', 'log'] as const).map((k) => jest.spyOn(console, k).mockImplementation((...args: unknown[]) => void logged.push(args.map(String).join(' '))));
+    try {
+      const cut = await request(ctx.app)
+        .post(`/api/replies/${token}`)
+        .set('Content-Type', 'multipart/form-data; boundary=XYZ')
+        .send('--XYZ\r\nContent-Disposition: form-data; name="files"; filename="a.pdf"\r\nContent-Type: application/pdf\r\n\r\n%PDF-1.4 cut short');
+      expect(cut.status).toBe(400);
+      expect(cut.body.error).toMatch(/not a readable multipart form/);
+      const noBoundary = await request(ctx.app).post(`/api/replies/${token}`).set('Content-Type', 'multipart/form-data').send('x');
+      expect(noBoundary.status).toBe(400);
+    } finally {
+      spies.forEach((s) => s.mockRestore());
+    }
+    expect(logged.join('\n')).not.toContain(token);
+    expect((await request(ctx.app).get(`/api/replies/${token}`)).status).toBe(200);
   });
 
   it('accepts exactly one of two replies racing on the same link', async () => {

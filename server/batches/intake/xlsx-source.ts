@@ -184,10 +184,14 @@ export class XlsxReader {
     const where = this.label;
     const h: XmlHandler = {
       capturing: false,
-      open(name, _attrs, self) {
+      open(name, attrs, self) {
         if (name === 'si') {
           inSi = true;
           text = '';
+        } else if (name === 'sst') {
+          // Excel declares the number of entries: a file over the cap is refused before reading them.
+          const declared = Number(attr(attrs, 'uniqueCount') ?? 0);
+          if (declared > caps.maxSharedStrings) throw capError('maxSharedStrings', caps, where);
         } else if (name === 'rPh') {
           if (!self) phonetic++;
         } else if (name === 't' && inSi && phonetic === 0 && !self) h.capturing = true;

@@ -44,17 +44,27 @@ export function decodeXml(s: string): string {
  * when `anyPrefix`), decoded; undefined when absent.
  */
 export function attr(attrs: string, name: string, anyPrefix = false): string | undefined {
+  if (attrs.indexOf(name) < 0) return undefined;
   // Fast path: the usual ` name="value"`.
-  const key = ` ${name}="`;
-  const at = attrs.indexOf(key);
-  if (at >= 0 && !anyPrefix) {
-    const end = attrs.indexOf('"', at + key.length);
-    if (end >= 0) return decodeXml(attrs.slice(at + key.length, end));
+  if (!anyPrefix) {
+    const key = ` ${name}="`;
+    const at = attrs.indexOf(key);
+    if (at >= 0) {
+      const end = attrs.indexOf('"', at + key.length);
+      if (end >= 0) return decodeXml(attrs.slice(at + key.length, end));
+    }
   }
-  const re = anyPrefix ? new RegExp(`(?:^|\\s)(?:[A-Za-z_][\\w.-]*:)?${name}\\s*=\\s*(?:"([^"]*)"|'([^']*)')`) : new RegExp(`(?:^|\\s)${name}\\s*=\\s*(?:"([^"]*)"|'([^']*)')`);
+  const cacheKey = anyPrefix ? `*${name}` : name;
+  let re = ATTR_PATTERNS.get(cacheKey);
+  if (!re) {
+    re = new RegExp(`(?:^|\\s)${anyPrefix ? '(?:[A-Za-z_][\\w.-]*:)?' : ''}${name}\\s*=\\s*(?:"([^"]*)"|'([^']*)')`);
+    ATTR_PATTERNS.set(cacheKey, re);
+  }
   const m = re.exec(attrs);
   return m ? decodeXml(m[1] ?? m[2]) : undefined;
 }
+
+const ATTR_PATTERNS = new Map<string, RegExp>();
 
 /** Feeds text chunks through the tokenizer; a token longer than `maxToken` characters is a CapError. */
 export class XmlScanner {
@@ -141,10 +151,16 @@ function tagEnd(s: string, from: number): number {
   for (;;) {
     const gt = s.indexOf('>', i);
     if (gt < 0) return -1;
-    const dq = s.indexOf('"', i);
-    const sq = s.indexOf("'", i);
-    const q = dq >= 0 && (sq < 0 || dq < sq) ? dq : sq;
-    if (q < 0 || q > gt) return gt;
+    // Quotes are looked for only up to that '>' (tags are short; the chunk is not).
+    let q = -1;
+    for (let k = i; k < gt; k++) {
+      const c = s.charCodeAt(k);
+      if (c === 34 || c === 39) {
+        q = k;
+        break;
+      }
+    }
+    if (q < 0) return gt;
     const close = s.indexOf(s[q], q + 1);
     if (close < 0) return -1;
     i = close + 1;
