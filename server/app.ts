@@ -29,7 +29,8 @@ import { apiNotFound, errorHandler } from './http/errors';
 export function createApp(deps: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // Only a configured proxy may speak for the client; otherwise req.ip is the socket address.
+  app.set('trust proxy', deps.config.TRUST_PROXY);
   app.use(
     helmet({
       contentSecurityPolicy: {

@@ -2,6 +2,7 @@
  * The access log contract: who viewed or changed which taxpayer's data, when.
  */
 import { z } from 'zod';
+import { noControlChars } from './text';
 import { RoleSchema } from './roles';
 
 export const ACCESS_ACTIONS = ['view', 'change', 'export', 'sign-in', 'sign-out', 'sign-in-refused', 'reveal-tin'] as const;
@@ -37,8 +38,8 @@ export type AccessLogEntry = z.infer<typeof AccessLogEntrySchema>;
 const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use YYYY-MM-DD');
 
 export const AccessLogQuerySchema = z.object({
-  user: z.string().trim().optional(),
-  taxpayer: z.string().trim().optional(),
+  user: z.string().trim().check(noControlChars()).optional(),
+  taxpayer: z.string().trim().check(noControlChars()).optional(),
   from: isoDate.optional(),
   to: isoDate.optional(),
   action: AccessActionSchema.optional(),

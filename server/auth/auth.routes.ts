@@ -1,4 +1,4 @@
-import type { Request } from 'express';
+import type { Request, RequestHandler } from 'express';
 import type { PassportStatic } from 'passport';
 import { LoginRequestSchema, type SessionResponse } from '../../shared/auth';
 import { ROLES } from '../../shared/roles';
@@ -30,7 +30,15 @@ export function authRoutes(deps: Pick<AppDeps, 'dataSource'> & { throttle: Login
   const r = secureRouter();
   const ds = deps.dataSource;
 
-  r.post('/auth/login', publicAccess, validate(LoginRequestSchema), async (req, res) => {
+  // JSON only: a page on another site can post a form (urlencoded, multipart or text/plain)
+  // to this route without a preflight and sign the browser in to an account of its choosing
+  // (login CSRF); a cross-site application/json request needs a CORS preflight we never grant.
+  const jsonOnly: RequestHandler = (req, _res, next) => {
+    if (!req.is('application/json')) return next(new HttpError(415, 'Sign-in takes a JSON body (Content-Type: application/json) with username and password.'));
+    next();
+  };
+
+  r.post('/auth/login', publicAccess, jsonOnly, validate(LoginRequestSchema), async (req, res) => {
     const { username, password } = req.body as { username: string; password: string };
     const address = req.ip ?? 'unknown';
     const attempt = deps.throttle.begin(username, address);
