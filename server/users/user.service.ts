@@ -8,8 +8,8 @@ import type { CreateUserInput, UpdateUserInput, UserDto } from '../../shared/use
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
-import { User } from './user.entity';
-import { findUserById, listUsers } from './user.repository';
+import type { User } from './user.entity';
+import { deleteSessionsOf, findUserById, insertUser, listUsers, setPasswordHash, updateUserFields, userNameTaken } from './user.repository';
 
 /** bcrypt cost: ~60 ms a hash on this class of machine (common practice, no source). */
 export const BCRYPT_ROUNDS = 10;
@@ -25,9 +25,8 @@ export async function getUsers(ds: DataSource): Promise<UserDto[]> {
 export async function createUser(ds: DataSource, audit: StaffAudit, input: CreateUserInput): Promise<UserDto> {
   const hash = await bcrypt.hash(input.password, BCRYPT_ROUNDS);
   return ds.transaction(async (m) => {
-    const exists = await m.getRepository(User).existsBy({ username: input.username });
-    if (exists) throw new HttpError(409, `The user name "${input.username}" is taken; choose another.`);
-    const saved = await m.getRepository(User).save(m.getRepository(User).create({ username: input.username, displayName: input.displayName, role: input.role, passwordHash: hash, active: true }));
+    if (await userNameTaken(m, input.username)) throw new HttpError(409, `The user name "${input.username}" is taken; choose another.`);
+    const saved = await insertUser(m, input, hash);
     await recordAccess(m, audit, { action: 'change', recordType: 'user', recordId: saved.id, detail: `created ${input.username} as ${input.role}` });
     return toUserDto(saved);
   });
@@ -41,14 +40,14 @@ export async function updateUser(ds: DataSource, audit: StaffAudit, id: string, 
     throw new HttpError(409, 'You cannot deactivate yourself or remove your own administrator role; ask another administrator.');
   }
   return ds.transaction(async (m) => {
-    await m.getRepository(User).update({ id }, input);
+    const updated = await updateUserFields(m, id, input);
     const changes = Object.entries(input).map(([k, v]) => `${k}=${v}`).join(', ');
     await recordAccess(m, audit, { action: 'change', recordType: 'user', recordId: id, detail: `${user.username}: ${changes}` });
     if (input.active === false) {
       // Signing out a deactivated user everywhere: drop their sessions.
-      await m.query(`DELETE FROM user_session WHERE sess::jsonb #>> '{passport,user}' = $1`, [id]);
+      await deleteSessionsOf(m, id);
     }
-    return toUserDto((await m.getRepository(User).findOneByOrFail({ id })));
+    return toUserDto(updated);
   });
 }
 
@@ -57,8 +56,8 @@ export async function resetPassword(ds: DataSource, audit: StaffAudit, id: strin
   if (!user) throw new HttpError(404, 'No such user.');
   const hash = await bcrypt.hash(password, BCRYPT_ROUNDS);
   await ds.transaction(async (m) => {
-    await m.getRepository(User).update({ id }, { passwordHash: hash });
-    await m.query(`DELETE FROM user_session WHERE sess::jsonb #>> '{passport,user}' = $1`, [id]);
+    await setPasswordHash(m, id, hash);
+    await deleteSessionsOf(m, id);
     await recordAccess(m, audit, { action: 'change', recordType: 'user', recordId: id, detail: `password reset for ${user.username}` });
   });
 }
