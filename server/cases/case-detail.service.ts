@@ -6,7 +6,7 @@
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
 import { MOVES_ELSEWHERE, moveLabel, type CaseActions, type CaseDetail, type CaseHistoryEntry, type Examiner } from '../../shared/case-api';
-import { CASE_STATE_LABELS, CASE_TRANSITIONS, type CaseState } from '../../shared/cases';
+import { CASE_STATE_LABELS, CASE_TRANSITIONS, isFinalState, type CaseState } from '../../shared/cases';
 import { isUuid } from '../../shared/ids';
 import { can } from '../../shared/permissions';
 import type { LineCode } from '../../shared/returns/line-codes';
@@ -26,7 +26,7 @@ export function actionsFor(actor: Pick<SessionUser, 'id' | 'role'>, state: CaseS
   return {
     canAct: acts,
     claim: state === 'open' && can(actor.role, 'workCases'),
-    assign: can(actor.role, 'assignCases') && (state === 'open' || state === 'assigned'),
+    assign: can(actor.role, 'assignCases') && !isFinalState(state),
     transitions: acts ? CASE_TRANSITIONS[state].filter((to) => !MOVES_ELSEWHERE[to]).map((to) => ({ to, label: moveLabel(state, to) })) : [],
     note: acts,
     revealTin: acts,
@@ -42,6 +42,7 @@ function summarise(e: CaseEventRecord, names: Map<string, string>): string {
   const name = (id: unknown) => (typeof id === 'string' ? (names.get(id) ?? 'an examiner no longer listed') : 'nobody');
   switch (e.kind) {
     case 'opened':
+      if (d.selection === 'random') return `Opened for random review${d.profileVersion ? ` (scoring run under profile version ${d.profileVersion})` : ''}`;
       return `Opened by scoring${d.profileVersion ? ` (profile version ${d.profileVersion})` : ''}`;
     case 'rescored':
       return `Score updated${d.profileVersion ? ` under profile version ${d.profileVersion}` : ''}`;
@@ -51,6 +52,8 @@ function summarise(e: CaseEventRecord, names: Map<string, string>): string {
       return `${who} assigned the case to ${name(d.to)}`;
     case 'reassigned':
       return `${who} reassigned the case from ${name(d.from)} to ${name(d.to)}`;
+    case 'handed-over':
+      return `${who} handed the case over from ${name(d.from)} to ${name(d.to)}; it stays ${stateWord(e.toState)}`;
     case 'document-request':
       return `${who} sent a document request; the case awaits the reply`;
     case 'referral':

@@ -271,11 +271,12 @@ describe('case workflow through the API', () => {
       ]);
     });
 
-    it('refuses a case already in review (409), a non-examiner (422), an examiner caller (403)', async () => {
-      const id = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
+    it('refuses a finished case (409), a non-examiner (422), an examiner caller (403)', async () => {
+      // A case in review or awaiting a reply can be handed over (issue 13, tests/api/case-handover.test.ts); a finished one cannot.
+      const id = await caseInState(ctx.dataSource, take(), 'closed_no_change', examiner);
       const busy = await post(supervisor, `/api/cases/${id}/assign`, { assigneeId: examiner2.user.id });
       expect(busy.status).toBe(409);
-      expect(busy.body.error).toBe('Only open or assigned cases can be given to an examiner; this one is in review.');
+      expect(busy.body.error).toBe('A finished case cannot be given to an examiner; this one is closed, no change.');
       const open = take();
       const toSup = await post(supervisor, `/api/cases/${open}/assign`, { assigneeId: supervisor.user.id });
       expect(toSup.status).toBe(422);

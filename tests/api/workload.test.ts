@@ -51,7 +51,7 @@ describe('workload and reassignment', () => {
     // One reply is past its due date.
     await ctx.dataSource.query(`UPDATE exam_case SET due_date = current_date - 3 WHERE id = $1`, [ids[4]]);
     const w = await workload();
-    expect(rowOf(w, ivo.user.id)).toEqual({ examinerId: ivo.user.id, username: 'ivo', displayName: 'Ivo Brackley', assigned: 2, inReview: 1, awaitingReply: 2, overdue: 1, open: 5, finished30d: 1 });
+    expect(rowOf(w, ivo.user.id)).toEqual({ examinerId: ivo.user.id, username: 'ivo', displayName: 'Ivo Brackley', assigned: 2, inReview: 1, awaitingReply: 2, overdue: 1, open: 5, finished30d: 1, deadlinesNear: 0 });
     expect(rowOf(w, nell.user.id)).toMatchObject({ assigned: 0, inReview: 1, awaitingReply: 0, overdue: 0, open: 1, finished30d: 0 });
     expect(w.unassigned).toBe(total - 7);
     expect(w.asOf).toMatch(/^\d{4}-\d{2}-\d{2}$/);
@@ -68,13 +68,14 @@ describe('workload and reassignment', () => {
   it('reassigns a selection to another examiner; a case not assignable is refused with its reason', async () => {
     const before = await workload();
     const ivoAssigned = (await ctx.dataSource.query(`SELECT id FROM exam_case WHERE assignee_id = $1 AND state = 'assigned' ORDER BY id`, [ivo.user.id])).map((r: { id: string }) => r.id);
-    const ivoReview = (await ctx.dataSource.query(`SELECT id FROM exam_case WHERE assignee_id = $1 AND state = 'in_review'`, [ivo.user.id]))[0].id;
+    // A finished case is refused (a case in review would be handed over: tests/api/case-handover.test.ts).
+    const ivoReview = (await ctx.dataSource.query(`SELECT id FROM exam_case WHERE assignee_id = $1 AND state = 'closed_no_change'`, [ivo.user.id]))[0].id;
     expect(ivoAssigned).toHaveLength(2);
     const res = await post(supervisor, '/api/cases/reassign', { caseIds: [...ivoAssigned, ivoReview], assigneeId: nell.user.id });
     expect(res.status).toBe(200);
     const r = BulkReassignResultSchema.parse(res.body);
     expect(r.moved.sort()).toEqual([...ivoAssigned].sort());
-    expect(r.refused).toEqual([{ id: ivoReview, reason: 'Only open or assigned cases can be given to an examiner; this one is in review.' }]);
+    expect(r.refused).toEqual([{ id: ivoReview, reason: 'A finished case cannot be given to an examiner; this one is closed, no change.' }]);
     const after = await workload();
     expect(rowOf(after, ivo.user.id).assigned).toBe(rowOf(before, ivo.user.id).assigned - 2);
     expect(rowOf(after, nell.user.id).assigned).toBe(rowOf(before, nell.user.id).assigned + 2);
