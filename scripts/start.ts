@@ -26,7 +26,9 @@ async function main() {
     if (shuttingDown) return;
     shuttingDown = true;
     log('stopping…');
-    // Each stop() ends supervision first, so nothing is restarted while stopping.
+    // Supervision ends for all first, so a child that dies while another is being stopped
+    // is not started again; then each is stopped in turn, server first.
+    for (const c of children) c.hold();
     for (const c of [...children].reverse()) await c.stop();
     try {
       stopCluster(S.cluster, log);

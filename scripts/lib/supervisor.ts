@@ -27,6 +27,8 @@ export interface Supervised {
   restarts(): number;
   /** Resolves once the next run after the current one has started (for tests and tools). */
   nextStart(): Promise<Managed>;
+  /** Stops supervising (a pending restart is cancelled) but leaves the child running. */
+  hold(): void;
   /** Stops supervising and stops the child; no restart happens after this is called. */
   stop(graceMs?: number): Promise<void>;
 }
@@ -83,15 +85,19 @@ export function supervise(
   };
   run();
 
+  const hold = () => {
+    stopping = true;
+    if (timer) clearTimeout(timer);
+    timer = null;
+  };
   return {
     name,
     current: () => current,
     restarts: () => restarts,
     nextStart: () => new Promise<Managed>((resolve) => waiters.push(resolve)),
+    hold,
     async stop(graceMs?: number) {
-      stopping = true;
-      if (timer) clearTimeout(timer);
-      timer = null;
+      hold();
       await stopProcess(current, graceMs);
     },
   };

@@ -77,6 +77,16 @@ describe('supervise', () => {
     expect(lines).toEqual([]);
     expect(sup.restarts()).toBe(0);
 
+    // hold(): supervision ends, the child keeps running, and its death is not answered.
+    const held = supervise('sleep', sleeper, (l) => lines.push(l), { initialDelayMs: 50, maxDelayMs: 50, resetAfterMs: 60_000 });
+    held.hold();
+    const heldChild = held.current();
+    expect(heldChild.child.exitCode).toBeNull();
+    heldChild.child.kill('SIGKILL');
+    await heldChild.exited;
+    expect(lines).toEqual([]);
+    expect(held.restarts()).toBe(0);
+
     // A crash whose restart waits 10 s: stop() cancels the wait and returns at once.
     const pending = supervise('crash', crasher, (l) => lines.push(l), { initialDelayMs: 10_000, maxDelayMs: 10_000, resetAfterMs: 60_000 });
     await until('the crash to be seen', () => lines.length === 1);
