@@ -2,8 +2,7 @@
  * The case workflow: claim, assign, move between states. Every change locks the case row,
  * checks the move against shared/cases.ts, records a case_event and an access-log line in
  * the same transaction. Letters and memos (server/letters) call {@link moveCase} too; the
- * taxpayer's reply (server/letters/replies.service.ts) uses {@link lockCase} and
- * {@link addCaseEvent}.
+ * taxpayer's reply (server/letters/replies.service.ts) calls {@link recordReply}.
  */
 import type { DataSource, EntityManager } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
@@ -44,6 +43,26 @@ export function mayAct(actor: Pick<SessionUser, 'id' | 'role'>, assigneeId: stri
 export function assertMayAct(actor: Pick<SessionUser, 'id' | 'role'>, c: Pick<ExamCase, 'assigneeId'>): void {
   if (mayAct(actor, c.assigneeId)) return;
   throw new HttpError(403, c.assigneeId ? 'This case is assigned to another examiner.' : 'Claim this case before working on it.');
+}
+
+/**
+ * Keeps a taxpayer's reply with its case, inside the caller's transaction. The taxpayer is
+ * not a session user, so the event has no actor. When the case awaits this reply
+ * (`endsWait`: no newer request is still waiting), it moves back to in review, the move
+ * the workflow allows, and its reply due date is met; otherwise (the case moved on, or waits
+ * on a newer letter) the reply is kept and the state left alone.
+ */
+export async function recordReply(m: EntityManager, caseId: string, detail: Record<string, unknown>, endsWait: boolean): Promise<void> {
+  const c = await lockCase(m, caseId);
+  if (endsWait && c.state === 'awaiting_reply' && canTransition(c.state, 'in_review')) {
+    c.state = 'in_review';
+    c.updatedAt = new Date();
+    c.dueDate = null;
+    await saveCase(m, c);
+    await addCaseEvent(m, c.id, null, 'reply-received', detail, 'awaiting_reply', 'in_review');
+  } else {
+    await addCaseEvent(m, c.id, null, 'reply-received', detail);
+  }
 }
 
 /** Appends a case event (actor null: Plumbline itself, or a taxpayer through a reply link). */

@@ -95,7 +95,8 @@ export interface NewLetter {
   recipient: string;
   subject: string;
   messageId: string | null;
-  createdBy: string;
+  /** The staff member who wrote it; null for a letter the daily pass sends (a reminder). */
+  createdBy: string | null;
 }
 
 /** Stores a letter's PDF and particulars. */
@@ -288,4 +289,17 @@ export async function storeReply(m: EntityManager, requestId: string, files: { f
   const at = new Date();
   await m.query(`UPDATE document_request SET state = 'answered', answered_at = $2 WHERE id = $1`, [requestId, at]);
   return at;
+}
+
+/**
+ * True when the case has a request still waiting that was sent after this one: only the
+ * newest waiting request's answer ends the case's wait.
+ */
+export async function hasNewerWaitingRequest(db: Db, caseId: string, requestId: string): Promise<boolean> {
+  const rows = await db.query(
+    `SELECT 1 FROM document_request WHERE case_id = $1 AND id <> $2 AND state = 'sent'
+        AND created_at > (SELECT created_at FROM document_request WHERE id = $2) LIMIT 1`,
+    [caseId, requestId],
+  );
+  return rows.length > 0;
 }

@@ -7,14 +7,12 @@
  */
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
-import { canTransition } from '../../shared/cases';
 import { longDate, OFFICE, REPLY_FILE_TYPES, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES, type ReplyReceipt, type ReplyRequestDto } from '../../shared/letters';
 import { recordAccess } from '../access-log/access-log.service';
 import { today } from '../clock';
-import { addCaseEvent, lockCase } from '../cases/case-workflow';
-import { ExamCase } from '../cases/exam-case.entity';
+import { recordReply } from '../cases/case-workflow';
 import { HttpError } from '../http/errors';
-import { findRequestByTokenHash, markExpired, storeReply, type RequestByToken } from './letters.repository';
+import { findRequestByTokenHash, hasNewerWaitingRequest, markExpired, storeReply, type RequestByToken } from './letters.repository';
 import { hashReplyToken } from './letters.service';
 import { checkReplyFiles, type IncomingFile } from './reply-files';
 
@@ -81,29 +79,11 @@ export async function receiveReply(ds: DataSource, token: string, files: Incomin
     if (r.state === 'expired' || r.dueDate < today()) return { kind: 'expired' as const, request: r };
     const receivedAt = await storeReply(m, r.id, checked);
 
-    // The taxpayer is not a session user: the event has no actor, and the move is the one
-    // the workflow allows (awaiting reply → in review), checked against the same table.
-    const c = await lockCase(m, r.caseId);
+    // The case write is the cases module's (case-workflow.ts). Only the newest request still
+    // waiting moves the case: a late answer to an earlier letter is kept with the case but
+    // does not end the wait for a later one.
     const detail = { documentRequestId: r.id, letterId: r.letterId, files: checked.length };
-    // Only the newest request still waiting moves the case: a late answer to an earlier letter
-    // is kept with the case but does not end the wait for a later one.
-    const newer = await m.query(
-      `SELECT 1 FROM document_request WHERE case_id = $1 AND id <> $2 AND state = 'sent'
-          AND created_at > (SELECT created_at FROM document_request WHERE id = $2) LIMIT 1`,
-      [r.caseId, r.id],
-    );
-    if (c.state === 'awaiting_reply' && newer.length === 0 && canTransition(c.state, 'in_review')) {
-      c.state = 'in_review';
-      c.updatedAt = new Date();
-      // The reply due date was the case's due date while it waited; it is met.
-      c.dueDate = null;
-      await m.getRepository(ExamCase).save(c);
-      await addCaseEvent(m, c.id, null, 'reply-received', detail, 'awaiting_reply', 'in_review');
-    } else {
-      // The case moved on (referred, closed, back in review by hand) or waits on a newer
-      // letter: keep the reply with it, but leave its state alone.
-      await addCaseEvent(m, c.id, null, 'reply-received', detail);
-    }
+    await recordReply(m, r.caseId, detail, !(await hasNewerWaitingRequest(m, r.caseId, r.id)));
     await recordAccess(m, { actor: null, route: ROUTE_POST }, {
       action: 'change',
       recordType: 'document_request',
