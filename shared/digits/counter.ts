@@ -6,10 +6,10 @@
  * significant digits of the amount are the decimal digits of c: 0.05 has c = 5 (first digit 5), 1234.5 has c = 123450 (digits 1, 2, ...).
  *  - first digit: every non-zero amount;
  *  - second digit, first two digits: amounts >= 10, i.e. c >= 1000;
- *  - last two digits: amounts >= 100 (c >= 10000), the last two digits of the whole-unit
- *    part, floor(c / 100) mod 100 (the methods set this test at amounts >= 1,000, where
- *    those digits are past the second significant one: a known gap, see
- *    docs/methods.md#which-amounts-each-test-takes);
+ *  - last two digits: amounts >= 1,000 (c >= 100000), the last two digits of the whole-unit
+ *    part, floor(c / 100) mod 100: only there are they past the second significant digit
+ *    and uniform (for 100..999 the tens digit is the second significant digit, P(00) =
+ *    0.01225; docs/methods.md#which-amounts-each-test-takes);
  *  - zero never counts. Each amount left out is tallied with its reason.
  * Exactness: for integers 0 < c < 2^53 and k <= 15, the double quotient c / 10^k is
  * correctly rounded and can never round up across an integer (the gap to the next integer
@@ -206,12 +206,12 @@ export class DigitCounter {
   }
 
   /**
-   * Non-zero amounts below 100 (left out of the last-two test), including those below 10.
+   * Non-zero amounts below 1,000 (left out of the last-two test), including those below 10.
    *
    * @param sign which amounts (default both signs)
    */
-  belowHundred(sign: SignSelection = 'all'): number {
-    return this.lengthsBelow(5, sign);
+  belowThousand(sign: SignSelection = 'all'): number {
+    return this.lengthsBelow(6, sign);
   }
 
   /** Non-zero amounts whose cents have fewer than `digits` digits. */
@@ -235,7 +235,7 @@ export class DigitCounter {
       case 'firstTwo':
         return this.nonZero(sign) - this.belowTen(sign);
       case 'lastTwo':
-        return this.nonZero(sign) - this.belowHundred(sign);
+        return this.nonZero(sign) - this.belowThousand(sign);
     }
   }
 
@@ -371,7 +371,7 @@ function countRange(
     second[s * 10 + SECOND_OF[f2]]++;
     sums[k] += c;
     byLength[s * 17 + nd] += c;
-    if (nd < 5) continue; // below 100 units: no last two whole-unit digits
+    if (nd < 6) continue; // below 1,000 units: the last two whole-unit digits are not uniform
     // last two digits of the whole-unit part: floor(c / 100) mod 100
     const r = c - floor(c / 10000) * 10000; // c mod 10^4, exact
     lastTwo[s * 100 + ((r / 100) | 0)]++;

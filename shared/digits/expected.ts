@@ -59,7 +59,7 @@ export const FIRST_TWO_EXPECTED: Float64Array = Float64Array.from(range(10, 99),
 
 /**
  * Last two digits of the whole-unit part, 00..99: uniform, P = 0.01 each
- * (the counter takes amounts >= 100; the rule is >= 1,000, see
+ * (amounts >= 1,000 only, where they are past the second significant digit, see
  * docs/methods.md#which-amounts-each-test-takes; common practice, no source).
  */
 export const LAST_TWO_EXPECTED: Float64Array = new Float64Array(100).fill(0.01);

@@ -22,7 +22,7 @@ import { evaluateDigitTest, type DigitTestResult } from './tests';
 const { floor, abs } = Math;
 
 /** Why amounts were left out of a test. */
-export type ExclusionReason = 'zero' | 'below_10' | 'below_100';
+export type ExclusionReason = 'zero' | 'below_10' | 'below_1000';
 
 /** Amounts left out for one reason. */
 export interface Exclusion {
@@ -36,9 +36,9 @@ export interface Exclusion {
   tests: DigitTestName[];
 }
 
-/** Share of round amounts (whole-unit part ending in 00) among amounts >= 100. */
+/** Share of round amounts (whole-unit part ending in 00) among amounts >= 1,000. */
 export interface RoundShare {
-  /** Amounts >= 100 (those the last-two test takes). */
+  /** Amounts >= 1,000 (those the last-two test takes). */
   n: number;
   /** Of those, amounts whose whole-unit part ends in 00. */
   count: number;
@@ -128,7 +128,7 @@ export interface DigitProfile {
   secondDigit: DigitTestResult;
   /** First-two-digit test (amounts >= 10). */
   firstTwo: DigitTestResult;
-  /** Last-two-digit test (amounts >= 100; whole-unit part). */
+  /** Last-two-digit test (amounts >= 1,000; whole-unit part). */
   lastTwo: DigitTestResult;
   /** Size-aware figure of the first-digit test: the one a single return is judged by. */
   sizeAware: SizeAwareResult;
@@ -269,9 +269,9 @@ function exclusions(counter: DigitCounter): Exclusion[] {
       tests: ['secondDigit', 'firstTwo'],
     },
     {
-      reason: 'below_100',
-      description: 'non-zero amounts below 100, those below 10 included (no last two whole-unit digits)',
-      count: counter.belowHundred(),
+      reason: 'below_1000',
+      description: 'non-zero amounts below 1,000, those below 10 included (their last two whole-unit digits are not uniform)',
+      count: counter.belowThousand(),
       tests: ['lastTwo'],
     },
   ];

@@ -29,6 +29,8 @@ export const digitTestSchema = z.strictObject({
   chiSquareValid: z.boolean(),
   ks: nullableNum,
   kuiper: nullableNum,
+  ksVerdict: z.enum(['not_rejected', 'rejected_5', 'rejected_1']).nullable(),
+  kuiperVerdict: z.enum(['not_rejected', 'rejected_5', 'rejected_1']).nullable(),
   ssd: nullableNum,
   z: z.array(nullableNum),
 });
@@ -59,7 +61,7 @@ export const digitProfileSchema = z.strictObject({
   count: z.number().int().nonnegative(),
   excluded: z.array(
     z.strictObject({
-      reason: z.enum(['zero', 'below_10', 'below_100']),
+      reason: z.enum(['zero', 'below_10', 'below_1000']),
       description: z.string(),
       count: z.number().int().nonnegative(),
       tests: z.array(testName),

@@ -48,6 +48,32 @@ export const MIN_N_FOR_CONFORMITY: Readonly<Record<DigitTestName, number>> = {
   lastTwo: 500,
 };
 
+/** A goodness-of-fit verdict at the 5 % and 1 % levels. */
+export type GoodnessVerdict = 'not_rejected' | 'rejected_5' | 'rejected_1';
+
+/**
+ * Critical values of the KS statistic D and of Kuiper's V, times sqrt(N), at 5 % and 1 %.
+ * First digit: the digit-specific values of Morrow 2014 (from memory; reproduced by
+ * simulation in tests/unit/digits/stats.test.ts): KS 1.148 / 1.420, Kuiper 1.321 / 1.579.
+ * Other tests: the asymptotic values for a continuous distribution, KS 1.358 / 1.628
+ * (the Kolmogorov distribution; the test computes them from its series) and Kuiper
+ * 1.747 / 2.001 (Stephens 1970, JRSS-B 32:115, from memory; the test computes them from
+ * Kuiper's asymptotic series). For digits these are conservative (a discrete law has
+ * smaller critical values), so a rejection stands.
+ */
+export const KS_KUIPER_CRITICAL: Readonly<Record<DigitTestName, { ks: readonly [number, number]; kuiper: readonly [number, number] }>> = {
+  firstDigit: { ks: [1.148, 1.42], kuiper: [1.321, 1.579] },
+  secondDigit: { ks: [1.358, 1.628], kuiper: [1.747, 2.001] },
+  firstTwo: { ks: [1.358, 1.628], kuiper: [1.747, 2.001] },
+  lastTwo: { ks: [1.358, 1.628], kuiper: [1.747, 2.001] },
+};
+
+/** Verdict of a KS or Kuiper statistic for n amounts against [5 %, 1 %] critical values (x sqrt N). */
+export function goodnessVerdict(stat: number, n: number, critical: readonly [number, number]): GoodnessVerdict {
+  const scaled = stat * Math.sqrt(n);
+  return scaled > critical[1] ? 'rejected_1' : scaled > critical[0] ? 'rejected_5' : 'not_rejected';
+}
+
 /** Z at 5 % and 1 % (two-sided), Nigrini 2012 after Fleiss 1981 (docs/methods.md#conformity-figures). */
 export const Z_CRITICAL = { p05: 1.96, p01: 2.57 } as const;
 
@@ -75,6 +101,10 @@ export interface DigitTestResult {
   ks: number | null;
   /** Kuiper V = D+ + D-. */
   kuiper: number | null;
+  /** KS verdict against the critical values of {@link KS_KUIPER_CRITICAL} (null: no amounts). */
+  ksVerdict: GoodnessVerdict | null;
+  /** Kuiper verdict against the critical values of {@link KS_KUIPER_CRITICAL} (null: no amounts). */
+  kuiperVerdict: GoodnessVerdict | null;
   /** Sum of squared deviations sum (100 AP - 100 EP)^2 (Kossovsky 2014). */
   ssd: number | null;
   /** Z per bin with continuity correction, same order as counts. */
@@ -176,6 +206,8 @@ export function evaluateDigitTest(
       chiSquareValid,
       ks: null,
       kuiper: null,
+      ksVerdict: null,
+      kuiperVerdict: null,
       ssd: null,
       z: new Array<number | null>(k).fill(null),
     };
@@ -214,6 +246,8 @@ export function evaluateDigitTest(
     chiSquareValid,
     ks: Math.max(dPlus, dMinus),
     kuiper: dPlus + dMinus,
+    ksVerdict: goodnessVerdict(Math.max(dPlus, dMinus), n, KS_KUIPER_CRITICAL[test].ks),
+    kuiperVerdict: goodnessVerdict(dPlus + dMinus, n, KS_KUIPER_CRITICAL[test].kuiper),
     ssd,
     z,
   };

@@ -42,22 +42,23 @@ describe('digit extraction from the decimal text (docs/methods.md#which-amounts-
     // second digit and first two of amounts >= 10: 1234.56 98765 10 100 3456.78 19.99
     expect(nonZero(p.secondDigit.counts, SECOND)).toEqual({ 0: 2, 2: 1, 4: 1, 8: 1, 9: 1 });
     expect(nonZero(p.firstTwo.counts, TWO)).toEqual({ 10: 2, 12: 1, 19: 1, 34: 1, 98: 1 });
-    // last two whole-unit digits of amounts >= 100: 1234 -> 34, 98765 -> 65, 100 -> 00, 3456 -> 56
-    expect(nonZero(p.lastTwo.counts, LAST)).toEqual({ '00': 1, 34: 1, 56: 1, 65: 1 });
+    // last two whole-unit digits of amounts >= 1,000 (docs/methods.md#which-amounts-each-test-takes):
+    // 1234 -> 34, 98765 -> 65, 3456 -> 56; 100 is left out (its tens digit is its second significant digit)
+    expect(nonZero(p.lastTwo.counts, LAST)).toEqual({ 34: 1, 56: 1, 65: 1 });
     expect(p.firstDigit.n).toBe(8);
     expect(p.secondDigit.n).toBe(6);
-    expect(p.lastTwo.n).toBe(4);
+    expect(p.lastTwo.n).toBe(3);
   });
 
   it('counts every exclusion with its reason', () => {
     const p = profileAmounts([0, '0.00', -0, 0.01, 5, -9.99, 10, 99.99, 100, -250]);
     const byReason = Object.fromEntries(p.excluded.map((e) => [e.reason, e.count]));
-    expect(byReason).toEqual({ zero: 3, below_10: 3, below_100: 5 });
+    expect(byReason).toEqual({ zero: 3, below_10: 3, below_1000: 7 });
     expect(p.count).toBe(10);
     expect(p.firstDigit.n).toBe(7); // every non-zero amount
     expect(p.secondDigit.n).toBe(7 - 3);
     expect(p.firstTwo.n).toBe(7 - 3);
-    expect(p.lastTwo.n).toBe(7 - 5);
+    expect(p.lastTwo.n).toBe(7 - 7);
     expect(p.excluded.find((e) => e.reason === 'below_10')?.tests).toEqual(['secondDigit', 'firstTwo']);
   });
 
@@ -68,7 +69,7 @@ describe('digit extraction from the decimal text (docs/methods.md#which-amounts-
     expect(nonZero(p.positives.firstDigit.counts, FIRST)).toEqual({ 1: 2 });
     expect(nonZero(p.negatives.firstDigit.counts, FIRST)).toEqual({ 1: 1, 4: 1, 7: 1 });
     expect(nonZero(p.firstDigit.counts, FIRST)).toEqual({ 1: 3, 4: 1, 7: 1 });
-    expect(nonZero(p.negatives.lastTwo.counts, LAST)).toEqual({ 56: 1, 89: 1 });
+    expect(nonZero(p.negatives.lastTwo.counts, LAST)).toEqual({}); // all below 1,000
   });
 
   it('amounts up to 10^12 and the smallest amount 0.01 (issue 3 edge cases)', () => {

@@ -114,14 +114,13 @@ describe('the list-based tests', () => {
     expect(nonZero).toEqual({ 50: 1, 10: 1, 12: 1 }); // 0.05 -> digits 5,0; 1.00 -> 1,0; 12.00 -> 1,2
   });
 
-  it('round-number share: amounts >= 100 ending in 00, binomial tail against 1 % (docs/methods.md#other-digit-figures)', () => {
-    const amounts = ['100', '200.50', '3100', '4700', '123', '99', '250'];
+  it('round-number share: amounts >= 1,000 ending in 00, binomial tail against 1 % (docs/methods.md#other-digit-figures)', () => {
+    const amounts = ['1000', '2000.50', '3100', '4700', '1234', '99', '250', '100'];
     const p = profileAmounts(amounts);
-    // the whole-unit part decides (as in the last-two test): 200.50 counts as round
-    expect(p.roundShare).toMatchObject({ n: 6, count: 4, share: 4 / 6, expected: 0.01 });
-    // P(X >= 4), X ~ Binomial(6, 0.01) = 1 - P(0) - P(1) - P(2) - P(3), worked by hand
-    const q = 0.99;
-    const want = 1 - (q ** 6 + 6 * 0.01 * q ** 5 + 15 * 0.01 ** 2 * q ** 4 + 20 * 0.01 ** 3 * q ** 3);
+    // the whole-unit part decides (as in the last-two test): 2000.50 counts as round; 100 and 250 are below 1,000
+    expect(p.roundShare).toMatchObject({ n: 5, count: 4, share: 4 / 5, expected: 0.01 });
+    // P(X >= 4), X ~ Binomial(5, 0.01) = 5·0.01^4·0.99 + 0.01^5, worked by hand
+    const want = 5 * 0.01 ** 4 * 0.99 + 0.01 ** 5;
     expect(p.roundShare.pValue).toBeCloseTo(want, 14);
   });
 
