@@ -25,9 +25,9 @@ export async function batchReturnIds(db: Db, batchId: string): Promise<string[]>
 }
 
 /** Income, charity, medical, receipts and each business cost line of each return of the batch, for peer percentiles. */
-export async function batchDeductionFigures(db: Db, batchId: string): Promise<PeerFigures[]> {
+export async function batchDeductionFigures(db: Db, batchId: string): Promise<(PeerFigures & { id: string })[]> {
   const rows: Record<string, string>[] = await db.query(
-    `SELECT (r.computed_income * 100)::bigint AS income,
+    `SELECT r.id, (r.computed_income * 100)::bigint AS income,
             coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.charity'), 0) * 100 AS charity,
             coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.medical'), 0) * 100 AS medical,
             coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'inc.business.receipts'), 0) * 100 AS receipts,
@@ -43,6 +43,7 @@ export async function batchDeductionFigures(db: Db, batchId: string): Promise<Pe
   );
   const n = (x: string) => Math.round(Number(x));
   return rows.map((r) => ({
+    id: r.id,
     income: Number(r.income),
     charity: n(r.charity),
     medical: n(r.medical),
@@ -249,6 +250,21 @@ export async function slotRecurrence(m: EntityManager, counts: readonly number[]
     [counts],
   );
   return Object.fromEntries(rows.map((r) => [r.line_code, { returns: Number(r.returns), recurring: Number(r.recurring) }]));
+}
+
+/** Yearly totals of equal-amount groups (two or more) on the given lines, per return and line (cents). */
+export async function slotRecurringTotals(m: EntityManager, codes: readonly string[]): Promise<Map<string, Record<string, number>>> {
+  const rows: { return_id: string; line_code: string; cents: string }[] = await m.query(
+    `SELECT return_id, line_code, (sum(a * c) * 100)::bigint AS cents FROM batch_slot WHERE c >= 2 AND line_code = ANY($1::text[]) GROUP BY 1, 2`,
+    [codes],
+  );
+  const out = new Map<string, Record<string, number>>();
+  for (const r of rows) {
+    const e = out.get(r.return_id) ?? {};
+    e[r.line_code] = Number(r.cents);
+    out.set(r.return_id, e);
+  }
+  return out;
 }
 
 /** Per line code: amounts >= 100 and round hundreds among them, for whole-unit filers and filers with cents. */

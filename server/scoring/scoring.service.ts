@@ -14,7 +14,7 @@ import { benjaminiHochberg, formatP } from '../../shared/scoring/calibration';
 import { buildPeerBands, incomeBand, type PeerBands, type ReturnFacts } from '../../shared/scoring/factors';
 import { thousands } from '../../shared/scoring/format';
 import { combineCodeCounts, estimateConcentration, expectedForPool, judgePool, pearson, totalCounts, type CodeDigitCounts } from '../../shared/scoring/pools';
-import { PERIODIC_COUNTS, type RecurrenceRates } from '../../shared/scoring/recurring';
+import { PERIODIC_COUNTS, PERIODIC_LINE_CODES, type RecurrenceRates } from '../../shared/scoring/recurring';
 import { PENDING_Q_TEXT, scoreReturn, type BatchNulls, type ScoreContext } from '../../shared/scoring/score-return';
 import { COMPONENTS, ScoringSettingsSchema, type ScoringSettings } from '../../shared/scoring/settings';
 import { openCasesForScores } from '../cases/case-open.repository';
@@ -31,6 +31,7 @@ import {
   slotPopularity,
   slotPreparerSharing,
   slotRecurrence,
+  slotRecurringTotals,
   slotRoundRates,
   statementsOf,
   taxpayerCodeDigitCounts,
@@ -38,6 +39,7 @@ import {
   writePatternQs,
 } from './scoring.repository';
 import { returnedRows } from '../db/returned-rows';
+import { drawRandomSample } from '../programme/programme.service';
 
 /** Returns per chunk job (env SCORING_CHUNK_SIZE). Large enough that a chunk outlasts pg-boss's 0.5 s polling gap. */
 export const CHUNK_SIZE = Number(process.env.SCORING_CHUNK_SIZE ?? 500);
@@ -58,6 +60,7 @@ export interface ChunkJob {
 export interface RunContext {
   peerLimits: PeerBands['limits'];
   costLimits: NonNullable<PeerBands['costLimits']>;
+  recurringLimits: NonNullable<PeerBands['recurringLimits']>;
   lineCodes: CodeDigitCounts;
   preparers: Record<string, CodeDigitCounts>;
   preparerClients: Record<string, number>;
@@ -110,10 +113,15 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
       const popularity = await slotPopularity(m, p.repeatMinCents);
       const digits = await slotDigitCounts(m);
       const sharing = await slotPreparerSharing(m, p.repeatMinCents);
-      return { recurrence, round, popularity, digits, sharing };
+      const periodic = PERIODIC_LINE_CODES.filter((c) => { const r = recurrence[c]; return !!r && r.returns > 0 && r.recurring / r.returns >= p.recurrenceMinRate; });
+      const recurringTotals = await slotRecurringTotals(m, periodic);
+      return { recurrence, round, popularity, digits, sharing, recurringTotals };
     }),
   ]);
-  const { limits: peerLimits, costLimits } = buildPeerBands(figures, p);
+  const { limits: peerLimits, costLimits, recurringLimits } = buildPeerBands(
+    figures.map((f) => ({ ...f, recurring: slots.recurringTotals.get(f.id) })),
+    p,
+  );
   const { lineCodes, preparers } = slots.digits;
   const spread = (pools: CodeDigitCounts[]) => {
     const a = estimateConcentration(pools.map((byCode) => ({ n: totalCounts(byCode).reduce((s, x) => s + x, 0), x2: pearson(totalCounts(byCode), expectedForPool(byCode, lineCodes)) })));
@@ -124,6 +132,7 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
   return {
     peerLimits,
     costLimits: costLimits ?? {},
+    recurringLimits: recurringLimits ?? {},
     lineCodes,
     preparers,
     preparerClients: slots.sharing.clients,
@@ -221,6 +230,8 @@ async function finishIfDone(db: DataSource | EntityManager, runId: string): Prom
   ));
   if (!r.length) return false;
   await writeBatchQValues(db, r[0].batch_id, Number(r[0].profile_version));
+  // The random review sample is drawn from returns below the cut, so it waits for every score (docs/methods.md#programme-outcomes).
+  await drawRandomSample(db, r[0].batch_id, Number(r[0].profile_version));
   await db.query(`UPDATE filing_batch SET state = 'scored', updated_at = now() WHERE id = $1 AND state = 'scoring'`, [r[0].batch_id]);
   return true;
 }
@@ -318,7 +329,7 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
   t = performance.now();
   const historyByTaxpayer = new Map<string, typeof history>();
   for (const h of history) historyByTaxpayer.set(h.taxpayerId, [...(historyByTaxpayer.get(h.taxpayerId) ?? []), h]);
-  const peers: PeerBands = { bandOf: incomeBand, limits: context.peerLimits, costLimits: context.costLimits };
+  const peers: PeerBands = { bandOf: incomeBand, limits: context.peerLimits, costLimits: context.costLimits, recurringLimits: context.recurringLimits };
   const sharedSets = new Map<string, Set<number>>();
   const batch: BatchNulls = {
     recurrence: context.nulls.recurrence,

@@ -98,6 +98,20 @@ export interface PeerBands {
   limits: Record<string, { charity: number | null; medical: number | null; n: number }>;
   /** Per business cost line: the percentile of (line total / receipts) among returns with receipts, and how many. Absent on runs made before version 2. */
   costLimits?: Record<string, { limit: number | null; n: number }>;
+  /** Per periodic line: the percentile of (a recurring bill's yearly total / its base) among the batch's recurring bills there. */
+  recurringLimits?: Record<string, { limit: number | null; n: number }>;
+}
+
+/** A recurring bill with its yearly total, as the peer comparison sees it. */
+export interface RecurringBill {
+  code: LineCode;
+  cents: number;
+  count: number;
+}
+
+/** What a recurring bill on a line is measured against: receipts for business lines, max(income, 20,000) otherwise. */
+export function recurringBase(code: string, t: Pick<ReturnTotals, 'receipts' | 'income'>): number {
+  return code.startsWith('exp.business.') || code === 'inc.business.receipts' ? t.receipts : Math.max(t.income, DEDUCTION_BASE_FLOOR_CENTS);
 }
 
 /** Income bands for peer comparison (Aldermere's, invented): edges in whole units. */
@@ -133,12 +147,15 @@ export interface PeerFigures {
   /** Receipts and per-cost-line totals (version 2 on; absent = not compared). */
   receipts?: number;
   costs?: Partial<Record<(typeof COST_CODES)[number], number>>;
+  /** Yearly totals of the return's recurring bills, per line (version 2 on). */
+  recurring?: Partial<Record<string, number>>;
 }
 
 /** Builds peer percentiles from many returns' figures. */
 export function buildPeerBands(all: readonly PeerFigures[], p: Params): PeerBands {
   const shares = new Map<string, { charity: number[]; medical: number[] }>();
   const costShares = new Map<string, number[]>();
+  const recurringShares = new Map<string, number[]>();
   for (const t of all) {
     const base = Math.max(t.income, DEDUCTION_BASE_FLOOR_CENTS);
     const b = incomeBand(Math.max(t.income, 0));
@@ -146,6 +163,13 @@ export function buildPeerBands(all: readonly PeerFigures[], p: Params): PeerBand
     s.charity.push(t.charity / base);
     s.medical.push(t.medical / base);
     shares.set(b, s);
+    if (t.recurring) for (const [code, yearly] of Object.entries(t.recurring)) {
+      const b = recurringBase(code, { receipts: t.receipts ?? 0, income: t.income });
+      if (!yearly || b <= 0) continue;
+      const list = recurringShares.get(code) ?? [];
+      list.push(yearly / b);
+      recurringShares.set(code, list);
+    }
     if (t.receipts && t.receipts > 0 && t.costs) for (const c of COST_CODES) {
       const list = costShares.get(c) ?? [];
       list.push((t.costs[c] ?? 0) / t.receipts);
@@ -161,7 +185,9 @@ export function buildPeerBands(all: readonly PeerFigures[], p: Params): PeerBand
   for (const [b, s] of shares) limits[b] = { charity: q(s.charity), medical: q(s.medical), n: s.charity.length };
   const costLimits: NonNullable<PeerBands['costLimits']> = {};
   for (const [c, xs] of costShares) costLimits[c] = { limit: q(xs), n: xs.length };
-  return { bandOf: incomeBand, limits, costLimits };
+  const recurringLimits: NonNullable<PeerBands['recurringLimits']> = {};
+  for (const [c, xs] of recurringShares) recurringLimits[c] = { limit: q(xs), n: xs.length };
+  return { bandOf: incomeBand, limits, costLimits, recurringLimits };
 }
 
 /**
@@ -171,7 +197,13 @@ export function buildPeerBands(all: readonly PeerFigures[], p: Params): PeerBand
  * percentile among returns with receipts (an invented monthly "rent" hides from the pattern
  * tests as a recurring bill, but not from its peers).
  */
-export function deductionsLarge(t: ReturnTotals, peers: PeerBands, p: Params, costs?: Partial<Record<(typeof COST_CODES)[number], number>>): FactorResult {
+export function deductionsLarge(
+  t: ReturnTotals,
+  peers: PeerBands,
+  p: Params,
+  costs?: Partial<Record<(typeof COST_CODES)[number], number>>,
+  recurring: readonly RecurringBill[] = [],
+): FactorResult {
   const found: string[] = [];
   let strength = 0;
   let stake = 0;
@@ -208,6 +240,22 @@ export function deductionsLarge(t: ReturnTotals, peers: PeerBands, p: Params, co
       strength = Math.max(strength, grade(share, cl.limit));
       stake += amount - Math.round(cl.limit * t.receipts);
     }
+  }
+  // A recurring bill counts once in the pattern tests; its size still answers to the other recurring bills on that line.
+  for (const b of recurring) {
+    const rl = peers.recurringLimits?.[b.code];
+    const base = recurringBase(b.code, t);
+    if (!rl || rl.limit === null || base <= 0) continue;
+    const yearly = b.cents * b.count;
+    const share = yearly / base;
+    if (share <= rl.limit) continue;
+    found.push(
+      `${b.count} equal payments of ${money(b.cents)} on ${LINE_CODE_DEFS[b.code].label.toLowerCase()} come to ${money(yearly)}, ${pct(share, 1)} of ${b.code.startsWith('exp.') ? 'receipts' : 'income'}; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${rl.n} recurring bills on that line in the batch is ${pct(rl.limit, 1)}`,
+    );
+    // Steeper than the other peer checks (full at 2.5 × the percentile): a bill is one decision,
+    // and a made-up monthly figure is usually well above what ordinary bills on that line come to.
+    strength = Math.max(strength, clamp01(Math.log(share / Math.max(rl.limit, 0.0001)) / Math.log(2.5)));
+    stake += yearly - Math.round(rl.limit * base);
   }
   if (!found.length) return none(t.deductions > 0 || t.businessExpenses > 0 ? `Deductions and business costs are within the usual range of peers (income ${band}).` : 'No deductions claimed.');
   return { strength, evidence: `${found.join('; ')}.`, stakeIncomeCents: stake, stakeTaxCents: 0 };

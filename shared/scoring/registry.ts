@@ -51,7 +51,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   digits: {
     key: 'digits',
     label: 'Digit pattern of this return',
-    defaultWeight: 35,
+    defaultWeight: 45,
     group: 'madeUp',
     params: ['patternPStart', 'patternPFull'],
     run: (r) => r.digitResult,
@@ -67,7 +67,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   preparerDigits: {
     key: 'preparerDigits',
     label: 'Digit pattern of the preparer\'s other returns',
-    defaultWeight: 30,
+    defaultWeight: 35,
     group: 'related',
     params: ['pooledFixedThresholdMinN', 'poolPriorStrength', 'patternPStart', 'patternPFull'],
     run: (r) => r.poolResult('on the preparer\'s other returns in the batch', r.ctx.preparer),
@@ -75,7 +75,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   totalsMismatch: {
     key: 'totalsMismatch',
     label: 'Totals do not add up',
-    defaultWeight: 35,
+    defaultWeight: 45,
     group: 'totals',
     params: ['totalsToleranceCents'],
     run: (r) => totalsMismatch(r.totals, r.p),
@@ -83,7 +83,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   incomeBelowStatements: {
     key: 'incomeBelowStatements',
     label: 'Income below third-party statements',
-    defaultWeight: 40,
+    defaultWeight: 50,
     group: null,
     params: ['statementShortfallMinCents', 'statementShortfallShare'],
     run: (r) => incomeBelowStatements(r.facts, r.p),
@@ -91,10 +91,10 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   deductionsLarge: {
     key: 'deductionsLarge',
     label: 'Deductions or business costs large against peers',
-    defaultWeight: 25,
+    defaultWeight: 30,
     group: null,
     params: ['deductionPercentile', 'deductionMinPeers'],
-    run: (r) => deductionsLarge(r.totals, r.ctx.peers, r.p, r.costs),
+    run: (r) => deductionsLarge(r.totals, r.ctx.peers, r.p, r.costs, r.collapsed.recurring),
   },
   expensesNearReceipts: {
     key: 'expensesNearReceipts',
@@ -115,7 +115,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   cashHeavy: {
     key: 'cashHeavy',
     label: 'Cash-heavy activity',
-    defaultWeight: 5,
+    defaultWeight: 1,
     group: null,
     params: ['cashHeavyActivities'],
     run: (r) => cashHeavy(r.facts, r.p),
@@ -123,7 +123,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   roundAmounts: {
     key: 'roundAmounts',
     label: 'Excess round amounts',
-    defaultWeight: 30,
+    defaultWeight: 40,
     group: 'madeUp',
     params: ['roundPriorStrength', 'patternPStart', 'patternPFull'],
     run: (r) => r.roundResult,
@@ -131,7 +131,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   thresholdBunching: {
     key: 'thresholdBunching',
     label: 'Amounts bunched under a threshold',
-    defaultWeight: 25,
+    defaultWeight: 22,
     group: null,
     params: ['thresholdsCents', 'bunchingBand', 'bunchingTailP'],
     run: (r) => thresholdBunching(r.collapsed.amounts, r.p),
@@ -155,7 +155,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   repeatedAmounts: {
     key: 'repeatedAmounts',
     label: 'Same amount repeated',
-    defaultWeight: 35,
+    defaultWeight: 45,
     group: 'madeUp',
     params: ['repeatMinCents', 'repeatMinCount', 'patternPStart', 'patternPFull'],
     run: (r) => r.repeatResult,

@@ -129,8 +129,10 @@ export function prepareReturn(facts: ReturnFacts, ctx: ScoreContext): PrepareRes
   const recurringText = collapsed.recurring.length ? ` (${describeRecurring(collapsed.recurring, labelOf)}: counted once, as a recurring bill)` : '';
 
   // Digits: first and second digit MAD against their own sample size, combined by Simes.
+  // The return's own figures: expenses and deductions, where a filer writes the numbers (wages,
+  // interest and withholding come from employers and banks, receipts in periods).
   counter.reset();
-  counter.addAll(collapsed.amounts);
+  counter.addAll(collapsed.lines.filter((l) => l.code.startsWith('exp.') || l.code.startsWith('ded.')).map((l) => l.cents));
   const summary = summarizeCounter(counter);
   const fd = summary.sizeAware.firstDigit;
   const sd = summary.sizeAware.secondDigit;
