@@ -10,6 +10,7 @@
  * value, 2.5.3 label in name, 1.3.1 and 2.4.1 landmarks, 2.1.1 keyboard).
  */
 import type { Browser, Page } from 'playwright-core';
+import { createDataSource } from '../../server/db/data-source';
 import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
 import { expectNoSeriousAxeViolations, launchBrowser, signInThroughUi, tabTo, VIEWPORTS, waitForCount, waitForText, WAIT_MS } from '../helpers/browser';
 import { uniqueAddress } from '../helpers/letter-cases';
@@ -27,7 +28,6 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
   beforeAll(async () => {
     s = await startSeededServer({ scoredBatch: { seed: 'e2e-a11y', returns: 240, plantShare: 0.12 } });
     browser = await launchBrowser();
-    const { createDataSource } = await import('../../server/db/data-source');
     const ds = createDataSource(s.db.url, { poolSize: 1 });
     await ds.initialize();
     try {
@@ -186,7 +186,7 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
   }
 
   it('signs in with the keyboard alone: user name, password, button in that order; Enter submits', async () => {
-    for (const [name, viewport] of Object.entries(VIEWPORTS)) {
+    for (const viewport of Object.values(VIEWPORTS)) {
       const page = await browser.newPage({ viewport });
       await page.goto(s.server.baseUrl + '/sign-in', { waitUntil: 'networkidle' });
       await page.getByTestId('sign-in-username').waitFor();
@@ -211,7 +211,6 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       await page.keyboard.press('Space');
       await page.waitForURL(/\/sign-in$/, { timeout: WAIT_MS });
       await page.close();
-      void name;
     }
   });
 

@@ -30,7 +30,7 @@ async function screenshotWhole(page: Page, name: string): Promise<void> {
   const size = page.viewportSize()!;
   const extra = await page.evaluate(() => {
     let most = 0;
-    for (const el of Array.from(document.querySelectorAll<HTMLElement>('div'))) {
+    for (const el of Array.from(document.querySelectorAll<HTMLElement>('div, main'))) {
       const oy = getComputedStyle(el).overflowY;
       if ((oy === 'auto' || oy === 'scroll') && el.scrollHeight > el.clientHeight) most = Math.max(most, el.scrollHeight - el.clientHeight);
     }

@@ -227,6 +227,9 @@ describe('taxpayer reply page in the browser', () => {
       await waitForCount(page.getByTestId('open-referral'), 0);
       await panel.scrollIntoViewIfNeeded();
       await screenshot(page, `letters-panel-referred-${name}`);
+      // The state badge of a referred case, at the top of the screen (a neutral colour, not alert red).
+      await page.getByTestId('case-state').scrollIntoViewIfNeeded();
+      await screenshot(page, `case-referred-${name}`);
       expect(errors).toEqual([]);
       await context.close();
     });

@@ -24,9 +24,17 @@ describe('scoring profile screen (supervisor, browser)', () => {
     await page.getByTestId('weight-cashHeavy').fill('2');
     await page.getByTestId('profile-note').fill('Less weight on cash-heavy trades');
     await page.getByTestId('save-profile').click();
-    await page.getByText('Saved as version 2; new batches are scored with it.').waitFor();
+    // The new version is one past the newest the migrations installed (not a fixed number:
+    // a migration may add a version of the defaults).
+    const saved = page.getByText(/^Saved as version \d+; new batches are scored with it\.$/);
+    const message = await waitForText(saved, /^Saved as version \d+;/).catch(async (e) => {
+      await screenshot(page, 'debug-scoring-save');
+      throw e;
+    });
+    const version = Number(/version (\d+)/.exec(message)![1]);
+    expect(version).toBeGreaterThanOrEqual(2);
     // The list of versions refetches after the save: wait for the new one to show.
-    await waitForText(page.getByTestId('profile-versions'), 'v2');
+    await waitForText(page.getByTestId('profile-versions'), `v${version}`);
     await waitForText(page.getByTestId('profile-versions'), 'Less weight on cash-heavy trades');
     await screenshot(page, 'scoring-wide');
     await page.close();
