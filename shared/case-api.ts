@@ -8,7 +8,7 @@
  */
 import { z } from 'zod';
 import { noControlChars } from './text';
-import { CASE_STATES, CaseStateSchema, FINAL_STATES, type CaseState } from './cases';
+import { CASE_STATES, CaseSelectionSchema, CaseStateSchema, FINAL_STATES, type CaseState } from './cases';
 import { ACTIVITY_CODES, LINE_CODES } from './returns/line-codes';
 import { ScoreBreakdownSchema } from './scoring/breakdown';
 
@@ -75,6 +75,8 @@ export const CaseListItemSchema = z.object({
   /** Estimated tax an adjustment could recover, decimal text. */
   amountAtStake: z.string(),
   state: CaseStateSchema,
+  /** Selected by the score, or chosen at random for review (docs/methods.md#programme-outcomes). */
+  selection: CaseSelectionSchema,
   /** The examiner's id, or null while open. */
   assignee: z.string().nullable(),
   assigneeName: z.string().nullable(),
@@ -150,6 +152,8 @@ export type CaseActions = z.infer<typeof CaseActionsSchema>;
 export const CaseDetailSchema = z.object({
   id: z.string(),
   state: CaseStateSchema,
+  /** Selected by the score, or chosen at random for review. */
+  selection: CaseSelectionSchema,
   assignee: z.object({ id: z.string(), name: z.string() }).nullable(),
   riskScore: z.number(),
   priority: z.number(),

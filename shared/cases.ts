@@ -20,6 +20,20 @@ export const CASE_STATE_LABELS: Record<CaseState, string> = {
   closed_adjusted: 'Closed, adjusted',
 };
 
+/**
+ * Why a case exists (docs/methods.md#programme-outcomes): the score selected the return, or the
+ * run's random review sample did. A random case is worked, and written to, like any other.
+ */
+export const CASE_SELECTIONS = ['score', 'random'] as const;
+export const CaseSelectionSchema = z.enum(CASE_SELECTIONS);
+export type CaseSelection = z.infer<typeof CaseSelectionSchema>;
+
+/** Words for each selection on screen. */
+export const CASE_SELECTION_LABELS: Record<CaseSelection, string> = {
+  score: 'Selected by score',
+  random: 'Chosen at random for review',
+};
+
 /** The finished states: a case here has an outcome and can change no more. The one list of them. */
 export const FINAL_STATES: readonly CaseState[] = ['referred', 'closed_no_change', 'closed_adjusted'];
 

@@ -5,7 +5,7 @@
  *
  * clerk — batches; examiner — cases (read, claim, own cases' actions), analyses;
  * supervisor — all an examiner may, on every case, plus assign, export, scoring profiles,
- * batches (read); admin — users and the access log, but no taxpayer data.
+ * batches (read), the Programme; admin — users and the access log, but no taxpayer data.
  */
 import type { Role } from './roles';
 
@@ -17,6 +17,8 @@ export const CAN = {
   assignCases: ['supervisor'],
   exportQueue: ['supervisor'],
   readWorkload: ['supervisor'],
+  /** The Programme screen: outcomes of the selection and the random review cases (issue 17). */
+  readProgramme: ['supervisor'],
   editScoring: ['supervisor'],
   readScoring: ['examiner', 'supervisor'],
   analyse: ['examiner', 'supervisor'],

@@ -56,3 +56,37 @@ export async function openCasesForScores(m: EntityManager, batchId: string, vers
     await m.query(`INSERT INTO case_event (case_id, kind, detail) SELECT id, 'rescored', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [rescored, version]);
   }
 }
+/** A return drawn for random review, as its case is opened. */
+export interface RandomPick {
+  returnId: string;
+  taxpayerId: string;
+  scoreId: string;
+}
+
+/**
+ * Opens a case marked `selection = 'random'` for each return drawn by the run's random review
+ * sample (docs/methods.md#programme-outcomes), with its score's figures and an 'opened' event.
+ * A return that already has a case keeps it unchanged (ON CONFLICT DO NOTHING), so a retried
+ * finishing step opens nothing twice. Runs in the caller's transaction.
+ * @returns the new cases' ids
+ */
+export async function openRandomCases(m: EntityManager, batchId: string, version: number, picks: RandomPick[]): Promise<string[]> {
+  if (!picks.length) return [];
+  const rows: { id: string }[] = await m.query(
+    `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority, selection)
+     SELECT u.return_id, u.taxpayer_id, $1, s.id, s.risk_score, s.amount_at_stake, s.priority, 'random'
+       FROM unnest($2::uuid[], $3::uuid[], $4::bigint[]) AS u(return_id, taxpayer_id, score_id)
+       JOIN return_score s ON s.id = u.score_id
+     ON CONFLICT (return_id) DO NOTHING
+     RETURNING id`,
+    [batchId, picks.map((p) => p.returnId), picks.map((p) => p.taxpayerId), picks.map((p) => p.scoreId)],
+  );
+  const ids = rows.map((r) => r.id);
+  if (ids.length) {
+    await m.query(
+      `INSERT INTO case_event (case_id, kind, to_state, detail) SELECT id, 'opened', 'open', jsonb_build_object('profileVersion', $2::int, 'selection', 'random') FROM unnest($1::uuid[]) AS id`,
+      [ids, version],
+    );
+  }
+  return ids;
+}

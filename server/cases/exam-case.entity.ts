@@ -1,5 +1,5 @@
 import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';
-import type { CaseState } from '../../shared/cases';
+import type { CaseSelection, CaseState } from '../../shared/cases';
 
 /**
  * The unit of examination work: one per selected return. Score, stake and priority are
@@ -34,6 +34,10 @@ export class ExamCase {
 
   @Column({ type: 'text', default: 'open' })
   state: CaseState;
+
+  /** 'score' when the score selected it, 'random' when it came from the run's random review sample (docs/methods.md#programme-outcomes). */
+  @Column({ type: 'text', default: 'score' })
+  selection: CaseSelection;
 
   @Column({ name: 'assignee_id', type: 'uuid', nullable: true })
   assigneeId: string | null;

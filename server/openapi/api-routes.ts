@@ -25,6 +25,7 @@ import {
 } from '../../shared/case-api';
 import { AssignRequestSchema, NoteRequestSchema, TransitionRequestSchema } from '../../shared/cases';
 import { digitProfileSchema } from '../../shared/digits/schema';
+import { ControlsQuerySchema, ControlsSchema, OutcomesQuerySchema, OutcomesSchema } from '../../shared/programme/api';
 import { HealthResponseSchema } from '../../shared/health';
 import {
   DocumentRequestInputSchema,
@@ -90,6 +91,8 @@ export const COMPONENTS = {
   BulkReassignResult: BulkReassignResultSchema,
   ExaminerList: ExaminerListSchema,
   Workload: WorkloadSchema,
+  ProgrammeOutcomes: OutcomesSchema,
+  RandomReviewCases: ControlsSchema,
   LetterCreated: LetterCreatedSchema,
   LetterList: LetterListSchema,
   ReplyRequest: ReplyRequestSchema,
@@ -126,7 +129,7 @@ export interface ApiRoute {
   path: string;
   operationId: string;
   /** The group it is listed under. */
-  tag: 'session' | 'status' | 'users' | 'access log' | 'analyses' | 'scoring' | 'batches' | 'cases' | 'letters' | 'replies' | 'api';
+  tag: 'session' | 'status' | 'users' | 'access log' | 'analyses' | 'scoring' | 'batches' | 'cases' | 'programme' | 'letters' | 'replies' | 'api';
   summary: string;
   description?: string;
   /** Open without a session (the route's rule is `publicAccess`). */
@@ -470,6 +473,26 @@ export const API_ROUTES: readonly ApiRoute[] = [
     tag: 'cases',
     summary: 'Each examiner’s open, overdue and recently finished cases',
     responses: { 200: json(WorkloadSchema, 'The workload.') },
+  },
+
+  // server/programme/programme.routes.ts
+  {
+    method: 'get',
+    path: '/api/programme/outcomes',
+    operationId: 'getProgrammeOutcomes',
+    tag: 'programme',
+    summary: 'Adjustment rates and amounts of selected and random-review cases, with 95 % intervals and the lift',
+    query: OutcomesQuerySchema,
+    responses: { 200: json(OutcomesSchema, 'The figures.') },
+  },
+  {
+    method: 'get',
+    path: '/api/programme/controls',
+    operationId: 'listRandomReviewCases',
+    tag: 'programme',
+    summary: 'A batch’s cases chosen at random for review',
+    query: ControlsQuerySchema,
+    responses: { 200: json(ControlsSchema, 'The random review cases.') },
   },
 
   // server/letters/letters.routes.ts

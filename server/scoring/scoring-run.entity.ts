@@ -25,6 +25,10 @@ export class ScoringRun {
   @Column({ type: 'jsonb' })
   context: unknown;
 
+  /** The random review sample drawn in the run's finishing step: seed, share, how many were eligible and drawn, and the sampling rate. */
+  @Column({ name: 'random_sample', type: 'jsonb', nullable: true })
+  randomSample: unknown;
+
   @Column({ name: 'started_at', type: 'timestamptz', default: () => 'now()' })
   startedAt: Date;
 

@@ -27,11 +27,14 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
     const batch = (await ctx.dataSource.query(`SELECT state, scored_count FROM filing_batch WHERE id = $1`, [b.batchId]))[0];
     expect(batch).toEqual({ state: 'scored', scored_count: 400 });
     const [{ selected }] = await ctx.dataSource.query(`SELECT count(*)::int AS selected FROM return_score WHERE batch_id = $1 AND (breakdown->>'selected')::boolean`, [b.batchId]);
-    const [{ cases }] = await ctx.dataSource.query(`SELECT count(*)::int AS cases FROM exam_case WHERE batch_id = $1`, [b.batchId]);
+    const [{ cases }] = await ctx.dataSource.query(`SELECT count(*)::int AS cases FROM exam_case WHERE batch_id = $1 AND selection = 'score'`, [b.batchId]);
     expect(cases).toBe(selected);
     expect(cases).toBeGreaterThan(0);
+    // Plus the run's random review sample: 1 % of 400 (docs/methods.md#programme-outcomes).
+    const [{ random }] = await ctx.dataSource.query(`SELECT count(*)::int AS random FROM exam_case WHERE batch_id = $1 AND selection = 'random'`, [b.batchId]);
+    expect(random).toBe(4);
     const opened = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM case_event WHERE kind = 'opened'`);
-    expect(opened[0].n).toBe(cases);
+    expect(opened[0].n).toBe(cases + random);
     const one = (await ctx.dataSource.query(`SELECT breakdown FROM return_score WHERE batch_id = $1 LIMIT 1`, [b.batchId]))[0];
     expect(() => ScoreBreakdownSchema.parse(one.breakdown)).not.toThrow();
   });
