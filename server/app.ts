@@ -15,6 +15,7 @@ import { authRoutes } from './auth/auth.routes';
 import { batchRoutes } from './batches/batch.routes';
 import { caseRoutes } from './cases/case.routes';
 import { workloadRoutes } from './cases/workload.routes';
+import { housekeepingRoutes } from './housekeeping/housekeeping.routes';
 import { programmeRoutes } from './programme/programme.routes';
 import { csrfProtection } from './auth/csrf';
 import { createPassport, sessionMiddleware } from './auth/session';
@@ -69,6 +70,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(batchRoutes(deps));
   api.use(caseRoutes({ dataSource }));
   api.use(workloadRoutes({ dataSource }));
+  api.use(housekeepingRoutes({ dataSource, mailer, publicUrl: config.publicUrl }));
   api.use(programmeRoutes({ dataSource }));
   api.use(letterRoutes({ dataSource, mailer, publicUrl: config.publicUrl }));
   api.use(replyRoutes(deps));

@@ -12,13 +12,13 @@ import { CASE_STATES, CaseSelectionSchema, CaseStateSchema, FINAL_STATES, type C
 import { ACTIVITY_CODES, LINE_CODES } from './returns/line-codes';
 import { ScoreBreakdownSchema } from './scoring/breakdown';
 
-/** Queue orders; each is "highest first": highest score, highest priority, oldest. */
-export const CASE_SORTS = ['priority', 'score', 'age'] as const;
+/** Queue orders: highest priority, highest score, oldest, and the assessment deadline soonest (issue 13). */
+export const CASE_SORTS = ['priority', 'score', 'age', 'deadline'] as const;
 export const CaseSortSchema = z.enum(CASE_SORTS);
 export type CaseSort = z.infer<typeof CaseSortSchema>;
 
 /** Words for each order on screen. */
-export const CASE_SORT_LABELS: Record<CaseSort, string> = { priority: 'Priority', score: 'Risk score', age: 'Oldest first' };
+export const CASE_SORT_LABELS: Record<CaseSort, string> = { priority: 'Priority', score: 'Risk score', age: 'Oldest first', deadline: 'Deadline soonest' };
 
 /** States still being worked (the queue's default view). */
 export const ACTIVE_STATES: readonly CaseState[] = ['open', 'assigned', 'in_review', 'awaiting_reply'];
@@ -57,6 +57,8 @@ export const CaseListQuerySchema = z.object({
   activity: z.enum(ACTIVITY_CODES).optional(),
   q: z.string().trim().max(64, 'Search by a return reference or a TIN').check(noControlChars()).optional(),
   sort: CaseSortSchema.default('priority'),
+  /** Only cases whose assessment deadline falls within this many days from today (issue 13). */
+  deadlineWithin: z.coerce.number({ error: 'Give deadlineWithin as a whole number of days, e.g. 90' }).int('Give deadlineWithin as a whole number of days, e.g. 90').min(0, 'deadlineWithin is at least 0').max(3650, 'deadlineWithin is at most 3650 days').optional(),
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(100).default(25),
 });
@@ -87,6 +89,8 @@ export const CaseListItemSchema = z.object({
   batchId: z.string(),
   openedAt: z.string(),
   dueDate: z.string().nullable(),
+  /** Last day the office may assess the return (YYYY-MM-DD), or null when there is no limit (issue 13). */
+  assessBy: z.string().nullable(),
 });
 export type CaseListItem = z.infer<typeof CaseListItemSchema>;
 
@@ -140,7 +144,7 @@ export const CaseActionsSchema = z.object({
   /** The caller may act on this case (its examiner, or a supervisor). */
   canAct: z.boolean(),
   claim: z.boolean(),
-  /** Give or move the case to an examiner (supervisor, open or assigned cases). */
+  /** Give or move the case to an examiner (supervisor, any case not finished: a hand-over keeps the state). */
   assign: z.boolean(),
   transitions: z.array(CaseMoveSchema),
   note: z.boolean(),
@@ -162,6 +166,14 @@ export const CaseDetailSchema = z.object({
   updatedAt: z.string(),
   closedAt: z.string().nullable(),
   dueDate: z.string().nullable(),
+  /** The assessment deadline (issue 13, shared/returns/assessment-deadline.ts), days counted by the office clock. */
+  deadline: z.object({
+    assessBy: z.string().nullable(),
+    basis: z.string(),
+    daysLeft: z.number().int().nullable(),
+    explanation: z.string(),
+    caution: z.string(),
+  }),
   outcome: z.string().nullable(),
   adjustedAmount: z.string().nullable(),
   taxpayer: z.object({ id: z.string(), name: z.string(), maskedTin: z.string(), activityCode: z.enum(ACTIVITY_CODES) }),
@@ -238,6 +250,8 @@ export const WorkloadRowSchema = z.object({
   open: z.number().int(),
   /** Finished (referred or closed) in the last 30 days. */
   finished30d: z.number().int(),
+  /** Still being worked and the assessment deadline within 90 days (issue 13). */
+  deadlinesNear: z.number().int(),
 });
 export type WorkloadRow = z.infer<typeof WorkloadRowSchema>;
 

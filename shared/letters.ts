@@ -171,10 +171,17 @@ export const ReferralInputSchema = z.object({
 export type ReferralInput = z.input<typeof ReferralInputSchema>;
 
 /** What a letter is: a request to the taxpayer, or an internal memo to a unit. */
-export const LETTER_KINDS = ['document_request', 'referral_memo'] as const;
+export const LETTER_KINDS = ['document_request', 'referral_memo', 'reminder', 'acknowledgement', 'no_change', 'adjustment_proposal'] as const;
 export const LetterKindSchema = z.enum(LETTER_KINDS);
 export type LetterKind = z.infer<typeof LetterKindSchema>;
-export const LETTER_KIND_LABELS: Record<LetterKind, string> = { document_request: 'Document request', referral_memo: 'Referral memo' };
+export const LETTER_KIND_LABELS: Record<LetterKind, string> = {
+  document_request: 'Document request',
+  referral_memo: 'Referral memo',
+  reminder: 'Reminder',
+  acknowledgement: 'Acknowledgement',
+  no_change: 'No-change letter',
+  adjustment_proposal: 'Adjustment proposal',
+};
 
 /** Stored state of a document request; `expired` is also reported for an unanswered one past its due date. */
 export const DOCUMENT_REQUEST_STATES = ['sent', 'answered', 'expired'] as const;

@@ -20,6 +20,8 @@ export const CAN = {
   /** The Programme screen: outcomes of the selection and the random review cases (issue 17). */
   readProgramme: ['supervisor'],
   editScoring: ['supervisor'],
+  /** Run the daily pass now: expiries, reminders, digests (issue 13). */
+  runHousekeeping: ['supervisor'],
   readScoring: ['examiner', 'supervisor'],
   analyse: ['examiner', 'supervisor'],
   manageUsers: ['admin'],

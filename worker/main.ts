@@ -9,6 +9,7 @@ import type { DataSource } from 'typeorm';
 import { ConfigError, loadConfig } from '../server/config';
 import { createDataSource } from '../server/db/data-source';
 import { createBoss, ensureQueues } from '../server/queue/queues';
+import { registerDailyPass } from './daily-pass';
 import { registerJobs } from './jobs';
 
 let dataSource: DataSource | null = null;
@@ -37,6 +38,7 @@ async function main() {
   await ensureQueues(boss);
   if (stopping) return;
   await registerJobs({ boss, dataSource, config });
+  await registerDailyPass({ boss, dataSource, config });
   console.log('[worker] ready');
 }
 

@@ -17,6 +17,7 @@ import type { SessionUser } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { findCaseDetail, findCaseEvents, findCaseLetters, findCaseNotes, findExaminers, findLineItems, userNames, type CaseEventRecord } from './case.repository';
 import { mayAct } from './case-workflow';
+import { longDate } from '../../shared/letters';
 import { caseDeadline } from './case-deadline.service';
 import { ASSESSMENT_DEADLINE_CAUTION } from '../../shared/returns/assessment-deadline';
 
@@ -52,6 +53,10 @@ function summarise(e: CaseEventRecord, names: Map<string, string>): string {
       return `${who} assigned the case to ${name(d.to)}`;
     case 'reassigned':
       return `${who} reassigned the case from ${name(d.from)} to ${name(d.to)}`;
+    case 'reply-overdue':
+      return `No reply by ${typeof d.dueDate === 'string' ? longDate(d.dueDate) : 'the due date'}${e.toState === 'in_review' ? '; the case is back in review' : ''}`;
+    case 'reminder':
+      return `Plumbline sent the taxpayer a reminder${typeof d.dueDate === 'string' ? ` before the due date, ${longDate(d.dueDate)}` : ''}, with a new reply link`;
     case 'handed-over':
       return `${who} handed the case over from ${name(d.from)} to ${name(d.to)}; it stays ${stateWord(e.toState)}`;
     case 'document-request':

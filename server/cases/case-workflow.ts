@@ -133,23 +133,31 @@ export async function claimCase(ds: DataSource, audit: StaffAudit, caseId: strin
   });
 }
 
-/** A supervisor gives an open or assigned case to an examiner (history kept as events). */
+/**
+ * A supervisor gives a case that is not finished to an examiner (history kept as events).
+ * An open case becomes assigned; a case already being worked keeps its state, letters and
+ * reply links (they belong to the case, not to the examiner): a hand-over for leave or a
+ * departure (issue 13), recorded as 'handed-over' with who had it and who has it now.
+ */
 export async function assignCase(ds: DataSource, audit: StaffAudit, caseId: string, assigneeId: string): Promise<ExamCase> {
   return ds.transaction(async (m) => {
     const c = await lockCase(m, caseId);
-    if (c.state !== 'open' && c.state !== 'assigned') {
-      throw new HttpError(409, `Only open or assigned cases can be given to an examiner; this one is ${CASE_STATE_LABELS[c.state].toLowerCase()}.`);
+    if (isFinalState(c.state)) {
+      throw new HttpError(409, `A finished case cannot be given to an examiner; this one is ${CASE_STATE_LABELS[c.state].toLowerCase()}.`);
     }
     const who = await findAssignee(m, assigneeId);
     if (!who || !who.active || who.role !== 'examiner') throw new HttpError(422, 'Assign cases to an active examiner.');
     if (c.assigneeId === assigneeId) throw new HttpError(409, `The case is already with ${who.displayName}.`);
     const from = c.state;
     const previous = c.assigneeId;
-    c.state = 'assigned';
+    // Only an open case changes state; work in progress stays where it is.
+    const to: CaseState = from === 'open' ? 'assigned' : from;
+    c.state = to;
     c.assigneeId = assigneeId;
     c.updatedAt = new Date();
     await saveCase(m, c);
-    await addCaseEvent(m, c.id, audit.actor, previous ? 'reassigned' : 'assigned', { from: previous, to: assigneeId }, from, 'assigned');
+    const kind = !previous ? 'assigned' : from === 'open' || from === 'assigned' ? 'reassigned' : 'handed-over';
+    await addCaseEvent(m, c.id, audit.actor, kind, { from: previous, to: assigneeId }, from, to);
     await logChange(m, audit, c, `assigned to ${who.displayName}`);
     return c;
   });

@@ -27,6 +27,7 @@ import { AssignRequestSchema, NoteRequestSchema, TransitionRequestSchema } from 
 import { digitProfileSchema } from '../../shared/digits/schema';
 import { ControlsQuerySchema, ControlsSchema, OutcomesQuerySchema, OutcomesSchema } from '../../shared/programme/api';
 import { HealthResponseSchema } from '../../shared/health';
+import { HousekeepingResultSchema } from '../../shared/housekeeping';
 import {
   DocumentRequestInputSchema,
   LetterCreatedSchema,
@@ -473,6 +474,16 @@ export const API_ROUTES: readonly ApiRoute[] = [
     tag: 'cases',
     summary: 'Each examiner’s open, overdue and recently finished cases',
     responses: { 200: json(WorkloadSchema, 'The workload.') },
+  },
+
+  // server/housekeeping/housekeeping.routes.ts
+  {
+    method: 'post',
+    path: '/api/housekeeping/run',
+    operationId: 'runHousekeeping',
+    tag: 'cases',
+    summary: 'Run the daily pass now: expire late requests, send reminders and examiners’ digests (a second run the same day does nothing new)',
+    responses: { 200: json(HousekeepingResultSchema, 'What this run did.') },
   },
 
   // server/programme/programme.routes.ts

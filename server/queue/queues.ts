@@ -11,6 +11,8 @@ export const QUEUES = {
   scoreBatch: 'score-batch',
   /** Score one slice of a batch's returns: data {runId, fromId, toId}. Any worker may take it. */
   scoreChunk: 'score-chunk',
+  /** The daily pass (issue 13): scheduled once a day at HOUSEKEEPING_HOUR; no data. */
+  dailyPass: 'daily-pass',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 

@@ -57,6 +57,7 @@ const EXPECTED: Record<string, typeof PUBLIC | readonly Role[]> = {
   'POST /api/cases/reassign': SUPERVISOR,
   'GET /api/examiners': CASE_WORK,
   'GET /api/workload': SUPERVISOR,
+  'POST /api/housekeeping/run': SUPERVISOR,
   'GET /api/programme/outcomes': SUPERVISOR,
   'GET /api/programme/controls': SUPERVISOR,
   'GET /api/cases/:id': CASE_WORK,

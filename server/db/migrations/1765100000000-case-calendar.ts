@@ -9,6 +9,7 @@ import type { MigrationInterface, QueryRunner } from 'typeorm';
  *   on it (idx_case_assess_by); filled for existing cases by the server at start-up and
  *   by scoring for new ones (server/cases/case-deadline.service.ts);
  * - document_request.reminded_at: the one reminder the daily pass sends per request;
+ * - app_user.email: where an examiner's daily digest goes;
  * - housekeeping_run / housekeeping_digest: what the daily pass did on each office day, so
  *   a second run the same day does nothing new;
  * - letter kinds for the reminder and the closing letters.
@@ -21,6 +22,8 @@ export class CaseCalendar1765100000000 implements MigrationInterface {
     await q.query(`ALTER TABLE exam_case ADD COLUMN assess_by date, ADD COLUMN assess_basis text CHECK (assess_basis IN ('standard', 'omitted-income', 'no-return'))`);
     await q.query(`CREATE INDEX idx_case_assess_by ON exam_case (assess_by, id)`);
     await q.query(`ALTER TABLE document_request ADD COLUMN reminded_at timestamptz`);
+    // Where an examiner's daily digest goes (null: username at STAFF_MAIL_DOMAIN).
+    await q.query(`ALTER TABLE app_user ADD COLUMN email text`);
     await q.query(`ALTER TABLE letter DROP CONSTRAINT letter_kind_check`);
     await q.query(`ALTER TABLE letter ADD CONSTRAINT letter_kind_check CHECK (kind IN ('document_request', 'referral_memo', 'reminder', 'acknowledgement', 'no_change', 'adjustment_proposal'))`);
     await q.query(`
@@ -45,6 +48,7 @@ export class CaseCalendar1765100000000 implements MigrationInterface {
     await q.query(`DELETE FROM letter WHERE kind NOT IN ('document_request', 'referral_memo')`);
     await q.query(`ALTER TABLE letter DROP CONSTRAINT letter_kind_check`);
     await q.query(`ALTER TABLE letter ADD CONSTRAINT letter_kind_check CHECK (kind IN ('document_request', 'referral_memo'))`);
+    await q.query(`ALTER TABLE app_user DROP COLUMN email`);
     await q.query(`ALTER TABLE document_request DROP COLUMN reminded_at`);
     await q.query(`DROP INDEX idx_case_assess_by`);
     await q.query(`ALTER TABLE exam_case DROP COLUMN assess_by, DROP COLUMN assess_basis`);
