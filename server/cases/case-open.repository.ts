@@ -5,6 +5,7 @@
  */
 import type { EntityManager } from 'typeorm';
 import { FINAL_STATES } from '../../shared/cases';
+import { refreshDeadlines } from './case-deadline.service';
 
 /** A newly selected return's score, as a case is opened (or updated) from it. */
 export interface SelectedScore {
@@ -47,6 +48,8 @@ export async function openCasesForScores(m: EntityManager, batchId: string, vers
       FINAL_STATES,
     ],
   );
+  // Each case keeps its assessment deadline (issue 13), so the queue can sort on it.
+  await refreshDeadlines(m, rows.map((r) => r.id));
   const opened = rows.filter((r) => r.inserted).map((r) => r.id);
   const rescored = rows.filter((r) => !r.inserted).map((r) => r.id);
   if (opened.length) {
@@ -56,6 +59,7 @@ export async function openCasesForScores(m: EntityManager, batchId: string, vers
     await m.query(`INSERT INTO case_event (case_id, kind, detail) SELECT id, 'rescored', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [rescored, version]);
   }
 }
+
 /** A return drawn for random review, as its case is opened. */
 export interface RandomPick {
   returnId: string;
