@@ -17,6 +17,7 @@ export const NAV_ITEMS: readonly RoleNavItem[] = [
   { href: '/workload', label: 'Workload', roles: CAN.readWorkload },
   { href: '/batches', label: 'Batches', roles: CAN.readBatches },
   { href: '/scoring', label: 'Scoring', roles: CAN.editScoring },
+  { href: '/programme', label: 'Programme', roles: CAN.readProgramme },
   { href: '/users', label: 'Users', roles: CAN.manageUsers },
   { href: '/access-log', label: 'Access log', roles: CAN.readAccessLog },
   { href: '/about', label: 'About', roles: 'all' },

@@ -1,0 +1,1 @@
+export { ProgrammeScreen as default } from '../../components/features/programme/programme-screen';
