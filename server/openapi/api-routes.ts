@@ -92,6 +92,7 @@ export const COMPONENTS = {
   BulkReassignResult: BulkReassignResultSchema,
   ExaminerList: ExaminerListSchema,
   Workload: WorkloadSchema,
+  HousekeepingResult: HousekeepingResultSchema,
   ProgrammeOutcomes: OutcomesSchema,
   RandomReviewCases: ControlsSchema,
   LetterCreated: LetterCreatedSchema,

@@ -17,6 +17,7 @@ import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
 import { LettersPanel } from '../letters/letters-panel';
 import { age, amount, StateBadge, when, whole } from './case-bits';
+import { DeadlineLabel } from './deadline-bits';
 import { DigitChart } from './digit-chart';
 import { useAddNote, useAssign, useCase, useClaim, useExaminers, useRevealTin, useTransition } from './use-cases';
 
@@ -113,6 +114,12 @@ function Header({ d }: { d: CaseDetail }) {
         <Fact label="Examiner">{d.assignee?.name ?? 'Nobody yet'}</Fact>
         <Fact label="Opened">{`${when(d.openedAt).slice(0, 10)} (${age(d.openedAt)})`}</Fact>
         {d.dueDate && <Fact label="Reply due">{d.dueDate}</Fact>}
+      </View>
+      <View style={{ gap: 2 }} testID="case-deadline">
+        <DeadlineLabel assessBy={d.deadline.assessBy} daysLeft={d.deadline.daysLeft} testID="case-deadline-label" />
+        <Txt variant="caption" tone="soft">
+          {d.deadline.explanation} {d.deadline.caution}
+        </Txt>
       </View>
     </View>
   );

@@ -1,6 +1,7 @@
 import { Link, useLocalSearchParams, useRouter } from 'expo-router';
 import { useEffect, useState } from 'react';
 import { Linking, Platform, Pressable, View } from 'react-native';
+import { DeadlineLabel } from './deadline-bits';
 import { CASE_SORT_LABELS, CASE_SORTS, type CaseListItem, type CaseListParams, type CaseSort } from '../../../shared/case-api';
 import { CASE_STATE_LABELS } from '../../../shared/cases';
 import { SCREENING_CAUTION } from '../../../shared/cautions';
@@ -123,6 +124,7 @@ function TableRow({ c }: { c: CaseListItem }) {
               reply due {c.dueDate}
             </Txt>
           )}
+          <DeadlineLabel assessBy={c.assessBy} testID={`queue-deadline-${c.returnRef}`} />
         </Cell>
       </Pressable>
     </Link>
@@ -169,6 +171,7 @@ function CaseCard({ c }: { c: CaseListItem }) {
             {c.assigneeName ? `With ${c.assigneeName}` : 'Nobody holds it yet'} · opened {age(c.openedAt) === 'today' ? 'today' : `${age(c.openedAt)} ago`}
             {c.dueDate ? ` · reply due ${c.dueDate}` : ''}
           </Txt>
+          <DeadlineLabel assessBy={c.assessBy} testID={`queue-card-deadline-${c.returnRef}`} />
         </Card>
       </Pressable>
     </Link>

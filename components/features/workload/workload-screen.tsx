@@ -15,11 +15,12 @@ import { useWorkload } from './use-workload';
 /** Whose cases the reassignment panel lists: an examiner's id, or 'none' for open cases nobody holds. */
 type Source = string;
 
-const COUNTS: { key: keyof Pick<WorkloadRow, 'assigned' | 'inReview' | 'awaitingReply' | 'overdue' | 'open' | 'finished30d'>; label: string; short: string }[] = [
+const COUNTS: { key: keyof Pick<WorkloadRow, 'assigned' | 'inReview' | 'awaitingReply' | 'overdue' | 'deadlinesNear' | 'open' | 'finished30d'>; label: string; short: string }[] = [
   { key: 'assigned', label: 'Not started', short: 'Not started' },
   { key: 'inReview', label: 'In review', short: 'In review' },
   { key: 'awaitingReply', label: 'Awaiting reply', short: 'Awaiting reply' },
   { key: 'overdue', label: 'Overdue', short: 'Overdue' },
+  { key: 'deadlinesNear', label: 'Deadline < 90 days', short: 'Deadline < 90 d' },
   { key: 'open', label: 'Open in all', short: 'Open' },
   { key: 'finished30d', label: 'Finished, last 30 days', short: 'Finished (30 d)' },
 ];
