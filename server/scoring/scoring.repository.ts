@@ -52,66 +52,6 @@ export async function batchDeductionFigures(db: Db, batchId: string): Promise<(P
   }));
 }
 
-/** First-digit counts of every current return of each preparer that has returns in the batch. */
-export async function preparerDigitCounts(db: Db, batchId: string): Promise<Map<string, number[]>> {
-  const rows: { preparer_id: string; d: number; n: string }[] = await db.query(
-    `WITH p AS (SELECT DISTINCT preparer_id FROM tax_return WHERE batch_id = $1 AND preparer_id IS NOT NULL)
-     SELECT r.preparer_id, ${FIRST_DIGIT_SQL} AS d, count(*) AS n
-       FROM p JOIN tax_return r ON r.preparer_id = p.preparer_id AND NOT r.superseded
-       JOIN line_item li ON li.return_id = r.id
-      WHERE ${ITEMISED_SQL}
-      GROUP BY 1, 2`,
-    [batchId],
-  );
-  const out = new Map<string, number[]>();
-  for (const r of rows) {
-    const c = out.get(r.preparer_id) ?? new Array(9).fill(0);
-    if (r.d >= 1 && r.d <= 9) c[r.d - 1] += Number(r.n);
-    out.set(r.preparer_id, c);
-  }
-  return out;
-}
-
-/** First-digit counts per line code across the batch (the pooled line-code test). */
-export async function lineCodeDigitCounts(db: Db, batchId: string): Promise<Map<string, number[]>> {
-  const rows: { line_code: string; d: number; n: string }[] = await db.query(
-    `SELECT li.line_code, ${FIRST_DIGIT_SQL} AS d, count(*) AS n
-       FROM tax_return r JOIN line_item li ON li.return_id = r.id
-      WHERE r.batch_id = $1 AND ${ITEMISED_SQL}
-      GROUP BY 1, 2`,
-    [batchId],
-  );
-  const out = new Map<string, number[]>();
-  for (const r of rows) {
-    const c = out.get(r.line_code) ?? new Array(9).fill(0);
-    if (r.d >= 1 && r.d <= 9) c[r.d - 1] += Number(r.n);
-    out.set(r.line_code, c);
-  }
-  return out;
-}
-
-/** Amounts (absolute cents, >= min) that appear on returns of two or more clients of one preparer. */
-export async function preparerSharedAmounts(db: Db, batchId: string, minCents: number): Promise<Map<string, number[]>> {
-  // min <> max instead of count(DISTINCT): a hash aggregate, no sort of every amount.
-  const rows: { preparer_id: string; cents: string }[] = await db.query(
-    `WITH p AS (SELECT DISTINCT preparer_id FROM tax_return WHERE batch_id = $1 AND preparer_id IS NOT NULL)
-     SELECT r.preparer_id, (abs(li.amount) * 100)::bigint AS cents
-       FROM p JOIN tax_return r ON r.preparer_id = p.preparer_id AND NOT r.superseded
-       JOIN line_item li ON li.return_id = r.id
-      WHERE ${ITEMISED_SQL} AND abs(li.amount) >= $2
-      GROUP BY 1, 2
-     HAVING min(r.taxpayer_id::text) <> max(r.taxpayer_id::text)`,
-    [batchId, minCents / 100],
-  );
-  const out = new Map<string, number[]>();
-  for (const r of rows) {
-    const list = out.get(r.preparer_id) ?? [];
-    list.push(Number(r.cents));
-    out.set(r.preparer_id, list);
-  }
-  return out;
-}
-
 /** One return to score, with what is on file about it. */
 export interface ReturnRow {
   id: string;
@@ -202,24 +142,6 @@ export async function historyOf(db: Db, taxpayerIds: string[]) {
   }));
 }
 
-/** First-digit counts of each taxpayer's itemised amounts over all their current returns. */
-export async function taxpayerDigitCounts(db: Db, taxpayerIds: string[]): Promise<Map<string, number[]>> {
-  const rows: { taxpayer_id: string; d: number; n: string }[] = await db.query(
-    `SELECT r.taxpayer_id, ${FIRST_DIGIT_SQL} AS d, count(*) AS n
-       FROM tax_return r JOIN line_item li ON li.return_id = r.id
-      WHERE r.taxpayer_id = ANY($1::uuid[]) AND NOT r.superseded AND ${ITEMISED_SQL}
-      GROUP BY 1, 2`,
-    [taxpayerIds],
-  );
-  const out = new Map<string, number[]>();
-  for (const r of rows) {
-    const c = out.get(r.taxpayer_id) ?? new Array(9).fill(0);
-    if (r.d >= 1 && r.d <= 9) c[r.d - 1] += Number(r.n);
-    out.set(r.taxpayer_id, c);
-  }
-  return out;
-}
-
 /**
  * The batch's amounts as slots: one per (return, line code, absolute amount), so a bill
  * entered twelve times on one line counts once, with whether the return is a whole-unit
@@ -235,7 +157,7 @@ export async function createBatchSlots(m: EntityManager, batchId: string): Promi
         WHERE r.batch_id = $1 AND NOT r.superseded AND ${ITEMISED_SQL}
         GROUP BY 1)
      SELECT r.id AS return_id, r.taxpayer_id, r.preparer_id, li.line_code, abs(li.amount) AS a, count(*)::int AS c, w.whole,
-            substr(ltrim(replace(abs(li.amount)::text, '.', ''), '0'), 1, 1)::int AS d
+            ${FIRST_DIGIT_SQL} AS d
        FROM tax_return r JOIN line_item li ON li.return_id = r.id JOIN w ON w.return_id = r.id
       WHERE r.batch_id = $1 AND NOT r.superseded AND ${ITEMISED_SQL}
       GROUP BY r.id, r.taxpayer_id, r.preparer_id, li.line_code, abs(li.amount), w.whole`,

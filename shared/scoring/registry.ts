@@ -61,7 +61,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
     label: 'Digit pattern of the taxpayer\'s other years on file',
     defaultWeight: 10,
     group: 'related',
-    params: ['pooledFixedThresholdMinN', 'poolPriorStrength', 'patternPStart', 'patternPFull'],
+    params: ['pooledFixedThresholdMinN', 'patternPStart', 'patternPFull'],
     run: (r) => r.poolResult('on the taxpayer\'s other returns on file', r.ctx.history),
   },
   preparerDigits: {
@@ -69,7 +69,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
     label: 'Digit pattern of the preparer\'s other returns',
     defaultWeight: 35,
     group: 'related',
-    params: ['pooledFixedThresholdMinN', 'poolPriorStrength', 'patternPStart', 'patternPFull'],
+    params: ['pooledFixedThresholdMinN', 'patternPStart', 'patternPFull'],
     run: (r) => r.poolResult('on the preparer\'s other returns in the batch', r.ctx.preparer),
   },
   totalsMismatch: {

@@ -98,8 +98,6 @@ export const ScoringSettingsSchema = z.object({
     recurrenceMinRate: share.default(0.01),
     /** Strength (in amounts) of the batch prior that a line code's round-amount rate is shrunk toward. */
     roundPriorStrength: z.number().min(0).default(200),
-    /** Strength (in amounts) of the batch prior that a small pool's digit profile is shrunk toward. */
-    poolPriorStrength: z.number().min(0).default(300),
   }),
 });
 export type ScoringSettings = z.infer<typeof ScoringSettingsSchema>;
@@ -139,6 +137,5 @@ export const DEFAULT_SCORING_SETTINGS: ScoringSettings = {
     patternPFull: 1e-5,
     recurrenceMinRate: 0.01,
     roundPriorStrength: 200,
-    poolPriorStrength: 300,
   },
 };

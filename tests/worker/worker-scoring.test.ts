@@ -63,7 +63,8 @@ describe('scoring worker processes', () => {
     expect(done).toEqual({ state: 'scored', scored_count: 300, return_count: 300 });
     expect(await scoreCount(b.batchId)).toEqual({ n: 300, d: 300 });
     const [{ cases, selected }] = await ds.query(
-      `SELECT (SELECT count(*)::int FROM exam_case WHERE batch_id = $1) AS cases,
+      // Cases opened by the score (the random review sample, docs/methods.md#programme-outcomes, adds its own).
+      `SELECT (SELECT count(*)::int FROM exam_case WHERE batch_id = $1 AND selection = 'score') AS cases,
               (SELECT count(*)::int FROM return_score WHERE batch_id = $1 AND (breakdown->>'selected')::boolean) AS selected`,
       [b.batchId],
     );
