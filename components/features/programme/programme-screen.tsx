@@ -71,7 +71,7 @@ function Overall({ c }: { c: Comparison }) {
       <Txt variant="title" bold accessibilityRole="header" aria-level={2}>
         Selected against random
       </Txt>
-      <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.lg }}>
+      <View style={{ flexDirection: 'row', flexWrap: 'wrap', columnGap: space.lg, rowGap: space.lg }}>
         <GroupFigures title="Selected by score" g={c.selected} />
         <GroupFigures title="Chosen at random" g={c.random} />
         <View style={{ gap: space.sm, flex: 1, minWidth: 260 }}>
