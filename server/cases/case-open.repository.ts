@@ -86,6 +86,8 @@ export async function openRandomCases(m: EntityManager, batchId: string, version
     [batchId, picks.map((p) => p.returnId), picks.map((p) => p.taxpayerId), picks.map((p) => p.scoreId)],
   );
   const ids = rows.map((r) => r.id);
+  // Like every case, a random one keeps its assessment deadline (issue 13).
+  await refreshDeadlines(m, ids);
   if (ids.length) {
     await m.query(
       `INSERT INTO case_event (case_id, kind, to_state, detail) SELECT id, 'opened', 'open', jsonb_build_object('profileVersion', $2::int, 'selection', 'random') FROM unnest($1::uuid[]) AS id`,

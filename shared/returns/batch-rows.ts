@@ -24,7 +24,7 @@ export type BatchTable = (typeof BATCH_TABLES)[number];
 export const BATCH_COLUMNS = {
   returns: {
     required: ['return_ref', 'tin', 'tax_year', 'taxpayer_name', 'activity_code', 'preparer_id'],
-    optional: ['email', 'postal_address'],
+    optional: ['email', 'postal_address', 'filed_on'],
   },
   line_items: { required: ['return_ref', 'line_code', 'amount'], optional: [] },
   statements: { required: ['tin', 'tax_year', 'kind', 'payer', 'amount'], optional: [] },
@@ -231,7 +231,21 @@ export interface ReturnRow {
   preparerId: string | null;
   email: string | null;
   postalAddress: string | null;
+  /** The date the return was filed (YYYY-MM-DD), or null: the batch's date counts (issue 13). */
+  filedOn: string | null;
 }
+
+/**
+ * The optional filing date: blank, or a real date written YYYY-MM-DD. (An XLSX date cell is
+ * refused by the intake with a hint to format the column as Text.)
+ */
+const FiledOnSchema = z.string().optional().transform((v, ctx) => {
+  if (v === undefined || v === '') return null;
+  const ok = /^\d{4}-\d{2}-\d{2}$/.test(v) && !Number.isNaN(Date.parse(`${v}T00:00:00Z`)) && new Date(`${v}T00:00:00Z`).toISOString().slice(0, 10) === v;
+  if (ok) return v;
+  ctx.issues.push({ code: 'custom', input: v, message: `${show(v)} is not a date: write the filing date as YYYY-MM-DD, e.g. 2025-04-15, or leave the cell blank` });
+  return z.NEVER;
+});
 
 /** Schema for a `returns` row, for the office's tax-year range. */
 export function returnRowSchema(years: TaxYearRange): z.ZodType<ReturnRow, Record<string, string>> {
@@ -245,6 +259,13 @@ export function returnRowSchema(years: TaxYearRange): z.ZodType<ReturnRow, Recor
       preparer_id: PreparerSchema,
       email: EmailSchema,
       postal_address: textSchema('postal address', 300, false),
+      filed_on: FiledOnSchema,
+    })
+    .check((ctx) => {
+      const r = ctx.value;
+      if (r.filed_on && Number(r.filed_on.slice(0, 4)) <= r.tax_year) {
+        ctx.issues.push({ code: 'custom', input: r.filed_on, path: ['filed_on'], message: `${show(r.filed_on)} is within tax year ${r.tax_year}: a return is filed after its tax year ends` });
+      }
     })
     .transform((r) => ({
       returnRef: r.return_ref,
@@ -255,6 +276,7 @@ export function returnRowSchema(years: TaxYearRange): z.ZodType<ReturnRow, Recor
       preparerId: r.preparer_id,
       email: r.email,
       postalAddress: r.postal_address,
+      filedOn: r.filed_on,
     }));
 }
 

@@ -11,6 +11,7 @@ import { addYears, daysUntil } from '../../shared/returns/assessment-deadline';
 import { advanceClockDays, resetClock, today } from '../../server/clock';
 import { refreshDeadlines } from '../../server/cases/case-deadline.service';
 import { signIn, type SignedIn } from '../helpers/auth';
+import { csv, LINES_HEADER, RETURNS_HEADER, upload } from '../helpers/batches';
 import { caseInState, openCaseIds } from '../helpers/cases';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
@@ -121,5 +122,32 @@ describe('assessment deadlines', () => {
     expect(later.items.map((i) => i.id)).toEqual(expect.arrayContaining([ids[0], ids[1]]));
     const d = CaseDetailSchema.parse((await supervisor.agent.get(`/api/cases/${ids[0]}`)).body);
     expect(d.deadline.daysLeft).toBe(-11);
+  });
+
+  it('reads the optional filed_on column of a batch; a file without it stays valid (filing date: the batch date)', async () => {
+    const clerk = await signIn(ctx, 'clerk');
+    const year = new Date().getUTCFullYear() - 2;
+    const withDate = await upload(clerk, {
+      returns: { name: 'returns.csv', content: csv([`${RETURNS_HEADER},filed_on`, `CAL-FILED-1,987650001,${year},Orla Vantreck,retail,,,,${year + 1}-09-02`, `CAL-FILED-2,987650002,${year},Piet Lorrimer,none,,,,`]) },
+      line_items: { name: 'line_items.csv', content: csv([LINES_HEADER, 'CAL-FILED-1,inc.wages,41000.00', 'CAL-FILED-2,inc.wages,39000.00']) },
+    });
+    expect(withDate.status).toBe(201);
+    const old = await upload(clerk, {
+      returns: { name: 'returns.csv', content: csv([RETURNS_HEADER, `CAL-OLD-1,987650003,${year},Quin Ashdown,none,,,`]) },
+      line_items: { name: 'line_items.csv', content: csv([LINES_HEADER, 'CAL-OLD-1,inc.wages,30000.00']) },
+    });
+    expect(old.status).toBe(201);
+    const rows = await ctx.dataSource.query(`SELECT return_ref, filed_on::text AS filed_on FROM tax_return WHERE return_ref LIKE 'CAL-%' ORDER BY return_ref`);
+    expect(rows).toEqual([
+      { return_ref: 'CAL-FILED-1', filed_on: `${year + 1}-09-02` },
+      { return_ref: 'CAL-FILED-2', filed_on: null },
+      { return_ref: 'CAL-OLD-1', filed_on: null },
+    ]);
+    const bad = await upload(clerk, {
+      returns: { name: 'returns.csv', content: csv([`${RETURNS_HEADER},filed_on`, `CAL-BAD-1,987650004,${year},Rhea Tolland,none,,,,${year}-12-31`]) },
+      line_items: { name: 'line_items.csv', content: csv([LINES_HEADER, 'CAL-BAD-1,inc.wages,30000.00']) },
+    });
+    expect(bad.status).toBe(422);
+    expect(JSON.stringify(bad.body.errors)).toContain(`is within tax year ${year}: a return is filed after its tax year ends`);
   });
 });

@@ -442,7 +442,7 @@ class Intake {
     const w = tx.openReturnCopy();
     const batchId = this.opts.batchId;
     for (const r of this.returns) {
-      const line = `${r.id}\t${batchId}\t${taxpayerIds.get(r.tin)}\t${r.preparerId ? preparerIds.get(r.preparerId) : '\\N'}\t${copyText(r.returnRef)}\t${r.taxYear}\t${r.row}\t${r.amends ?? '\\N'}\n`;
+      const line = `${r.id}\t${batchId}\t${taxpayerIds.get(r.tin)}\t${r.preparerId ? preparerIds.get(r.preparerId) : '\\N'}\t${copyText(r.returnRef)}\t${r.taxYear}\t${r.row}\t${r.amends ?? '\\N'}\t${r.filedOn ?? '\\N'}\n`;
       if (w.add(line)) await w.flush();
     }
     await w.end();

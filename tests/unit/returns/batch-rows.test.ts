@@ -29,6 +29,7 @@ describe('returns row schema', () => {
       preparerId: 'PRP-0001',
       email: null,
       postalAddress: null,
+      filedOn: null,
     });
     expect(schema.parse({ ...goodReturn, preparer_id: '', activity_code: 'Food-Service' })).toMatchObject({ preparerId: null, activityCode: 'food-service' });
   });
@@ -97,5 +98,19 @@ describe('header names and the office range', () => {
 
   it('takes the ten tax years that have ended', () => {
     expect(officeTaxYears(new Date('2026-12-01T00:00:00Z'))).toEqual({ first: 2016, last: 2025 });
+  });
+});
+
+describe('returns row: the optional filed_on column (issue 13)', () => {
+  const schema = returnRowSchema(years);
+  it('reads a filing date after the tax year, and leaves a blank or missing one null (the batch date counts)', () => {
+    expect(schema.parse({ ...goodReturn, filed_on: '2025-06-02' }).filedOn).toBe('2025-06-02');
+    expect(schema.parse({ ...goodReturn, filed_on: '' }).filedOn).toBeNull();
+    expect(schema.parse(goodReturn).filedOn).toBeNull();
+  });
+  it('refuses a date that is not one, or one inside the tax year, saying how to fix it', () => {
+    expect(messages(schema.safeParse({ ...goodReturn, filed_on: '2025-02-30' }))).toEqual([expect.stringMatching(/^filed_on: "2025-02-30" is not a date: write the filing date as YYYY-MM-DD/)]);
+    expect(messages(schema.safeParse({ ...goodReturn, filed_on: '15/04/2025' }))).toEqual([expect.stringMatching(/^filed_on: "15\/04\/2025" is not a date/)]);
+    expect(messages(schema.safeParse({ ...goodReturn, filed_on: '2024-12-31' }))).toEqual(['filed_on: "2024-12-31" is within tax year 2024: a return is filed after its tax year ends']);
   });
 });
