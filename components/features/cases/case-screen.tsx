@@ -4,7 +4,7 @@ import { useState, type ReactNode } from 'react';
 import { useForm } from 'react-hook-form';
 import { Pressable, View } from 'react-native';
 import type { CaseDetail } from '../../../shared/case-api';
-import { CASE_STATE_LABELS, NoteRequestSchema, TransitionRequestSchema, type CaseState, type NoteRequest, type TransitionRequest } from '../../../shared/cases';
+import { CASE_SELECTION_LABELS, CASE_STATE_LABELS, NoteRequestSchema, TransitionRequestSchema, type CaseState, type NoteRequest, type TransitionRequest } from '../../../shared/cases';
 import { SCREENING_CAUTION } from '../../../shared/cautions';
 import { LINE_CODE_DEFS } from '../../../shared/returns/line-codes';
 import type { PoolSnapshot } from '../../../shared/scoring/breakdown';
@@ -111,6 +111,7 @@ function Header({ d }: { d: CaseDetail }) {
         <Fact label="Tax year">{String(r.taxYear)}</Fact>
         <Fact label="Activity">{d.taxpayer.activityCode}</Fact>
         <Fact label="Preparer">{r.preparerCode ?? 'Self-prepared'}</Fact>
+        <Fact label="Why it is here">{CASE_SELECTION_LABELS[d.selection]}</Fact>
         <Fact label="Examiner">{d.assignee?.name ?? 'Nobody yet'}</Fact>
         <Fact label="Opened">{`${when(d.openedAt).slice(0, 10)} (${age(d.openedAt)})`}</Fact>
         {d.dueDate && <Fact label="Reply due">{d.dueDate}</Fact>}
