@@ -62,7 +62,7 @@ export interface HousekeepingSettings {
 }
 
 /** Reads REMINDER_DAYS_BEFORE, HOUSEKEEPING_HOUR and STAFF_MAIL_DOMAIN; a bad value throws a clear error. */
-export function housekeepingSettings(env: NodeJS.ProcessEnv = process.env): HousekeepingSettings {
+export function housekeepingSettings(env: Record<string, string | undefined> = process.env): HousekeepingSettings {
   const int = (name: string, def: number, min: number, max: number) => {
     const raw = env[name]?.trim();
     if (!raw) return def;

@@ -10,6 +10,8 @@ import { CaseDetailSchema } from '../../shared/case-api';
 import { HousekeepingResultSchema } from '../../shared/housekeeping';
 import { addDays, flaggedLetterWords, LetterListSchema, longDate } from '../../shared/letters';
 import { advanceClockDays, resetClock, today } from '../../server/clock';
+import { housekeepingSettings } from '../../server/housekeeping/housekeeping.service';
+import { registerDailyPass } from '../../worker/daily-pass';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { caseInReview, dueIn, uniqueAddress } from '../helpers/letter-cases';
 import { attachment, mailTo, pdfText, waitForMail } from '../helpers/maildev';
@@ -146,5 +148,19 @@ describe('the daily pass', () => {
 
   it('is the supervisor\'s to run', async () => {
     expect((await examiner.agent.post('/api/housekeeping/run').set('X-CSRF-Token', examiner.csrf)).status).toBe(403);
+  });
+
+  it('is scheduled once a day at HOUSEKEEPING_HOUR, and refuses a bad setting with a clear message', async () => {
+    process.env.HOUSEKEEPING_HOUR = '5';
+    try {
+      await registerDailyPass({ boss: ctx.boss, dataSource: ctx.dataSource, config: ctx.config, log: () => undefined });
+    } finally {
+      delete process.env.HOUSEKEEPING_HOUR;
+    }
+    const schedules = await ctx.boss.getSchedules();
+    expect(schedules).toContainEqual(expect.objectContaining({ name: 'daily-pass', cron: '0 5 * * *' }));
+    expect(housekeepingSettings({}).reminderDaysBefore).toBe(7);
+    expect(() => housekeepingSettings({ REMINDER_DAYS_BEFORE: 'a week' })).toThrow('REMINDER_DAYS_BEFORE="a week" must be a whole number from 1 to 60');
+    expect(() => housekeepingSettings({ HOUSEKEEPING_HOUR: '24' })).toThrow('HOUSEKEEPING_HOUR="24" must be a whole number from 0 to 23');
   });
 });
