@@ -99,6 +99,7 @@ describe('route × role policy', () => {
       assignCases: ['supervisor'],
       exportQueue: ['supervisor'],
       readWorkload: ['supervisor'],
+      readProgramme: ['supervisor'],
       runHousekeeping: ['supervisor'],
       editScoring: ['supervisor'],
       readScoring: ['examiner', 'supervisor'],
