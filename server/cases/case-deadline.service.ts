@@ -23,9 +23,11 @@ export function deadlineOf(f: DeadlineFacts): AssessmentDeadline {
 }
 
 /** Computes and stores the deadlines of some cases (inside the caller's transaction when given one). */
-export async function refreshDeadlines(db: Db, caseIds: string[]): Promise<void> {
+export async function refreshDeadlines(db: Db, caseIds: string[]): Promise<number> {
+  let stored = 0;
   for (let i = 0; i < caseIds.length; i += 5000) {
     const facts = await findDeadlineFacts(db, caseIds.slice(i, i + 5000));
+    stored += facts.length;
     await storeDeadlines(
       db,
       facts.map((f) => {
@@ -34,6 +36,7 @@ export async function refreshDeadlines(db: Db, caseIds: string[]): Promise<void>
       }),
     );
   }
+  return stored;
 }
 
 /** Fills the deadline of every case that has none yet (cases opened before it was kept). */
@@ -41,9 +44,10 @@ export async function fillMissingDeadlines(db: Db): Promise<number> {
   let n = 0;
   for (;;) {
     const ids = await findCasesWithoutDeadline(db);
-    if (!ids.length) return n;
-    await refreshDeadlines(db, ids);
-    n += ids.length;
+    // A case whose facts cannot be found would come back every time: stop rather than loop.
+    const stored = ids.length ? await refreshDeadlines(db, ids) : 0;
+    if (!stored) return n;
+    n += stored;
   }
 }
 

@@ -149,8 +149,9 @@ export async function exportCases(ds: DataSource, audit: StaffAudit, q: CaseList
     { header: 'Examiner', key: 'assignee', width: 22 },
     { header: 'Opened', key: 'opened', width: 12, style: { numFmt: 'yyyy-mm-dd' } },
     { header: 'Due', key: 'due', width: 12 },
-    { header: 'Assess by', key: 'assessBy', width: 12 },
     { header: 'Case id', key: 'id', width: 38 },
+    // Last, so the earlier columns keep their places for anyone who reads them by position.
+    { header: 'Assess by', key: 'assessBy', width: 12 },
   ];
   ws.getRow(1).font = { bold: true };
   let written = 0;

@@ -9,7 +9,7 @@ import { CaseDetailSchema, CaseListSchema, WorkloadSchema } from '../../shared/c
 import { addDays } from '../../shared/letters';
 import { addYears, daysUntil } from '../../shared/returns/assessment-deadline';
 import { advanceClockDays, resetClock, today } from '../../server/clock';
-import { refreshDeadlines } from '../../server/cases/case-deadline.service';
+import { fillMissingDeadlines, refreshDeadlines } from '../../server/cases/case-deadline.service';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { csv, LINES_HEADER, RETURNS_HEADER, upload } from '../helpers/batches';
 import { caseInState, openCaseIds } from '../helpers/cases';
@@ -149,5 +149,12 @@ describe('assessment deadlines', () => {
     });
     expect(bad.status).toBe(422);
     expect(JSON.stringify(bad.body.errors)).toContain(`is within tax year ${year}: a return is filed after its tax year ends`);
+  });
+
+  it('works out at start-up the deadlines of cases opened before they were kept', async () => {
+    await ctx.dataSource.query(`UPDATE exam_case SET assess_by = NULL, assess_basis = NULL WHERE id IN (SELECT id FROM exam_case ORDER BY id LIMIT 5)`);
+    expect(await fillMissingDeadlines(ctx.dataSource)).toBe(5);
+    expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM exam_case WHERE assess_basis IS NULL`))[0].n).toBe(0);
+    expect(await fillMissingDeadlines(ctx.dataSource)).toBe(0);
   });
 });

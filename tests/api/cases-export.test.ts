@@ -59,7 +59,7 @@ describe('queue export (XLSX)', () => {
     expect(res.headers['content-disposition']).toMatch(/^attachment; filename="plumbline-queue-\d{4}-\d{2}-\d{2}\.xlsx"$/);
     const wb = await workbookOf(res.body as Buffer);
     const rows = rowsOf(wb);
-    expect(rows[0]).toEqual(['Return', 'Tax year', 'Taxpayer', 'TIN (masked)', 'Activity', 'Risk score', 'Amount at stake', 'Priority', 'State', 'Examiner', 'Opened', 'Due', 'Case id']);
+    expect(rows[0]).toEqual(['Return', 'Tax year', 'Taxpayer', 'TIN (masked)', 'Activity', 'Risk score', 'Amount at stake', 'Priority', 'State', 'Examiner', 'Opened', 'Due', 'Case id', 'Assess by']);
     const list = CaseListSchema.parse((await supervisor.agent.get('/api/cases?pageSize=100')).body);
     expect(rows.length - 1).toBe(list.total);
     expect(rows.slice(1).map((r) => r[12])).toEqual(list.items.map((i) => i.id));
