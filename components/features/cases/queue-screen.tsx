@@ -93,6 +93,7 @@ function TableRow({ c }: { c: CaseListItem }) {
           </Txt>
           <Txt variant="caption" tone="soft">
             {c.taxYear} · opened {age(c.openedAt) === 'today' ? 'today' : `${age(c.openedAt)} ago`}
+            {c.selection === 'random' ? ' · chosen at random' : ''}
           </Txt>
         </Cell>
         <Cell>
@@ -149,6 +150,7 @@ function CaseCard({ c }: { c: CaseListItem }) {
             </Txt>
             <Txt variant="small" figures tone="soft">
               {c.maskedTin} · {c.activityCode} · {c.taxYear}
+              {c.selection === 'random' ? ' · chosen at random' : ''}
             </Txt>
           </View>
           <View style={{ flexDirection: 'row', justifyContent: 'space-between', alignItems: 'flex-end', gap: space.md }}>
