@@ -13,8 +13,8 @@ const VERSION_2 = `{"weights":{"digits":45,"historyDigits":10,"preparerDigits":3
 
 const NOTE = 'Calibrated pattern evidence and ordinary filing habits (issue 10): default profile';
 
-export class ScoringV21764960000000 implements MigrationInterface {
-  name = 'ScoringV21764960000000';
+export class ScoringVersionTwo1764960000000 implements MigrationInterface {
+  name = 'ScoringVersionTwo1764960000000';
 
   async up(q: QueryRunner): Promise<void> {
     // A new version after whatever the office has made; it becomes the active one.
