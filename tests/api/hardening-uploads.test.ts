@@ -62,13 +62,19 @@ async function writeXlsx(file: string, sheet: Readable, sharedStrings: Readable 
   await Promise.all([zip.finalize(), new Promise((r) => out.on('close', r))]);
 }
 
-/** Samples this process's resident memory until stopped; returns the peak in MB. */
+/**
+ * Samples this process's resident memory until stopped; returns the peak's growth over the
+ * start in MB. The server shares its process with jest here, and a jest worker that ran other
+ * test files first already holds a few hundred MB of their modules and heap; the growth is what
+ * the upload itself cost (its reading thread included: threads share the process's memory).
+ */
 function watchMemory(): () => number {
-  let peak = process.memoryUsage().rss;
+  const base = process.memoryUsage().rss;
+  let peak = base;
   const timer = setInterval(() => (peak = Math.max(peak, process.memoryUsage().rss)), 25);
   return () => {
     clearInterval(timer);
-    return Math.round(Math.max(peak, process.memoryUsage().rss) / (1024 * 1024));
+    return Math.round((Math.max(peak, process.memoryUsage().rss) - base) / (1024 * 1024));
   };
 }
 
@@ -88,13 +94,18 @@ async function underWatch(ctx: TestContext, send: () => Promise<request.Response
   try {
     const res = await send();
     const cpu = process.cpuUsage(cpu0);
-    return { res, seconds: (performance.now() - t0) / 1000, cpuSeconds: (cpu.user + cpu.system) / 1e6, peakMb: stop(), healthStatuses };
+    return { res, seconds: (performance.now() - t0) / 1000, cpuSeconds: (cpu.user + cpu.system) / 1e6, growthMb: stop(), healthStatuses };
   } finally {
     done = true;
     await health;
     stop();
   }
 }
+
+/** The issue's limit for the server's memory while it refuses a hostile upload. */
+const SERVER_BUDGET_MB = 500;
+/** Allowance for the server process at rest, before any upload (see the closing note of issue 12 for the measured figure). */
+const RESTING_SERVER_MB = 150;
 
 describe('hostile uploads (issue 12)', () => {
   let ctx: TestContext;
@@ -129,21 +140,21 @@ describe('hostile uploads (issue 12)', () => {
 
   it('refuses a shared-strings bomb on the analysis route with 413 naming the limit, and stays up', async () => {
     const r = await underWatch(ctx, analyse(bomb(), 'bomb.xlsx'));
-    log.push(`bomb → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), peak RSS ${r.peakMb} MB, ${r.healthStatuses.length} health answers`);
+    log.push(`bomb → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`);
     expect(r.res.status).toBe(413);
     expect(r.res.body.error).toMatch(/^bomb\.xlsx: .*more than 4,000,000 different texts.*Split the data into several smaller files/);
     expect(r.res.body.limit).toBe('maxSharedStrings');
-    expect(r.peakMb).toBeLessThan(500);
+    expect(r.growthMb).toBeLessThan(SERVER_BUDGET_MB - RESTING_SERVER_MB);
     expect(r.healthStatuses.length).toBeGreaterThan(0);
     expect(r.healthStatuses.every((s) => s === 200)).toBe(true);
   });
 
   it('refuses the same bomb as a batch workbook with 422 naming the limit, nothing stored', async () => {
     const r = await underWatch(ctx, () => clerk.agent.post('/api/batches').set('X-CSRF-Token', clerk.csrf).attach('file', bomb(), 'bomb.xlsx'));
-    log.push(`bomb → batches: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), peak RSS ${r.peakMb} MB, ${r.healthStatuses.length} health answers`);
+    log.push(`bomb → batches: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`);
     expect(r.res.status).toBe(422);
     expect(r.res.body.errors[0]).toMatchObject({ file: 'bomb.xlsx', message: expect.stringMatching(/more than 4,000,000 different texts/) });
-    expect(r.peakMb).toBeLessThan(500);
+    expect(r.growthMb).toBeLessThan(SERVER_BUDGET_MB - RESTING_SERVER_MB);
     expect(r.healthStatuses.every((s) => s === 200)).toBe(true);
     const rows = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM tax_return`);
     expect(rows[0].n).toBe(0);
@@ -151,10 +162,10 @@ describe('hostile uploads (issue 12)', () => {
 
   it('refuses a 2-million-row sheet with 413 at the row limit, and stays up', async () => {
     const r = await underWatch(ctx, analyse(tall(), 'tall.xlsx'));
-    log.push(`2,000,000 rows → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), peak RSS ${r.peakMb} MB, ${r.healthStatuses.length} health answers`);
+    log.push(`2,000,000 rows → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`);
     expect(r.res.status).toBe(413);
     expect(r.res.body.error).toMatch(/tall\.xlsx, sheet "amounts" has more than 1,048,576 rows.*Split/);
-    expect(r.peakMb).toBeLessThan(500);
+    expect(r.growthMb).toBeLessThan(SERVER_BUDGET_MB - RESTING_SERVER_MB);
     expect(r.healthStatuses.every((s) => s === 200)).toBe(true);
   });
 
@@ -162,10 +173,10 @@ describe('hostile uploads (issue 12)', () => {
     const spool = path.resolve(__dirname, '..', '..', '.data', 'uploads');
     const mine = () => (fs.existsSync(spool) ? fs.readdirSync(spool).filter((n) => n.startsWith(`${process.pid}-`)) : []);
     const r = await underWatch(ctx, analyse(big(), 'big.csv'));
-    log.push(`60 MB → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), peak RSS ${r.peakMb} MB, ${r.healthStatuses.length} health answers`);
+    log.push(`60 MB → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`);
     expect(r.res.status).toBe(413);
     expect(r.res.body.error).toMatch(/larger than 50 MB.*Split/);
-    expect(r.peakMb).toBeLessThan(500);
+    expect(r.growthMb).toBeLessThan(SERVER_BUDGET_MB - RESTING_SERVER_MB);
     expect(r.healthStatuses.every((s) => s === 200)).toBe(true);
     await new Promise((res) => setImmediate(res));
     expect(mine()).toEqual([]);
