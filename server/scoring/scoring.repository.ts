@@ -27,7 +27,7 @@ export async function batchReturnIds(db: Db, batchId: string): Promise<string[]>
 /** Income, charity, medical, receipts and each business cost line of each return of the batch, for peer percentiles. */
 export async function batchDeductionFigures(db: Db, batchId: string): Promise<(PeerFigures & { id: string })[]> {
   const rows: Record<string, string>[] = await db.query(
-    `SELECT r.id, (r.computed_income * 100)::bigint AS income,
+    `SELECT r.id, r.taxpayer_id, r.tax_year, (r.computed_income * 100)::bigint AS income,
             coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.charity'), 0) * 100 AS charity,
             coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'ded.medical'), 0) * 100 AS medical,
             coalesce(sum(li.amount) FILTER (WHERE li.line_code = 'inc.business.receipts'), 0) * 100 AS receipts,
@@ -44,11 +44,18 @@ export async function batchDeductionFigures(db: Db, batchId: string): Promise<(P
   const n = (x: string) => Math.round(Number(x));
   return rows.map((r) => ({
     id: r.id,
+    taxpayerId: r.taxpayer_id,
+    taxYear: Number(r.tax_year),
     income: Number(r.income),
     charity: n(r.charity),
     medical: n(r.medical),
     receipts: n(r.receipts),
-    costs: { 'exp.business.supplies': n(r.supplies), 'exp.business.vehicle': n(r.vehicle), 'exp.business.travel': n(r.travel), 'exp.business.other': n(r.other) },
+    costs: {
+      'exp.business.supplies': n(r.supplies),
+      'exp.business.vehicle': n(r.vehicle),
+      'exp.business.travel': n(r.travel),
+      'exp.business.other': n(r.other),
+    },
   }));
 }
 
@@ -207,7 +214,10 @@ export async function slotPopularity(m: EntityManager, minCents: number): Promis
        FROM batch_slot WHERE a >= $1 GROUP BY a HAVING count(*) >= 2`,
     [minCents / 100],
   );
-  const all: { w: string; c: string }[] = await m.query(`SELECT count(*) FILTER (WHERE whole) AS w, count(*) FILTER (WHERE NOT whole) AS c FROM batch_slot WHERE a >= $1`, [minCents / 100]);
+  const all: { w: string; c: string }[] = await m.query(
+    `SELECT count(*) FILTER (WHERE whole) AS w, count(*) FILTER (WHERE NOT whole) AS c FROM batch_slot WHERE a >= $1`,
+    [minCents / 100],
+  );
   return { popular: rows.map((r) => [Number(r.cents), Number(r.w), Number(r.c), Number(r.t)]), slots: [Number(all[0].w), Number(all[0].c)] };
 }
 
@@ -227,8 +237,13 @@ export async function slotDigitCounts(m: EntityManager): Promise<{ lineCodes: Re
 }
 
 /** Per preparer: distinct taxpayers in the batch, and amounts (>= min) carried by two or more of them; and all taxpayers. */
-export async function slotPreparerSharing(m: EntityManager, minCents: number): Promise<{ clients: Record<string, number>; shared: Record<string, number[]>; taxpayers: number }> {
-  const clients: { preparer_id: string; n: string }[] = await m.query(`SELECT preparer_id, count(DISTINCT taxpayer_id) AS n FROM batch_slot WHERE preparer_id IS NOT NULL GROUP BY 1`);
+export async function slotPreparerSharing(
+  m: EntityManager,
+  minCents: number,
+): Promise<{ clients: Record<string, number>; shared: Record<string, number[]>; taxpayers: number }> {
+  const clients: { preparer_id: string; n: string }[] = await m.query(
+    `SELECT preparer_id, count(DISTINCT taxpayer_id) AS n FROM batch_slot WHERE preparer_id IS NOT NULL GROUP BY 1`,
+  );
   const shared: { preparer_id: string; cents: string }[] = await m.query(
     `SELECT preparer_id, (a * 100)::bigint AS cents FROM batch_slot WHERE preparer_id IS NOT NULL AND a >= $1
       GROUP BY 1, a HAVING min(taxpayer_id::text) <> max(taxpayer_id::text)`,
@@ -245,7 +260,10 @@ export async function slotPreparerSharing(m: EntityManager, minCents: number): P
  * return, code and amount), for the history pools; `sampleOf` > 1 keeps about one taxpayer
  * in that many (for estimating the spread between taxpayers in the context pass).
  */
-export async function taxpayerCodeDigitCounts(db: Db, opts: { taxpayerIds: string[] } | { batchId: string; sampleOf: number }): Promise<Map<string, Record<string, number[]>>> {
+export async function taxpayerCodeDigitCounts(
+  db: Db,
+  opts: { taxpayerIds: string[] } | { batchId: string; sampleOf: number },
+): Promise<Map<string, Record<string, number[]>>> {
   const where =
     'taxpayerIds' in opts
       ? `r.taxpayer_id = ANY($1::uuid[])`

@@ -61,6 +61,8 @@ export interface RunContext {
   peerLimits: PeerBands['limits'];
   costLimits: NonNullable<PeerBands['costLimits']>;
   recurringLimits: NonNullable<PeerBands['recurringLimits']>;
+  /** The ordinary year-to-year rise of a filer's deductions (absent on runs stored before it was added). */
+  deductionRise?: PeerBands['deductionRise'];
   lineCodes: CodeDigitCounts;
   preparers: Record<string, CodeDigitCounts>;
   preparerClients: Record<string, number>;
@@ -81,7 +83,6 @@ async function loadSettings(db: DataSource | EntityManager, version: number): Pr
   if (!r.length) throw new Error(`Scoring profile version ${version} does not exist.`);
   return ScoringSettingsSchema.parse(r[0].settings);
 }
-
 
 /**
  * Runs one aggregate in its own transaction with more sort/hash memory than the default
@@ -113,18 +114,28 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
       const popularity = await slotPopularity(m, p.repeatMinCents);
       const digits = await slotDigitCounts(m);
       const sharing = await slotPreparerSharing(m, p.repeatMinCents);
-      const periodic = PERIODIC_LINE_CODES.filter((c) => { const r = recurrence[c]; return !!r && r.returns > 0 && r.recurring / r.returns >= p.recurrenceMinRate; });
+      const periodic = PERIODIC_LINE_CODES.filter((c) => {
+        const r = recurrence[c];
+        return !!r && r.returns > 0 && r.recurring / r.returns >= p.recurrenceMinRate;
+      });
       const recurringTotals = await slotRecurringTotals(m, periodic);
       return { recurrence, round, popularity, digits, sharing, recurringTotals };
     }),
   ]);
-  const { limits: peerLimits, costLimits, recurringLimits } = buildPeerBands(
+  const {
+    limits: peerLimits,
+    costLimits,
+    recurringLimits,
+    deductionRise,
+  } = buildPeerBands(
     figures.map((f) => ({ ...f, recurring: slots.recurringTotals.get(f.id) })),
     p,
   );
   const { lineCodes, preparers } = slots.digits;
   const spread = (pools: CodeDigitCounts[]) => {
-    const a = estimateConcentration(pools.map((byCode) => ({ n: totalCounts(byCode).reduce((s, x) => s + x, 0), x2: pearson(totalCounts(byCode), expectedForPool(byCode, lineCodes)) })));
+    const a = estimateConcentration(
+      pools.map((byCode) => ({ n: totalCounts(byCode).reduce((s, x) => s + x, 0), x2: pearson(totalCounts(byCode), expectedForPool(byCode, lineCodes)) })),
+    );
     return Number.isFinite(a) ? a : null;
   };
   const sampleOf = Math.max(1, Math.ceil(slots.sharing.taxpayers / HISTORY_SAMPLE));
@@ -133,6 +144,7 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
     peerLimits,
     costLimits: costLimits ?? {},
     recurringLimits: recurringLimits ?? {},
+    ...(deductionRise ? { deductionRise } : {}),
     lineCodes,
     preparers,
     preparerClients: slots.sharing.clients,
@@ -166,7 +178,10 @@ async function ensureRun(ds: DataSource, batchId: string, version?: number): Pro
   const done = run[0].scored + run[0].failed;
   // A finished run leaves the batch as it is (a retried job, or a second call).
   if (!run[0].finished_at) {
-    await ds.query(`UPDATE filing_batch SET state = 'scoring', scored_count = $2, updated_at = now() WHERE id = $1 AND state IN ('queued', 'scored')`, [batchId, done]);
+    await ds.query(`UPDATE filing_batch SET state = 'scoring', scored_count = $2, updated_at = now() WHERE id = $1 AND state IN ('queued', 'scored')`, [
+      batchId,
+      done,
+    ]);
     if (ids.length === 0) await finishIfDone(ds, runId);
   }
   return { runId, done, ids };
@@ -224,10 +239,12 @@ async function finishIfDone(db: DataSource | EntityManager, runId: string): Prom
     // Not inside a transaction yet: take one, so the finish and the q-values commit together.
     return (db as DataSource).transaction((m) => finishIfDone(m, runId));
   }
-  const r = returnedRows<{ batch_id: string; profile_version: number }>(await db.query(
-    `UPDATE scoring_run SET finished_at = now() WHERE id = $1 AND finished_at IS NULL AND scored + failed >= total RETURNING batch_id, profile_version`,
-    [runId],
-  ));
+  const r = returnedRows<{ batch_id: string; profile_version: number }>(
+    await db.query(
+      `UPDATE scoring_run SET finished_at = now() WHERE id = $1 AND finished_at IS NULL AND scored + failed >= total RETURNING batch_id, profile_version`,
+      [runId],
+    ),
+  );
   if (!r.length) return false;
   await writeBatchQValues(db, r[0].batch_id, Number(r[0].profile_version));
   // The random review sample is drawn from returns below the cut, so it waits for every score (docs/methods.md#programme-outcomes).
@@ -247,7 +264,9 @@ async function writeBatchQValues(db: EntityManager, batchId: string, version: nu
     q: qs[i],
     t:
       `Across the batch's ${thousands(ps.length)} scored returns: ${formatP(qs[i], 'q')} (Benjamini–Hochberg; ` +
-      (qs[i] < 0.05 ? 'among returns with q below 0.05, at most about 1 in 20 is expected to be ordinary).' : 'not unusual once so many returns are looked at).'),
+      (qs[i] < 0.05
+        ? 'among returns with q below 0.05, at most about 1 in 20 is expected to be ordinary).'
+        : 'not unusual once so many returns are looked at).'),
   }));
   for (let i = 0; i < rows.length; i += 5000) await writePatternQs(db, index, PENDING_Q_TEXT, rows.slice(i, i + 5000));
 }
@@ -305,7 +324,10 @@ interface Outcome {
  * @returns how many returns this call scored and how many failed
  */
 export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ scored: number; failed: number; skipped: boolean }> {
-  const runRows: { batch_id: string; profile_version: number; context: RunContext }[] = await ds.query(`SELECT batch_id, profile_version, context FROM scoring_run WHERE id = $1`, [job.runId]);
+  const runRows: { batch_id: string; profile_version: number; context: RunContext }[] = await ds.query(
+    `SELECT batch_id, profile_version, context FROM scoring_run WHERE id = $1`,
+    [job.runId],
+  );
   if (!runRows.length) throw new Error(`scoring run ${job.runId} does not exist`);
   const { batch_id: batchId, profile_version: version, context } = runRows[0];
   const settings = await loadSettings(ds, version);
@@ -315,7 +337,9 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     return { scored: 0, failed: 0, skipped: true };
   }
 
-  const trace = process.env.PLUMBLINE_TRACE ? (what: string, t: number) => console.log(`[trace] ${what} ${(performance.now() - t).toFixed(0)} ms`) : () => undefined;
+  const trace = process.env.PLUMBLINE_TRACE
+    ? (what: string, t: number) => console.log(`[trace] ${what} ${(performance.now() - t).toFixed(0)} ms`)
+    : () => undefined;
   let t = performance.now();
   const ids = todo.map((r) => r.id);
   const taxpayerIds = [...new Set(todo.map((r) => r.taxpayerId))];
@@ -329,7 +353,13 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
   t = performance.now();
   const historyByTaxpayer = new Map<string, typeof history>();
   for (const h of history) historyByTaxpayer.set(h.taxpayerId, [...(historyByTaxpayer.get(h.taxpayerId) ?? []), h]);
-  const peers: PeerBands = { bandOf: incomeBand, limits: context.peerLimits, costLimits: context.costLimits, recurringLimits: context.recurringLimits };
+  const peers: PeerBands = {
+    bandOf: incomeBand,
+    limits: context.peerLimits,
+    costLimits: context.costLimits,
+    recurringLimits: context.recurringLimits,
+    deductionRise: context.deductionRise,
+  };
   const sharedSets = new Map<string, Set<number>>();
   const batch: BatchNulls = {
     recurrence: context.nulls.recurrence,
@@ -365,15 +395,51 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
       const ctx: ScoreContext = {
         settings,
         peers,
-        preparer: prep ? judgePool(combineCodeCounts(prep, ownCounts, -1), context.lineCodes, alpha(context.alphaPreparer), pp.pooledFixedThresholdMinN, pp.patternPStart, pp.patternPFull) : null,
-        history: tp ? judgePool(combineCodeCounts(tp, ownCounts, -1), context.lineCodes, alpha(context.alphaHistory), pp.pooledFixedThresholdMinN, pp.patternPStart, pp.patternPFull) : null,
+        preparer: prep
+          ? judgePool(
+              combineCodeCounts(prep, ownCounts, -1),
+              context.lineCodes,
+              alpha(context.alphaPreparer),
+              pp.pooledFixedThresholdMinN,
+              pp.patternPStart,
+              pp.patternPFull,
+            )
+          : null,
+        history: tp
+          ? judgePool(
+              combineCodeCounts(tp, ownCounts, -1),
+              context.lineCodes,
+              alpha(context.alphaHistory),
+              pp.pooledFixedThresholdMinN,
+              pp.patternPStart,
+              pp.patternPFull,
+            )
+          : null,
         batch,
         sharing: r.preparerId && context.taxpayers > 1 ? { shared: shared ?? new Set(), poolShare: Math.max(0, clients - 1) / (context.taxpayers - 1) } : null,
       };
       const s = scoreReturn(facts, ctx);
-      return { returnId: r.id, taxpayerId: r.taxpayerId, status: 'scored', riskScore: s.riskScore, stakeCents: s.amountAtStakeCents, priority: s.priority, breakdown: s.breakdown, reason: null };
+      return {
+        returnId: r.id,
+        taxpayerId: r.taxpayerId,
+        status: 'scored',
+        riskScore: s.riskScore,
+        stakeCents: s.amountAtStakeCents,
+        priority: s.priority,
+        breakdown: s.breakdown,
+        reason: null,
+      };
     } catch (e) {
-      return { returnId: r.id, taxpayerId: r.taxpayerId, status: 'failed', riskScore: null, stakeCents: null, priority: null, breakdown: null, reason: e instanceof Error ? e.message : String(e) };
+      return {
+        returnId: r.id,
+        taxpayerId: r.taxpayerId,
+        status: 'failed',
+        riskScore: null,
+        stakeCents: null,
+        priority: null,
+        breakdown: null,
+        reason: e instanceof Error ? e.message : String(e),
+      };
     }
   });
 
@@ -402,7 +468,14 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
       m,
       batchId,
       version,
-      selected.map((o) => ({ returnId: o.returnId, taxpayerId: o.taxpayerId, scoreId: scoreIdOf.get(o.returnId)!, riskScore: o.riskScore!, stakeCents: o.stakeCents!, priority: o.priority! })),
+      selected.map((o) => ({
+        returnId: o.returnId,
+        taxpayerId: o.taxpayerId,
+        scoreId: scoreIdOf.get(o.returnId)!,
+        riskScore: o.riskScore!,
+        stakeCents: o.stakeCents!,
+        priority: o.priority!,
+      })),
     );
     const scored = fresh.filter((o) => o.status === 'scored').length;
     const failed = fresh.length - scored;

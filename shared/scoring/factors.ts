@@ -6,7 +6,15 @@
  */
 import { binomialUpperTail } from '../digits';
 import { formatP, poissonBinomialUpperTail, poissonUpperTail, simes, strengthFromP } from './calibration';
-import { computeTotals, LINE_CODE_DEFS, STATEMENT_KIND_LINE, type CentsLine, type LineCode, type ReturnTotals, type StatementKind } from '../returns/line-codes';
+import {
+  computeTotals,
+  LINE_CODE_DEFS,
+  STATEMENT_KIND_LINE,
+  type CentsLine,
+  type LineCode,
+  type ReturnTotals,
+  type StatementKind,
+} from '../returns/line-codes';
 import { clamp01, money, pct } from './format';
 import type { ScoringSettings } from './settings';
 
@@ -100,6 +108,13 @@ export interface PeerBands {
   costLimits?: Record<string, { limit: number | null; n: number }>;
   /** Per periodic line: the percentile of (a recurring bill's yearly total / its base) among the batch's recurring bills there. */
   recurringLimits?: Record<string, { limit: number | null; n: number }>;
+  /**
+   * The ordinary rise of a filer's deductions against their own other years: the percentile
+   * of (this year's deduction share / the median share of the filer's other years in the
+   * batch) among the batch's returns that have both, and how many. Absent on runs made
+   * before it was added (then deductions are judged against peers only).
+   */
+  deductionRise?: { limit: number | null; n: number };
 }
 
 /** A recurring bill with its yearly total, as the peer comparison sees it. */
@@ -149,6 +164,38 @@ export interface PeerFigures {
   costs?: Partial<Record<(typeof COST_CODES)[number], number>>;
   /** Yearly totals of the return's recurring bills, per line (version 2 on). */
   recurring?: Partial<Record<string, number>>;
+  /** Taxpayer and tax year, to learn the ordinary year-to-year rise of deductions (absent = not learned). */
+  taxpayerId?: string;
+  taxYear?: number;
+}
+
+/** Deductions as a share of max(income, the floor): the measure peers and the filer's own years are compared on. */
+export function deductionShare(t: Pick<ReturnTotals, 'income' | 'deductions'>): number {
+  return t.deductions / Math.max(t.income, DEDUCTION_BASE_FLOOR_CENTS);
+}
+
+/**
+ * The least share of the peer comparison's strength that the filer's own years leave
+ * standing (a rule of this project, common practice, no source): a filer at their usual level
+ * still counts half, because inflating every year would otherwise set the usual level.
+ */
+export const OWN_LEVEL_MIN_SHARE = 0.5;
+
+/** Median of a non-empty list. */
+function median(xs: readonly number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+/**
+ * The filer's own usual deduction level: the median deduction share of their other years on
+ * file (the median, so one unusual year, claimed or invented, does not set the level); null
+ * with no other year.
+ */
+export function ownDeductionLevel(history: readonly { totals: Pick<ReturnTotals, 'income' | 'deductions'> }[]): { level: number; years: number } | null {
+  if (!history.length) return null;
+  return { level: median(history.map((h) => deductionShare(h.totals))), years: history.length };
 }
 
 /** Builds peer percentiles from many returns' figures. */
@@ -163,18 +210,20 @@ export function buildPeerBands(all: readonly PeerFigures[], p: Params): PeerBand
     s.charity.push(t.charity / base);
     s.medical.push(t.medical / base);
     shares.set(b, s);
-    if (t.recurring) for (const [code, yearly] of Object.entries(t.recurring)) {
-      const b = recurringBase(code, { receipts: t.receipts ?? 0, income: t.income });
-      if (!yearly || b <= 0) continue;
-      const list = recurringShares.get(code) ?? [];
-      list.push(yearly / b);
-      recurringShares.set(code, list);
-    }
-    if (t.receipts && t.receipts > 0 && t.costs) for (const c of COST_CODES) {
-      const list = costShares.get(c) ?? [];
-      list.push((t.costs[c] ?? 0) / t.receipts);
-      costShares.set(c, list);
-    }
+    if (t.recurring)
+      for (const [code, yearly] of Object.entries(t.recurring)) {
+        const b = recurringBase(code, { receipts: t.receipts ?? 0, income: t.income });
+        if (!yearly || b <= 0) continue;
+        const list = recurringShares.get(code) ?? [];
+        list.push(yearly / b);
+        recurringShares.set(code, list);
+      }
+    if (t.receipts && t.receipts > 0 && t.costs)
+      for (const c of COST_CODES) {
+        const list = costShares.get(c) ?? [];
+        list.push((t.costs[c] ?? 0) / t.receipts);
+        costShares.set(c, list);
+      }
   }
   const q = (xs: number[]) => {
     if (xs.length < p.deductionMinPeers) return null;
@@ -187,7 +236,23 @@ export function buildPeerBands(all: readonly PeerFigures[], p: Params): PeerBand
   for (const [c, xs] of costShares) costLimits[c] = { limit: q(xs), n: xs.length };
   const recurringLimits: NonNullable<PeerBands['recurringLimits']> = {};
   for (const [c, xs] of recurringShares) recurringLimits[c] = { limit: q(xs), n: xs.length };
-  return { bandOf: incomeBand, limits, costLimits, recurringLimits };
+  // Year-to-year rise of a filer's deductions: this year against the median of their other years in the batch.
+  const byTaxpayer = new Map<string, { taxYear: number; share: number }[]>();
+  for (const t of all) {
+    if (t.taxpayerId === undefined || t.taxYear === undefined) continue;
+    const list = byTaxpayer.get(t.taxpayerId) ?? [];
+    list.push({ taxYear: t.taxYear, share: (t.charity + t.medical) / Math.max(t.income, DEDUCTION_BASE_FLOOR_CENTS) });
+    byTaxpayer.set(t.taxpayerId, list);
+  }
+  const rises: number[] = [];
+  for (const years of byTaxpayer.values()) {
+    if (years.length < 2) continue;
+    for (const y of years) {
+      const level = median(years.filter((o) => o.taxYear !== y.taxYear).map((o) => o.share));
+      if (level > 0) rises.push(y.share / level);
+    }
+  }
+  return { bandOf: incomeBand, limits, costLimits, recurringLimits, deductionRise: { limit: q(rises), n: rises.length } };
 }
 
 /**
@@ -196,6 +261,13 @@ export function buildPeerBands(all: readonly PeerFigures[], p: Params): PeerBand
  * same income band; each business cost line as a share of receipts against that line's
  * percentile among returns with receipts (an invented monthly "rent" hides from the pattern
  * tests as a recurring bill, but not from its peers).
+ *
+ * Gifts and medical costs large against peers count only as far as the filer's deductions
+ * are also large against their own other years on file: the median share of those years
+ * times the batch's ordinary year-to-year rise ({@link PeerBands.deductionRise}, the same
+ * percentile) is a second limit, graded the same way, and the smaller strength counts. A
+ * filer who gives or pays a lot every year is at their usual level; a sudden jump is not.
+ * With no other year on file, or none with deductions, peers alone judge.
  */
 export function deductionsLarge(
   t: ReturnTotals,
@@ -203,11 +275,15 @@ export function deductionsLarge(
   p: Params,
   costs?: Partial<Record<(typeof COST_CODES)[number], number>>,
   recurring: readonly RecurringBill[] = [],
+  history: readonly { totals: Pick<ReturnTotals, 'income' | 'deductions'> }[] = [],
 ): FactorResult {
   const found: string[] = [];
   let strength = 0;
   let stake = 0;
   const base = Math.max(t.income, DEDUCTION_BASE_FLOOR_CENTS);
+  const deductionFound: string[] = [];
+  let deductionStrength = 0;
+  let deductionStake = 0;
   const band = peers.bandOf(Math.max(t.income, 0));
   const lim = peers.limits[band];
   // Just above the percentile is where 5 % of typical peers sit by construction, and medical
@@ -224,11 +300,44 @@ export function deductionsLarge(
       const share = amount / base;
       if (share <= limit) continue;
       const of = t.income >= DEDUCTION_BASE_FLOOR_CENTS ? 'income' : `${money(DEDUCTION_BASE_FLOOR_CENTS)} (the floor used below that income)`;
-      found.push(`${label} are ${pct(share, 1)} of ${of}; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${lim.n} peers with income ${band} is ${pct(limit, 1)}`);
-      strength = Math.max(strength, grade(share, limit));
-      stake += amount - Math.round(limit * base);
+      deductionFound.push(
+        `${label} are ${pct(share, 1)} of ${of}; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${lim.n} peers with income ${band} is ${pct(limit, 1)}`,
+      );
+      deductionStrength = Math.max(deductionStrength, grade(share, limit));
+      deductionStake += amount - Math.round(limit * base);
     }
   }
+  // Large against peers may still be the filer's usual level (a standing gift, a long illness):
+  // the deductions also have to be large against the filer's own other years on file, beyond
+  // the rise that ordinary filers in the batch show from year to year.
+  // A filer who inflates every year sets their own level too, so their own years take off at
+  // most half of what the peers give (OWN_LEVEL_MIN_SHARE).
+  const own = ownDeductionLevel(history);
+  const rise = peers.deductionRise;
+  if (deductionFound.length && own && own.level > 0 && rise && rise.limit !== null) {
+    const now = deductionShare(t);
+    const ownLimit = own.level * rise.limit;
+    // Steeper than the peer grade (full at 2.5 × the limit, as for a recurring bill): a jump
+    // beyond the filer's own usual rise is one decision, not the tail of a spread.
+    const ownGrade = Math.max(clamp01(Math.log(now / Math.max(ownLimit, 0.0001)) / Math.log(2.5)), OWN_LEVEL_MIN_SHARE * deductionStrength);
+    const years = `${own.years} other year${own.years === 1 ? '' : 's'} on file`;
+    const against = `deductions in the filer's ${years} were ${pct(own.level, 1)} of income (median; income counted as at least ${money(DEDUCTION_BASE_FLOOR_CENTS)}), and ${Math.round(p.deductionPercentile * 100)} % of ${rise.n.toLocaleString('en-US')} returns in the batch stay below ${rise.limit.toFixed(1)} times their filer's other years`;
+    if (ownGrade < deductionStrength) {
+      const times = (now / own.level).toFixed(1);
+      deductionFound.push(
+        now <= ownLimit
+          ? `${against}; this year's ${pct(now, 1)} (${times} times) is within that, near the filer's usual level: counted at half strength`
+          : `${against}; this year's ${pct(now, 1)} is ${times} times that: counted only as far as it goes beyond that rise (at least half)`,
+      );
+      deductionStake = Math.round((deductionStake * ownGrade) / deductionStrength);
+      deductionStrength = ownGrade;
+    } else {
+      deductionFound.push(`${against}; this year's ${pct(now, 1)} is ${(now / own.level).toFixed(1)} times that`);
+    }
+  }
+  found.push(...deductionFound);
+  strength = deductionStrength;
+  stake += deductionStake;
   if (costs && t.receipts > 0 && peers.costLimits) {
     for (const c of COST_CODES) {
       const cl = peers.costLimits[c];
@@ -236,7 +345,9 @@ export function deductionsLarge(
       if (!cl || cl.limit === null || amount <= 0) continue;
       const share = amount / t.receipts;
       if (share <= cl.limit) continue;
-      found.push(`${LINE_CODE_DEFS[c].label.toLowerCase()} are ${pct(share, 1)} of receipts; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${cl.n} returns with receipts is ${pct(cl.limit, 1)}`);
+      found.push(
+        `${LINE_CODE_DEFS[c].label.toLowerCase()} are ${pct(share, 1)} of receipts; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${cl.n} returns with receipts is ${pct(cl.limit, 1)}`,
+      );
       strength = Math.max(strength, grade(share, cl.limit));
       stake += amount - Math.round(cl.limit * t.receipts);
     }
@@ -257,7 +368,12 @@ export function deductionsLarge(
     strength = Math.max(strength, clamp01(Math.log(share / Math.max(rl.limit, 0.0001)) / Math.log(2.5)));
     stake += yearly - Math.round(rl.limit * base);
   }
-  if (!found.length) return none(t.deductions > 0 || t.businessExpenses > 0 ? `Deductions and business costs are within the usual range of peers (income ${band}).` : 'No deductions claimed.');
+  if (!found.length)
+    return none(
+      t.deductions > 0 || t.businessExpenses > 0
+        ? `Deductions and business costs are within the usual range of peers (income ${band}).`
+        : 'No deductions claimed.',
+    );
   return { strength, evidence: `${found.join('; ')}.`, stakeIncomeCents: stake, stakeTaxCents: 0 };
 }
 
@@ -287,9 +403,14 @@ export function repeatedLosses(f: ReturnFacts, t: ReturnTotals, p: Params): Fact
   const years = [{ taxYear: f.taxYear, totals: t }, ...f.history.filter((h) => h.taxYear < f.taxYear && h.taxYear > f.taxYear - p.lossWindowYears)];
   const withBusiness = years.filter((y) => y.totals.receipts > 0 || y.totals.businessExpenses > 0);
   if (!withBusiness.length) return none('No business activity reported.');
-  const lossYears = withBusiness.filter((y) => y.totals.receipts - y.totals.businessExpenses < 0).map((y) => y.taxYear).sort();
+  const lossYears = withBusiness
+    .filter((y) => y.totals.receipts - y.totals.businessExpenses < 0)
+    .map((y) => y.taxYear)
+    .sort();
   if (lossYears.length < p.lossYears) {
-    return none(`${lossYears.length} business loss year${lossYears.length === 1 ? '' : 's'} in the last ${p.lossWindowYears} on file (threshold ${p.lossYears}).`);
+    return none(
+      `${lossYears.length} business loss year${lossYears.length === 1 ? '' : 's'} in the last ${p.lossWindowYears} on file (threshold ${p.lossYears}).`,
+    );
   }
   const thisLoss = Math.max(0, t.businessExpenses - t.receipts);
   return {
@@ -303,7 +424,12 @@ export function repeatedLosses(f: ReturnFacts, t: ReturnTotals, p: Params): Fact
 /** Cash-heavy activity code. */
 export function cashHeavy(f: ReturnFacts, p: Params): FactorResult {
   if (!p.cashHeavyActivities.includes(f.activityCode as never)) return none(`Activity "${f.activityCode}" is not on the office's cash-heavy list.`);
-  return { strength: 1, evidence: `Activity "${f.activityCode}" is on the office's cash-heavy list (${p.cashHeavyActivities.join(', ')}).`, stakeIncomeCents: 0, stakeTaxCents: 0 };
+  return {
+    strength: 1,
+    evidence: `Activity "${f.activityCode}" is on the office's cash-heavy list (${p.cashHeavyActivities.join(', ')}).`,
+    stakeIncomeCents: 0,
+    stakeTaxCents: 0,
+  };
 }
 
 /** Whole units of an amount in cents end in 00 (100, 2,500, 13,400 …). */
@@ -370,11 +496,13 @@ export function thresholdBunching(amounts: readonly number[], p: Params): Factor
     const lambda = Math.max((near * wBand) / (wWindow - wBand), pIn * (pos.length - inBand));
     const pValue = poissonUpperTail(inBand, lambda);
     if (pValue < p.bunchingTailP) {
-      found.push(`${inBand} of ${pos.length} amounts lie in [${money(from)}, ${money(T)}) just under ${money(T)}; the return's other amounts near it would put about ${lambda.toFixed(1)} there (${formatP(pValue)})`);
+      found.push(
+        `${inBand} of ${pos.length} amounts lie in [${money(from)}, ${money(T)}) just under ${money(T)}; the return's other amounts near it would put about ${lambda.toFixed(1)} there (${formatP(pValue)})`,
+      );
       best = Math.min(best, pValue);
     }
   }
-  if (!found.length) return none('No bunching just under the office\'s thresholds.');
+  if (!found.length) return none("No bunching just under the office's thresholds.");
   return { strength: clamp01(0.5 + (-Math.log10(best) - 2) / 6), evidence: `${found.join('; ')}.`, stakeIncomeCents: 0, stakeTaxCents: 0 };
 }
 
@@ -419,10 +547,14 @@ export function incomeDrop(f: ReturnFacts, t: ReturnTotals, p: Params): FactorRe
     const ratio = Math.log(Math.max(now, 1) / before);
     if (-ratio <= p.incomeDropLogRatio) continue;
     if (ok) {
-      calm.push(`${label} fell from ${money(before)} to ${money(now)}, ${label === 'wages' ? 'as this year\'s third-party statements confirm' : 'with business costs falling alongside'}`);
+      calm.push(
+        `${label} fell from ${money(before)} to ${money(now)}, ${label === 'wages' ? "as this year's third-party statements confirm" : 'with business costs falling alongside'}`,
+      );
       continue;
     }
-    found.push(`${label}${label === 'total income' && explained > 0 ? ' (leaving out the confirmed change in wages and interest and a business shrinking as a whole)' : ''} fell from ${money(before)} in ${f.taxYear - 1} to ${money(now)} (${pct(1 - Math.max(now, 0) / before)} lower)`);
+    found.push(
+      `${label}${label === 'total income' && explained > 0 ? ' (leaving out the confirmed change in wages and interest and a business shrinking as a whole)' : ''} fell from ${money(before)} in ${f.taxYear - 1} to ${money(now)} (${pct(1 - Math.max(now, 0) / before)} lower)`,
+    );
     strength = Math.max(strength, clamp01(0.25 + (-ratio - p.incomeDropLogRatio) / (2 * p.incomeDropLogRatio)));
     stake = Math.max(stake, Math.round((before - Math.max(now, 0)) / 2));
   }
@@ -443,7 +575,10 @@ export function refundLarge(t: ReturnTotals, p: Params): FactorResult {
   const ratio = refund / t.withheld;
   if (ratio <= p.refundRatio) return none(`Refund is ${pct(ratio)} of tax withheld (threshold ${pct(p.refundRatio)}).`);
   const supported = refund <= t.refund + p.totalsToleranceCents;
-  if (supported) return none(`Refund of ${money(refund)} is ${pct(ratio)} of tax withheld; the return's lines give this refund (tax due ${money(t.tax)}), which is ordinary.`);
+  if (supported)
+    return none(
+      `Refund of ${money(refund)} is ${pct(ratio)} of tax withheld; the return's lines give this refund (tax due ${money(t.tax)}), which is ordinary.`,
+    );
   return {
     strength: clamp01(0.5 + (ratio - p.refundRatio) / (2 * (1 - p.refundRatio + 0.01))),
     evidence: `Refund of ${money(refund)} is ${pct(ratio)} of tax withheld ${money(t.withheld)} (threshold ${pct(p.refundRatio)}); the lines give ${money(t.refund)}.`,
@@ -516,7 +651,10 @@ export function repeatedAmounts(
   }
   const pValue = simes([repeated.length ? pWithin : null, pShared]);
   const parts: string[] = [];
-  if (repeated.length) parts.push(`on this return ${repParts.join(', ')}${repeated.length > 4 ? ` and ${repeated.length - 4} more` : ''} (chance for amounts this common: ${formatP(pWithin)})`);
+  if (repeated.length)
+    parts.push(
+      `on this return ${repParts.join(', ')}${repeated.length > 4 ? ` and ${repeated.length - 4} more` : ''} (chance for amounts this common: ${formatP(pWithin)})`,
+    );
   if (shared.length) {
     const expected = sharedExpected;
     parts.push(
@@ -525,7 +663,15 @@ export function repeatedAmounts(
   }
   if (!parts.length) return { ...none('No amount of note repeats.'), p: pValue, pWithin: repeated.length ? pWithin : null, pShared };
   const strength = strengthFromP(pValue, p.patternPStart, p.patternPFull);
-  return { strength, evidence: `Repeated amounts: ${parts.join('; ')}.`, stakeIncomeCents: 0, stakeTaxCents: 0, p: pValue, pWithin: repeated.length ? pWithin : null, pShared };
+  return {
+    strength,
+    evidence: `Repeated amounts: ${parts.join('; ')}.`,
+    stakeIncomeCents: 0,
+    stakeTaxCents: 0,
+    p: pValue,
+    pWithin: repeated.length ? pWithin : null,
+    pShared,
+  };
 }
 
 export { computeTotals };

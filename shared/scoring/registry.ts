@@ -58,19 +58,19 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   },
   historyDigits: {
     key: 'historyDigits',
-    label: 'Digit pattern of the taxpayer\'s other years on file',
+    label: "Digit pattern of the taxpayer's other years on file",
     defaultWeight: 10,
     group: 'related',
     params: ['pooledFixedThresholdMinN', 'patternPStart', 'patternPFull'],
-    run: (r) => r.poolResult('on the taxpayer\'s other returns on file', r.ctx.history),
+    run: (r) => r.poolResult("on the taxpayer's other returns on file", r.ctx.history),
   },
   preparerDigits: {
     key: 'preparerDigits',
-    label: 'Digit pattern of the preparer\'s other returns',
+    label: "Digit pattern of the preparer's other returns",
     defaultWeight: 35,
     group: 'related',
     params: ['pooledFixedThresholdMinN', 'patternPStart', 'patternPFull'],
-    run: (r) => r.poolResult('on the preparer\'s other returns in the batch', r.ctx.preparer),
+    run: (r) => r.poolResult("on the preparer's other returns in the batch", r.ctx.preparer),
   },
   totalsMismatch: {
     key: 'totalsMismatch',
@@ -94,7 +94,7 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
     defaultWeight: 30,
     group: null,
     params: ['deductionPercentile', 'deductionMinPeers'],
-    run: (r) => deductionsLarge(r.totals, r.ctx.peers, r.p, r.costs, r.collapsed.recurring),
+    run: (r) => deductionsLarge(r.totals, r.ctx.peers, r.p, r.costs, r.collapsed.recurring, r.facts.history),
   },
   expensesNearReceipts: {
     key: 'expensesNearReceipts',

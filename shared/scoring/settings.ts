@@ -49,7 +49,7 @@ export const ScoringSettingsSchema = z.object({
     /** Income short of statements by more than max(this, share × statements). */
     statementShortfallMinCents: cents,
     statementShortfallShare: share,
-    /** A deduction's share of income is compared with this percentile of peers in the same income band. */
+    /** A deduction's share of income is compared with this percentile of peers in the same income band (and with the filer's own other years times this percentile of the batch's year-to-year rise). */
     deductionPercentile: z.number().min(0.5).max(0.999),
     /** Fewest peers in a band before the percentile is trusted. */
     deductionMinPeers: z.number().int().min(5),

@@ -8,6 +8,7 @@ import {
   buildPeerBands,
   cashHeavy,
   deductionsLarge,
+  OWN_LEVEL_MIN_SHARE,
   expensesNearReceipts,
   incomeBelowStatements,
   incomeDrop,
@@ -29,7 +30,14 @@ import { mulberry32 } from '../../../shared/digits';
 
 const P = DEFAULT_SCORING_SETTINGS.params;
 const L = (code: CentsLine['code'], units: number): CentsLine => ({ code, cents: Math.round(units * 100) });
-const facts = (lines: CentsLine[], extra: Partial<ReturnFacts> = {}): ReturnFacts => ({ taxYear: 2024, activityCode: 'consulting', lines, statements: [], history: [], ...extra });
+const facts = (lines: CentsLine[], extra: Partial<ReturnFacts> = {}): ReturnFacts => ({
+  taxYear: 2024,
+  activityCode: 'consulting',
+  lines,
+  statements: [],
+  history: [],
+  ...extra,
+});
 const noPeers = buildPeerBands([], P);
 
 describe('totals do not add up', () => {
@@ -86,6 +94,49 @@ describe('deductions against peers', () => {
     const bands = buildPeerBands(peers, P);
     expect(deductionsLarge(computeTotals([L('inc.interest', 300), L('ded.medical', 900)]), bands, P).strength).toBe(0);
   });
+  it('learns the ordinary year-to-year rise of deductions from the batch (hand computation)', () => {
+    // 30 filers with two years each: 600.00 of gifts, then 600 × (1 + i/10). Each return is set
+    // against the other year, so the 60 rises are 1 + i/10 and their inverses; the 95th
+    // percentile is sorted element floor(0.95 × 60) = 57 of 0..59, i.e. the third largest, 3.7.
+    const figures = Array.from({ length: 30 }, (_, i) => [
+      { income: 6_000_000, charity: 60_000, medical: 0, taxpayerId: `t${i}`, taxYear: 2023 },
+      { income: 6_000_000, charity: Math.round(60_000 * (1 + i / 10)), medical: 0, taxpayerId: `t${i}`, taxYear: 2024 },
+    ]).flat();
+    const rise = buildPeerBands(figures, P).deductionRise!;
+    expect(rise.n).toBe(60);
+    expect(rise.limit).toBeCloseTo(3.7, 9);
+  });
+  it("weighs gifts large against peers against the filer's own other years too", () => {
+    const rng = mulberry32(7);
+    const peers = Array.from({ length: 200 }, () => computeTotals([L('inc.wages', 60_000), L('ded.charity', 300 + rng() * 1500)]));
+    const bands = { ...buildPeerBands(peers, P), deductionRise: { limit: 3.7, n: 60 } };
+    const t = computeTotals([L('inc.wages', 60_000), L('ded.charity', 9_000)]);
+    const limit = bands.limits['50,000–100,000'].charity!;
+    const g = Math.log(0.15 / limit) / Math.log(8); // against peers, as above
+    const year = (charity: number) => ({ totals: computeTotals([L('inc.wages', 60_000), L('ded.charity', charity)]) });
+    // No other year on file, or none with deductions: peers alone judge.
+    expect(deductionsLarge(t, bands, P, undefined, [], []).strength).toBeCloseTo(g, 6);
+    expect(deductionsLarge(t, bands, P, undefined, [], [year(0), year(0)]).strength).toBeCloseTo(g, 6);
+    // The filer's usual level: median of 8,000 and 9,500 on 60,000 = 14.58 %; × 3.7 = 54 % > 15 %:
+    // within the ordinary rise, so the peer strength counts half (OWN_LEVEL_MIN_SHARE).
+    const usual = deductionsLarge(t, bands, P, undefined, [], [year(8_000), year(9_500)]);
+    expect(usual.strength).toBeCloseTo(OWN_LEVEL_MIN_SHARE * g, 6);
+    expect(usual.evidence).toMatch(
+      /deductions in the filer's 2 other years on file were 14\.6 % of income \(median; income counted as at least 20,000\.00\), and 95 % of 60 returns in the batch stay below 3\.7 times their filer's other years; this year's 15\.0 % \(1\.0 times\) is within that, near the filer's usual level: counted at half strength/,
+    );
+    expect(usual.stakeIncomeCents).toBe(Math.round(deductionsLarge(t, bands, P).stakeIncomeCents * OWN_LEVEL_MIN_SHARE));
+    // A jump: usual level 1,500 / 60,000 = 2.5 % (the median; one unusual year does not set it);
+    // own limit 2.5 % × 3.7 = 9.25 %; ln(15 / 9.25) / ln 2.5 = 0.528; the smaller of that (at
+    // least half of g) and g counts.
+    const jump = deductionsLarge(t, bands, P, undefined, [], [year(1_500), year(1_500), year(12_000)]);
+    const own = Math.log(0.15 / (0.025 * 3.7)) / Math.log(2.5);
+    expect(own).toBeCloseTo(0.528, 3);
+    expect(g).toBeGreaterThan(own);
+    expect(jump.strength).toBeCloseTo(Math.max(own, OWN_LEVEL_MIN_SHARE * g), 6);
+    expect(jump.evidence).toMatch(/this year's 15\.0 % is 6\.0 times that: counted only as far as it goes beyond that rise \(at least half\)/);
+    // A clear jump (usual level 1 %: 15 times) counts as the peers say.
+    expect(deductionsLarge(t, bands, P, undefined, [], [year(600), year(600)]).strength).toBeCloseTo(g, 6);
+  });
   it('compares each business cost line with its peers as a share of receipts (an invented monthly rent)', () => {
     const rng = mulberry32(9);
     const peers = Array.from({ length: 300 }, () => {
@@ -104,7 +155,7 @@ describe('deductions against peers', () => {
 });
 
 describe('expenses near receipts', () => {
-  it('gives the ratio and threshold in words (the issue\'s example)', () => {
+  it("gives the ratio and threshold in words (the issue's example)", () => {
     const t = computeTotals([L('inc.business.receipts', 100_000), L('exp.business.supplies', 97_000)]);
     const r = expensesNearReceipts(t, P);
     expect(r.evidence).toMatch(/^Business expenses are 97 % of receipts \(threshold 90 %\)/);
@@ -131,12 +182,17 @@ describe('repeated losses', () => {
 });
 
 describe('cash-heavy, round amounts, bunching, income drop, refund, repeats', () => {
-  it('cash-heavy follows the profile\'s list', () => {
+  it("cash-heavy follows the profile's list", () => {
     expect(cashHeavy(facts([], { activityCode: 'food-service' }), P).strength).toBe(1);
     expect(cashHeavy(facts([], { activityCode: 'consulting' }), P).strength).toBe(0);
   });
   it('round amounts: 6 of 20 ending in 00 against a line rate of 0.01 (Poisson-binomial = Binomial(20, 0.01) here)', () => {
-    const amounts = [...Array(6).fill(0).map((_, i) => (i + 2) * 100_000), ...Array.from({ length: 14 }, (_, i) => 12_345 + i * 1_017)];
+    const amounts = [
+      ...Array(6)
+        .fill(0)
+        .map((_, i) => (i + 2) * 100_000),
+      ...Array.from({ length: 14 }, (_, i) => 12_345 + i * 1_017),
+    ];
     const lines = amounts.map((cents) => ({ code: 'exp.business.other' as const, cents }));
     const r = roundAmounts(lines, () => 0.01, P);
     // P(X >= 6), X ~ Binomial(20, 0.01): C(20,6)·0.01^6·0.99^14 + … ≈ 3.4e-8 (jstat binomial: 1 − cdf(5, 20, 0.01))
@@ -146,9 +202,15 @@ describe('cash-heavy, round amounts, bunching, income drop, refund, repeats', ()
     expect(roundAmounts(lines.slice(0, 3), () => 0.01, P).p).toBeCloseTo(1e-6, 8);
     // The same six round amounts on a line where half of all amounts are round (rent in whole hundreds) say little.
     expect(roundAmounts(lines, () => 0.5, P).strength).toBe(0);
-    expect(roundAmounts([12_345, 67_891, 23_456].map((cents) => ({ code: 'ded.medical' as const, cents })), () => 0.01, P).strength).toBe(0);
+    expect(
+      roundAmounts(
+        [12_345, 67_891, 23_456].map((cents) => ({ code: 'ded.medical' as const, cents })),
+        () => 0.01,
+        P,
+      ).strength,
+    ).toBe(0);
   });
-  it('bunching: several amounts just under 2,500, against the return\'s own amounts near it', () => {
+  it("bunching: several amounts just under 2,500, against the return's own amounts near it", () => {
     const amounts = [249_000, 248_000, 246_500, 249_900, 12_000, 55_000, 130_000, 7_700, 980_000, 31_000];
     const r = thresholdBunching(amounts, P);
     expect(r.strength).toBeGreaterThan(0.4);
@@ -167,10 +229,13 @@ describe('cash-heavy, round amounts, bunching, income drop, refund, repeats', ()
   });
   it('income drop at retirement is ordinary: wages confirmed by the statements, a business shrinking with its costs', () => {
     const prev = { taxYear: 2023, totals: computeTotals([L('inc.wages', 60_000), L('inc.business.receipts', 80_000), L('exp.business.other', 40_000)]) };
-    const f = facts([L('inc.wages', 15_000), L('inc.business.receipts', 20_000), L('exp.business.other', 10_000)], { history: [prev], statements: [{ kind: 'wages', cents: 1_500_000 }] });
+    const f = facts([L('inc.wages', 15_000), L('inc.business.receipts', 20_000), L('exp.business.other', 10_000)], {
+      history: [prev],
+      statements: [{ kind: 'wages', cents: 1_500_000 }],
+    });
     const r = incomeDrop(f, computeTotals(f.lines), P);
     expect(r.strength).toBe(0);
-    expect(r.evidence).toContain('as this year\'s third-party statements confirm');
+    expect(r.evidence).toContain("as this year's third-party statements confirm");
     // When the employer's statement says more than the return, the drop is not confirmed.
     const unconfirmed = facts([...f.lines], { history: [prev], statements: [{ kind: 'wages', cents: 6_000_000 }] });
     expect(incomeDrop(unconfirmed, computeTotals(unconfirmed.lines), P).strength).toBeGreaterThan(0);
@@ -188,7 +253,7 @@ describe('cash-heavy, round amounts, bunching, income drop, refund, repeats', ()
   });
   const pop = (share: number, others: number): AmountPopularity => ({ share: () => share, otherTaxpayers: () => others });
   const lines = (xs: number[]) => xs.map((cents) => ({ code: 'exp.business.supplies' as const, cents }));
-  it('repeats: the birthday model with the batch\'s frequency of the amount (worked example)', () => {
+  it("repeats: the birthday model with the batch's frequency of the amount (worked example)", () => {
     // 10 amounts >= 100, one of them 3 times; pi = 0.01: p_v = P(Bin(9, 0.01) >= 2) = 0.003436 (by hand),
     // Bonferroni over the 8 distinct amounts: 0.02749.
     const amounts = [123_400, 123_400, 123_400, 55_500, 61_234, 71_111, 81_234, 91_234, 101_234, 111_234];
@@ -206,7 +271,7 @@ describe('cash-heavy, round amounts, bunching, income drop, refund, repeats', ()
     const r = repeatedAmounts(lines([55_500, 66_600]), false, pop(1e-4, 5), { shared: new Set([55_500, 66_600]), poolShare: 0.1 }, P);
     expect(r.pShared).toBeCloseTo(0.40951 ** 2, 5);
     expect(r.strength).toBe(0);
-    expect(r.evidence).toContain("a firm of this size would share about 0.8 by chance");
+    expect(r.evidence).toContain('a firm of this size would share about 0.8 by chance');
     // Amounts nobody else in the batch carries cannot be shared by chance: two shared ones are telling.
     const odd = repeatedAmounts(lines([55_512, 66_634]), false, pop(1e-4, 1), { shared: new Set([55_512, 66_634]), poolShare: 0.001 }, P);
     expect(odd.pShared).toBeCloseTo(1e-6, 9);
@@ -220,7 +285,7 @@ describe('pooled digits', () => {
     for (let i = 0; i < n; i++) c[Math.floor(10 ** rng()) - 1]++;
     return c;
   };
-  it('a large pool drawn from the batch\'s own profile passes; the fixed thresholds are shown from the pooled minimum on', () => {
+  it("a large pool drawn from the batch's own profile passes; the fixed thresholds are shown from the pooled minimum on", () => {
     const batch = { 'exp.business.other': benford(20_000, 1) };
     const j = judgePool({ 'exp.business.other': benford(3000, 2) }, batch, Infinity, 1000, P.patternPStart, P.patternPFull);
     expect(j.judgedBy).toBe('fixed');
@@ -239,7 +304,13 @@ describe('pooled digits', () => {
     expect(poolPValue(counts, e, 99)).toBeCloseTo(chiSquareSurvival(pearson(counts, e) / 10.99, 8), 12);
     expect(poolPValue(counts, e, Infinity)).toBeCloseTo(chiSquareSurvival(pearson(counts, e), 8), 12);
     // α estimated from pools whose X²/df is 3 at n = 201: (201 − 3)/(3 − 1) = 99 (by hand)
-    expect(estimateConcentration([{ n: 201, x2: 24 }, { n: 201, x2: 24 }, { n: 201, x2: 24 }])).toBeCloseTo(99, 10);
+    expect(
+      estimateConcentration([
+        { n: 201, x2: 24 },
+        { n: 201, x2: 24 },
+        { n: 201, x2: 24 },
+      ]),
+    ).toBeCloseTo(99, 10);
     expect(estimateConcentration([{ n: 500, x2: 6 }])).toBe(Infinity);
   });
   it('says "too few" below the pool minimum; leaving a return out subtracts its counts', () => {
@@ -257,7 +328,13 @@ describe('pooled digits', () => {
 });
 
 describe('blend', () => {
-  const ctx = (over: Partial<ScoreContext> = {}): ScoreContext => ({ settings: DEFAULT_SCORING_SETTINGS, peers: noPeers, preparer: null, history: null, ...over });
+  const ctx = (over: Partial<ScoreContext> = {}): ScoreContext => ({
+    settings: DEFAULT_SCORING_SETTINGS,
+    peers: noPeers,
+    preparer: null,
+    history: null,
+    ...over,
+  });
   const honestLines = (seed: number) => {
     const rng = mulberry32(seed);
     const lines: CentsLine[] = [L('inc.wages', 30_000 + rng() * 40_000)];
@@ -299,7 +376,10 @@ describe('blend', () => {
       fc.property(fc.integer({ min: 1, max: 10_000 }), fc.constantFrom(...COMPONENTS), fc.integer({ min: 0, max: 50 }), (seed, key, bump) => {
         const f = facts(honestLines(seed), { activityCode: seed % 2 ? 'retail' : 'none' });
         const a = scoreReturn(f, ctx());
-        const heavier = { ...DEFAULT_SCORING_SETTINGS, weights: { ...DEFAULT_SCORING_SETTINGS.weights, [key]: Math.min(100, DEFAULT_SCORING_SETTINGS.weights[key] + bump) } };
+        const heavier = {
+          ...DEFAULT_SCORING_SETTINGS,
+          weights: { ...DEFAULT_SCORING_SETTINGS.weights, [key]: Math.min(100, DEFAULT_SCORING_SETTINGS.weights[key] + bump) },
+        };
         const b = scoreReturn(f, ctx({ settings: heavier }));
         return a.riskScore >= 0 && a.riskScore <= 100 && b.riskScore >= a.riskScore - 1e-9;
       }),
@@ -316,7 +396,7 @@ describe('blend', () => {
     expect(b.pattern!.p).toBeGreaterThan(0.01);
   });
 
-  it('a group adds only its strongest member (12 × 4,500.00: the issue\'s 69.3 points were digits + round + repeats added up)', () => {
+  it("a group adds only its strongest member (12 × 4,500.00: the issue's 69.3 points were digits + round + repeats added up)", () => {
     const lines = [L('inc.business.receipts', 200_000), ...Array.from({ length: 12 }, () => L('exp.business.supplies', 4_500))];
     const b = scoreReturn(facts(lines), ctx()).breakdown;
     const made = b.components.filter((c) => ['digits', 'roundAmounts', 'repeatedAmounts'].includes(c.key));
@@ -324,8 +404,9 @@ describe('blend', () => {
     expect(made.reduce((a, c) => a + c.points, 0)).toBeLessThanOrEqual(Math.max(...made.map((c) => c.weight)));
   });
 
-  it('property: adding a recurring bill to a typical return never raises its pattern evidence by more than one group\'s worth', () => {
-    const groupPoints = (b: ReturnType<typeof scoreReturn>['breakdown']) => b.components.filter((c) => ['digits', 'roundAmounts', 'repeatedAmounts'].includes(c.key)).reduce((a, c) => a + c.points, 0);
+  it("property: adding a recurring bill to a typical return never raises its pattern evidence by more than one group's worth", () => {
+    const groupPoints = (b: ReturnType<typeof scoreReturn>['breakdown']) =>
+      b.components.filter((c) => ['digits', 'roundAmounts', 'repeatedAmounts'].includes(c.key)).reduce((a, c) => a + c.points, 0);
     const groupWeight = Math.max(...(['digits', 'roundAmounts', 'repeatedAmounts'] as const).map((k) => DEFAULT_SCORING_SETTINGS.weights[k]));
     fc.assert(
       fc.property(
