@@ -9,15 +9,7 @@
  * parallel. Each figure is the best of 3 runs, so start-up and JIT warm-up are left out.
  */
 
-import {
-  DigitCounter,
-  formatCents,
-  mulberry32,
-  parseAmounts,
-  profileAmounts,
-  profileCents,
-  summarizeCounter,
-} from '../shared/digits';
+import { DigitCounter, formatCents, mulberry32, parseAmounts, profileAmounts, profileCents, summarizeCounter } from '../shared/digits';
 
 const N = Number(process.argv[2] ?? process.env.BENCH_N ?? 10_000_000);
 if (!Number.isInteger(N) || N < 1) {

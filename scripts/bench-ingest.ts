@@ -67,7 +67,9 @@ async function plainCopy(url: string, files: Record<'returns' | 'line_items' | '
   await c.connect();
   try {
     await c.query(`DROP TABLE IF EXISTS plain_returns, plain_line_items, plain_statements`);
-    await c.query(`CREATE TABLE plain_returns (return_ref text, tin text, tax_year int, taxpayer_name text, activity_code text, preparer_id text, email text, postal_address text)`);
+    await c.query(
+      `CREATE TABLE plain_returns (return_ref text, tin text, tax_year int, taxpayer_name text, activity_code text, preparer_id text, email text, postal_address text)`,
+    );
     await c.query(`CREATE TABLE plain_line_items (return_ref text, line_code text, amount numeric(14,2))`);
     await c.query(`CREATE TABLE plain_statements (tin text, tax_year int, kind text, payer text, amount numeric(14,2))`);
     const t0 = performance.now();
@@ -117,7 +119,9 @@ async function main() {
   const files = { returns: path.join(dir, 'returns.csv'), line_items: path.join(dir, 'line_items.csv'), statements: path.join(dir, 'statements.csv') };
   const size = (f: string) => fs.statSync(f).size;
   const totalBytes = size(files.returns) + size(files.line_items) + size(files.statements);
-  console.log(`bench  | batch: ${counts.returns.toLocaleString('en-GB')} returns, ${counts.lineItems.toLocaleString('en-GB')} line items, ${counts.statements.toLocaleString('en-GB')} statements; CSV ${mb(totalBytes)}`);
+  console.log(
+    `bench  | batch: ${counts.returns.toLocaleString('en-GB')} returns, ${counts.lineItems.toLocaleString('en-GB')} line items, ${counts.statements.toLocaleString('en-GB')} statements; CSV ${mb(totalBytes)}`,
+  );
 
   const url = connectionString(spec, DB);
   /** A fresh, migrated database for each measurement (other features' tables refuse TRUNCATE). */
@@ -152,11 +156,18 @@ async function main() {
     const trace = (phase: string, ms: number) => phases.push(`${phase} ${secs(ms)}`);
     const r = await withPeakRss(() => ingestUpload({ dataSource: ds, boss: null, limits: DEFAULT_INTAKE_LIMITS, trace }, upload, { id: user.id }));
     if (r.value.kind !== 'accepted') throw new Error(`the bench batch was not accepted: ${JSON.stringify(r.value).slice(0, 2000)}`);
-    const stored = (await ds.query(`SELECT (SELECT count(*) FROM tax_return)::int AS r, (SELECT count(*) FROM line_item)::int AS l, (SELECT count(*) FROM third_party_statement)::int AS s`))[0];
-    if (stored.r !== counts.returns || stored.l !== counts.lineItems || stored.s !== counts.statements) throw new Error(`stored counts differ: ${JSON.stringify(stored)}`);
+    const stored = (
+      await ds.query(
+        `SELECT (SELECT count(*) FROM tax_return)::int AS r, (SELECT count(*) FROM line_item)::int AS l, (SELECT count(*) FROM third_party_statement)::int AS s`,
+      )
+    )[0];
+    if (stored.r !== counts.returns || stored.l !== counts.lineItems || stored.s !== counts.statements)
+      throw new Error(`stored counts differ: ${JSON.stringify(stored)}`);
     results.push({ copyMs, ingestMs: r.ms, peakRss: r.peakRss, startRss: r.startRss, peakHeap: r.peakHeap });
     await ds.destroy();
-    console.log(`bench  | run ${run}: plain COPY ${secs(copyMs)}, ingest ${secs(r.ms)} (×${(r.ms / copyMs).toFixed(2)}; this process used ${secs(r.cpuMs)} of CPU), peak RSS ${mb(r.peakRss)} (start ${mb(r.startRss)}), peak heap ${mb(r.peakHeap)}`);
+    console.log(
+      `bench  | run ${run}: plain COPY ${secs(copyMs)}, ingest ${secs(r.ms)} (×${(r.ms / copyMs).toFixed(2)}; this process used ${secs(r.cpuMs)} of CPU), peak RSS ${mb(r.peakRss)} (start ${mb(r.startRss)}), peak heap ${mb(r.peakHeap)}`,
+    );
     console.log(`bench  |   phases: ${phases.join(' · ')}`);
   }
   console.warn = warn;
@@ -167,7 +178,13 @@ async function main() {
     const xfile = path.join(projectRoot, 'bench-output', `ingest-${xReturns}-${xlsxLines}.xlsx`);
     if (!fs.existsSync(xfile)) await writeXlsxBatch(xfile, { ...opts, returns: xReturns, refPrefix: 'BX' });
     const { ds, user } = await freshDatabase();
-    const x = await withPeakRss(() => ingestUpload({ dataSource: ds, boss: null, limits: DEFAULT_INTAKE_LIMITS }, { format: 'xlsx', workbook: { originalName: path.basename(xfile), path: xfile, size: size(xfile) } }, { id: user.id }));
+    const x = await withPeakRss(() =>
+      ingestUpload(
+        { dataSource: ds, boss: null, limits: DEFAULT_INTAKE_LIMITS },
+        { format: 'xlsx', workbook: { originalName: path.basename(xfile), path: xfile, size: size(xfile) } },
+        { id: user.id },
+      ),
+    );
     if (x.value.kind !== 'accepted') throw new Error(`the XLSX bench batch was not accepted: ${JSON.stringify(x.value).slice(0, 2000)}`);
     const c = x.value.batch.counts;
     await ds.destroy();

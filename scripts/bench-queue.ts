@@ -74,7 +74,14 @@ function freePort(): Promise<number> {
 function benchBreakdown(): ScoreBreakdown {
   return ScoreBreakdownSchema.parse({
     riskScore: 50,
-    components: COMPONENTS.map((key) => ({ key, label: COMPONENT_LABELS[key], weight: 10, strength: 0, points: 0, evidence: 'Benchmark fixture: not computed.' })),
+    components: COMPONENTS.map((key) => ({
+      key,
+      label: COMPONENT_LABELS[key],
+      weight: 10,
+      strength: 0,
+      points: 0,
+      evidence: 'Benchmark fixture: not computed.',
+    })),
     digits: { n: 30, firstDigitCounts: [9, 5, 4, 3, 3, 2, 2, 1, 1], mad: null, expectedMad: null, zScore: null, verdict: 'too_few', secondDigitZ: null },
     preparerPool: null,
     historyPool: null,
@@ -99,8 +106,16 @@ async function fill(url: string, cases: number, clients: number): Promise<{ exam
     await c.query(`SELECT setseed(0.42)`);
     const hash = await bcrypt.hash(PASSWORD, 10);
     const examiners = Array.from({ length: Math.max(10, clients) }, (_, i) => `bench-examiner-${String(i + 1).padStart(2, '0')}`);
-    await c.query(`INSERT INTO app_user (username, display_name, role, password_hash, active) SELECT u, 'Bench examiner ' || right(u, 2), 'examiner', $2, true FROM unnest($1::text[]) AS u`, [examiners, hash]);
-    const batch = (await c.query(`INSERT INTO filing_batch (file_hash, format, file_names, state, return_count, scored_count) VALUES (repeat('b', 64), 'csv', '{bench.csv}', 'scored', $1, $1) RETURNING id`, [cases])).rows[0].id as string;
+    await c.query(
+      `INSERT INTO app_user (username, display_name, role, password_hash, active) SELECT u, 'Bench examiner ' || right(u, 2), 'examiner', $2, true FROM unnest($1::text[]) AS u`,
+      [examiners, hash],
+    );
+    const batch = (
+      await c.query(
+        `INSERT INTO filing_batch (file_hash, format, file_names, state, return_count, scored_count) VALUES (repeat('b', 64), 'csv', '{bench.csv}', 'scored', $1, $1) RETURNING id`,
+        [cases],
+      )
+    ).rows[0].id as string;
     const taxpayers = Math.ceil(cases / 4);
     await c.query(
       `INSERT INTO taxpayer (tin, name, activity_code)
@@ -137,7 +152,9 @@ async function fill(url: string, cases: number, clients: number): Promise<{ exam
               (SELECT array_agg(id) AS ex FROM app_user WHERE role = 'examiner') e`,
       [batch],
     );
-    await c.query(`UPDATE exam_case SET closed_at = opened_at + interval '10 days', outcome = 'Benchmark fixture' WHERE state IN ('referred', 'closed_no_change', 'closed_adjusted')`);
+    await c.query(
+      `UPDATE exam_case SET closed_at = opened_at + interval '10 days', outcome = 'Benchmark fixture' WHERE state IN ('referred', 'closed_no_change', 'closed_adjusted')`,
+    );
     await c.query(`UPDATE exam_case SET adjusted_amount = round(amount_at_stake / 2, 2) WHERE state = 'closed_adjusted'`);
     await c.query(`INSERT INTO case_event (case_id, kind, to_state, at, detail) SELECT id, 'opened', 'open', opened_at, '{"profileVersion":1}' FROM exam_case`);
     await c.query('COMMIT');
@@ -153,7 +170,11 @@ async function fill(url: string, cases: number, clients: number): Promise<{ exam
 
 /** Signs in through the real route; returns the session cookie. */
 async function signIn(base: string, username: string): Promise<string> {
-  const res = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ username, password: PASSWORD }) });
+  const res = await fetch(`${base}/api/auth/login`, {
+    method: 'POST',
+    headers: { 'Content-Type': 'application/json' },
+    body: JSON.stringify({ username, password: PASSWORD }),
+  });
   if (res.status !== 200) throw new Error(`sign-in of ${username} failed: ${res.status} ${await res.text()}`);
   const cookie = res.headers.get('set-cookie');
   if (!cookie) throw new Error('sign-in answered without a session cookie');
@@ -251,7 +272,15 @@ async function main() {
     server = startProcess('server', node, [...profile, ...nodeArgs], {
       cwd: projectRoot,
       quiet: true,
-      env: { ...process.env, DATABASE_URL: url, PORT: String(httpPort), HOST: '127.0.0.1', SMTP_PORT: String(smtpPort), NODE_ENV: 'production', SESSION_SECRET: 'bench-queue-secret-bench-queue-secret' },
+      env: {
+        ...process.env,
+        DATABASE_URL: url,
+        PORT: String(httpPort),
+        HOST: '127.0.0.1',
+        SMTP_PORT: String(smtpPort),
+        NODE_ENV: 'production',
+        SESSION_SECRET: 'bench-queue-secret-bench-queue-secret',
+      },
     });
     await waitForPort(httpPort, '127.0.0.1', 60_000);
     const base = `http://127.0.0.1:${httpPort}`;
@@ -292,7 +321,7 @@ async function main() {
     const me = await load(`${base}/api/auth/me`, clients, seconds, pid, meRequest);
     // What one examiner alone sees (no queueing behind other clients).
     const alone = await load(`${base}/api/cases`, 1, Math.min(seconds, 5), pid, queueRequest);
-    const logged = (await (async () => {
+    const logged = await (async () => {
       const c = new Client({ connectionString: url });
       await c.connect();
       try {
@@ -300,7 +329,7 @@ async function main() {
       } finally {
         await c.end();
       }
-    })());
+    })();
 
     console.log(
       [

@@ -57,7 +57,11 @@ function arg(name: string, dflt: string): string {
   return i >= 0 && i + 1 < process.argv.length ? process.argv[i + 1] : dflt;
 }
 const flag = (name: string) => process.argv.includes(`--${name}`);
-const list = (s: string) => s.split(',').map((x) => x.trim()).filter(Boolean);
+const list = (s: string) =>
+  s
+    .split(',')
+    .map((x) => x.trim())
+    .filter(Boolean);
 
 const DIGIT_KEYS: ComponentKey[] = ['digits', 'historyDigits', 'preparerDigits'];
 const HABITS = Object.keys(HABIT_KINDS) as HabitKind[];
@@ -89,7 +93,7 @@ export function rankingFigures(rows: Row[], score: (r: Row) => number) {
   // AUC by ranks with ties averaged.
   const asc = [...rows].sort((a, b) => score(a) - score(b));
   let rankSum = 0;
-  for (let i = 0; i < asc.length; ) {
+  for (let i = 0; i < asc.length;) {
     let j = i;
     while (j + 1 < asc.length && score(asc[j + 1]) === score(asc[i])) j++;
     const avg = (i + j) / 2 + 1;
@@ -112,15 +116,28 @@ async function runBatch(seed: string, returns: number, plantShare: number, habit
     const part = (t: 'returns' | 'line_items' | 'statements') => ({ originalName: `${t}.csv`, path: w.files[t]!, size: size(w.files[t]!) });
     const warn = console.warn;
     console.warn = () => undefined;
-    const out = await ingestUpload({ dataSource: db.ds, boss: null, limits: DEFAULT_INTAKE_LIMITS }, { format: 'csv', parts: { returns: part('returns'), line_items: part('line_items'), statements: part('statements') } }, { id: db.clerkId });
+    const out = await ingestUpload(
+      { dataSource: db.ds, boss: null, limits: DEFAULT_INTAKE_LIMITS },
+      { format: 'csv', parts: { returns: part('returns'), line_items: part('line_items'), statements: part('statements') } },
+      { id: db.clerkId },
+    );
     console.warn = warn;
     if (out.kind !== 'accepted') throw new Error(`the generated batch was not accepted: ${JSON.stringify(out).slice(0, 400)}`);
     const batchId = out.batch.id;
     const t0 = performance.now();
     await scoreBatchNow(db.ds, batchId);
-    console.log(`bench  | ${seed} (${tag}): ${w.counts.returns} returns, ${w.labels.length} planted; generated and loaded in ${((t0 - t) / 1000).toFixed(1)} s, scored in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+    console.log(
+      `bench  | ${seed} (${tag}): ${w.counts.returns} returns, ${w.labels.length} planted; generated and loaded in ${((t0 - t) / 1000).toFixed(1)} s, scored in ${((performance.now() - t0) / 1000).toFixed(1)} s`,
+    );
     const answers = new Map(w.answers.map((a) => [a.returnRef, a]));
-    const rows: { return_ref: string; components: ComponentResult[] | null; risk_score: string | null; selected: boolean | null; cut: string | null; q: string | null }[] = await db.ds.query(
+    const rows: {
+      return_ref: string;
+      components: ComponentResult[] | null;
+      risk_score: string | null;
+      selected: boolean | null;
+      cut: string | null;
+      q: string | null;
+    }[] = await db.ds.query(
       `SELECT r.return_ref, s.risk_score, s.breakdown->'components' AS components, (s.breakdown->>'selected')::boolean AS selected,
               s.breakdown->>'selectionCut' AS cut, s.breakdown->'pattern'->>'q' AS q
          FROM return_score s JOIN tax_return r ON r.id = s.return_id WHERE s.batch_id = $1`,
@@ -188,10 +205,15 @@ function conditionFigures(rows: Row[]) {
     noHabitSelected: rate(typical.filter((r) => r.habits.length === 0)),
     perHabit,
     /** The largest per-habit selection rate (habits with at least 20 typical returns). */
-    worstHabitRate: Math.max(0, ...HABITS.map((h) => (perHabit[h].n >= 20 ? perHabit[h].rate ?? 0 : 0))),
+    worstHabitRate: Math.max(0, ...HABITS.map((h) => (perHabit[h].n >= 20 ? (perHabit[h].rate ?? 0) : 0))),
     typicalInTopK: blended.topSorted.slice(0, blended.k).filter((r) => !r.planted).length,
     /** Among the typical returns selected, share on which each component gave points. */
-    componentsFiring: selectedTypical.length ? { digits: selectedTypical.filter((r) => r.digits > 0).length / selectedTypical.length, rules: selectedTypical.filter((r) => r.rules > 0).length / selectedTypical.length } : null,
+    componentsFiring: selectedTypical.length
+      ? {
+          digits: selectedTypical.filter((r) => r.digits > 0).length / selectedTypical.length,
+          rules: selectedTypical.filter((r) => r.rules > 0).length / selectedTypical.length,
+        }
+      : null,
     perKind,
   };
 }
@@ -212,16 +234,29 @@ async function main() {
 
   const conditions: { key: string; habits: 'on' | 'off'; set: 'tuning' | 'held-out'; seeds: string[] }[] = [];
   for (const h of habitsMode === 'both' ? (['on', 'off'] as const) : [habitsMode as 'on' | 'off'])
-    for (const [set, seeds] of [['tuning', tuning], ['held-out', heldOut]] as const) if (seeds.length) conditions.push({ key: `habits ${h}, ${set}`, habits: h, set, seeds });
+    for (const [set, seeds] of [
+      ['tuning', tuning],
+      ['held-out', heldOut],
+    ] as const)
+      if (seeds.length) conditions.push({ key: `habits ${h}, ${set}`, habits: h, set, seeds });
 
   const t0 = performance.now();
   const results: { key: string; habits: string; set: string; seeds: string[]; figures: Figures }[] = [];
   for (const c of conditions) {
     const rows: Row[] = [];
-    for (const seed of c.seeds) rows.push(...(await runBatch(seed, returns, plantShare, c.habits === 'on' ? shares : NO_HABITS, c.habits === 'on' ? 'habits' : 'no-habits')));
+    for (const seed of c.seeds)
+      rows.push(...(await runBatch(seed, returns, plantShare, c.habits === 'on' ? shares : NO_HABITS, c.habits === 'on' ? 'habits' : 'no-habits')));
     results.push({ ...c, figures: conditionFigures(rows) });
   }
-  let typical: { seed: string; returns: number; withQ: number; qBelow: number | null; shareQBelow: number | null; selected: RateFigure; perHabit: Record<HabitKind, RateFigure> } | null = null;
+  let typical: {
+    seed: string;
+    returns: number;
+    withQ: number;
+    qBelow: number | null;
+    shareQBelow: number | null;
+    selected: RateFigure;
+    perHabit: Record<HabitKind, RateFigure>;
+  } | null = null;
   if (runTypical) {
     const rows = await runBatch(typicalSeed, typicalReturns, 0, shares, 'typical');
     const withQ = rows.filter((r) => r.q !== null);
@@ -242,7 +277,9 @@ async function main() {
   const pc = (x: RateFigure) => (x.rate === null ? 'n/a' : `${(x.rate * 100).toFixed(1)} %`);
   const col = 22;
   console.log('');
-  console.log(`Ranking on Aldermere batches of ${returns} returns (plants ${(plantShare * 100).toFixed(0)} %, labelled apart from the batch); habit shares of taxpayers: ${HABITS.map((h) => `${h} ${shares[h]}`).join(', ')}`);
+  console.log(
+    `Ranking on Aldermere batches of ${returns} returns (plants ${(plantShare * 100).toFixed(0)} %, labelled apart from the batch); habit shares of taxpayers: ${HABITS.map((h) => `${h} ${shares[h]}`).join(', ')}`,
+  );
   console.log(''.padEnd(30) + results.map((r) => r.key.padStart(col)).join(''));
   console.log('seeds'.padEnd(30) + results.map((r) => r.seeds.join(',').padStart(col)).join(''));
   const line = (name: string, fn: (f: Figures) => string) => console.log(name.padEnd(30) + results.map((r) => fn(r.figures).padStart(col)).join(''));
@@ -266,8 +303,12 @@ async function main() {
   if (typical) {
     console.log('');
     console.log(`Purely typical batch (seed ${typical.seed}, ${typical.returns} returns, no plants, habits on):`);
-    console.log(`  pattern q < ${Q_LEVEL}: ${typical.shareQBelow === null ? 'n/a (the profile stores no pattern q-value)' : `${(typical.shareQBelow * 100).toFixed(2)} % (${typical.qBelow}/${typical.withQ})`}`);
-    console.log(`  selected: ${pc(typical.selected)} (${typical.selected.selected}/${typical.selected.n}); by habit: ${HABITS.map((h) => `${h} ${pc(typical!.perHabit[h])}`).join(', ')}`);
+    console.log(
+      `  pattern q < ${Q_LEVEL}: ${typical.shareQBelow === null ? 'n/a (the profile stores no pattern q-value)' : `${(typical.shareQBelow * 100).toFixed(2)} % (${typical.qBelow}/${typical.withQ})`}`,
+    );
+    console.log(
+      `  selected: ${pc(typical.selected)} (${typical.selected.selected}/${typical.selected.n}); by habit: ${HABITS.map((h) => `${h} ${pc(typical!.perHabit[h])}`).join(', ')}`,
+    );
   }
   console.log(`bench  | ${results.reduce((s, r) => s + r.seeds.length, 0) + (typical ? 1 : 0)} batches in ${seconds.toFixed(0)} s`);
   if (flag('json')) {

@@ -51,7 +51,10 @@ async function main() {
   const stamp = path.join(dir, 'params.json');
   let w: { files: Record<string, string | undefined>; counts: { returns: number; lineItems: number } };
   if (fs.existsSync(stamp) && fs.readFileSync(stamp, 'utf8') === JSON.stringify(opts)) {
-    w = { files: { returns: path.join(dir, 'returns.csv'), line_items: path.join(dir, 'line_items.csv'), statements: path.join(dir, 'statements.csv') }, counts: JSON.parse(fs.readFileSync(path.join(dir, 'counts.json'), 'utf8')) };
+    w = {
+      files: { returns: path.join(dir, 'returns.csv'), line_items: path.join(dir, 'line_items.csv'), statements: path.join(dir, 'statements.csv') },
+      counts: JSON.parse(fs.readFileSync(path.join(dir, 'counts.json'), 'utf8')),
+    };
   } else {
     w = await writeCsvBatch(dir, opts);
     fs.writeFileSync(path.join(dir, 'counts.json'), JSON.stringify(w.counts));
@@ -64,7 +67,11 @@ async function main() {
   const warn = console.warn;
   console.warn = () => undefined;
   const t0 = performance.now();
-  const out = await ingestUpload({ dataSource: db.ds, boss: null, limits: DEFAULT_INTAKE_LIMITS }, { format: 'csv', parts: { returns: part('returns'), line_items: part('line_items'), statements: part('statements') } }, { id: db.clerkId });
+  const out = await ingestUpload(
+    { dataSource: db.ds, boss: null, limits: DEFAULT_INTAKE_LIMITS },
+    { format: 'csv', parts: { returns: part('returns'), line_items: part('line_items'), statements: part('statements') } },
+    { id: db.clerkId },
+  );
   const ingestMs = performance.now() - t0;
   console.warn = warn;
   if (out.kind !== 'accepted') throw new Error('the generated batch was not accepted');
@@ -82,7 +89,10 @@ async function main() {
     const started = performance.now();
     await boss.send(QUEUES.scoreBatch, { batchId, profileVersion: version });
     for (;;) {
-      const r = await db.ds.query(`SELECT finished_at, scored, failed, total FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [batchId, version]);
+      const r = await db.ds.query(`SELECT finished_at, scored, failed, total FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [
+        batchId,
+        version,
+      ]);
       if (r.length && r[0].finished_at) break;
       await new Promise((res) => setTimeout(res, 100));
     }

@@ -45,8 +45,11 @@ async function main(): Promise<number> {
   const byKind = new Map<string, number>();
   for (const l of labels) for (const k of l.kinds) byKind.set(k, (byKind.get(k) ?? 0) + 1);
   console.log(`Wrote ${returns} returns (seed ${JSON.stringify(seed)}, years ${years.join(', ')}) to ${out}`);
-  console.log(`${labels.length} planted returns (${((labels.length / returns) * 100).toFixed(1)} %), listed with every return's habits in ${path.basename(answers.json)} and ${path.basename(answers.csv)}:`);
-  for (const [k, n] of [...byKind].sort((a, b) => b[1] - a[1])) console.log(`  ${k.padEnd(26)} ${String(n).padStart(5)}  ${PLANT_KINDS[k as keyof typeof PLANT_KINDS]}`);
+  console.log(
+    `${labels.length} planted returns (${((labels.length / returns) * 100).toFixed(1)} %), listed with every return's habits in ${path.basename(answers.json)} and ${path.basename(answers.csv)}:`,
+  );
+  for (const [k, n] of [...byKind].sort((a, b) => b[1] - a[1]))
+    console.log(`  ${k.padEnd(26)} ${String(n).padStart(5)}  ${PLANT_KINDS[k as keyof typeof PLANT_KINDS]}`);
   const taxpayers = new Set(all.map((a) => a.tin)).size;
   console.log(`Habits of typical filers (share of ${taxpayers} taxpayers set → returns showing it):`);
   for (const h of Object.keys(HABIT_KINDS) as HabitKind[]) {

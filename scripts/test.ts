@@ -114,7 +114,12 @@ async function main(): Promise<number> {
     });
     log(`finished in ${Math.round((Date.now() - t0) / 1000)} s with exit code ${code}`);
     if (fs.existsSync(resultsFile)) {
-      const r = JSON.parse(fs.readFileSync(resultsFile, 'utf8')) as { numPassedTests: number; numFailedTests: number; numPendingTests: number; numRuntimeErrorTestSuites: number };
+      const r = JSON.parse(fs.readFileSync(resultsFile, 'utf8')) as {
+        numPassedTests: number;
+        numFailedTests: number;
+        numPendingTests: number;
+        numRuntimeErrorTestSuites: number;
+      };
       fs.rmSync(resultsFile, { force: true });
       const failed = r.numFailedTests + r.numRuntimeErrorTestSuites;
       summary = `tests: ${r.numPassedTests} passed, ${failed} failed${r.numPendingTests ? `, ${r.numPendingTests} skipped` : ''}`;

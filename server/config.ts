@@ -29,7 +29,12 @@ function isProxyEntry(entry: string): boolean {
 const TrustProxySchema = z
   .string()
   .optional()
-  .transform((v) => (v ?? '').split(',').map((e) => e.trim()).filter(Boolean))
+  .transform((v) =>
+    (v ?? '')
+      .split(',')
+      .map((e) => e.trim())
+      .filter(Boolean),
+  )
   .refine((list) => list.every(isProxyEntry), {
     message:
       'must name the proxies to trust: addresses or CIDR ranges separated by commas (e.g. 10.0.0.5 or 10.0.0.0/24), or loopback, linklocal, uniquelocal; leave it unset when clients connect directly',
@@ -47,7 +52,11 @@ const ConfigSchema = z.object({
   MAIL_FROM: z.string().default('Aldermere Revenue Office <examinations@revenue.aldermere.example>'),
   SESSION_SECRET: z.string().min(16, 'must be at least 16 characters').default('plumbline-local-development-secret'),
   /** Idle time after which a session ends (rolling: each request restarts the clock). */
-  SESSION_TTL_SECONDS: z.coerce.number().int().min(1).default(8 * 60 * 60),
+  SESSION_TTL_SECONDS: z.coerce
+    .number()
+    .int()
+    .min(1)
+    .default(8 * 60 * 60),
   WEB_DIST: z.string().default(path.resolve(__dirname, '..', 'dist')),
   PUBLIC_URL: z.string().url('must be a full URL such as http://127.0.0.1:8080').optional(),
   NODE_ENV: z.enum(['development', 'test', 'production']).default('development'),

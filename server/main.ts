@@ -47,7 +47,9 @@ async function main() {
   // A batch a crash (of this server's previous run) left half-checked is ended here, so its
   // file can be sent again at once.
   for (const b of await recoverInterruptedIntake(dataSource)) {
-    console.log(`[server] batch ${b.id} (${b.fileNames.length} file${b.fileNames.length === 1 ? '' : 's'}) was left unfinished by a stop; marked rejected, nothing of it kept; its file may be uploaded again`);
+    console.log(
+      `[server] batch ${b.id} (${b.fileNames.length} file${b.fileNames.length === 1 ? '' : 's'}) was left unfinished by a stop; marked rejected, nothing of it kept; its file may be uploaded again`,
+    );
   }
   // Cases opened before assessment deadlines were kept (issue 13) get theirs now.
   const filled = await fillMissingDeadlines(dataSource);

@@ -37,7 +37,10 @@ export const StateFilterSchema = z
     const parts = s.split(',').map((p) => p.trim());
     const bad = parts.filter((p) => !(CASE_STATES as readonly string[]).includes(p));
     if (bad.length) {
-      ctx.addIssue({ code: 'custom', message: `Unknown case state ${bad.map((b) => `"${b}"`).join(', ')}; use ${CASE_STATES.join(', ')}, active, finished or all` });
+      ctx.addIssue({
+        code: 'custom',
+        message: `Unknown case state ${bad.map((b) => `"${b}"`).join(', ')}; use ${CASE_STATES.join(', ')}, active, finished or all`,
+      });
       return z.NEVER;
     }
     return [...new Set(parts)] as CaseState[];
@@ -58,7 +61,12 @@ export const CaseListQuerySchema = z.object({
   q: z.string().trim().max(64, 'Search by a return reference or a TIN').check(noControlChars()).optional(),
   sort: CaseSortSchema.default('priority'),
   /** Only cases whose assessment deadline falls within this many days from today (issue 13). */
-  deadlineWithin: z.coerce.number({ error: 'Give deadlineWithin as a whole number of days, e.g. 90' }).int('Give deadlineWithin as a whole number of days, e.g. 90').min(0, 'deadlineWithin is at least 0').max(3650, 'deadlineWithin is at most 3650 days').optional(),
+  deadlineWithin: z.coerce
+    .number({ error: 'Give deadlineWithin as a whole number of days, e.g. 90' })
+    .int('Give deadlineWithin as a whole number of days, e.g. 90')
+    .min(0, 'deadlineWithin is at least 0')
+    .max(3650, 'deadlineWithin is at most 3650 days')
+    .optional(),
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(100).default(25),
 });

@@ -65,7 +65,12 @@ export function canTransition(from: CaseState, to: CaseState): boolean {
 export const TransitionRequestSchema = z
   .object({
     to: CaseStateSchema,
-    outcome: z.string().trim().max(2000).check(noControlChars({ lines: true })).optional(),
+    outcome: z
+      .string()
+      .trim()
+      .max(2000)
+      .check(noControlChars({ lines: true }))
+      .optional(),
     /** Adjusted amount of tax, decimal text with at most 2 decimals (required for closed_adjusted). */
     adjustedAmount: z
       .string()
@@ -73,10 +78,14 @@ export const TransitionRequestSchema = z
       .optional(),
   })
   .superRefine((v, ctx) => {
-    if (v.to === 'closed_adjusted' && !v.adjustedAmount) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Closing as adjusted needs the adjusted amount' });
-    if (v.to === 'closed_adjusted' && v.adjustedAmount && Number(v.adjustedAmount) <= 0) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'The adjusted amount must be more than 0' });
-    if (v.to !== 'closed_adjusted' && v.adjustedAmount) ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Only a case closed as adjusted has an adjusted amount' });
-    if (isFinalState(v.to) && !v.outcome) ctx.addIssue({ code: 'custom', path: ['outcome'], message: 'Say in a sentence what was found or why the case moves on' });
+    if (v.to === 'closed_adjusted' && !v.adjustedAmount)
+      ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Closing as adjusted needs the adjusted amount' });
+    if (v.to === 'closed_adjusted' && v.adjustedAmount && Number(v.adjustedAmount) <= 0)
+      ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'The adjusted amount must be more than 0' });
+    if (v.to !== 'closed_adjusted' && v.adjustedAmount)
+      ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Only a case closed as adjusted has an adjusted amount' });
+    if (isFinalState(v.to) && !v.outcome)
+      ctx.addIssue({ code: 'custom', path: ['outcome'], message: 'Say in a sentence what was found or why the case moves on' });
   });
 export type TransitionRequest = z.infer<typeof TransitionRequestSchema>;
 
@@ -85,5 +94,12 @@ export const AssignRequestSchema = z.object({ assigneeId: z.uuid('Choose an exam
 export type AssignRequest = z.infer<typeof AssignRequestSchema>;
 
 /** Body of `POST /api/cases/:id/notes`. */
-export const NoteRequestSchema = z.object({ text: z.string().trim().min(1, 'Write the note first').max(10_000, 'Keep a note under 10,000 characters').check(noControlChars({ lines: true })) });
+export const NoteRequestSchema = z.object({
+  text: z
+    .string()
+    .trim()
+    .min(1, 'Write the note first')
+    .max(10_000, 'Keep a note under 10,000 characters')
+    .check(noControlChars({ lines: true })),
+});
 export type NoteRequest = z.infer<typeof NoteRequestSchema>;

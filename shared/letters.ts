@@ -91,8 +91,18 @@ export const DocumentRequestInputSchema = z
     // A date that is not a real calendar date already has its issue.
     if (!CalendarDateSchema.safeParse(v.dueDate).success) return;
     const days = daysBetween(isoToday(), v.dueDate);
-    if (days < DUE_DATE_MIN_DAYS) ctx.addIssue({ code: 'custom', path: ['dueDate'], message: `Give the taxpayer at least ${DUE_DATE_MIN_DAYS} days: choose ${longDate(addDays(isoToday(), DUE_DATE_MIN_DAYS))} or later` });
-    if (days > DUE_DATE_MAX_DAYS) ctx.addIssue({ code: 'custom', path: ['dueDate'], message: `Choose a due date within ${DUE_DATE_MAX_DAYS} days, by ${longDate(addDays(isoToday(), DUE_DATE_MAX_DAYS))}` });
+    if (days < DUE_DATE_MIN_DAYS)
+      ctx.addIssue({
+        code: 'custom',
+        path: ['dueDate'],
+        message: `Give the taxpayer at least ${DUE_DATE_MIN_DAYS} days: choose ${longDate(addDays(isoToday(), DUE_DATE_MIN_DAYS))} or later`,
+      });
+    if (days > DUE_DATE_MAX_DAYS)
+      ctx.addIssue({
+        code: 'custom',
+        path: ['dueDate'],
+        message: `Choose a due date within ${DUE_DATE_MAX_DAYS} days, by ${longDate(addDays(isoToday(), DUE_DATE_MAX_DAYS))}`,
+      });
   });
 export type DocumentRequestInput = z.infer<typeof DocumentRequestInputSchema>;
 
@@ -165,7 +175,12 @@ export const REFERRAL_UNIT_LABELS: Record<ReferralUnit, string> = {
 /** Body of `POST /api/cases/:id/referral`: where the case goes and why, in the examiner's words. */
 export const ReferralInputSchema = z.object({
   unit: ReferralUnitSchema.default('field-audit'),
-  summary: z.string().trim().min(20, 'Say in a sentence or two why the case needs the unit (at least 20 characters)').max(4000, 'Keep the summary under 4,000 characters').check(noControlChars({ lines: true })),
+  summary: z
+    .string()
+    .trim()
+    .min(20, 'Say in a sentence or two why the case needs the unit (at least 20 characters)')
+    .max(4000, 'Keep the summary under 4,000 characters')
+    .check(noControlChars({ lines: true })),
 });
 /** What the form holds (unit may be left to its default). */
 export type ReferralInput = z.input<typeof ReferralInputSchema>;

@@ -21,7 +21,7 @@ export const CreateUserSchema = z.object({
     .string()
     .trim()
     .regex(/^[a-z][a-z0-9._-]{1,31}$/, 'Use 2–32 lower-case letters, digits, dots, dashes or underscores, starting with a letter'),
-  displayName: z.string().trim().min(1, 'Enter the person\'s name').max(120).check(noControlChars()),
+  displayName: z.string().trim().min(1, "Enter the person's name").max(120).check(noControlChars()),
   role: RoleSchema,
   password: PasswordSchema,
 });

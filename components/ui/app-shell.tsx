@@ -93,8 +93,16 @@ export function AppShell({ nav, accessory, children }: AppShellProps) {
         </View>
       ) : (
         <>
-          <View role="navigation" aria-label="Screens" style={{ flexGrow: 0, borderBottomWidth: 1, borderBottomColor: colours.line, backgroundColor: colours.surface }}>
-            <ScrollView horizontal showsHorizontalScrollIndicator={false} contentContainerStyle={{ paddingHorizontal: space.sm, paddingVertical: space.xs, gap: space.xs }}>
+          <View
+            role="navigation"
+            aria-label="Screens"
+            style={{ flexGrow: 0, borderBottomWidth: 1, borderBottomColor: colours.line, backgroundColor: colours.surface }}
+          >
+            <ScrollView
+              horizontal
+              showsHorizontalScrollIndicator={false}
+              contentContainerStyle={{ paddingHorizontal: space.sm, paddingVertical: space.xs, gap: space.xs }}
+            >
               {navLinks}
             </ScrollView>
           </View>

@@ -59,7 +59,7 @@ export function ensurePgInstalled(log: (m: string) => void = console.log): strin
   if (!isRoot) {
     throw new Error(
       'PostgreSQL server binaries not found in /usr/lib/postgresql/*/bin.\n' +
-        'Install Debian\'s package first:  sudo apt-get install -y postgresql\n' +
+        "Install Debian's package first:  sudo apt-get install -y postgresql\n" +
         'then run the command again.',
     );
   }
@@ -137,9 +137,7 @@ export async function waitReady(bin: string, spec: ClusterSpec, timeoutMs = 60_0
     if (isReady(bin, spec)) return;
     await sleep(250);
   }
-  throw new Error(
-    `PostgreSQL did not become ready on 127.0.0.1:${spec.port} within ${timeoutMs / 1000} s; see ${path.join(spec.dataDir, 'server.log')}`,
-  );
+  throw new Error(`PostgreSQL did not become ready on 127.0.0.1:${spec.port} within ${timeoutMs / 1000} s; see ${path.join(spec.dataDir, 'server.log')}`);
 }
 
 /**
@@ -234,9 +232,12 @@ export async function startCluster(spec: ClusterSpec, log: (m: string) => void =
     fs.writeFileSync(pwFile, spec.password + '\n', { mode: 0o644 });
     try {
       pgTool(bin, 'initdb', [
-        '-D', spec.dataDir,
-        '-U', spec.user,
-        '--pwfile', pwFile,
+        '-D',
+        spec.dataDir,
+        '-U',
+        spec.user,
+        '--pwfile',
+        pwFile,
         '--auth-local=scram-sha-256',
         '--auth-host=scram-sha-256',
         '--encoding=UTF8',
@@ -265,12 +266,9 @@ export async function startCluster(spec: ClusterSpec, log: (m: string) => void =
   if (!isReady(bin, spec)) {
     // A stale postmaster.pid from a kill -9 is handled by postgres itself when the pid is gone.
     log(`Starting PostgreSQL on 127.0.0.1:${spec.port}…`);
-    const r = pgTool(
-      bin,
-      'pg_ctl',
-      ['-D', spec.dataDir, '-l', path.join(spec.dataDir, 'server.log'), '-o', `-p ${spec.port}`, '-w', '-t', '60', 'start'],
-      { check: false },
-    );
+    const r = pgTool(bin, 'pg_ctl', ['-D', spec.dataDir, '-l', path.join(spec.dataDir, 'server.log'), '-o', `-p ${spec.port}`, '-w', '-t', '60', 'start'], {
+      check: false,
+    });
     // Another process (a second test run) may be starting the same cluster right now.
     if (r.status !== 0) await waitReady(bin, spec, 15_000).catch(() => undefined);
     if (r.status !== 0 && !isReady(bin, spec)) {
@@ -331,9 +329,7 @@ export function clusterStatus(spec: ClusterSpec): string {
   const bin = findPgBin();
   if (!bin) return 'PostgreSQL binaries not installed';
   if (!isInitialised(spec.dataDir)) return `no cluster yet in ${spec.dataDir}`;
-  return isReady(bin, spec)
-    ? `running on 127.0.0.1:${spec.port} (data in ${spec.dataDir})`
-    : `stopped (data in ${spec.dataDir})`;
+  return isReady(bin, spec) ? `running on 127.0.0.1:${spec.port} (data in ${spec.dataDir})` : `stopped (data in ${spec.dataDir})`;
 }
 
 /** Runs psql against the cluster, interactively, as the owner (migrations' login). */

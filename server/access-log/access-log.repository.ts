@@ -20,7 +20,18 @@ export async function insertAccessLogs(db: Db, rows: NewAccessLog[]): Promise<vo
   await db.query(
     `INSERT INTO access_log (user_id, username, role, action, route, record_type, record_id, taxpayer_id, taxpayer_label, detail)
      SELECT * FROM unnest($1::uuid[], $2::text[], $3::text[], $4::text[], $5::text[], $6::text[], $7::text[], $8::uuid[], $9::text[], $10::text[])`,
-    [col('userId'), col('username'), col('role'), col('action'), col('route'), col('recordType'), col('recordId'), col('taxpayerId'), col('taxpayerLabel'), col('detail')],
+    [
+      col('userId'),
+      col('username'),
+      col('role'),
+      col('action'),
+      col('route'),
+      col('recordType'),
+      col('recordId'),
+      col('taxpayerId'),
+      col('taxpayerLabel'),
+      col('detail'),
+    ],
   );
 }
 

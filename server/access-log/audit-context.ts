@@ -24,7 +24,6 @@ export interface StaffAudit extends AuditContext {
 }
 
 declare global {
-  // eslint-disable-next-line @typescript-eslint/no-namespace
   namespace Express {
     interface Request {
       /** Set by {@link auditContext}. */

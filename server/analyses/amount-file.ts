@@ -71,9 +71,7 @@ function chooseColumn(header: string[], wanted: string | null, where: string): n
   }
   const i = names.findIndex((h) => h.toLowerCase() === 'amount');
   if (i >= 0) return i;
-  throw new AmountFileError(
-    `${where} has several columns (${names.map((n) => `"${n}"`).join(', ')}); choose one with --column NAME`,
-  );
+  throw new AmountFileError(`${where} has several columns (${names.map((n) => `"${n}"`).join(', ')}); choose one with --column NAME`);
 }
 
 function isAmountText(text: string): boolean {
@@ -151,7 +149,7 @@ function cellHeader(v: unknown): string {
   if (typeof v === 'string') return v;
   if (typeof v === 'number') return String(v);
   if (v && typeof v === 'object' && Array.isArray((v as { richText?: unknown }).richText)) {
-    return ((v as { richText: { text?: string }[] }).richText).map((r) => r.text ?? '').join('');
+    return (v as { richText: { text?: string }[] }).richText.map((r) => r.text ?? '').join('');
   }
   return v === null || v === undefined ? '' : String(v);
 }
@@ -161,7 +159,8 @@ async function readXlsxFile(file: string, wanted: string | null, out: CentsBuffe
   try {
     reader = await XlsxReader.open(file, caps, path.basename(file));
   } catch (e) {
-    if (e instanceof WorkbookError) throw new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
+    if (e instanceof WorkbookError)
+      throw new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
     throw e;
   }
   const skipped: string[] = [];
@@ -204,16 +203,15 @@ async function readXlsxFile(file: string, wanted: string | null, out: CentsBuffe
       skipped.push(`"${sheet}"`);
     }
   } catch (e) {
-    if (e instanceof WorkbookError) throw new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
+    if (e instanceof WorkbookError)
+      throw new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
     throw e;
   } finally {
     await reader.close();
   }
   const sheets = skipped.join(', ') || 'none';
   if (wanted !== null) throw new AmountFileError(`${path.basename(file)}: no sheet has a column "${wanted}" (sheets: ${sheets})`);
-  throw new AmountFileError(
-    `${path.basename(file)}: no sheet has a single column or an "amount" column (sheets: ${sheets}); choose one with --column NAME`,
-  );
+  throw new AmountFileError(`${path.basename(file)}: no sheet has a single column or an "amount" column (sheets: ${sheets}); choose one with --column NAME`);
 }
 
 function columnLetter(n: number): string {
@@ -221,7 +219,6 @@ function columnLetter(n: number): string {
   for (let k = n; k > 0; k = Math.floor((k - 1) / 26)) s = String.fromCharCode(65 + ((k - 1) % 26)) + s;
   return s;
 }
-
 
 /**
  * Reads every amount of a file into cents.
@@ -234,12 +231,22 @@ function columnLetter(n: number): string {
  * @throws AmountFileError or AmountParseError (naming the offending value and its position),
  *   CapError (a reading limit crossed)
  */
-export async function readAmountsFile(file: string, column: string | null, kind?: 'csv' | 'xlsx' | 'text', caps: ReadCaps = DEFAULT_READ_CAPS): Promise<{ cents: Float64Array; what: string }> {
+export async function readAmountsFile(
+  file: string,
+  column: string | null,
+  kind?: 'csv' | 'xlsx' | 'text',
+  caps: ReadCaps = DEFAULT_READ_CAPS,
+): Promise<{ cents: Float64Array; what: string }> {
   const ext = path.extname(file).toLowerCase();
   const k = kind ?? (ext === '.csv' ? 'csv' : ext === '.xlsx' ? 'xlsx' : 'text');
   if (ext === '.xls') throw new AmountFileError(`${path.basename(file)}: old .xls workbooks are not read; save it as .xlsx`);
   if (column !== null && k === 'text') throw new AmountFileError('A column name applies to CSV and XLSX files; a text file has one amount a line');
   const cents = new CentsBuffer();
-  const what = k === 'csv' ? await readCsvFile(file, column, cents, caps) : k === 'xlsx' ? await readXlsxFile(file, column, cents, caps) : await readTextFile(file, cents, caps);
+  const what =
+    k === 'csv'
+      ? await readCsvFile(file, column, cents, caps)
+      : k === 'xlsx'
+        ? await readXlsxFile(file, column, cents, caps)
+        : await readTextFile(file, cents, caps);
   return { cents: cents.values(), what };
 }

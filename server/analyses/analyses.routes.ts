@@ -18,25 +18,39 @@ const MAX_FILE_BYTES = 50 * 1024 * 1024;
 export function analysesRoutes(_deps: AppDeps) {
   const r = secureRouter();
   const upload = multer({ storage: spoolStorage(), limits: { fileSize: MAX_FILE_BYTES, files: 1, fields: 5 } }).single('file');
-  r.post('/analyses/digits', allow('analyse'), (req, res, next) => {
-    if (!req.is('multipart/form-data')) return next();
-    upload(req, res, (err: unknown) => {
-      if (err instanceof multer.MulterError) {
-        return next(new HttpError(err.code === 'LIMIT_FILE_SIZE' ? 413 : 422, err.code === 'LIMIT_FILE_SIZE' ? `The file is larger than ${MAX_FILE_BYTES / 1024 / 1024} MB. Split the amounts into several smaller files and analyse each on its own.` : `Upload problem: ${err.message}. Send one file in the field "file".`));
-      }
-      // busboy's errors: the body is not a well-formed multipart form (cut short, bad boundary…).
-      if (err instanceof Error) return next(new HttpError(400, `The upload is not a readable multipart form (${err.message}). Choose the file again and send it.`));
-      if (err) return next(err);
-      const file = req.file;
-      if (!file) return next(new HttpError(422, 'No file: send the amounts as the multipart field "file".'));
-      const column = typeof req.body?.column === 'string' && req.body.column.trim() ? req.body.column.trim() : null;
-      analyseFile(file.path, file.originalname, column)
-        .then((profile) => res.json(profile))
-        .catch(next)
-        .finally(() => void removeSpooled([file]));
-    });
-  }, validate(DigitAnalysisRequestSchema), (req, res) => {
-    res.json(analyseAmounts(req.body.amounts));
-  });
+  r.post(
+    '/analyses/digits',
+    allow('analyse'),
+    (req, res, next) => {
+      if (!req.is('multipart/form-data')) return next();
+      upload(req, res, (err: unknown) => {
+        if (err instanceof multer.MulterError) {
+          return next(
+            new HttpError(
+              err.code === 'LIMIT_FILE_SIZE' ? 413 : 422,
+              err.code === 'LIMIT_FILE_SIZE'
+                ? `The file is larger than ${MAX_FILE_BYTES / 1024 / 1024} MB. Split the amounts into several smaller files and analyse each on its own.`
+                : `Upload problem: ${err.message}. Send one file in the field "file".`,
+            ),
+          );
+        }
+        // busboy's errors: the body is not a well-formed multipart form (cut short, bad boundary…).
+        if (err instanceof Error)
+          return next(new HttpError(400, `The upload is not a readable multipart form (${err.message}). Choose the file again and send it.`));
+        if (err) return next(err);
+        const file = req.file;
+        if (!file) return next(new HttpError(422, 'No file: send the amounts as the multipart field "file".'));
+        const column = typeof req.body?.column === 'string' && req.body.column.trim() ? req.body.column.trim() : null;
+        analyseFile(file.path, file.originalname, column)
+          .then((profile) => res.json(profile))
+          .catch(next)
+          .finally(() => void removeSpooled([file]));
+      });
+    },
+    validate(DigitAnalysisRequestSchema),
+    (req, res) => {
+      res.json(analyseAmounts(req.body.amounts));
+    },
+  );
   return r;
 }

@@ -20,9 +20,13 @@ export const AMOUNT_FILE_CAPS: ReadCaps = { ...DEFAULT_READ_CAPS, maxRows: EXCEL
 export function analyseAmounts(amounts: (number | string)[]): DigitProfile {
   const problems = findAmountErrors(amounts, { max: 100 });
   if (problems.length) {
-    throw new HttpError(422, `${problems.length === 100 ? 'At least 100' : problems.length} value${problems.length === 1 ? ' is' : 's are'} not amounts. Use digits with an optional minus sign and at most 2 decimals, e.g. -1234.50.`, {
-      errors: problems.map((p) => ({ index: p.index, message: p.message })),
-    });
+    throw new HttpError(
+      422,
+      `${problems.length === 100 ? 'At least 100' : problems.length} value${problems.length === 1 ? ' is' : 's are'} not amounts. Use digits with an optional minus sign and at most 2 decimals, e.g. -1234.50.`,
+      {
+        errors: problems.map((p) => ({ index: p.index, message: p.message })),
+      },
+    );
   }
   return profileAmounts(amounts);
 }
@@ -50,11 +54,18 @@ export async function analyseFile(storedPath: string, originalName: string, colu
   if (!kind) throw new HttpError(422, `"${originalName}" is not a .txt, .csv or .xlsx file. Save the amounts in one of those formats.`);
   const found = sniff(await firstBytes(storedPath));
   if (kind === 'xlsx' && found !== 'zip') {
-    const what = found === 'ole' ? 'an old Excel 97–2003 workbook (.xls)' : found === 'pdf' ? 'a PDF' : found === 'text' ? 'a text file' : 'not an Excel workbook';
-    throw new HttpError(422, `"${originalName}" is named .xlsx but is ${what}. Open it in Excel and save it as an Excel Workbook (.xlsx), or send the amounts as CSV.`);
+    const what =
+      found === 'ole' ? 'an old Excel 97–2003 workbook (.xls)' : found === 'pdf' ? 'a PDF' : found === 'text' ? 'a text file' : 'not an Excel workbook';
+    throw new HttpError(
+      422,
+      `"${originalName}" is named .xlsx but is ${what}. Open it in Excel and save it as an Excel Workbook (.xlsx), or send the amounts as CSV.`,
+    );
   }
   if (kind !== 'xlsx' && (found === 'zip' || found === 'ole' || found === 'pdf' || found === 'binary')) {
-    throw new HttpError(422, `"${originalName}" is named ${ext || 'as text'} but holds ${found === 'zip' ? 'a ZIP file (an .xlsx workbook?)' : 'binary data'}. Send amounts as text, CSV UTF-8 or an .xlsx workbook named as such.`);
+    throw new HttpError(
+      422,
+      `"${originalName}" is named ${ext || 'as text'} but holds ${found === 'zip' ? 'a ZIP file (an .xlsx workbook?)' : 'binary data'}. Send amounts as text, CSV UTF-8 or an .xlsx workbook named as such.`,
+    );
   }
   // The reader names the file by its stored name; the sender knows it by theirs.
   const stored = path.basename(storedPath);

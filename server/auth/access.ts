@@ -23,10 +23,9 @@ export interface SessionUser {
 }
 
 declare global {
-  // eslint-disable-next-line @typescript-eslint/no-namespace
   namespace Express {
     // passport's req.user
-    // eslint-disable-next-line @typescript-eslint/no-empty-object-type
+
     interface User extends SessionUser {}
   }
 }
@@ -44,13 +43,16 @@ function tag(handler: RequestHandler, rule: AccessRule): RuleHandler {
 /** Only these roles (signed in, active). 401 when signed out, 403 for any other role. */
 export function access(...roles: Role[]): RequestHandler {
   if (roles.length === 0) throw new Error('access() needs at least one role; use publicAccess for open routes');
-  return tag((req, _res, next) => {
-    if (!req.user) return next(new HttpError(401, 'Please sign in.'));
-    if (!roles.includes(req.user.role)) {
-      return next(new HttpError(403, `Your role (${req.user.role}) may not do this.`));
-    }
-    next();
-  }, { kind: 'roles', roles });
+  return tag(
+    (req, _res, next) => {
+      if (!req.user) return next(new HttpError(401, 'Please sign in.'));
+      if (!roles.includes(req.user.role)) {
+        return next(new HttpError(403, `Your role (${req.user.role}) may not do this.`));
+      }
+      next();
+    },
+    { kind: 'roles', roles },
+  );
 }
 
 /** Only the roles that hold a capability in the policy table (shared/permissions.ts). */

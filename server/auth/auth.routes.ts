@@ -55,7 +55,14 @@ export function authRoutes(deps: Pick<AppDeps, 'dataSource'> & { throttle: Login
     }
     const check = await verifyCredentials(ds, username, password);
     if (!check.ok) {
-      await recordAccess(ds, { ...auditOf(req), actor: null }, { action: 'sign-in-refused', detail: `user name "${username.slice(0, 64)}": ${check.reason === 'inactive' ? 'account deactivated' : 'wrong user name or password'}` });
+      await recordAccess(
+        ds,
+        { ...auditOf(req), actor: null },
+        {
+          action: 'sign-in-refused',
+          detail: `user name "${username.slice(0, 64)}": ${check.reason === 'inactive' ? 'account deactivated' : 'wrong user name or password'}`,
+        },
+      );
       throw new HttpError(401, check.reason === 'inactive' ? 'This account is deactivated. Ask an administrator.' : 'The user name or password is wrong.');
     }
     deps.throttle.succeed(username, address, attempt.at);

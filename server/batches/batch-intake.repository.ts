@@ -42,7 +42,7 @@ export async function findBatchByHash(ds: DataSource, fileHash: string): Promise
 export async function takeOverStaleBatch(ds: DataSource, id: string, loadedBy: string | null, staleMinutes: number): Promise<boolean> {
   const rows = returnedRows<{ id: string }>(
     await ds.query(
-    `UPDATE filing_batch SET state = 'validating', loaded_by = $2, updated_at = now(), created_at = now()
+      `UPDATE filing_batch SET state = 'validating', loaded_by = $2, updated_at = now(), created_at = now()
      WHERE id = $1 AND state IN ('received', 'validating') AND updated_at < now() - make_interval(mins => $3)
      RETURNING id`,
       [id, loadedBy, staleMinutes],
@@ -53,10 +53,11 @@ export async function takeOverStaleBatch(ds: DataSource, id: string, loadedBy: s
 
 /** Marks a batch rejected with its report. */
 export async function markRejected(ds: DataSource, id: string, errors: BatchIssue[], errorCount: number): Promise<void> {
-  await ds.query(
-    `UPDATE filing_batch SET state = 'rejected', errors = $2::jsonb, error_count = $3, updated_at = now() WHERE id = $1`,
-    [id, JSON.stringify(errors), errorCount],
-  );
+  await ds.query(`UPDATE filing_batch SET state = 'rejected', errors = $2::jsonb, error_count = $3, updated_at = now() WHERE id = $1`, [
+    id,
+    JSON.stringify(errors),
+    errorCount,
+  ]);
 }
 
 /** Removes the record of an attempt that failed for a server reason, so the file can be sent again. */

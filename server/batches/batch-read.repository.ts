@@ -50,9 +50,8 @@ export async function findBatches(ds: DataSource, page: number, pageSize: number
 
 /** One batch with its report, or null. */
 export async function findBatch(ds: DataSource, id: string): Promise<BatchRecordWithReport | null> {
-  const rows = await ds.query(
-    `SELECT ${SUMMARY_COLUMNS}, b.errors, b.notices FROM filing_batch b LEFT JOIN app_user u ON u.id = b.loaded_by WHERE b.id = $1`,
-    [id],
-  );
+  const rows = await ds.query(`SELECT ${SUMMARY_COLUMNS}, b.errors, b.notices FROM filing_batch b LEFT JOIN app_user u ON u.id = b.loaded_by WHERE b.id = $1`, [
+    id,
+  ]);
   return rows[0] ?? null;
 }

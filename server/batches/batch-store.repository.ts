@@ -194,7 +194,10 @@ export class IntakeTransaction {
 
   /** COPY into tax_return: id, batch, taxpayer, preparer, ref, year, source row, amended return, filing date. */
   openReturnCopy(): CopyWriter {
-    return new CopyWriter(this.client, `COPY tax_return (id, batch_id, taxpayer_id, preparer_id, return_ref, tax_year, source_row, amends_return_id, filed_on) FROM STDIN`);
+    return new CopyWriter(
+      this.client,
+      `COPY tax_return (id, batch_id, taxpayer_id, preparer_id, return_ref, tax_year, source_row, amends_return_id, filed_on) FROM STDIN`,
+    );
   }
 
   /** COPY into line_item: return id, line number, code, amount. */

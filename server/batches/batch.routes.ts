@@ -49,14 +49,23 @@ function receiveUpload(maxFileBytes: number): RequestHandler {
       if (!err) return next();
       if (err instanceof multer.MulterError) {
         const file = (err as { filename?: string }).filename ?? err.field ?? '';
-        if (err.code === 'LIMIT_FILE_SIZE') return problem(413, `The file is larger than the ${sizeText(maxFileBytes)} a batch file may be. Split the batch into smaller batches.`, file);
+        if (err.code === 'LIMIT_FILE_SIZE')
+          return problem(413, `The file is larger than the ${sizeText(maxFileBytes)} a batch file may be. Split the batch into smaller batches.`, file);
         if (err.code === 'LIMIT_UNEXPECTED_FILE') {
-          return problem(422, `Unexpected upload part "${err.field}". Send one XLSX workbook as "file", or CSV files as "returns", "line_items" and optionally "statements".`, file);
+          return problem(
+            422,
+            `Unexpected upload part "${err.field}". Send one XLSX workbook as "file", or CSV files as "returns", "line_items" and optionally "statements".`,
+            file,
+          );
         }
         return problem(422, `The upload could not be read (${err.message}). Send one XLSX workbook, or the CSV files of one batch.`, file);
       }
       // busboy's errors: the body is not a well-formed multipart form (cut short, bad boundary…).
-      if (err instanceof Error) return problem(400, `The upload is not a readable multipart form (${err.message}). Choose the files again and send them; if it happens again, the connection may have been cut.`);
+      if (err instanceof Error)
+        return problem(
+          400,
+          `The upload is not a readable multipart form (${err.message}). Choose the files again and send them; if it happens again, the connection may have been cut.`,
+        );
       next(err);
     });
   };
@@ -117,7 +126,8 @@ export function batchRoutes(deps: AppDeps) {
     if (!batch) throw new HttpError(404, `There is no batch ${id}.`);
     // A rejection report lists values from the file (TIN-like ones masked): its read is logged
     // like any read of taxpayer data. Batches without errors are not: the screen polls them.
-    if (batch.errors.length) await recordAccess(deps.dataSource, staffAuditOf(req), { action: 'view', recordType: 'filing_batch', recordId: id, detail: 'rejection report' });
+    if (batch.errors.length)
+      await recordAccess(deps.dataSource, staffAuditOf(req), { action: 'view', recordType: 'filing_batch', recordId: id, detail: 'rejection report' });
     res.json(batch);
   });
 

@@ -41,9 +41,7 @@ export interface IntakeDeps {
 
 /** How an upload ended. */
 export type IngestOutcome =
-  | { kind: 'accepted'; batch: BatchCreated }
-  | { kind: 'rejected'; body: BatchRejected }
-  | { kind: 'duplicate'; body: { error: string; batchId: string } };
+  { kind: 'accepted'; batch: BatchCreated } | { kind: 'rejected'; body: BatchRejected } | { kind: 'duplicate'; body: { error: string; batchId: string } };
 
 /** A batch left in `validating` this long is taken to be from a server that stopped mid-way. */
 const STALE_MINUTES = 30;
@@ -56,12 +54,15 @@ const STALE_MINUTES = 30;
 export function uploadFromParts(parts: Partial<Record<'file' | BatchTable, UploadedFile>>): { upload: BatchUpload } | { issues: BatchIssue[] } {
   const issue = (message: string): { issues: BatchIssue[] } => ({ issues: [{ file: '', row: null, column: null, message }] });
   const csv = BATCH_TABLES.filter((t) => parts[t]);
-  if (parts.file && csv.length) return issue('Send either one XLSX workbook (part "file") or CSV files (parts "returns", "line_items", "statements"), not both.');
+  if (parts.file && csv.length)
+    return issue('Send either one XLSX workbook (part "file") or CSV files (parts "returns", "line_items", "statements"), not both.');
   if (parts.file) return { upload: { format: 'xlsx', workbook: parts.file } };
   if (!csv.length) return issue('No file was sent. Choose one XLSX workbook, or the CSV files returns and line_items (and optionally statements).');
   const missing = (['returns', 'line_items'] as const).filter((t) => !parts[t]);
   if (missing.length) {
-    return issue(`The CSV file${missing.length > 1 ? 's' : ''} ${missing.map((m) => `"${m}"`).join(' and ')} ${missing.length > 1 ? 'are' : 'is'} missing. A CSV batch needs returns and line_items (statements is optional).`);
+    return issue(
+      `The CSV file${missing.length > 1 ? 's' : ''} ${missing.map((m) => `"${m}"`).join(' and ')} ${missing.length > 1 ? 'are' : 'is'} missing. A CSV batch needs returns and line_items (statements is optional).`,
+    );
   }
   return { upload: { format: 'csv', parts: Object.fromEntries(csv.map((t) => [t, parts[t]])) } };
 }
@@ -106,8 +107,7 @@ export async function ingestUpload(deps: IntakeDeps, upload: BatchUpload, user: 
   }
 
   const sheetsSeen: string[] = [];
-  const sources: AsyncIterable<TableSource> =
-    upload.format === 'xlsx' ? xlsxTables(upload.workbook, (name) => sheetsSeen.push(name)) : csvTables(upload.parts);
+  const sources: AsyncIterable<TableSource> = upload.format === 'xlsx' ? xlsxTables(upload.workbook, (name) => sheetsSeen.push(name)) : csvTables(upload.parts);
   const describeMissing = (table: BatchTable): BatchIssue =>
     upload.format === 'xlsx'
       ? {
@@ -142,7 +142,8 @@ export async function ingestUpload(deps: IntakeDeps, upload: BatchUpload, user: 
 
 function duplicateMessage(state: string, createdAt: Date): string {
   const when = new Date(createdAt).toISOString().slice(0, 16).replace('T', ' ');
-  if (state === 'rejected') return `This file was uploaded before (${when} UTC) and rejected. Open that batch to see what to fix, then upload the corrected file.`;
+  if (state === 'rejected')
+    return `This file was uploaded before (${when} UTC) and rejected. Open that batch to see what to fix, then upload the corrected file.`;
   if (state === 'validating' || state === 'received') return `This file is being checked right now (uploaded ${when} UTC). Wait for that batch to finish.`;
   return `This file was already uploaded (${when} UTC) and accepted; it is not stored twice.`;
 }

@@ -52,7 +52,11 @@ export async function fillMissingDeadlines(db: Db): Promise<number> {
 }
 
 /** The deadline of one case as the API gives it: last day, why, and days left by the office clock. */
-export async function caseDeadline(db: Db, caseId: string, asOf: string = today()): Promise<{ assessBy: string | null; basis: string; explanation: string; daysLeft: number | null }> {
+export async function caseDeadline(
+  db: Db,
+  caseId: string,
+  asOf: string = today(),
+): Promise<{ assessBy: string | null; basis: string; explanation: string; daysLeft: number | null }> {
   const [f] = await findDeadlineFacts(db, [caseId]);
   if (!f) return { assessBy: null, basis: 'no-return', explanation: 'No return was filed: the office may assess at any time.', daysLeft: null };
   const d = deadlineOf(f);

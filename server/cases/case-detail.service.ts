@@ -15,7 +15,16 @@ import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import type { SessionUser } from '../auth/access';
 import { HttpError } from '../http/errors';
-import { findCaseDetail, findCaseEvents, findCaseLetters, findCaseNotes, findExaminers, findLineItems, userNames, type CaseEventRecord } from './case.repository';
+import {
+  findCaseDetail,
+  findCaseEvents,
+  findCaseLetters,
+  findCaseNotes,
+  findExaminers,
+  findLineItems,
+  userNames,
+  type CaseEventRecord,
+} from './case.repository';
 import { mayAct } from './case-workflow';
 import { longDate } from '../../shared/letters';
 import { caseDeadline } from './case-deadline.service';
@@ -83,7 +92,13 @@ export async function getCaseDetail(ds: DataSource, audit: StaffAudit, caseId: s
   if (!isUuid(caseId)) throw new HttpError(404, 'No such case.');
   const c = await findCaseDetail(ds, caseId);
   if (!c) throw new HttpError(404, 'No such case.');
-  const [lines, events, notes, letters, deadline] = await Promise.all([findLineItems(ds, c.returnId), findCaseEvents(ds, caseId), findCaseNotes(ds, caseId), findCaseLetters(ds, caseId), caseDeadline(ds, caseId)]);
+  const [lines, events, notes, letters, deadline] = await Promise.all([
+    findLineItems(ds, c.returnId),
+    findCaseEvents(ds, caseId),
+    findCaseNotes(ds, caseId),
+    findCaseLetters(ds, caseId),
+    caseDeadline(ds, caseId),
+  ]);
   const mentioned = new Set<string>();
   for (const e of events) for (const k of ['from', 'to', 'assigneeId']) if (typeof e.detail?.[k] === 'string') mentioned.add(e.detail[k] as string);
   const names = await userNames(ds, [...mentioned].filter(isUuid));
@@ -112,7 +127,12 @@ export async function getCaseDetail(ds: DataSource, audit: StaffAudit, caseId: s
     deadline: { ...deadline, caution: ASSESSMENT_DEADLINE_CAUTION },
     outcome: c.outcome,
     adjustedAmount: c.adjustedAmount,
-    taxpayer: { id: c.taxpayerId, name: c.taxpayerName, maskedTin: maskTin(String(c.tin)), activityCode: c.activityCode as CaseDetail['taxpayer']['activityCode'] },
+    taxpayer: {
+      id: c.taxpayerId,
+      name: c.taxpayerName,
+      maskedTin: maskTin(String(c.tin)),
+      activityCode: c.activityCode as CaseDetail['taxpayer']['activityCode'],
+    },
     return: {
       id: c.returnId,
       returnRef: c.returnRef,

@@ -49,14 +49,23 @@ export async function openCasesForScores(m: EntityManager, batchId: string, vers
     ],
   );
   // Each case keeps its assessment deadline (issue 13), so the queue can sort on it.
-  await refreshDeadlines(m, rows.map((r) => r.id));
+  await refreshDeadlines(
+    m,
+    rows.map((r) => r.id),
+  );
   const opened = rows.filter((r) => r.inserted).map((r) => r.id);
   const rescored = rows.filter((r) => !r.inserted).map((r) => r.id);
   if (opened.length) {
-    await m.query(`INSERT INTO case_event (case_id, kind, to_state, detail) SELECT id, 'opened', 'open', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [opened, version]);
+    await m.query(
+      `INSERT INTO case_event (case_id, kind, to_state, detail) SELECT id, 'opened', 'open', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`,
+      [opened, version],
+    );
   }
   if (rescored.length) {
-    await m.query(`INSERT INTO case_event (case_id, kind, detail) SELECT id, 'rescored', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`, [rescored, version]);
+    await m.query(
+      `INSERT INTO case_event (case_id, kind, detail) SELECT id, 'rescored', jsonb_build_object('profileVersion', $2::int) FROM unnest($1::uuid[]) AS id`,
+      [rescored, version],
+    );
   }
 }
 

@@ -41,7 +41,10 @@ export function caseFilterOf(q: CaseListQuery, me: string): CaseFilter {
  * A queue line: the case's own fields under the entity's names (ExamCase), and the
  * return's, taxpayer's and examiner's display fields beside them.
  */
-export type QueueCase = Pick<ExamCase, 'id' | 'state' | 'selection' | 'riskScore' | 'priority' | 'amountAtStake' | 'assigneeId' | 'openedAt' | 'batchId' | 'taxpayerId' | 'dueDate'> & {
+export type QueueCase = Pick<
+  ExamCase,
+  'id' | 'state' | 'selection' | 'riskScore' | 'priority' | 'amountAtStake' | 'assigneeId' | 'openedAt' | 'batchId' | 'taxpayerId' | 'dueDate'
+> & {
   assigneeName: string | null;
   returnRef: string;
   taxYear: number;

@@ -96,7 +96,14 @@ export async function listCases(ds: DataSource, audit: StaffAudit, q: CaseListQu
   await recordAccess(
     ds,
     audit,
-    rows.map((r) => ({ action: 'view' as const, recordType: 'case' as const, recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(String(r.tin)), detail: `queue page ${q.page}` })),
+    rows.map((r) => ({
+      action: 'view' as const,
+      recordType: 'case' as const,
+      recordId: r.id,
+      taxpayerId: r.taxpayerId,
+      taxpayerLabel: maskTin(String(r.tin)),
+      detail: `queue page ${q.page}`,
+    })),
   );
   return { items: rows.map(toItem), total, page: q.page, pageSize: q.pageSize };
 }

@@ -66,12 +66,27 @@ export async function recordReply(m: EntityManager, caseId: string, detail: Reco
 }
 
 /** Appends a case event (actor null: Plumbline itself, or a taxpayer through a reply link). */
-export async function addCaseEvent(m: EntityManager, caseId: string, actor: Pick<SessionUser, 'id'> | null, kind: string, detail: Record<string, unknown> = {}, from?: CaseState, to?: CaseState): Promise<void> {
+export async function addCaseEvent(
+  m: EntityManager,
+  caseId: string,
+  actor: Pick<SessionUser, 'id'> | null,
+  kind: string,
+  detail: Record<string, unknown> = {},
+  from?: CaseState,
+  to?: CaseState,
+): Promise<void> {
   await insertCaseEvent(m, { caseId, actorId: actor?.id ?? null, kind, detail, from: from ?? null, to: to ?? null });
 }
 
 async function logChange(m: EntityManager, audit: StaffAudit, c: ExamCase, detail: string) {
-  await recordAccess(m, audit, { action: 'change', recordType: 'case', recordId: c.id, taxpayerId: c.taxpayerId, taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId), detail });
+  await recordAccess(m, audit, {
+    action: 'change',
+    recordType: 'case',
+    recordId: c.id,
+    taxpayerId: c.taxpayerId,
+    taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
+    detail,
+  });
 }
 
 /** Extra facts a move may record. */
@@ -110,7 +125,15 @@ export async function moveCase(m: EntityManager, audit: StaffAudit, caseId: stri
     c.adjustedAmount = to === 'closed_adjusted' ? (opts.adjustedAmount ?? null) : null;
   }
   await saveCase(m, c);
-  await addCaseEvent(m, c.id, audit.actor, opts.kind ?? 'transition', { ...(opts.detail ?? {}), ...(opts.outcome ? { outcome: opts.outcome } : {}), ...(opts.adjustedAmount ? { adjustedAmount: opts.adjustedAmount } : {}) }, from, to);
+  await addCaseEvent(
+    m,
+    c.id,
+    audit.actor,
+    opts.kind ?? 'transition',
+    { ...(opts.detail ?? {}), ...(opts.outcome ? { outcome: opts.outcome } : {}), ...(opts.adjustedAmount ? { adjustedAmount: opts.adjustedAmount } : {}) },
+    from,
+    to,
+  );
   await logChange(m, audit, c, `${from} → ${to}`);
   return c;
 }
@@ -121,7 +144,12 @@ export async function claimCase(ds: DataSource, audit: StaffAudit, caseId: strin
   return ds.transaction(async (m) => {
     const c = await lockCase(m, caseId);
     if (c.state !== 'open') {
-      throw new HttpError(409, c.assigneeId === actor.id ? 'You already hold this case.' : `Only an open case can be claimed; this one is ${CASE_STATE_LABELS[c.state].toLowerCase()}.`);
+      throw new HttpError(
+        409,
+        c.assigneeId === actor.id
+          ? 'You already hold this case.'
+          : `Only an open case can be claimed; this one is ${CASE_STATE_LABELS[c.state].toLowerCase()}.`,
+      );
     }
     c.state = 'assigned';
     c.assigneeId = actor.id;

@@ -17,7 +17,22 @@ import { ExamCase } from './exam-case.entity';
  */
 export type CaseDetailRecord = Pick<
   ExamCase,
-  'id' | 'state' | 'selection' | 'assigneeId' | 'riskScore' | 'priority' | 'amountAtStake' | 'openedAt' | 'updatedAt' | 'closedAt' | 'dueDate' | 'outcome' | 'adjustedAmount' | 'taxpayerId' | 'returnId' | 'batchId'
+  | 'id'
+  | 'state'
+  | 'selection'
+  | 'assigneeId'
+  | 'riskScore'
+  | 'priority'
+  | 'amountAtStake'
+  | 'openedAt'
+  | 'updatedAt'
+  | 'closedAt'
+  | 'dueDate'
+  | 'outcome'
+  | 'adjustedAmount'
+  | 'taxpayerId'
+  | 'returnId'
+  | 'batchId'
 > & {
   assigneeName: string | null;
   tin: string;
@@ -153,7 +168,10 @@ export async function saveCase(m: EntityManager, c: ExamCase): Promise<void> {
 }
 
 /** Appends a case event. */
-export async function insertCaseEvent(m: EntityManager, e: { caseId: string; actorId: string | null; kind: string; detail: Record<string, unknown>; from: CaseState | null; to: CaseState | null }): Promise<void> {
+export async function insertCaseEvent(
+  m: EntityManager,
+  e: { caseId: string; actorId: string | null; kind: string; detail: Record<string, unknown>; from: CaseState | null; to: CaseState | null },
+): Promise<void> {
   await m.query(`INSERT INTO case_event (case_id, actor_id, kind, from_state, to_state, detail) VALUES ($1, $2, $3, $4, $5, $6::jsonb)`, [
     e.caseId,
     e.actorId,
@@ -172,6 +190,9 @@ export async function findTaxpayerTin(db: Db, taxpayerId: string): Promise<strin
 
 /** A user one may assign a case to, as far as the rule needs: role, active, name. */
 export async function findAssignee(db: Db, userId: string): Promise<{ id: string; role: string; active: boolean; displayName: string } | null> {
-  const r: { id: string; role: string; active: boolean; display_name: string }[] = await db.query(`SELECT id, role, active, display_name FROM app_user WHERE id = $1`, [userId]);
+  const r: { id: string; role: string; active: boolean; display_name: string }[] = await db.query(
+    `SELECT id, role, active, display_name FROM app_user WHERE id = $1`,
+    [userId],
+  );
   return r.length ? { id: r[0].id, role: r[0].role, active: r[0].active, displayName: r[0].display_name } : null;
 }

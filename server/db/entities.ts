@@ -17,4 +17,22 @@ import { DocumentRequest } from '../letters/document-request.entity';
 import { Letter } from '../letters/letter.entity';
 import { ReplyUpload } from '../letters/reply-upload.entity';
 
-export const entities = [User, AccessLog, Taxpayer, Preparer, FilingBatch, TaxReturn, LineItem, ThirdPartyStatement, ScoringProfile, ScoringRun, ReturnScore, ExamCase, CaseEvent, CaseNote, Letter, DocumentRequest, ReplyUpload];
+export const entities = [
+  User,
+  AccessLog,
+  Taxpayer,
+  Preparer,
+  FilingBatch,
+  TaxReturn,
+  LineItem,
+  ThirdPartyStatement,
+  ScoringProfile,
+  ScoringRun,
+  ReturnScore,
+  ExamCase,
+  CaseEvent,
+  CaseNote,
+  Letter,
+  DocumentRequest,
+  ReplyUpload,
+];

@@ -38,7 +38,10 @@ export async function findRequestsPastDue(db: Db, day: string): Promise<WaitingR
 
 /** Unanswered requests due from `day` to `until` (inclusive) not yet reminded. */
 export async function findRequestsToRemind(db: Db, day: string, until: string): Promise<WaitingRequest[]> {
-  return db.query(`${WAITING} WHERE d.state = 'sent' AND d.reminded_at IS NULL AND d.due_date BETWEEN $1::date AND $2::date ORDER BY d.due_date, d.id`, [day, until]);
+  return db.query(`${WAITING} WHERE d.state = 'sent' AND d.reminded_at IS NULL AND d.due_date BETWEEN $1::date AND $2::date ORDER BY d.due_date, d.id`, [
+    day,
+    until,
+  ]);
 }
 
 /** Marks a request expired if it still waits; true when this call did it. */
@@ -49,19 +52,29 @@ export async function expireRequest(m: EntityManager, requestId: string): Promis
 
 /** True when another request of the case still waits for a reply that is not yet late. */
 export async function otherRequestWaiting(m: EntityManager, caseId: string, requestId: string, day: string): Promise<boolean> {
-  const r = await m.query(`SELECT 1 FROM document_request WHERE case_id = $1 AND id <> $2 AND state = 'sent' AND due_date >= $3::date LIMIT 1`, [caseId, requestId, day]);
+  const r = await m.query(`SELECT 1 FROM document_request WHERE case_id = $1 AND id <> $2 AND state = 'sent' AND due_date >= $3::date LIMIT 1`, [
+    caseId,
+    requestId,
+    day,
+  ]);
   return r.length > 0;
 }
 
 /** Moves a case that awaits a reply back to review (the daily pass, no actor); true when it moved. */
 export async function caseBackToReview(m: EntityManager, caseId: string, at: Date): Promise<boolean> {
-  const r = await m.query(`UPDATE exam_case SET state = 'in_review', due_date = NULL, updated_at = $2 WHERE id = $1 AND state = 'awaiting_reply' RETURNING id`, [caseId, at]);
+  const r = await m.query(
+    `UPDATE exam_case SET state = 'in_review', due_date = NULL, updated_at = $2 WHERE id = $1 AND state = 'awaiting_reply' RETURNING id`,
+    [caseId, at],
+  );
   return (Array.isArray(r[0]) ? r[0] : r).length > 0;
 }
 
 /** Takes a waiting request for its reminder: gives it a new token hash; false when it was reminded or answered meanwhile. */
 export async function takeForReminder(m: EntityManager, requestId: string, tokenHash: string, at: Date): Promise<boolean> {
-  const r = await m.query(`UPDATE document_request SET token_hash = $2, reminded_at = $3 WHERE id = $1 AND state = 'sent' AND reminded_at IS NULL RETURNING id`, [requestId, tokenHash, at]);
+  const r = await m.query(
+    `UPDATE document_request SET token_hash = $2, reminded_at = $3 WHERE id = $1 AND state = 'sent' AND reminded_at IS NULL RETURNING id`,
+    [requestId, tokenHash, at],
+  );
   return (Array.isArray(r[0]) ? r[0] : r).length > 0;
 }
 
@@ -82,8 +95,9 @@ export interface DigestFacts {
  * case events carry too.
  */
 export async function findDigests(db: Db, day: string, nearUntil: string): Promise<DigestFacts[]> {
-  const rows: { id: string; username: string; display_name: string; email: string | null; replies: unknown; expired: unknown; deadlines: unknown }[] = await db.query(
-    `WITH x AS (SELECT u.*, coalesce((SELECT max(h.sent_at) FROM housekeeping_digest h WHERE h.examiner_id = u.id), now() - interval '1 day') AS since FROM app_user u)
+  const rows: { id: string; username: string; display_name: string; email: string | null; replies: unknown; expired: unknown; deadlines: unknown }[] =
+    await db.query(
+      `WITH x AS (SELECT u.*, coalesce((SELECT max(h.sent_at) FROM housekeeping_digest h WHERE h.examiner_id = u.id), now() - interval '1 day') AS since FROM app_user u)
      SELECT u.id, u.username, u.display_name, u.email,
             coalesce((SELECT jsonb_agg(jsonb_build_object('caseId', c.id, 'returnRef', r.return_ref) ORDER BY r.return_ref)
                         FROM exam_case c JOIN tax_return r ON r.id = c.return_id
@@ -98,8 +112,8 @@ export async function findDigests(db: Db, day: string, nearUntil: string): Promi
       WHERE u.role = 'examiner' AND u.active
         AND NOT EXISTS (SELECT 1 FROM housekeeping_digest h WHERE h.day = $1::date AND h.examiner_id = u.id)
       ORDER BY u.username`,
-    [day, nearUntil],
-  );
+      [day, nearUntil],
+    );
   return rows.map((r) => ({
     examinerId: r.id,
     username: r.username,

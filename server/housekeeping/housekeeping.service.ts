@@ -101,8 +101,22 @@ async function expireOverdue(ds: DataSource, day: string): Promise<number> {
       if (!(await expireRequest(m, r.id))) return false;
       const detail = { documentRequestId: r.id, letterId: r.letterId, dueDate: r.dueDate };
       const moved = !(await otherRequestWaiting(m, r.caseId, r.id, day)) && (await caseBackToReview(m, r.caseId, now()));
-      await insertCaseEvent(m, { caseId: r.caseId, actorId: null, kind: 'reply-overdue', detail, from: moved ? 'awaiting_reply' : null, to: moved ? 'in_review' : null });
-      await recordAccess(m, AUDIT, { action: 'change', recordType: 'document_request', recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(String(r.tin)), detail: `no reply by ${r.dueDate}: request expired` });
+      await insertCaseEvent(m, {
+        caseId: r.caseId,
+        actorId: null,
+        kind: 'reply-overdue',
+        detail,
+        from: moved ? 'awaiting_reply' : null,
+        to: moved ? 'in_review' : null,
+      });
+      await recordAccess(m, AUDIT, {
+        action: 'change',
+        recordType: 'document_request',
+        recordId: r.id,
+        taxpayerId: r.taxpayerId,
+        taxpayerLabel: maskTin(String(r.tin)),
+        detail: `no reply by ${r.dueDate}: request expired`,
+      });
       return true;
     });
     if (did) n++;
@@ -116,38 +130,66 @@ async function sendReminders(deps: HousekeepingDeps, day: string, daysBefore: nu
   for (const r of await findRequestsToRemind(ds, day, addDays(day, daysBefore))) {
     const letterId = randomUUID();
     const token = randomBytes(32).toString('base64url');
-    const sent = await ds.transaction(async (m) => {
-      await lockCase(m, r.caseId);
-      if (!(await takeForReminder(m, r.id, hashReplyToken(token), now()))) return false;
-      const reference = `RR-${letterId.slice(0, 8).toUpperCase()}`;
-      const letter: ReminderLetter = {
-        reference,
-        firstReference: `DR-${r.letterId.slice(0, 8).toUpperCase()}`,
-        date: day,
-        firstDate: r.sentOn,
-        taxpayerName: r.taxpayerName,
-        postalAddress: r.postalAddress,
-        taxYear: Number(r.taxYear),
-        returnRef: r.returnRef,
-        items: r.items,
-        dueDate: r.dueDate,
-        replyUrl: `${deps.publicUrl}/reply/${token}`,
-      };
-      const sentPdf = await renderReminderPdf(letter);
-      const officePdf = await renderReminderPdf({ ...letter, replyUrl: `${deps.publicUrl}/reply/•••••••• (personal link, sent to the taxpayer only)` });
-      const fileName = `reminder-${reference}.pdf`;
-      const mail = reminderMail(letter, r.email, sentPdf, fileName);
-      await insertLetter(m, { id: letterId, caseId: r.caseId, kind: 'reminder', fileName, pdf: officePdf, sha256: sha256(officePdf), sentSha256: sha256(sentPdf), recipient: r.email, subject: String(mail.subject), messageId: null, createdBy: null });
-      await insertCaseEvent(m, { caseId: r.caseId, actorId: null, kind: 'reminder', detail: { letterId, documentRequestId: r.id, dueDate: r.dueDate }, from: null, to: null });
-      await recordAccess(m, AUDIT, { action: 'change', recordType: 'document_request', recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(String(r.tin)), detail: 'reminder sent; the reply link was replaced' });
-      const info = await deps.mailer.transport.sendMail({ ...mail, from: deps.mailer.from });
-      await setLetterMessageId(m, letterId, info.messageId ?? null);
-      return true;
-    }).catch((e) => {
-      // The mail server refused: nothing was kept (the old link still works); the next pass tries again.
-      console.error(`[housekeeping] reminder for request ${r.id} not sent:`, e instanceof Error ? e.message : e);
-      return false;
-    });
+    const sent = await ds
+      .transaction(async (m) => {
+        await lockCase(m, r.caseId);
+        if (!(await takeForReminder(m, r.id, hashReplyToken(token), now()))) return false;
+        const reference = `RR-${letterId.slice(0, 8).toUpperCase()}`;
+        const letter: ReminderLetter = {
+          reference,
+          firstReference: `DR-${r.letterId.slice(0, 8).toUpperCase()}`,
+          date: day,
+          firstDate: r.sentOn,
+          taxpayerName: r.taxpayerName,
+          postalAddress: r.postalAddress,
+          taxYear: Number(r.taxYear),
+          returnRef: r.returnRef,
+          items: r.items,
+          dueDate: r.dueDate,
+          replyUrl: `${deps.publicUrl}/reply/${token}`,
+        };
+        const sentPdf = await renderReminderPdf(letter);
+        const officePdf = await renderReminderPdf({ ...letter, replyUrl: `${deps.publicUrl}/reply/•••••••• (personal link, sent to the taxpayer only)` });
+        const fileName = `reminder-${reference}.pdf`;
+        const mail = reminderMail(letter, r.email, sentPdf, fileName);
+        await insertLetter(m, {
+          id: letterId,
+          caseId: r.caseId,
+          kind: 'reminder',
+          fileName,
+          pdf: officePdf,
+          sha256: sha256(officePdf),
+          sentSha256: sha256(sentPdf),
+          recipient: r.email,
+          subject: String(mail.subject),
+          messageId: null,
+          createdBy: null,
+        });
+        await insertCaseEvent(m, {
+          caseId: r.caseId,
+          actorId: null,
+          kind: 'reminder',
+          detail: { letterId, documentRequestId: r.id, dueDate: r.dueDate },
+          from: null,
+          to: null,
+        });
+        await recordAccess(m, AUDIT, {
+          action: 'change',
+          recordType: 'document_request',
+          recordId: r.id,
+          taxpayerId: r.taxpayerId,
+          taxpayerLabel: maskTin(String(r.tin)),
+          detail: 'reminder sent; the reply link was replaced',
+        });
+        const info = await deps.mailer.transport.sendMail({ ...mail, from: deps.mailer.from });
+        await setLetterMessageId(m, letterId, info.messageId ?? null);
+        return true;
+      })
+      .catch((e) => {
+        // The mail server refused: nothing was kept (the old link still works); the next pass tries again.
+        console.error(`[housekeeping] reminder for request ${r.id} not sent:`, e instanceof Error ? e.message : e);
+        return false;
+      });
     if (sent) n++;
   }
   return n;
@@ -162,9 +204,18 @@ export function digestText(d: DigestFacts, day: string, publicUrl: string): { su
     '',
     `Your cases needing action on ${longDate(day)}:`,
     '',
-    ...part(`Replies received (${d.replies.length}):`, d.replies.map((c) => `${c.returnRef}: ${link(c.caseId)}`)),
-    ...part(`Requests with no reply by their date (${d.expired.length}), now back in review:`, d.expired.map((c) => `${c.returnRef}: ${link(c.caseId)}`)),
-    ...part(`Assessment deadlines within ${DEADLINE_NEAR_DAYS} days (${d.deadlines.length}):`, d.deadlines.map((c) => `${c.returnRef}, assess by ${longDate(c.assessBy)}: ${link(c.caseId)}`)),
+    ...part(
+      `Replies received (${d.replies.length}):`,
+      d.replies.map((c) => `${c.returnRef}: ${link(c.caseId)}`),
+    ),
+    ...part(
+      `Requests with no reply by their date (${d.expired.length}), now back in review:`,
+      d.expired.map((c) => `${c.returnRef}: ${link(c.caseId)}`),
+    ),
+    ...part(
+      `Assessment deadlines within ${DEADLINE_NEAR_DAYS} days (${d.deadlines.length}):`,
+      d.deadlines.map((c) => `${c.returnRef}, assess by ${longDate(c.assessBy)}: ${link(c.caseId)}`),
+    ),
     `${OFFICE.name}, Plumbline daily pass`,
   ].join('\n');
   return { subject: `Your cases needing action, ${longDate(day)}`, text };

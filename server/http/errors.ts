@@ -34,7 +34,8 @@ export function routeOf(req: Request): string {
   const pattern = req.route?.path;
   // Feature routers are mounted at /api; by the time the final handler runs, Express has
   // reset baseUrl to the app's own ''.
-  if (typeof pattern === 'string') return `${req.method} ${req.baseUrl || (req.originalUrl.startsWith('/api/') && !pattern.startsWith('/api') ? '/api' : '')}${pattern}`;
+  if (typeof pattern === 'string')
+    return `${req.method} ${req.baseUrl || (req.originalUrl.startsWith('/api/') && !pattern.startsWith('/api') ? '/api' : '')}${pattern}`;
   return `${req.method} (no route matched)`;
 }
 

@@ -114,7 +114,10 @@ export async function setLetterMessageId(m: EntityManager, letterId: string, mes
 }
 
 /** Stores a document request; `tokenHash` is the SHA-256 of the reply token, never the token. */
-export async function insertDocumentRequest(m: EntityManager, r: { id: string; caseId: string; letterId: string; items: string[]; dueDate: string; tokenHash: string; email: string }): Promise<void> {
+export async function insertDocumentRequest(
+  m: EntityManager,
+  r: { id: string; caseId: string; letterId: string; items: string[]; dueDate: string; tokenHash: string; email: string },
+): Promise<void> {
   await m.query(`INSERT INTO document_request (id, case_id, letter_id, items, due_date, token_hash, email) VALUES ($1, $2, $3, $4::jsonb, $5, $6, $7)`, [
     r.id,
     r.caseId,
@@ -210,7 +213,11 @@ export async function findLetterPdf(db: Db, caseId: string, letterId: string): P
 }
 
 /** A reply upload's bytes, if it belongs to a request of the case. */
-export async function findUploadContent(db: Db, caseId: string, uploadId: string): Promise<{ fileName: string; contentType: ReplyFileType; content: Buffer } | null> {
+export async function findUploadContent(
+  db: Db,
+  caseId: string,
+  uploadId: string,
+): Promise<{ fileName: string; contentType: ReplyFileType; content: Buffer } | null> {
   const rows = await db.query(
     `SELECT u.file_name, u.content_type, u.content FROM reply_upload u JOIN document_request d ON d.id = u.document_request_id WHERE u.id = $1 AND d.case_id = $2`,
     [uploadId, caseId],
@@ -220,12 +227,22 @@ export async function findUploadContent(db: Db, caseId: string, uploadId: string
 
 /** The notes of a case, oldest first (table case_note, written by the case feature). */
 export async function findNotes(db: Db, caseId: string): Promise<{ at: Date; author: string | null; text: string }[]> {
-  const rows = await db.query(`SELECT n.at, u.display_name, n.text FROM case_note n LEFT JOIN app_user u ON u.id = n.author_id WHERE n.case_id = $1 ORDER BY n.at, n.id`, [caseId]);
-  return rows.map((r: Record<string, unknown>) => ({ at: new Date(r.at as string), author: (r.display_name as string | null) ?? null, text: r.text as string }));
+  const rows = await db.query(
+    `SELECT n.at, u.display_name, n.text FROM case_note n LEFT JOIN app_user u ON u.id = n.author_id WHERE n.case_id = $1 ORDER BY n.at, n.id`,
+    [caseId],
+  );
+  return rows.map((r: Record<string, unknown>) => ({
+    at: new Date(r.at as string),
+    author: (r.display_name as string | null) ?? null,
+    text: r.text as string,
+  }));
 }
 
 /** The events of a case, oldest first. */
-export async function findEvents(db: Db, caseId: string): Promise<{ at: Date; actor: string | null; kind: string; from: string | null; to: string | null; detail: Record<string, unknown> }[]> {
+export async function findEvents(
+  db: Db,
+  caseId: string,
+): Promise<{ at: Date; actor: string | null; kind: string; from: string | null; to: string | null; detail: Record<string, unknown> }[]> {
   const rows = await db.query(
     `SELECT e.at, u.display_name, e.kind, e.from_state, e.to_state, e.detail FROM case_event e LEFT JOIN app_user u ON u.id = e.actor_id WHERE e.case_id = $1 ORDER BY e.at, e.id`,
     [caseId],
@@ -266,7 +283,17 @@ export async function findRequestByTokenHash(db: Db, tokenHash: string, lock = f
   );
   if (!rows.length) return null;
   const r = rows[0];
-  return { id: r.id, caseId: r.case_id, letterId: r.letter_id, taxpayerId: r.taxpayer_id, taxpayerName: r.name, tin: String(r.tin), items: r.items, dueDate: r.due_date, state: r.state };
+  return {
+    id: r.id,
+    caseId: r.case_id,
+    letterId: r.letter_id,
+    taxpayerId: r.taxpayer_id,
+    taxpayerName: r.name,
+    tin: String(r.tin),
+    items: r.items,
+    dueDate: r.due_date,
+    state: r.state,
+  };
 }
 
 /** Marks an unanswered request whose due date has passed as expired. */
@@ -275,7 +302,11 @@ export async function markExpired(db: Db, requestId: string): Promise<void> {
 }
 
 /** Stores the reply's files and marks the request answered. */
-export async function storeReply(m: EntityManager, requestId: string, files: { fileName: string; contentType: ReplyFileType; size: number; sha256: string; bytes: Buffer }[]): Promise<Date> {
+export async function storeReply(
+  m: EntityManager,
+  requestId: string,
+  files: { fileName: string; contentType: ReplyFileType; size: number; sha256: string; bytes: Buffer }[],
+): Promise<Date> {
   for (const f of files) {
     await m.query(`INSERT INTO reply_upload (document_request_id, file_name, content_type, size, sha256, content) VALUES ($1, $2, $3, $4, $5, $6)`, [
       requestId,

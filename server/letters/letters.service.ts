@@ -110,7 +110,14 @@ function toDtos(rows: LetterRow[], uploads: Awaited<ReturnType<typeof findUpload
             answeredAt: r.answeredAt ? r.answeredAt.toISOString() : null,
             uploads: uploads
               .filter((u) => u.documentRequestId === r.requestId)
-              .map((u) => ({ id: u.id, fileName: u.fileName, contentType: u.contentType, size: u.size, sha256: u.sha256, createdAt: u.createdAt.toISOString() })),
+              .map((u) => ({
+                id: u.id,
+                fileName: u.fileName,
+                contentType: u.contentType,
+                size: u.size,
+                sha256: u.sha256,
+                createdAt: u.createdAt.toISOString(),
+              })),
           }
         : null,
   }));
@@ -118,7 +125,10 @@ function toDtos(rows: LetterRow[], uploads: Awaited<ReturnType<typeof findUpload
 
 async function letterDto(ds: DataSource, caseId: string, letterId: string): Promise<LetterDto> {
   const rows = await findLetters(ds, caseId, letterId);
-  const uploads = await findUploads(ds, rows.map((r) => r.requestId).filter((x): x is string => !!x));
+  const uploads = await findUploads(
+    ds,
+    rows.map((r) => r.requestId).filter((x): x is string => !!x),
+  );
   return toDtos(rows, uploads)[0];
 }
 
@@ -137,13 +147,21 @@ export async function sendDocumentRequest(deps: LetterDeps, audit: StaffAudit, c
     const locked = await lockCase(m, caseId);
     assertMayAct(actor, locked);
     if (locked.state !== 'in_review') {
-      throw new HttpError(409, `A document request can be sent only while the case is in review; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`);
+      throw new HttpError(
+        409,
+        `A document request can be sent only while the case is in review; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`,
+      );
     }
     const ctx = (await findCaseContext(m, caseId))!;
     const to = input.email ? input.email : ctx.email;
-    if (!to) throw new HttpError(422, 'This taxpayer has no e-mail address on file. Enter the address the request should go to.', { issues: [{ path: 'email', message: 'No e-mail address on file: enter one' }] });
+    if (!to)
+      throw new HttpError(422, 'This taxpayer has no e-mail address on file. Enter the address the request should go to.', {
+        issues: [{ path: 'email', message: 'No e-mail address on file: enter one' }],
+      });
     if (!EmailSchema.safeParse(to).success) {
-      throw new HttpError(422, `The e-mail address on file (${to}) is not a usable address. Enter the address the request should go to.`, { issues: [{ path: 'email', message: 'The address on file is not usable: enter one' }] });
+      throw new HttpError(422, `The e-mail address on file (${to}) is not a usable address. Enter the address the request should go to.`, {
+        issues: [{ path: 'email', message: 'The address on file is not usable: enter one' }],
+      });
     }
 
     // 32 random bytes: the link cannot be guessed; only its hash is stored.
@@ -182,7 +200,15 @@ export async function sendDocumentRequest(deps: LetterDeps, audit: StaffAudit, c
       createdBy: actor.id,
     });
     const requestId = randomUUID();
-    await insertDocumentRequest(m, { id: requestId, caseId, letterId, items: input.items, dueDate: input.dueDate, tokenHash: hashReplyToken(token), email: to });
+    await insertDocumentRequest(m, {
+      id: requestId,
+      caseId,
+      letterId,
+      items: input.items,
+      dueDate: input.dueDate,
+      tokenHash: hashReplyToken(token),
+      email: to,
+    });
     const c = await moveCase(m, audit, caseId, 'awaiting_reply', {
       kind: 'document-request',
       detail: { letterId, documentRequestId: requestId, dueDate: input.dueDate, items: input.items.length },
@@ -196,7 +222,10 @@ export async function sendDocumentRequest(deps: LetterDeps, audit: StaffAudit, c
     } catch (e) {
       const why = e && typeof e === 'object' && 'message' in e ? String(e.message) : String(e);
       console.error(`[letters] sending document request ${reference} failed:`, why);
-      throw new HttpError(502, 'The letter could not be sent: the mail server did not accept it. Nothing was saved and the case has not moved. Please try again in a few minutes.');
+      throw new HttpError(
+        502,
+        'The letter could not be sent: the mail server did not accept it. Nothing was saved and the case has not moved. Please try again in a few minutes.',
+      );
     }
     await setLetterMessageId(m, letterId, info.messageId ?? null);
     return c.state;
@@ -231,7 +260,10 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
     const locked = await lockCase(m, caseId);
     assertMayAct(actor, locked);
     if (locked.state !== 'in_review' && locked.state !== 'awaiting_reply') {
-      throw new HttpError(409, `A case can be referred while it is in review or awaiting a reply; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`);
+      throw new HttpError(
+        409,
+        `A case can be referred while it is in review or awaiting a reply; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`,
+      );
     }
     const ctx = (await findCaseContext(m, caseId))!;
     const notes = await findNotes(m, caseId);
@@ -263,9 +295,16 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
       notes: notes.map((n) => ({ at: n.at, who: n.author, text: n.text })),
       events: events.map((e) => {
         // Atkinson Hyperlegible has no arrow glyph: the move is written in words.
-        const move = e.from && e.to ? ` (from ${(CASE_STATE_LABELS[e.from as CaseState] ?? e.from).toLowerCase()} to ${(CASE_STATE_LABELS[e.to as CaseState] ?? e.to).toLowerCase()})` : '';
+        const move =
+          e.from && e.to
+            ? ` (from ${(CASE_STATE_LABELS[e.from as CaseState] ?? e.from).toLowerCase()} to ${(CASE_STATE_LABELS[e.to as CaseState] ?? e.to).toLowerCase()})`
+            : '';
         const outcome = typeof e.detail.outcome === 'string' ? `: ${e.detail.outcome}` : '';
-        return { at: e.at, who: e.actor ?? (e.kind === 'reply-received' ? 'Taxpayer (reply link)' : null), text: `${EVENT_WORDS[e.kind] ?? e.kind}${move}${outcome}` };
+        return {
+          at: e.at,
+          who: e.actor ?? (e.kind === 'reply-received' ? 'Taxpayer (reply link)' : null),
+          text: `${EVENT_WORDS[e.kind] ?? e.kind}${move}${outcome}`,
+        };
       }),
     });
     await insertLetter(m, {
@@ -301,7 +340,10 @@ async function caseForRead(ds: DataSource, caseId: string): Promise<{ taxpayerId
 export async function listLetters(ds: DataSource, audit: StaffAudit, caseId: string): Promise<LetterList> {
   const c = await caseForRead(ds, caseId);
   const rows = await findLetters(ds, caseId);
-  const uploads = await findUploads(ds, rows.map((r) => r.requestId).filter((x): x is string => !!x));
+  const uploads = await findUploads(
+    ds,
+    rows.map((r) => r.requestId).filter((x): x is string => !!x),
+  );
   await recordAccess(ds, audit, { action: 'view', recordType: 'case', recordId: caseId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: 'letters' });
   return { items: toDtos(rows, uploads) };
 }
@@ -311,17 +353,36 @@ export async function letterPdf(ds: DataSource, audit: StaffAudit, caseId: strin
   const c = await caseForRead(ds, caseId);
   const l = isUuid(letterId) ? await findLetterPdf(ds, caseId, letterId) : null;
   if (!l) throw new HttpError(404, 'This case has no such letter.');
-  await recordAccess(ds, audit, { action: 'view', recordType: 'letter', recordId: letterId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: `${l.kind} PDF` });
+  await recordAccess(ds, audit, {
+    action: 'view',
+    recordType: 'letter',
+    recordId: letterId,
+    taxpayerId: c.taxpayerId,
+    taxpayerLabel: c.label,
+    detail: `${l.kind} PDF`,
+  });
   return { fileName: l.fileName, pdf: l.pdf };
 }
 
 /** A file the taxpayer sent back; logged as a view. */
-export async function replyUploadFile(ds: DataSource, audit: StaffAudit, caseId: string, uploadId: string): Promise<{ fileName: string; contentType: string; content: Buffer }> {
+export async function replyUploadFile(
+  ds: DataSource,
+  audit: StaffAudit,
+  caseId: string,
+  uploadId: string,
+): Promise<{ fileName: string; contentType: string; content: Buffer }> {
   const c = await caseForRead(ds, caseId);
   const u = isUuid(uploadId) ? await findUploadContent(ds, caseId, uploadId) : null;
   if (!u) throw new HttpError(404, 'This case has no such reply file.');
   // The name the taxpayer gave the file stays out of the log: the administrator reads the
   // log without access to taxpayer data, and names like "J Smith bank 2024.pdf" are such data.
-  await recordAccess(ds, audit, { action: 'view', recordType: 'reply_upload', recordId: uploadId, taxpayerId: c.taxpayerId, taxpayerLabel: c.label, detail: 'reply file' });
+  await recordAccess(ds, audit, {
+    action: 'view',
+    recordType: 'reply_upload',
+    recordId: uploadId,
+    taxpayerId: c.taxpayerId,
+    taxpayerLabel: c.label,
+    detail: 'reply file',
+  });
   return u;
 }

@@ -25,7 +25,8 @@ const MB = 1024 * 1024;
 const totalLimit: RequestHandler = (req, _res, next) => {
   const declared = Number(req.get('content-length') ?? 0);
   // Multipart framing adds a little per part; allow 64 KB for it.
-  if (declared > REPLY_MAX_TOTAL_BYTES + 64 * 1024) return next(new HttpError(413, `The files together are larger than ${REPLY_MAX_TOTAL_BYTES / MB} MB. Send fewer or smaller files.`));
+  if (declared > REPLY_MAX_TOTAL_BYTES + 64 * 1024)
+    return next(new HttpError(413, `The files together are larger than ${REPLY_MAX_TOTAL_BYTES / MB} MB. Send fewer or smaller files.`));
   next();
 };
 
@@ -77,7 +78,12 @@ function receiveFiles(): RequestHandler {
         limits: { fileSize: REPLY_MAX_FILE_BYTES, files: REPLY_MAX_FILES, fields: 5, fieldSize: REPLY_MAX_FILE_BYTES, parts: REPLY_MAX_FILES + 5 },
       });
     } catch (e) {
-      return next(new HttpError(400, `The upload is not a readable multipart form (${e instanceof Error ? e.message : 'no boundary'}). Please choose the files again and send them.`));
+      return next(
+        new HttpError(
+          400,
+          `The upload is not a readable multipart form (${e instanceof Error ? e.message : 'no boundary'}). Please choose the files again and send them.`,
+        ),
+      );
     }
     let failed = false;
     let total = 0;
@@ -98,16 +104,20 @@ function receiveFiles(): RequestHandler {
       stream.on('data', (c: Buffer) => {
         chunks.push(c);
         total += c.length;
-        if (total > REPLY_MAX_TOTAL_BYTES) fail(new HttpError(413, `The files together are larger than ${REPLY_MAX_TOTAL_BYTES / MB} MB. Send fewer or smaller files.`));
+        if (total > REPLY_MAX_TOTAL_BYTES)
+          fail(new HttpError(413, `The files together are larger than ${REPLY_MAX_TOTAL_BYTES / MB} MB. Send fewer or smaller files.`));
       });
-      stream.on('limit', () => fail(new HttpError(413, `A file is larger than ${REPLY_MAX_FILE_BYTES / MB} MB. Scan it at a lower resolution or split it, then send again.`)));
+      stream.on('limit', () =>
+        fail(new HttpError(413, `A file is larger than ${REPLY_MAX_FILE_BYTES / MB} MB. Scan it at a lower resolution or split it, then send again.`)),
+      );
       stream.on('error', () => undefined); // the parser reports the same error once, below
       stream.on('end', () => (files[slot] = { originalName: info.filename ?? '', declaredType: info.mimeType, bytes: Buffer.concat(chunks) }));
     });
     parser.on('field', (field, value, info) => {
       // An empty "files" value is a file input left empty (what a browser sends): no file.
       if (field !== 'files' || value === '') return;
-      if (info.valueTruncated) return fail(new HttpError(413, `A file is larger than ${REPLY_MAX_FILE_BYTES / MB} MB. Scan it at a lower resolution or split it, then send again.`));
+      if (info.valueTruncated)
+        return fail(new HttpError(413, `A file is larger than ${REPLY_MAX_FILE_BYTES / MB} MB. Scan it at a lower resolution or split it, then send again.`));
       total += value.length;
       if (files.length >= REPLY_MAX_FILES) return fail(new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`));
       files.push({ originalName: '', declaredType: info.mimeType, bytes: Buffer.from(value, 'latin1') });
@@ -115,7 +125,9 @@ function receiveFiles(): RequestHandler {
     parser.on('filesLimit', () => fail(new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`)));
     parser.on('partsLimit', () => fail(new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`)));
     parser.on('fieldsLimit', () => fail(new HttpError(422, 'The upload has too many fields. Please choose the files again and send them.')));
-    parser.on('error', (e) => fail(new HttpError(400, `The upload is not a readable multipart form (${e.message}). Please choose the files again and send them.`)));
+    parser.on('error', (e) =>
+      fail(new HttpError(400, `The upload is not a readable multipart form (${e.message}). Please choose the files again and send them.`)),
+    );
     parser.on('close', () => {
       if (failed) return;
       replyParts(req).replyFiles = files.filter((f): f is ReceivedPart => f !== null);

@@ -7,7 +7,16 @@
  */
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
-import { longDate, OFFICE, REPLY_FILE_TYPES, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES, type ReplyReceipt, type ReplyRequestDto } from '../../shared/letters';
+import {
+  longDate,
+  OFFICE,
+  REPLY_FILE_TYPES,
+  REPLY_MAX_FILE_BYTES,
+  REPLY_MAX_FILES,
+  REPLY_MAX_TOTAL_BYTES,
+  type ReplyReceipt,
+  type ReplyRequestDto,
+} from '../../shared/letters';
 import { recordAccess } from '../access-log/access-log.service';
 import { today } from '../clock';
 import { recordReply } from '../cases/case-workflow';
@@ -28,7 +37,9 @@ const NOT_FOUND = 'This reply link is not known. Check that the whole link was c
 function closed(state: 'answered' | 'expired', dueDate: string): HttpError {
   return state === 'answered'
     ? new HttpError(410, 'This link has already been used: your reply was received. If you have more to send, please contact the office.', { state })
-    : new HttpError(410, `This link expired after its due date, ${longDate(dueDate)}. If you still want to send records, please contact the office.`, { state });
+    : new HttpError(410, `This link expired after its due date, ${longDate(dueDate)}. If you still want to send records, please contact the office.`, {
+        state,
+      });
 }
 
 /**
@@ -50,7 +61,11 @@ export async function openRequest(ds: DataSource, token: string): Promise<Reques
 /** What the reply page shows for a usable link; the visit is written to the access log. */
 export async function getReplyRequest(ds: DataSource, token: string): Promise<ReplyRequestDto> {
   const r = await openRequest(ds, token);
-  await recordAccess(ds, { actor: null, route: ROUTE_GET }, { action: 'view', recordType: 'document_request', recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(r.tin), detail: 'reply link opened' });
+  await recordAccess(
+    ds,
+    { actor: null, route: ROUTE_GET },
+    { action: 'view', recordType: 'document_request', recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(r.tin), detail: 'reply link opened' },
+  );
   return {
     state: 'open',
     taxpayerName: r.taxpayerName,
@@ -84,15 +99,25 @@ export async function receiveReply(ds: DataSource, token: string, files: Incomin
     // does not end the wait for a later one.
     const detail = { documentRequestId: r.id, letterId: r.letterId, files: checked.length };
     await recordReply(m, r.caseId, detail, !(await hasNewerWaitingRequest(m, r.caseId, r.id)));
-    await recordAccess(m, { actor: null, route: ROUTE_POST }, {
-      action: 'change',
-      recordType: 'document_request',
-      recordId: r.id,
-      taxpayerId: r.taxpayerId,
-      taxpayerLabel: maskTin(r.tin),
-      detail: `reply received: ${checked.length} file${checked.length === 1 ? '' : 's'}`,
-    });
-    return { kind: 'received' as const, receipt: { received: checked.map((f) => ({ fileName: f.fileName, size: f.size, sha256: f.sha256 })), receivedAt: receivedAt.toISOString() } satisfies ReplyReceipt };
+    await recordAccess(
+      m,
+      { actor: null, route: ROUTE_POST },
+      {
+        action: 'change',
+        recordType: 'document_request',
+        recordId: r.id,
+        taxpayerId: r.taxpayerId,
+        taxpayerLabel: maskTin(r.tin),
+        detail: `reply received: ${checked.length} file${checked.length === 1 ? '' : 's'}`,
+      },
+    );
+    return {
+      kind: 'received' as const,
+      receipt: {
+        received: checked.map((f) => ({ fileName: f.fileName, size: f.size, sha256: f.sha256 })),
+        receivedAt: receivedAt.toISOString(),
+      } satisfies ReplyReceipt,
+    };
   });
   if (result.kind === 'expired') {
     await markExpired(ds, result.request.id);

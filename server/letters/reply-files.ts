@@ -40,8 +40,11 @@ const EXTENSION: Record<ReplyFileType, string> = { 'application/pdf': '.pdf', 'i
  */
 function usableName(original: string): string {
   const base = original.replace(/\\/g, '/').split('/').pop() ?? '';
-  // eslint-disable-next-line no-control-regex
-  const name = base.replace(/[\u0000-\u001f\u007f"<>|*?:]/g, '').replace(/\s+/g, ' ').trim();
+
+  const name = base
+    .replace(/[\u0000-\u001f\u007f"<>|*?:]/g, '')
+    .replace(/\s+/g, ' ')
+    .trim();
   return name === '.' || name === '..' ? '' : name;
 }
 
@@ -70,7 +73,8 @@ export function checkReplyFiles(files: readonly IncomingFile[]): CheckedFile[] {
   if (files.length > REPLY_MAX_FILES) throw new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`);
   // The declared Content-Length is checked before reading, but a chunked upload has none.
   const total = files.reduce((s, f) => s + f.bytes.length, 0);
-  if (total > REPLY_MAX_TOTAL_BYTES) throw new HttpError(413, `The files add up to more than ${REPLY_MAX_TOTAL_BYTES / 1024 / 1024} MB; send them in smaller parts or fewer at a time.`);
+  if (total > REPLY_MAX_TOTAL_BYTES)
+    throw new HttpError(413, `The files add up to more than ${REPLY_MAX_TOTAL_BYTES / 1024 / 1024} MB; send them in smaller parts or fewer at a time.`);
   const problems: string[] = [];
   const out: CheckedFile[] = [];
   files.forEach((f, i) => {
@@ -82,7 +86,13 @@ export function checkReplyFiles(files: readonly IncomingFile[]): CheckedFile[] {
     if (f.declaredType && f.declaredType !== 'application/octet-stream' && !(REPLY_FILE_TYPES as readonly string[]).includes(f.declaredType)) {
       return void problems.push(`${shown} was sent as ${f.declaredType}; send PDF, JPEG or PNG files only.`);
     }
-    out.push({ fileName: cleanFileName(f.originalName, type, i), contentType: type, size: f.bytes.length, sha256: createHash('sha256').update(f.bytes).digest('hex'), bytes: f.bytes });
+    out.push({
+      fileName: cleanFileName(f.originalName, type, i),
+      contentType: type,
+      size: f.bytes.length,
+      sha256: createHash('sha256').update(f.bytes).digest('hex'),
+      bytes: f.bytes,
+    });
   });
   if (problems.length) throw new HttpError(422, problems.join(' '), { problems });
   return out;

@@ -17,7 +17,10 @@ export interface CandidateRecord {
 
 /** The run of (batch, version), its size and any sample already drawn. */
 export async function findRun(db: Db, batchId: string, version: number): Promise<{ id: string; total: number; randomSample: unknown } | null> {
-  const r = await db.query(`SELECT id, total, random_sample AS "randomSample" FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [batchId, version]);
+  const r = await db.query(`SELECT id, total, random_sample AS "randomSample" FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [
+    batchId,
+    version,
+  ]);
   return r[0] ?? null;
 }
 
@@ -98,7 +101,10 @@ export async function finishedCases(db: Db, f: { from?: string; to?: string; bat
 
 /** Random review cases not yet finished, in one batch or all. */
 export async function countOpenRandom(db: Db, batch?: string): Promise<number> {
-  const r = await db.query(`SELECT count(*)::int AS n FROM exam_case WHERE selection = 'random' AND state <> ALL($1::text[]) AND ($2::uuid IS NULL OR batch_id = $2::uuid)`, [FINAL_STATES, batch ?? null]);
+  const r = await db.query(
+    `SELECT count(*)::int AS n FROM exam_case WHERE selection = 'random' AND state <> ALL($1::text[]) AND ($2::uuid IS NULL OR batch_id = $2::uuid)`,
+    [FINAL_STATES, batch ?? null],
+  );
   return r[0].n;
 }
 

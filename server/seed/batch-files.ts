@@ -57,9 +57,10 @@ export async function writeCsvBatch(dir: string, opts: GenerateOptions, format: 
     line_items: path.join(dir, 'line_items.csv'),
     statements: path.join(dir, 'statements.csv'),
   };
-  const writers = Object.fromEntries(
-    (Object.keys(files) as BatchTable[]).map((t) => [t, new LineWriter(fs.createWriteStream(files[t]))]),
-  ) as Record<BatchTable, LineWriter>;
+  const writers = Object.fromEntries((Object.keys(files) as BatchTable[]).map((t) => [t, new LineWriter(fs.createWriteStream(files[t]))])) as Record<
+    BatchTable,
+    LineWriter
+  >;
   for (const t of Object.keys(files) as BatchTable[]) await writers[t].add((format.bom ? '\uFEFF' : '') + columnsOf(t).join(',') + eol);
   const counts = { returns: 0, lineItems: 0, statements: 0 };
   const labels: PlantLabel[] = [];
@@ -126,7 +127,9 @@ export function writeAnswers(dir: string, opts: GenerateOptions, answers: readon
   const json = path.join(dir, 'answers.json');
   const csv = path.join(dir, 'answers.csv');
   const labels = answers.filter((a) => a.kinds.length > 0);
-  const habitCounts = Object.fromEntries(Object.keys(HABIT_KINDS).map((h) => [h, answers.filter((a) => a.habits.includes(h as keyof typeof HABIT_KINDS)).length]));
+  const habitCounts = Object.fromEntries(
+    Object.keys(HABIT_KINDS).map((h) => [h, answers.filter((a) => a.habits.includes(h as keyof typeof HABIT_KINDS)).length]),
+  );
   fs.writeFileSync(
     json,
     JSON.stringify(
@@ -146,7 +149,9 @@ export function writeAnswers(dir: string, opts: GenerateOptions, answers: readon
   );
   const lines = [
     'return_ref,tin,tax_year,preparer_id,planted_kinds,habits,detail,habit_detail',
-    ...answers.map((l) => [l.returnRef, l.tin, String(l.taxYear), l.preparerId, l.kinds.join(' '), l.habits.join(' '), l.detail, l.habitDetail].map(csvField).join(',')),
+    ...answers.map((l) =>
+      [l.returnRef, l.tin, String(l.taxYear), l.preparerId, l.kinds.join(' '), l.habits.join(' '), l.detail, l.habitDetail].map(csvField).join(','),
+    ),
   ];
   fs.writeFileSync(csv, lines.join('\n') + '\n');
   return { json, csv };

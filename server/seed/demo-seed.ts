@@ -72,7 +72,11 @@ export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO
       await boss.start();
       await ensureQueues(boss);
     }
-    const file = (t: 'returns' | 'line_items' | 'statements') => ({ originalName: `aldermere-demo-${t}.csv`, path: written.files[t]!, size: fs.statSync(written.files[t]!).size });
+    const file = (t: 'returns' | 'line_items' | 'statements') => ({
+      originalName: `aldermere-demo-${t}.csv`,
+      path: written.files[t]!,
+      size: fs.statSync(written.files[t]!).size,
+    });
     const outcome = await ingestUpload(
       { dataSource: ds, boss, limits: DEFAULT_INTAKE_LIMITS },
       { format: 'csv', parts: { returns: file('returns'), line_items: file('line_items'), statements: file('statements') } },

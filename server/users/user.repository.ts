@@ -6,12 +6,7 @@ import { isUuid } from '../../shared/ids';
 
 /** The user with its password hash (normally not selected), for sign-in only. */
 export function findUserWithHash(ds: DataSource, username: string): Promise<User | null> {
-  return ds
-    .getRepository(User)
-    .createQueryBuilder('u')
-    .addSelect('u.passwordHash')
-    .where('u.username = :username', { username })
-    .getOne();
+  return ds.getRepository(User).createQueryBuilder('u').addSelect('u.passwordHash').where('u.username = :username', { username }).getOne();
 }
 
 export function findUserById(ds: DataSource, id: string): Promise<User | null> {

@@ -41,7 +41,9 @@ export async function updateUser(ds: DataSource, audit: StaffAudit, id: string, 
   }
   return ds.transaction(async (m) => {
     const updated = await updateUserFields(m, id, input);
-    const changes = Object.entries(input).map(([k, v]) => `${k}=${v}`).join(', ');
+    const changes = Object.entries(input)
+      .map(([k, v]) => `${k}=${v}`)
+      .join(', ');
     await recordAccess(m, audit, { action: 'change', recordType: 'user', recordId: id, detail: `${user.username}: ${changes}` });
     if (input.active === false) {
       // Signing out a deactivated user everywhere: drop their sessions.

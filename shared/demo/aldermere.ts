@@ -48,19 +48,24 @@ import { createRng, type Rng } from './prng';
  * sometimes two; `preparer_mill` always comes with `invented_digits`.
  */
 export const PLANT_KINDS = {
-  invented_digits: 'Itemised expenses and deductions replaced by made-up figures (leading digits favour 4–7, many round endings), totals kept consistent: only the digit tests can see it.',
+  invented_digits:
+    'Itemised expenses and deductions replaced by made-up figures (leading digits favour 4–7, many round endings), totals kept consistent: only the digit tests can see it.',
   round_amounts: 'Most itemised entries are whole hundreds (e.g. 1200.00): the excess-round-amounts factor.',
   threshold_bunching: 'Several expense entries just under the 2,500 receipt threshold (2,250–2,499.99): the bunching-under-a-threshold factor.',
   totals_mismatch: 'tot.income reported 8–40 % below what the lines add up to (refund figured from the lower total): the totals-do-not-add-up factor.',
-  unreported_income: 'One employer\'s wages or one bank\'s interest left off the return or cut, while the third-party statement reports it in full: income below third-party statements.',
+  unreported_income:
+    "One employer's wages or one bank's interest left off the return or cut, while the third-party statement reports it in full: income below third-party statements.",
   expenses_exceed_receipts: 'Business expenses inflated to 95–140 % of gross receipts (a loss): expenses near or above receipts.',
   inflated_deductions: 'Charitable gifts or medical bills of 35–70 % of income: deductions large against income.',
-  refund_inflated: 'tax.refund claimed well above what the rules give (up to the whole tax withheld): refund large against withholding, and totals that do not add up.',
+  refund_inflated:
+    'tax.refund claimed well above what the rules give (up to the whole tax withheld): refund large against withholding, and totals that do not add up.',
   repeated_amounts: 'The same amount entered on 4–8 expense lines: the repeated-amounts factor.',
   income_drop: 'Business receipts cut to 15–40 % of the year before while costs stay: the sharp-income-drop factor.',
   preparer_mill: 'Every return by one preparer (the "mill") carries invented figures: pooled per-preparer digit tests should flag all of them.',
-  invented_recurring: 'An invented expense or deduction entered 12 times with one made-up amount, as if a monthly bill (15–35 % of receipts, or 20–45 % of income): hides inside the recurring-bill habit; out of line with peers for its line code.',
-  invented_whole_units: 'A whole-unit filer whose itemised expenses and deductions were replaced by made-up figures (no cents, like the rest of the return): hides inside the whole-unit habit.',
+  invented_recurring:
+    'An invented expense or deduction entered 12 times with one made-up amount, as if a monthly bill (15–35 % of receipts, or 20–45 % of income): hides inside the recurring-bill habit; out of line with peers for its line code.',
+  invented_whole_units:
+    'A whole-unit filer whose itemised expenses and deductions were replaced by made-up figures (no cents, like the rest of the return): hides inside the whole-unit habit.',
 } as const;
 export type PlantKind = keyof typeof PLANT_KINDS;
 
@@ -70,11 +75,13 @@ export type PlantKind = keyof typeof PLANT_KINDS;
  */
 export const HABIT_KINDS = {
   whole_units: 'Reports every amount in whole units: no cents anywhere on the return (third-party statements keep their cents).',
-  recurring_bills: 'Pays the same bill every month: 12 equal entries of one line code (business rent or an insurance premium on exp.business.other, a vehicle lease instalment on exp.business.vehicle; without a business a monthly care plan on ded.medical); about half round (850.00), half with cents (137.42).',
+  recurring_bills:
+    'Pays the same bill every month: 12 equal entries of one line code (business rent or an insurance premium on exp.business.other, a vehicle lease instalment on exp.business.vehicle; without a business a monthly care plan on ded.medical); about half round (850.00), half with cents (137.42).',
   large_firm: 'Prepared by the one large preparer firm, which prepares a large share of all prepared returns.',
   zero_tax_refund: 'Income below the personal allowance, so no tax is due and the refund equals all tax withheld.',
   monthly_gifts: 'A standing monthly gift: 12 equal ded.charity entries (e.g. 12 × 25.00).',
-  retirement_drop: 'Retires: wages or business receipts for part of that year only (business costs fall with them), then interest only (the return has no pension line).',
+  retirement_drop:
+    'Retires: wages or business receipts for part of that year only (business costs fall with them), then interest only (the return has no pension line).',
 } as const;
 export type HabitKind = keyof typeof HABIT_KINDS;
 
@@ -135,7 +142,8 @@ export function parseHabitShares(text: string, base: HabitShares = DEFAULT_HABIT
     if (!(v >= 0 && v <= 1)) throw new Error(`habit share ${m[2]} for ${key} must be between 0 and 1`);
     out[key] = v;
   }
-  if (out.zero_tax_refund + out.retirement_drop > 1) throw new Error('zero-tax and retirement shares add up to more than 1; a retiree stops the wages a zero-tax refund needs');
+  if (out.zero_tax_refund + out.retirement_drop > 1)
+    throw new Error('zero-tax and retirement shares add up to more than 1; a retiree stops the wages a zero-tax refund needs');
   return out;
 }
 
@@ -441,8 +449,10 @@ function assignHabits(hr: Rng, tp: Taxpayer, s: HabitShares, firmId: string | nu
   // Conditional on not zero-tax, so the retirement share of all taxpayers is as set.
   if (!h.zeroTax && yearCount >= 2 && hr.chance(s.retirement_drop / Math.max(1e-9, 1 - s.zero_tax_refund))) {
     h.retire = { year: hr.int(1, yearCount - 1), months: hr.int(2, 10) };
-    if (!tp.employers.length && !tp.business) tp.employers.push({ name: hr.pick(EMPLOYERS), wage: hr.logNormal(32_000, 0.45), withholdRate: 0.1 + 0.06 * hr.next() });
-    if (!tp.banks.length) tp.banks.push({ name: hr.pick(BANKS), balance: hr.logNormal(40_000, 0.8), rate: hr.logNormal(0.025, 0.3), withholds: hr.chance(0.5), reported: true });
+    if (!tp.employers.length && !tp.business)
+      tp.employers.push({ name: hr.pick(EMPLOYERS), wage: hr.logNormal(32_000, 0.45), withholdRate: 0.1 + 0.06 * hr.next() });
+    if (!tp.banks.length)
+      tp.banks.push({ name: hr.pick(BANKS), balance: hr.logNormal(40_000, 0.8), rate: hr.logNormal(0.025, 0.3), withholds: hr.chance(0.5), reported: true });
   }
   h.wholeUnits = hr.chance(s.whole_units);
   if (hr.chance(s.recurring_bills)) {
@@ -450,11 +460,30 @@ function assignHabits(hr: Rng, tp: Taxpayer, s: HabitShares, firmId: string | nu
     if (bz) {
       const costs = bz.scale * bz.expenseRatio;
       const round = hr.chance(0.5);
-      h.bills.push({ code: 'exp.business.other', what: hr.pick(['rent', 'premises rent', 'workshop rent']), cents: billCents((costs * bz.mix.other * (0.3 + 0.3 * hr.next())) / 12, round), round, business: true });
-      if (hr.chance(0.35)) h.bills.push({ code: 'exp.business.other', what: 'insurance premium', cents: billCents((costs * bz.mix.other * (0.04 + 0.08 * hr.next())) / 12, false), round: false, business: true });
+      h.bills.push({
+        code: 'exp.business.other',
+        what: hr.pick(['rent', 'premises rent', 'workshop rent']),
+        cents: billCents((costs * bz.mix.other * (0.3 + 0.3 * hr.next())) / 12, round),
+        round,
+        business: true,
+      });
+      if (hr.chance(0.35))
+        h.bills.push({
+          code: 'exp.business.other',
+          what: 'insurance premium',
+          cents: billCents((costs * bz.mix.other * (0.04 + 0.08 * hr.next())) / 12, false),
+          round: false,
+          business: true,
+        });
       if (hr.chance(0.3)) {
         const r = hr.chance(0.4);
-        h.bills.push({ code: 'exp.business.vehicle', what: 'vehicle lease instalment', cents: billCents((costs * bz.mix.vehicle * (0.3 + 0.3 * hr.next())) / 12, r), round: r, business: true });
+        h.bills.push({
+          code: 'exp.business.vehicle',
+          what: 'vehicle lease instalment',
+          cents: billCents((costs * bz.mix.vehicle * (0.3 + 0.3 * hr.next())) / 12, r),
+          round: r,
+          business: true,
+        });
       }
     } else {
       const round = hr.chance(0.5);
@@ -463,7 +492,22 @@ function assignHabits(hr: Rng, tp: Taxpayer, s: HabitShares, firmId: string | nu
   }
   if (hr.chance(s.monthly_gifts)) {
     h.gift = hr.chance(0.8)
-      ? Number(hr.weighted({ '500': 6, '1000': 14, '1500': 6, '2000': 14, '2500': 12, '3000': 6, '4000': 3, '5000': 10, '7500': 2, '10000': 6, '15000': 1, '20000': 2 }))
+      ? Number(
+          hr.weighted({
+            '500': 6,
+            '1000': 14,
+            '1500': 6,
+            '2000': 14,
+            '2500': 12,
+            '3000': 6,
+            '4000': 3,
+            '5000': 10,
+            '7500': 2,
+            '10000': 6,
+            '15000': 1,
+            '20000': 2,
+          }),
+        )
       : Number(hr.pick(['833', '1250', '1667', '2083', '4167', '350', '750', '1750', '333']));
   }
   tp.habits = h;
@@ -522,7 +566,16 @@ function applyHabits(hr: Rng, tp: Taxpayer, d: Draft, yearIndex: number): { habi
     } else {
       retired = true;
       months = 0;
-      filterLines(d, (l, i) => !(l.code === 'inc.wages' || l.code === 'inc.business.receipts' || l.code.startsWith('exp.business.') || (l.code === 'tax.withheld' && d.lines[i - 1]?.code === 'inc.wages')));
+      filterLines(
+        d,
+        (l, i) =>
+          !(
+            l.code === 'inc.wages' ||
+            l.code === 'inc.business.receipts' ||
+            l.code.startsWith('exp.business.') ||
+            (l.code === 'tax.withheld' && d.lines[i - 1]?.code === 'inc.wages')
+          ),
+      );
       d.statements = d.statements.filter((s) => s.kind === 'interest');
       d.receipts = 0;
       notes.push('retired: interest only');
@@ -617,8 +670,10 @@ function draftYear(rng: Rng, tp: Taxpayer, itemisation: number): Draft {
       for (const c of split(rng, costs * share, n, 1.1)) push(code, c, true);
     }
   }
-  if (tp.charity) for (let i = 0; i < Math.max(1, Math.round(tp.charity.gifts * itemisation)); i++) push('ded.charity', cents(rng.logNormal(tp.charity.median, 1.0)), true);
-  if (tp.medical) for (let i = 0; i < Math.max(1, Math.round(tp.medical.bills * itemisation)); i++) push('ded.medical', cents(rng.logNormal(tp.medical.median, 1.1)), true);
+  if (tp.charity)
+    for (let i = 0; i < Math.max(1, Math.round(tp.charity.gifts * itemisation)); i++) push('ded.charity', cents(rng.logNormal(tp.charity.median, 1.0)), true);
+  if (tp.medical)
+    for (let i = 0; i < Math.max(1, Math.round(tp.medical.bills * itemisation)); i++) push('ded.medical', cents(rng.logNormal(tp.medical.median, 1.1)), true);
   return { lines, statements, itemised, receipts };
 }
 
@@ -638,7 +693,14 @@ function invent(rng: Rng, like: number): number {
 /** Kinds that make sense for this draft. */
 function applicableKinds(tp: Taxpayer, d: Draft, yearIndex: number, habitsOn: boolean): Exclude<PlantKind, 'preparer_mill'>[] {
   // Invented figures on a whole-unit filer are filed in whole units like the rest of the return.
-  const out: Exclude<PlantKind, 'preparer_mill'>[] = [tp.habits.wholeUnits ? 'invented_whole_units' : 'invented_digits', 'round_amounts', 'threshold_bunching', 'totals_mismatch', 'inflated_deductions', 'repeated_amounts'];
+  const out: Exclude<PlantKind, 'preparer_mill'>[] = [
+    tp.habits.wholeUnits ? 'invented_whole_units' : 'invented_digits',
+    'round_amounts',
+    'threshold_bunching',
+    'totals_mismatch',
+    'inflated_deductions',
+    'repeated_amounts',
+  ];
   const trading = tp.business !== null && d.receipts > 0;
   if (d.statements.some((s) => s.kind !== 'sales')) out.push('unreported_income');
   if (trading) out.push('expenses_exceed_receipts');
@@ -677,7 +739,10 @@ function plant(rng: Rng, kind: Exclude<PlantKind, 'preparer_mill'>, d: Draft, tp
       // Made up near the wanted size, rounded the way invented figures are (to 10 or 50, mostly no cents).
       const units = (yearly / 100 / 12) * (0.8 + 0.45 * rng.next());
       const step = rng.weighted({ '1': 30, '10': 45, '50': 25 });
-      const monthly = Math.min(MAX_LINE_AMOUNT_CENTS, Math.max(1, Math.round(units / Number(step))) * Number(step) * 100 + (rng.chance(0.7) || tp.habits.wholeUnits ? 0 : rng.int(1, 99)));
+      const monthly = Math.min(
+        MAX_LINE_AMOUNT_CENTS,
+        Math.max(1, Math.round(units / Number(step))) * Number(step) * 100 + (rng.chance(0.7) || tp.habits.wholeUnits ? 0 : rng.int(1, 99)),
+      );
       for (let k = 0; k < 12; k++) d.lines.push({ code, cents: monthly });
       return `an invented ${code} entry of ${formatCents(monthly)} entered 12 times (${formatCents(12 * monthly)} a year) against ${trading ? 'receipts' : 'income'} ${formatCents(base)}`;
     }

@@ -320,13 +320,7 @@ const BASE: Readonly<Record<DigitTestName, number>> = { firstDigit: 1, secondDig
  *
  * @returns the largest key written to `keys`, 0 when keys is null or nothing was written
  */
-function countRange(
-  counter: DigitCounter,
-  cents: ArrayLike<number>,
-  from: number,
-  to: number,
-  keys: Float64Array | null,
-): number {
+function countRange(counter: DigitCounter, cents: ArrayLike<number>, from: number, to: number, keys: Float64Array | null): number {
   const first = counter.first;
   const second = counter.second;
   const firstTwo = counter.firstTwo;

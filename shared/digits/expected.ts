@@ -35,9 +35,7 @@ export const BIN_COUNT: Readonly<Record<DigitTestName, number>> = {
  * First significant digit d = 1..9: P(d) = log10(1 + 1/d).
  * Source: Benford 1938; Hill 1995, Statistical Science (docs/methods.md#expected-proportions).
  */
-export const FIRST_DIGIT_EXPECTED: Float64Array = Float64Array.from(range(1, 9), (d) =>
-  Math.log10(1 + 1 / d),
-);
+export const FIRST_DIGIT_EXPECTED: Float64Array = Float64Array.from(range(1, 9), (d) => Math.log10(1 + 1 / d));
 
 /**
  * Second significant digit d = 0..9: P(d) = sum over k = 1..9 of log10(1 + 1/(10k + d)).
@@ -53,9 +51,7 @@ export const SECOND_DIGIT_EXPECTED: Float64Array = Float64Array.from(range(0, 9)
  * First two significant digits n = 10..99: P(n) = log10(1 + 1/n).
  * Source: Benford 1938; Hill 1995 (docs/methods.md#expected-proportions).
  */
-export const FIRST_TWO_EXPECTED: Float64Array = Float64Array.from(range(10, 99), (n) =>
-  Math.log10(1 + 1 / n),
-);
+export const FIRST_TWO_EXPECTED: Float64Array = Float64Array.from(range(10, 99), (n) => Math.log10(1 + 1 / n));
 
 /**
  * Last two digits of the whole-unit part, 00..99: uniform, P = 0.01 each

@@ -70,8 +70,7 @@ export function showValue(value: unknown): string {
   return typeof value === 'object' ? 'an object' : typeof value;
 }
 
-const SYNTAX_HELP =
-  'is not a valid amount: write digits with an optional minus sign and at most 2 decimals after a point, e.g. -1234.50';
+const SYNTAX_HELP = 'is not a valid amount: write digits with an optional minus sign and at most 2 decimals after a point, e.g. -1234.50';
 
 /**
  * Read one amount as signed integer cents.
@@ -115,22 +114,14 @@ function numberError(n: number, position: string): AmountParseError {
   if (!Number.isFinite(n)) return new AmountParseError(n, position, 'is not a finite number');
   const text = String(n);
   if (text.includes('e')) {
-    return new AmountParseError(
-      n,
-      position,
-      'is in exponent notation; amounts must be plain decimals with at most 2 decimals, below 10^13',
-    );
+    return new AmountParseError(n, position, 'is in exponent notation; amounts must be plain decimals with at most 2 decimals, below 10^13');
   }
   if (abs(n) >= AMOUNT_LIMIT) return rangeError(n, position);
   return new AmountParseError(n, position, 'has more than 2 decimals');
 }
 
 function rangeError(value: unknown, position: string): AmountParseError {
-  return new AmountParseError(
-    value,
-    position,
-    'is out of range: the absolute amount must be below 10000000000000 (10^13)',
-  );
+  return new AmountParseError(value, position, 'is out of range: the absolute amount must be below 10000000000000 (10^13)');
 }
 
 /**
@@ -155,11 +146,7 @@ function stringError(s: string, position: string): AmountParseError {
   if (s.trim() === '') return new AmountParseError(s, position, 'is blank');
   if (/\s/.test(s)) return new AmountParseError(s, position, `contains spaces; ${SYNTAX_HELP}`);
   if (s.includes(',')) {
-    return new AmountParseError(
-      s,
-      position,
-      'contains a comma; use a point as the decimal separator and no thousands separators, e.g. 1234.50',
-    );
+    return new AmountParseError(s, position, 'contains a comma; use a point as the decimal separator and no thousands separators, e.g. 1234.50');
   }
   if (/^-?(\d+\.?\d*|\.\d+)[eE][+-]?\d+$/.test(s)) {
     return new AmountParseError(s, position, `is in exponent notation; ${SYNTAX_HELP}`);
@@ -269,10 +256,7 @@ export interface AmountProblem {
  * @param options unit, and `max`: stop after this many problems (default 100)
  * @returns the problems found, in input order; empty when all values are amounts
  */
-export function findAmountErrors(
-  values: ArrayLike<unknown>,
-  options: { unit?: AmountUnit; max?: number } = {},
-): AmountProblem[] {
+export function findAmountErrors(values: ArrayLike<unknown>, options: { unit?: AmountUnit; max?: number } = {}): AmountProblem[] {
   const max = options.max ?? 100;
   const problems: AmountProblem[] = [];
   for (let i = 0; i < values.length && problems.length < max; i++) {

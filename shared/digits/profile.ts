@@ -338,11 +338,7 @@ function distortionFactor(counter: DigitCounter): DistortionFactor {
  * and list absolute values in ascending order (second-order test, Nigrini & Miller 2009).
  * Zeros have no key and are left out of both.
  */
-function orderedScan(
-  keys: Float64Array,
-  maxKey: number,
-  top: number,
-): { duplicates: DuplicateAmount[]; secondOrder: SecondOrder } {
+function orderedScan(keys: Float64Array, maxKey: number, top: number): { duplicates: DuplicateAmount[]; secondOrder: SecondOrder } {
   const sorted = sortIntegerKeys(keys, maxKey);
   // Imported bindings as locals: module loaders (tsx, jest) compile them to getter calls.
   const digitCount = decimalDigitCount;

@@ -313,11 +313,7 @@ export function aliasSampler(probabilities: ArrayLike<number>, rnd: () => number
  * @param seed seed (default {@link simulationSeed}(n))
  * @returns the MAD of every simulated sample, per test
  */
-export function simulateMads(
-  n: number,
-  draws: number,
-  seed: number = simulationSeed(n),
-): Record<DigitTestName, Float64Array> {
+export function simulateMads(n: number, draws: number, seed: number = simulationSeed(n)): Record<DigitTestName, Float64Array> {
   const drawTwo = aliasSampler(EXPECTED.firstTwo, mulberry32(seed));
   const rndLast = mulberry32(seed ^ 0x9e3779b9);
   const cFirst = new Float64Array(10);
@@ -369,11 +365,7 @@ export function simulateMads(
  * @param seed seed (default {@link simulationSeed}(n))
  * @returns mean and SD of the MAD for each test
  */
-export function simulateMadMoments(
-  n: number,
-  draws: number,
-  seed: number = simulationSeed(n),
-): Record<DigitTestName, MadMoments> {
+export function simulateMadMoments(n: number, draws: number, seed: number = simulationSeed(n)): Record<DigitTestName, MadMoments> {
   const mads = simulateMads(n, draws, seed);
   const out = {} as Record<DigitTestName, MadMoments>;
   for (const t of DIGIT_TESTS) {

@@ -12,9 +12,8 @@
 
 const LANCZOS_G = 7;
 const LANCZOS_COEF = [
-  0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313,
-  -176.61502916214059, 12.507343278686905, -0.13857109526572012, 9.9843695780195716e-6,
-  1.5056327351493116e-7,
+  0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059, 12.507343278686905, -0.13857109526572012,
+  9.9843695780195716e-6, 1.5056327351493116e-7,
 ];
 const HALF_LOG_2PI = 0.5 * Math.log(2 * Math.PI);
 
@@ -184,8 +183,7 @@ export function betaRegularized(x: number, a: number, b: number): number {
   if (!(a > 0 && b > 0) || !(x >= 0 && x <= 1)) return NaN;
   if (x === 0) return 0;
   if (x === 1) return 1;
-  const lnFront =
-    logGamma(a + b) - logGamma(a) - logGamma(b) + a * Math.log(x) + b * Math.log1p(-x);
+  const lnFront = logGamma(a + b) - logGamma(a) - logGamma(b) + a * Math.log(x) + b * Math.log1p(-x);
   if (x < (a + 1) / (a + b + 2)) return (Math.exp(lnFront) * betaContinuedFraction(x, a, b)) / a;
   return 1 - (Math.exp(lnFront) * betaContinuedFraction(1 - x, b, a)) / b;
 }

@@ -177,11 +177,7 @@ export function conformityOf(test: DigitTestName, n: number, mad: number, pValue
  * @param expected expected proportions (default: Benford / uniform for that test)
  * @returns every figure of the test
  */
-export function evaluateDigitTest(
-  test: DigitTestName,
-  counts: ArrayLike<number>,
-  expected: ArrayLike<number> = EXPECTED[test],
-): DigitTestResult {
+export function evaluateDigitTest(test: DigitTestName, counts: ArrayLike<number>, expected: ArrayLike<number> = EXPECTED[test]): DigitTestResult {
   const k = BIN_COUNT[test];
   if (counts.length !== k || expected.length !== k) {
     throw new RangeError(`${test} needs ${k} counts and ${k} expected proportions`);

@@ -49,7 +49,8 @@ export function groupOutcome(cases: readonly OutcomeCase[]): GroupOutcome {
   const amt = amounts(cases);
   const mean = tInterval(amt);
   const rateEnough = closed.length >= MIN_CLOSED && rate.high !== null && rate.low !== null && rate.high - rate.low <= MAX_RATE_WIDTH;
-  const meanEnough = amt.length >= MIN_CLOSED && mean.low !== null && mean.high !== null && mean.estimate !== null && mean.high - mean.low <= Math.abs(mean.estimate);
+  const meanEnough =
+    amt.length >= MIN_CLOSED && mean.low !== null && mean.high !== null && mean.estimate !== null && mean.high - mean.low <= Math.abs(mean.estimate);
   return {
     closed: closed.length,
     adjusted,
@@ -109,16 +110,33 @@ export function computeOutcomes(cases: readonly OutcomeCase[], openRandom: numbe
   const byFactor = [...labels.entries()]
     .map(([key, label]) => ({ key, label, outcome: groupOutcome(finished.filter((c) => c.selection === 'score' && c.factors.some((f) => f.key === key))) }))
     .sort((a, b) => b.outcome.closed - a.outcome.closed || a.key.localeCompare(b.key));
-  const examinerWeeks = [...groupBy(finished.filter((c) => c.assigneeId), (c) => `${c.assigneeId}|${weekOf(c.closedAt!)}`).entries()]
+  const examinerWeeks = [
+    ...groupBy(
+      finished.filter((c) => c.assigneeId),
+      (c) => `${c.assigneeId}|${weekOf(c.closedAt!)}`,
+    ).entries(),
+  ]
     .map(([k, cs]) => ({ examinerId: cs[0].assigneeId!, name: cs[0].assigneeName ?? 'a former examiner', week: k.split('|')[1], finished: cs.length }))
     .sort((a, b) => a.week.localeCompare(b.week) || a.name.localeCompare(b.name));
-  const byExaminer = [...groupBy(finished.filter((c) => c.assigneeId), (c) => c.assigneeId!).entries()]
+  const byExaminer = [
+    ...groupBy(
+      finished.filter((c) => c.assigneeId),
+      (c) => c.assigneeId!,
+    ).entries(),
+  ]
     .map(([id, cs]) => {
       const weeks = examinerWeeks.filter((w) => w.examinerId === id);
-      return { examinerId: id, name: cs[0].assigneeName ?? 'a former examiner', comparison: compare(cs), closuresPerWeek: Math.round((cs.length / Math.max(1, weeks.length)) * 10) / 10 };
+      return {
+        examinerId: id,
+        name: cs[0].assigneeName ?? 'a former examiner',
+        comparison: compare(cs),
+        closuresPerWeek: Math.round((cs.length / Math.max(1, weeks.length)) * 10) / 10,
+      };
     })
     .sort((a, b) => a.name.localeCompare(b.name));
-  const byBatch = [...groupBy(finished, (c) => c.batchId).entries()].map(([batchId, cs]) => ({ batchId, label: cs[0].batchLabel, comparison: compare(cs) })).sort((a, b) => a.label.localeCompare(b.label));
+  const byBatch = [...groupBy(finished, (c) => c.batchId).entries()]
+    .map(([batchId, cs]) => ({ batchId, label: cs[0].batchLabel, comparison: compare(cs) }))
+    .sort((a, b) => a.label.localeCompare(b.label));
   const weekly = [...groupBy(finished, (c) => weekOf(c.closedAt!)).entries()]
     .map(([week, cs]) => {
       const adj = cs.filter((c) => c.state === 'closed_adjusted');

@@ -74,5 +74,13 @@ export function stratifiedSample(candidates: readonly SampleCandidate[], opts: {
       strata[k.stratum].drawn++;
     }
   }
-  return { seed: opts.seed, share: opts.share, batchSize: opts.batchSize, candidates: candidates.length, ids, rate: candidates.length ? n / candidates.length : 0, strata };
+  return {
+    seed: opts.seed,
+    share: opts.share,
+    batchSize: opts.batchSize,
+    candidates: candidates.length,
+    ids,
+    rate: candidates.length ? n / candidates.length : 0,
+    strata,
+  };
 }

@@ -54,13 +54,23 @@ function rank(cases: readonly FitCase[], weights: readonly number[], k: number):
  * current against suggested weights on the rest.
  * @param lambda ridge penalty on the slopes (default 1)
  */
-export function suggestWeights(keys: readonly string[], current: readonly number[], cases: readonly FitCase[], opts: { seed?: string; lambda?: number; holdShare?: number } = {}): WeightFit {
+export function suggestWeights(
+  keys: readonly string[],
+  current: readonly number[],
+  cases: readonly FitCase[],
+  opts: { seed?: string; lambda?: number; holdShare?: number } = {},
+): WeightFit {
   const seed = opts.seed ?? 'weights';
   const hold = opts.holdShare ?? 0.3;
   const isHeld = cases.map((c) => createRng(`${seed}:${c.id}`).next() < hold);
   const held = cases.filter((_, i) => isHeld[i]);
   const fit = cases.filter((_, i) => !isHeld[i]);
-  const model = fitLogistic({ x: fit.map((c) => c.strengths), y: fit.map((c) => (c.adjusted ? 1 : 0)), weights: fit.map((c) => c.weight), lambda: opts.lambda ?? 1 });
+  const model = fitLogistic({
+    x: fit.map((c) => c.strengths),
+    y: fit.map((c) => (c.adjusted ? 1 : 0)),
+    weights: fit.map((c) => c.weight),
+    lambda: opts.lambda ?? 1,
+  });
   const slopes = model.coefficients.slice(1);
   const positive = slopes.reduce((t, c) => t + Math.max(0, c.estimate), 0);
   const scale = positive > 0 ? current.reduce((t, w) => t + w, 0) / positive : 0;
@@ -76,7 +86,14 @@ export function suggestWeights(keys: readonly string[], current: readonly number
     suggestions,
     fitted: fit.length,
     heldBack: held.length,
-    backTest: { current: rank(held, current, k), suggested: rank(held, suggestions.map((s) => s.suggested), k) },
+    backTest: {
+      current: rank(held, current, k),
+      suggested: rank(
+        held,
+        suggestions.map((s) => s.suggested),
+        k,
+      ),
+    },
     method: 'weighted L2-regularised logistic regression (IRLS), sandwich standard errors; random review cases weighted 1 / sampling rate',
   };
 }

@@ -94,7 +94,13 @@ export function assessmentDeadline(input: AssessmentDeadlineInput): AssessmentDe
       explanation: `${EXTENDED_ASSESSMENT_YEARS} years from ${from}, because income left out of the return is more than 25 % of the income it reported.`,
     };
   }
-  return { assessBy: addYears(runsFrom, STANDARD_ASSESSMENT_YEARS), basis: 'standard', runsFrom, years: STANDARD_ASSESSMENT_YEARS, explanation: `${STANDARD_ASSESSMENT_YEARS} years from ${from}.` };
+  return {
+    assessBy: addYears(runsFrom, STANDARD_ASSESSMENT_YEARS),
+    basis: 'standard',
+    runsFrom,
+    years: STANDARD_ASSESSMENT_YEARS,
+    explanation: `${STANDARD_ASSESSMENT_YEARS} years from ${from}.`,
+  };
 }
 
 /** Days from `today` to `assessBy` (both YYYY-MM-DD); 0 on the last day, negative after it. */

@@ -40,7 +40,10 @@ export function columnsOf(table: BatchTable): readonly string[] {
  * underscores, so "Return Ref" and "return-ref" both mean `return_ref`.
  */
 export function normaliseHeader(h: string): string {
-  return h.trim().toLowerCase().replace(/[\s-]+/g, '_');
+  return h
+    .trim()
+    .toLowerCase()
+    .replace(/[\s-]+/g, '_');
 }
 
 /** Limits an upload must keep; the server's configuration may lower or raise them. */
@@ -101,7 +104,11 @@ export const ReturnRefSchema = z.string().check((ctx) => {
   const v = ctx.value;
   if (v === '') ctx.issues.push({ code: 'custom', input: v, message: 'is empty; every row needs the return reference (return_ref) it belongs to' });
   else if (!/^[A-Za-z0-9][A-Za-z0-9._/-]{0,39}$/.test(v)) {
-    ctx.issues.push({ code: 'custom', input: v, message: `${show(v)} is not a valid return reference: use 1–40 letters, digits, '.', '_', '/' or '-', starting with a letter or digit` });
+    ctx.issues.push({
+      code: 'custom',
+      input: v,
+      message: `${show(v)} is not a valid return reference: use 1–40 letters, digits, '.', '_', '/' or '-', starting with a letter or digit`,
+    });
   }
 });
 
@@ -110,9 +117,11 @@ export const TinSchema = z.string().check((ctx) => {
   const v = ctx.value;
   if (/^\d{9}$/.test(v)) return;
   let message: string;
-  if (v === '') message = 'is empty; every row needs the taxpayer\'s 9-digit TIN';
-  else if (/^\d{1,8}$/.test(v)) message = `${show(v)} has ${v.length} digits; a TIN has 9. If a leading zero was lost, format the column as Text and enter the TIN again`;
-  else if (/^[\d\s.-]+$/.test(v) && v.replace(/\D/g, '').length === 9) message = `${show(v)} must be 9 digits without spaces, dots or dashes, e.g. ${v.replace(/\D/g, '')}`;
+  if (v === '') message = "is empty; every row needs the taxpayer's 9-digit TIN";
+  else if (/^\d{1,8}$/.test(v))
+    message = `${show(v)} has ${v.length} digits; a TIN has 9. If a leading zero was lost, format the column as Text and enter the TIN again`;
+  else if (/^[\d\s.-]+$/.test(v) && v.replace(/\D/g, '').length === 9)
+    message = `${show(v)} must be 9 digits without spaces, dots or dashes, e.g. ${v.replace(/\D/g, '')}`;
   else message = `${show(v)} is not a TIN: a TIN is exactly 9 digits`;
   ctx.issues.push({ code: 'custom', input: v, message });
 });
@@ -121,7 +130,11 @@ export const TinSchema = z.string().check((ctx) => {
 export function taxYearSchema(years: TaxYearRange) {
   return z.string().transform((v, ctx) => {
     if (!/^\d{4}$/.test(v)) {
-      ctx.issues.push({ code: 'custom', input: v, message: v === '' ? 'is empty; enter the tax year, e.g. 2024' : `${show(v)} is not a tax year: write the four-digit year, e.g. 2024` });
+      ctx.issues.push({
+        code: 'custom',
+        input: v,
+        message: v === '' ? 'is empty; enter the tax year, e.g. 2024' : `${show(v)} is not a tax year: write the four-digit year, e.g. 2024`,
+      });
       return z.NEVER;
     }
     const y = Number(v);
@@ -144,7 +157,8 @@ function textSchema(what: string, max: number, required: boolean) {
       return required ? z.NEVER : null;
     }
     if (v.length > max) ctx.issues.push({ code: 'custom', input: v, message: `is ${v.length} characters long; the ${what} may have at most ${max}` });
-    else if (findControlChar(v, { lines: true })) ctx.issues.push({ code: 'custom', input: v, message: `contains a control character; remove it from the ${what}` });
+    else if (findControlChar(v, { lines: true }))
+      ctx.issues.push({ code: 'custom', input: v, message: `contains a control character; remove it from the ${what}` });
     else return v;
     return z.NEVER;
   });
@@ -156,7 +170,10 @@ const ActivitySchema = z.string().transform((v, ctx) => {
   ctx.issues.push({
     code: 'custom',
     input: v,
-    message: v === '' ? `is empty; use one of: ${ACTIVITY_CODES.join(', ')} (none when there is no business)` : `${show(v)} is not an activity code; use one of: ${ACTIVITY_CODES.join(', ')}`,
+    message:
+      v === ''
+        ? `is empty; use one of: ${ACTIVITY_CODES.join(', ')} (none when there is no business)`
+        : `${show(v)} is not an activity code; use one of: ${ACTIVITY_CODES.join(', ')}`,
   });
   return z.NEVER;
 });
@@ -164,7 +181,11 @@ const ActivitySchema = z.string().transform((v, ctx) => {
 const PreparerSchema = z.string().transform((v, ctx) => {
   if (v === '') return null; // self-prepared
   if (/^[A-Za-z0-9][A-Za-z0-9._-]{0,39}$/.test(v)) return v;
-  ctx.issues.push({ code: 'custom', input: v, message: `${show(v)} is not a preparer id: use 1–40 letters, digits, '.', '_' or '-', or leave it blank for a self-prepared return` });
+  ctx.issues.push({
+    code: 'custom',
+    input: v,
+    message: `${show(v)} is not a preparer id: use 1–40 letters, digits, '.', '_' or '-', or leave it blank for a self-prepared return`,
+  });
   return z.NEVER;
 });
 
@@ -206,14 +227,22 @@ export const AmountTextSchema = z.string().regex(/^-?0*\d{1,10}(\.\d{1,2})?$/, {
 export const AmountSchema = z.string().transform((v, ctx) => {
   const c = centsFromDecimal(v);
   if (c === c) return c; // not NaN
-  ctx.issues.push({ code: 'custom', input: v, message: v === '' ? DECIMAL_PROBLEM_TEXT.empty : `${show(v)} ${DECIMAL_PROBLEM_TEXT[decimalProblem(v) ?? 'syntax']}` });
+  ctx.issues.push({
+    code: 'custom',
+    input: v,
+    message: v === '' ? DECIMAL_PROBLEM_TEXT.empty : `${show(v)} ${DECIMAL_PROBLEM_TEXT[decimalProblem(v) ?? 'syntax']}`,
+  });
   return z.NEVER;
 });
 
 const StatementKindSchema = z.string().transform((v, ctx) => {
   const lower = v.toLowerCase();
   if ((STATEMENT_KINDS as readonly string[]).includes(lower)) return lower as StatementKind;
-  ctx.issues.push({ code: 'custom', input: v, message: `${v === '' ? 'is empty' : `${show(v)} is not a statement kind`}; use one of: ${STATEMENT_KINDS.join(', ')}` });
+  ctx.issues.push({
+    code: 'custom',
+    input: v,
+    message: `${v === '' ? 'is empty' : `${show(v)} is not a statement kind`}; use one of: ${STATEMENT_KINDS.join(', ')}`,
+  });
   return z.NEVER;
 });
 
@@ -239,13 +268,20 @@ export interface ReturnRow {
  * The optional filing date: blank, or a real date written YYYY-MM-DD. (An XLSX date cell is
  * refused by the intake with a hint to format the column as Text.)
  */
-const FiledOnSchema = z.string().optional().transform((v, ctx) => {
-  if (v === undefined || v === '') return null;
-  const ok = /^\d{4}-\d{2}-\d{2}$/.test(v) && !Number.isNaN(Date.parse(`${v}T00:00:00Z`)) && new Date(`${v}T00:00:00Z`).toISOString().slice(0, 10) === v;
-  if (ok) return v;
-  ctx.issues.push({ code: 'custom', input: v, message: `${show(v)} is not a date: write the filing date as YYYY-MM-DD, e.g. 2025-04-15, or leave the cell blank` });
-  return z.NEVER;
-});
+const FiledOnSchema = z
+  .string()
+  .optional()
+  .transform((v, ctx) => {
+    if (v === undefined || v === '') return null;
+    const ok = /^\d{4}-\d{2}-\d{2}$/.test(v) && !Number.isNaN(Date.parse(`${v}T00:00:00Z`)) && new Date(`${v}T00:00:00Z`).toISOString().slice(0, 10) === v;
+    if (ok) return v;
+    ctx.issues.push({
+      code: 'custom',
+      input: v,
+      message: `${show(v)} is not a date: write the filing date as YYYY-MM-DD, e.g. 2025-04-15, or leave the cell blank`,
+    });
+    return z.NEVER;
+  });
 
 /** Schema for a `returns` row, for the office's tax-year range. */
 export function returnRowSchema(years: TaxYearRange): z.ZodType<ReturnRow, Record<string, string>> {
@@ -264,7 +300,12 @@ export function returnRowSchema(years: TaxYearRange): z.ZodType<ReturnRow, Recor
     .check((ctx) => {
       const r = ctx.value;
       if (r.filed_on && Number(r.filed_on.slice(0, 4)) <= r.tax_year) {
-        ctx.issues.push({ code: 'custom', input: r.filed_on, path: ['filed_on'], message: `${show(r.filed_on)} is within tax year ${r.tax_year}: a return is filed after its tax year ends` });
+        ctx.issues.push({
+          code: 'custom',
+          input: r.filed_on,
+          path: ['filed_on'],
+          message: `${show(r.filed_on)} is within tax year ${r.tax_year}: a return is filed after its tax year ends`,
+        });
       }
     })
     .transform((r) => ({
@@ -371,7 +412,13 @@ export function statementRowSchema(years: TaxYearRange): z.ZodType<StatementRow,
       amount: AmountSchema,
     })
     .check((ctx) => {
-      if (ctx.value.amount < 0) ctx.issues.push({ code: 'custom', input: ctx.value.amount, path: ['amount'], message: 'is negative; a statement reports an amount paid, entered as a positive number' });
+      if (ctx.value.amount < 0)
+        ctx.issues.push({
+          code: 'custom',
+          input: ctx.value.amount,
+          path: ['amount'],
+          message: 'is negative; a statement reports an amount paid, entered as a positive number',
+        });
     })
     .transform((r) => ({ tin: r.tin, taxYear: r.tax_year, kind: r.kind, payer: r.payer as string, cents: r.amount }));
 }

@@ -33,19 +33,110 @@ export interface LineCodeDef {
 
 /** Every line code, in the order the return form lists them. */
 export const LINE_CODE_LIST = [
-  { code: 'inc.wages', group: 'income', label: 'Wages', meaning: 'Pay from employment before tax; one entry per employer.', repeatable: true, negativeAllowed: false },
-  { code: 'inc.interest', group: 'income', label: 'Interest', meaning: 'Interest received from banks and lenders; one entry per payer.', repeatable: true, negativeAllowed: false },
-  { code: 'inc.business.receipts', group: 'income', label: 'Business receipts', meaning: 'Gross receipts of a business or self-employment; one entry per period or invoice.', repeatable: true, negativeAllowed: false },
-  { code: 'exp.business.supplies', group: 'expense', label: 'Supplies', meaning: 'Goods and materials bought for the business; one entry per purchase.', repeatable: true, negativeAllowed: false },
-  { code: 'exp.business.vehicle', group: 'expense', label: 'Vehicle', meaning: 'Business share of vehicle costs (fuel, repairs, leasing); one entry per bill.', repeatable: true, negativeAllowed: false },
-  { code: 'exp.business.travel', group: 'expense', label: 'Travel', meaning: 'Business travel (fares, lodging); one entry per trip or bill.', repeatable: true, negativeAllowed: false },
-  { code: 'exp.business.other', group: 'expense', label: 'Other business costs', meaning: 'Any other cost of earning business receipts (rent, fees, insurance); one entry per bill.', repeatable: true, negativeAllowed: false },
-  { code: 'ded.charity', group: 'deduction', label: 'Charitable gifts', meaning: 'Gifts to registered charities; one entry per gift.', repeatable: true, negativeAllowed: false },
-  { code: 'ded.medical', group: 'deduction', label: 'Medical costs', meaning: 'Medical bills paid and not reimbursed; one entry per bill.', repeatable: true, negativeAllowed: false },
-  { code: 'tot.income', group: 'total', label: 'Total income', meaning: 'Reported total: wages + interest + business receipts − business expenses. Negative for a business loss.', repeatable: false, negativeAllowed: true },
-  { code: 'tot.deductions', group: 'total', label: 'Total deductions', meaning: 'Reported total: charitable gifts + medical costs.', repeatable: false, negativeAllowed: false },
-  { code: 'tax.withheld', group: 'tax', label: 'Tax withheld', meaning: 'Tax already withheld by employers or banks; one entry per payer.', repeatable: true, negativeAllowed: false },
-  { code: 'tax.refund', group: 'tax', label: 'Refund claimed', meaning: 'Refund the taxpayer claims: tax withheld − tax due, when positive.', repeatable: false, negativeAllowed: false },
+  {
+    code: 'inc.wages',
+    group: 'income',
+    label: 'Wages',
+    meaning: 'Pay from employment before tax; one entry per employer.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'inc.interest',
+    group: 'income',
+    label: 'Interest',
+    meaning: 'Interest received from banks and lenders; one entry per payer.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'inc.business.receipts',
+    group: 'income',
+    label: 'Business receipts',
+    meaning: 'Gross receipts of a business or self-employment; one entry per period or invoice.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'exp.business.supplies',
+    group: 'expense',
+    label: 'Supplies',
+    meaning: 'Goods and materials bought for the business; one entry per purchase.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'exp.business.vehicle',
+    group: 'expense',
+    label: 'Vehicle',
+    meaning: 'Business share of vehicle costs (fuel, repairs, leasing); one entry per bill.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'exp.business.travel',
+    group: 'expense',
+    label: 'Travel',
+    meaning: 'Business travel (fares, lodging); one entry per trip or bill.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'exp.business.other',
+    group: 'expense',
+    label: 'Other business costs',
+    meaning: 'Any other cost of earning business receipts (rent, fees, insurance); one entry per bill.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'ded.charity',
+    group: 'deduction',
+    label: 'Charitable gifts',
+    meaning: 'Gifts to registered charities; one entry per gift.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'ded.medical',
+    group: 'deduction',
+    label: 'Medical costs',
+    meaning: 'Medical bills paid and not reimbursed; one entry per bill.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'tot.income',
+    group: 'total',
+    label: 'Total income',
+    meaning: 'Reported total: wages + interest + business receipts − business expenses. Negative for a business loss.',
+    repeatable: false,
+    negativeAllowed: true,
+  },
+  {
+    code: 'tot.deductions',
+    group: 'total',
+    label: 'Total deductions',
+    meaning: 'Reported total: charitable gifts + medical costs.',
+    repeatable: false,
+    negativeAllowed: false,
+  },
+  {
+    code: 'tax.withheld',
+    group: 'tax',
+    label: 'Tax withheld',
+    meaning: 'Tax already withheld by employers or banks; one entry per payer.',
+    repeatable: true,
+    negativeAllowed: false,
+  },
+  {
+    code: 'tax.refund',
+    group: 'tax',
+    label: 'Refund claimed',
+    meaning: 'Refund the taxpayer claims: tax withheld − tax due, when positive.',
+    repeatable: false,
+    negativeAllowed: false,
+  },
 ] as const satisfies readonly LineCodeDef[];
 
 /** A line code as a type: 'inc.wages' | … */
@@ -55,13 +146,27 @@ export type LineCode = (typeof LINE_CODE_LIST)[number]['code'];
 export const LINE_CODES = LINE_CODE_LIST.map((d) => d.code) as [LineCode, ...LineCode[]];
 
 /** Lookup by code. */
-export const LINE_CODE_DEFS: Readonly<Record<LineCode, LineCodeDef>> = Object.fromEntries(LINE_CODE_LIST.map((d) => [d.code, d])) as Record<LineCode, LineCodeDef>;
+export const LINE_CODE_DEFS: Readonly<Record<LineCode, LineCodeDef>> = Object.fromEntries(LINE_CODE_LIST.map((d) => [d.code, d])) as Record<
+  LineCode,
+  LineCodeDef
+>;
 
 /** Position of each code in {@link LINE_CODES}; lets hot loops keep per-code sums in arrays. */
 export const LINE_CODE_INDEX: Readonly<Record<LineCode, number>> = Object.fromEntries(LINE_CODES.map((c, i) => [c, i])) as Record<LineCode, number>;
 
 /** Activity codes of a taxpayer's main activity (docs/design.md#line-codes-and-tax-rules). */
-export const ACTIVITY_CODES = ['none', 'retail', 'food-service', 'construction', 'personal-care', 'consulting', 'transport', 'rental', 'farming', 'other'] as const;
+export const ACTIVITY_CODES = [
+  'none',
+  'retail',
+  'food-service',
+  'construction',
+  'personal-care',
+  'consulting',
+  'transport',
+  'rental',
+  'farming',
+  'other',
+] as const;
 export type ActivityCode = (typeof ACTIVITY_CODES)[number];
 
 /** The default cash-heavy list (a scoring-profile setting; this is its starting value). */

@@ -13,7 +13,7 @@ import { DigitCounter, SIZE_AWARE_MIN_N, summarizeCounter } from '../digits';
 import { computeTax, computeTotals, LINE_CODE_DEFS, type CentsLine, type LineCode, type ReturnTotals } from '../returns/line-codes';
 import type { ComponentResult, PoolSnapshot, ScoreBreakdown } from './breakdown';
 import { digitMadPValue, formatP, shrunkRate, simes, strengthFromP } from './calibration';
-import { COST_CODES, isRoundHundred, itemisedAmounts, repeatedAmounts, roundAmounts, type AmountPopularity, type FactorResult, type PeerBands, type ReturnFacts } from './factors';
+import { COST_CODES, isRoundHundred, repeatedAmounts, roundAmounts, type AmountPopularity, type FactorResult, type PeerBands, type ReturnFacts } from './factors';
 import { money } from './format';
 import type { PooledDigits } from './pools';
 import { collapseRecurring, describeRecurring, type CollapsedAmounts, type RecurrenceRates } from './recurring';

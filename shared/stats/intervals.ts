@@ -25,7 +25,8 @@ export const DELTA_LOG_RATIO = 'delta method on the log ratio of two means';
  * (Newcombe 1998, Statistics in Medicine 17:857, method 3).
  */
 export function wilsonInterval(x: number, n: number, level = 0.95): Interval {
-  if (!Number.isInteger(x) || !Number.isInteger(n) || x < 0 || n < 0 || x > n) throw new RangeError(`wilsonInterval needs whole numbers 0 ≤ x ≤ n (got x=${x}, n=${n})`);
+  if (!Number.isInteger(x) || !Number.isInteger(n) || x < 0 || n < 0 || x > n)
+    throw new RangeError(`wilsonInterval needs whole numbers 0 ≤ x ≤ n (got x=${x}, n=${n})`);
   if (n === 0) return { estimate: null, low: null, high: null, method: WILSON };
   const z = normalQuantile(1 - (1 - level) / 2);
   const p = x / n;

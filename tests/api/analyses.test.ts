@@ -41,7 +41,10 @@ describe('POST /api/analyses/digits', () => {
   });
 
   it('names every value that is not an amount, with its position', async () => {
-    const res = await examiner.agent.post('/api/analyses/digits').set('X-CSRF-Token', examiner.csrf).send({ amounts: ['12.50', '12,5', 7, '1e21', 'abc'] });
+    const res = await examiner.agent
+      .post('/api/analyses/digits')
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ amounts: ['12.50', '12,5', 7, '1e21', 'abc'] });
     expect(res.status).toBe(422);
     expect(res.body.errors.map((e: { index: number }) => e.index)).toEqual([1, 3, 4]);
     expect(res.body.errors[0].message).toMatch(/12,5/);
@@ -72,7 +75,11 @@ describe('POST /api/analyses/digits', () => {
   });
 
   it('explains a file whose column is missing or whose type is wrong', async () => {
-    const res = await examiner.agent.post('/api/analyses/digits').set('X-CSRF-Token', examiner.csrf).field('column', 'total').attach('file', Buffer.from('a,b\n1,2\n'), 'x.csv');
+    const res = await examiner.agent
+      .post('/api/analyses/digits')
+      .set('X-CSRF-Token', examiner.csrf)
+      .field('column', 'total')
+      .attach('file', Buffer.from('a,b\n1,2\n'), 'x.csv');
     expect(res.status).toBe(422);
     expect(res.body.error).toMatch(/no column "total"/);
     const pdf = await examiner.agent.post('/api/analyses/digits').set('X-CSRF-Token', examiner.csrf).attach('file', Buffer.from('%PDF-1.4'), 'x.pdf');

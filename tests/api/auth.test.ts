@@ -43,7 +43,9 @@ describe('sign-in and sessions', () => {
 
   it('refuses a wrong password and an unknown user with the same message, and logs it', async () => {
     const { password } = await createUser(ctx, 'clerk', 'tamsin');
-    const a = await request(ctx.app).post('/api/auth/login').send({ username: 'tamsin', password: password + 'x' });
+    const a = await request(ctx.app)
+      .post('/api/auth/login')
+      .send({ username: 'tamsin', password: password + 'x' });
     const b = await request(ctx.app).post('/api/auth/login').send({ username: 'nobody-here', password: 'whatever-long' });
     expect(a.status).toBe(401);
     expect(b.status).toBe(401);
@@ -72,9 +74,15 @@ describe('sign-in and sessions', () => {
     const none = await c.agent.post('/api/users').send({ username: 'newbie', displayName: 'New', role: 'clerk', password: 'long-enough-pw' });
     expect(none.status).toBe(403);
     expect(none.body.error).toMatch(/X-CSRF-Token/);
-    const wrong = await c.agent.post('/api/users').set('X-CSRF-Token', 'x'.repeat(43)).send({ username: 'newbie', displayName: 'New', role: 'clerk', password: 'long-enough-pw' });
+    const wrong = await c.agent
+      .post('/api/users')
+      .set('X-CSRF-Token', 'x'.repeat(43))
+      .send({ username: 'newbie', displayName: 'New', role: 'clerk', password: 'long-enough-pw' });
     expect(wrong.status).toBe(403);
-    const right = await c.agent.post('/api/users').set('X-CSRF-Token', c.csrf).send({ username: 'newbie', displayName: 'New', role: 'clerk', password: 'long-enough-pw' });
+    const right = await c.agent
+      .post('/api/users')
+      .set('X-CSRF-Token', c.csrf)
+      .send({ username: 'newbie', displayName: 'New', role: 'clerk', password: 'long-enough-pw' });
     expect(right.status).toBe(201);
   });
 
@@ -85,7 +93,9 @@ describe('sign-in and sessions', () => {
   });
 
   it('rejects an oversized body', async () => {
-    const res = await request(ctx.app).post('/api/auth/login').send({ username: 'x', password: 'y'.repeat(2 * 1024 * 1024) });
+    const res = await request(ctx.app)
+      .post('/api/auth/login')
+      .send({ username: 'x', password: 'y'.repeat(2 * 1024 * 1024) });
     expect(res.status).toBe(413);
   });
 });
@@ -106,7 +116,8 @@ describe('sign-in throttling', () => {
 
   it('locks an account after repeated failures, says for how long, and lets it in after the window', async () => {
     const { password } = await createUser(ctx, 'clerk', 'locked');
-    for (let i = 0; i < 3; i++) expect((await request(ctx.app).post('/api/auth/login').send({ username: 'locked', password: 'wrong-password' })).status).toBe(401);
+    for (let i = 0; i < 3; i++)
+      expect((await request(ctx.app).post('/api/auth/login').send({ username: 'locked', password: 'wrong-password' })).status).toBe(401);
     const blocked = await request(ctx.app).post('/api/auth/login').send({ username: 'locked', password });
     expect(blocked.status).toBe(429);
     expect(blocked.body.error).toMatch(/Too many failed sign-ins for this account. Try again in 1 minute/);
@@ -118,7 +129,11 @@ describe('sign-in throttling', () => {
   it('counts a burst of parallel attempts before any password is checked', async () => {
     now += 120_000;
     await createUser(ctx, 'clerk', 'burst');
-    const answers = await Promise.all(Array.from({ length: 10 }, () => request(ctx.app).post('/api/auth/login').set('X-Forwarded-For', '10.9.9.9').send({ username: 'burst', password: 'wrong-password' })));
+    const answers = await Promise.all(
+      Array.from({ length: 10 }, () =>
+        request(ctx.app).post('/api/auth/login').set('X-Forwarded-For', '10.9.9.9').send({ username: 'burst', password: 'wrong-password' }),
+      ),
+    );
     const statuses = answers.map((a) => a.status).sort();
     // Only as many guesses as the account limit (3 here) reach the password check.
     expect(statuses.filter((s) => s === 401)).toHaveLength(3);
@@ -127,7 +142,10 @@ describe('sign-in throttling', () => {
 
   it('limits failures per address across accounts', async () => {
     now += 120_000;
-    for (let i = 0; i < 5; i++) await request(ctx.app).post('/api/auth/login').send({ username: `guess${i}`, password: 'wrong-password' });
+    for (let i = 0; i < 5; i++)
+      await request(ctx.app)
+        .post('/api/auth/login')
+        .send({ username: `guess${i}`, password: 'wrong-password' });
     const res = await request(ctx.app).post('/api/auth/login').send({ username: 'guess-next', password: 'wrong-password' });
     expect(res.status).toBe(429);
     expect(res.body.error).toMatch(/from this computer/);

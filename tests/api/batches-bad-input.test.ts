@@ -11,8 +11,19 @@ import { createTestContext, type TestContext } from '../helpers/test-app';
 
 jest.setTimeout(60_000);
 
-const goodReturns = csv([RETURNS_HEADER, 'R-1,012345678,2024,Maud Fennick,retail,PRP-0001,maud@example.net,"1 Mill Lane, Stallow"', 'R-2,987654321,2023,Ivo Brackley,none,,,']);
-const goodLines = csv([LINES_HEADER, 'R-1,inc.business.receipts,52000.00', 'R-1,exp.business.supplies,1200.50', 'R-1,tot.income,50799.50', 'R-2,inc.wages,41000', 'R-2,tot.income,41000.00']);
+const goodReturns = csv([
+  RETURNS_HEADER,
+  'R-1,012345678,2024,Maud Fennick,retail,PRP-0001,maud@example.net,"1 Mill Lane, Stallow"',
+  'R-2,987654321,2023,Ivo Brackley,none,,,',
+]);
+const goodLines = csv([
+  LINES_HEADER,
+  'R-1,inc.business.receipts,52000.00',
+  'R-1,exp.business.supplies,1200.50',
+  'R-1,tot.income,50799.50',
+  'R-2,inc.wages,41000',
+  'R-2,tot.income,41000.00',
+]);
 const text = (name: string, content: string | Buffer): Part => ({ name, content });
 
 async function workbook(sheets: Record<string, unknown[][]>): Promise<Buffer> {
@@ -146,7 +157,11 @@ describe('batches API: bad input is rejected whole', () => {
     expect(xlsxAsCsv.errors[0].message).toMatch(/is an XLSX workbook .* not a CSV file/);
     const both = await rejected({ file: text('b.xlsx', 'x'), returns: text('returns.csv', goodReturns) });
     expect(both.errors[0].message).toMatch(/not both/);
-    const unexpected = await rejected({ returns: text('returns.csv', goodReturns), line_items: text('line_items.csv', goodLines), lines: text('x.csv', 'x') } as never);
+    const unexpected = await rejected({
+      returns: text('returns.csv', goodReturns),
+      line_items: text('line_items.csv', goodLines),
+      lines: text('x.csv', 'x'),
+    } as never);
     expect(unexpected.errors[0].message).toMatch(/Unexpected upload part "lines"/);
     const missing = await rejected({ returns: text('returns.csv', goodReturns) });
     expect(missing.errors[0].message).toMatch(/The CSV file "line_items" is missing/);
@@ -155,8 +170,12 @@ describe('batches API: bad input is rejected whole', () => {
   });
 
   it('refuses a workbook without the required sheets, naming the sheets it has', async () => {
-    const body = await rejected({ file: text('batch.xlsx', await workbook({ Sheet1: [['return_ref']], line_items: [[...LINES_HEADER.split(',')], ['R-1', 'inc.wages', 10]] })) });
-    expect(body.errors.map((e) => e.message)).toContainEqual(expect.stringMatching(/The workbook has no sheet named "returns" \(its sheets: Sheet1, line_items\)/));
+    const body = await rejected({
+      file: text('batch.xlsx', await workbook({ Sheet1: [['return_ref']], line_items: [[...LINES_HEADER.split(',')], ['R-1', 'inc.wages', 10]] })),
+    });
+    expect(body.errors.map((e) => e.message)).toContainEqual(
+      expect.stringMatching(/The workbook has no sheet named "returns" \(its sheets: Sheet1, line_items\)/),
+    );
   });
 
   it('takes formula cells by their saved value, never evaluating them; a formula without a value is an error', async () => {
@@ -179,23 +198,37 @@ describe('batches API: bad input is rejected whole', () => {
 
     const noValue = await rejected({ file: text('formulas2.xlsx', await workbook(sheets({ formula: 'SUM(Z1:Z9)' }))) });
     expect(noValue.errors).toEqual([
-      expect.objectContaining({ row: 2, column: 'amount', message: expect.stringMatching(/holds a formula with no saved value \(Plumbline never calculates formulas\)/) }),
+      expect.objectContaining({
+        row: 2,
+        column: 'amount',
+        message: expect.stringMatching(/holds a formula with no saved value \(Plumbline never calculates formulas\)/),
+      }),
     ]);
   });
 
   it('refuses a CSV that is not UTF-8, naming the line', async () => {
     const latin1 = Buffer.concat([Buffer.from(`${RETURNS_HEADER}\nR-1,012345678,2024,Ren`), Buffer.from([0xe9]), Buffer.from(' Quill,none,,,\n')]);
     const body = await rejected({ returns: text('returns.csv', latin1), line_items: text('line_items.csv', goodLines) });
-    expect(body.errors[0]).toMatchObject({ file: 'returns.csv', row: 2, message: expect.stringMatching(/not UTF-8 text .* line 2\)\. In Excel choose "Save as… CSV UTF-8/) });
+    expect(body.errors[0]).toMatchObject({
+      file: 'returns.csv',
+      row: 2,
+      message: expect.stringMatching(/not UTF-8 text .* line 2\)\. In Excel choose "Save as… CSV UTF-8/),
+    });
   });
 
   it('refuses a CSV with an unclosed quote', async () => {
-    const body = await rejected({ returns: text('returns.csv', goodReturns), line_items: text('line_items.csv', `${LINES_HEADER}\nR-1,"inc.wages,10\nR-2,tot.income,1\n`) });
+    const body = await rejected({
+      returns: text('returns.csv', goodReturns),
+      line_items: text('line_items.csv', `${LINES_HEADER}\nR-1,"inc.wages,10\nR-2,tot.income,1\n`),
+    });
     expect(body.errors[0].message).toMatch(/The CSV cannot be read past line \d+: a quoted value is opened and never closed/);
   });
 
   it('refuses a header with missing or unknown columns', async () => {
-    const body = await rejected({ returns: text('returns.csv', csv(['return_ref,tin,year,taxpayer_name,activity_code,preparer_id', 'R-1,012345678,2024,X,none,'])), line_items: text('line_items.csv', goodLines) });
+    const body = await rejected({
+      returns: text('returns.csv', csv(['return_ref,tin,year,taxpayer_name,activity_code,preparer_id', 'R-1,012345678,2024,X,none,'])),
+      line_items: text('line_items.csv', goodLines),
+    });
     expect(body.errors.map((e) => e.message)).toEqual([
       expect.stringMatching(/^Unknown column "year"\. The returns table has the columns return_ref, tin, tax_year/),
       expect.stringMatching(/^The header row lacks the column tax_year\./),
@@ -225,7 +258,10 @@ describe('batches API: limits', () => {
     const big = `${LINES_HEADER}\n${'R-1,inc.wages,1.00\n'.repeat(1000)}`;
     const res = await upload(clerk, { returns: text('returns.csv', goodReturns), line_items: text('line_items.csv', big) });
     expect(res.status).toBe(413);
-    expect(res.body.errors[0]).toMatchObject({ file: 'line_items.csv', message: 'The file is larger than the 10 kB a batch file may be. Split the batch into smaller batches.' });
+    expect(res.body.errors[0]).toMatchObject({
+      file: 'line_items.csv',
+      message: 'The file is larger than the 10 kB a batch file may be. Split the batch into smaller batches.',
+    });
     expect(await countIntakeRows(ctx.dataSource)).toEqual(before);
   });
 
@@ -235,7 +271,13 @@ describe('batches API: limits', () => {
     for (let i = 0; i < 7; i++) rows.push(`R-1,exp.business.other,${i + 1}.00`);
     const res = await upload(clerk, { returns: text('returns.csv', goodReturns), line_items: text('line_items.csv', csv(rows)) });
     expect(res.status).toBe(422);
-    expect(res.body.errors).toContainEqual(expect.objectContaining({ file: 'line_items.csv', row: 7, message: 'The line_items table has more than 5 rows, the most one batch file may hold. Split it into several batches.' }));
+    expect(res.body.errors).toContainEqual(
+      expect.objectContaining({
+        file: 'line_items.csv',
+        row: 7,
+        message: 'The line_items table has more than 5 rows, the most one batch file may hold. Split it into several batches.',
+      }),
+    );
     expect(await countIntakeRows(ctx.dataSource)).toEqual(before);
   });
 

@@ -33,7 +33,11 @@ describe('batches API: accepted batches', () => {
     const res = await upload(clerk, { returns: b.files.returns!, line_items: b.files.line_items!, statements: b.files.statements! });
     expect(res.status).toBe(201);
     const created = BatchCreatedSchema.parse(res.body);
-    expect(created).toMatchObject({ state: 'queued', counts: { returns: 40, lineItems: b.counts.lineItems, statements: b.counts.statements }, amendedReturns: 0 });
+    expect(created).toMatchObject({
+      state: 'queued',
+      counts: { returns: 40, lineItems: b.counts.lineItems, statements: b.counts.statements },
+      amendedReturns: 0,
+    });
 
     const after = await countIntakeRows(ctx.dataSource);
     expect(after.returns - before.returns).toBe(40);
@@ -42,7 +46,12 @@ describe('batches API: accepted batches', () => {
     expect(after.taxpayers - before.taxpayers).toBe(10); // 40 returns = 10 taxpayers × 4 years
 
     // Totals computed at intake match the shared rules on the file's own lines.
-    const lines = fs.readFileSync(b.files.line_items!, 'utf8').trim().split(/\r?\n/).slice(1).map((l) => l.split(','));
+    const lines = fs
+      .readFileSync(b.files.line_items!, 'utf8')
+      .trim()
+      .split(/\r?\n/)
+      .slice(1)
+      .map((l) => l.split(','));
     const ref = lines[0][0];
     const expected = computeTotals(lines.filter((l) => l[0] === ref).map((l) => ({ code: l[1] as LineCode, cents: centsFromDecimal(l[2]) })));
     const [row] = await ctx.dataSource.query(`SELECT * FROM tax_return WHERE batch_id = $1 AND return_ref = $2`, [created.id, ref]);
@@ -55,7 +64,9 @@ describe('batches API: accepted batches', () => {
 
     // Line numbers follow the file's order; amounts are numeric, exact to the cent.
     const stored = await ctx.dataSource.query(`SELECT line_no, line_code, amount FROM line_item WHERE return_id = $1 ORDER BY line_no`, [row.id]);
-    expect(stored.map((s: { line_code: string; amount: string }) => [s.line_code, s.amount])).toEqual(lines.filter((l) => l[0] === ref).map((l) => [l[1], l[2]]));
+    expect(stored.map((s: { line_code: string; amount: string }) => [s.line_code, s.amount])).toEqual(
+      lines.filter((l) => l[0] === ref).map((l) => [l[1], l[2]]),
+    );
 
     const [batch] = await ctx.dataSource.query(`SELECT state, loaded_by, file_hash FROM filing_batch WHERE id = $1`, [created.id]);
     expect(batch).toMatchObject({ state: 'queued', loaded_by: clerk.user.id });
@@ -105,7 +116,10 @@ describe('batches API: accepted batches', () => {
     const b = await csvBatch({ seed: 'api-stale', returns: 8 });
     const hash = await uploadHash({
       format: 'csv',
-      parts: { returns: { originalName: 'returns.csv', path: b.files.returns!, size: 0 }, line_items: { originalName: 'line_items.csv', path: b.files.line_items!, size: 0 } },
+      parts: {
+        returns: { originalName: 'returns.csv', path: b.files.returns!, size: 0 },
+        line_items: { originalName: 'line_items.csv', path: b.files.line_items!, size: 0 },
+      },
     });
     const [{ id }] = await ctx.dataSource.query(
       `INSERT INTO filing_batch (file_hash, format, file_names, state, updated_at) VALUES ($1, 'csv', '{returns.csv}', 'validating', now()) RETURNING id`,
@@ -146,7 +160,12 @@ describe('batches API: accepted batches', () => {
     const detail = BatchDetailSchema.parse((await clerk.agent.get(`/api/batches/${second.body.id}`)).body);
     expect(detail.amendedReturns).toBe(1);
     expect(detail.notices).toEqual([
-      expect.objectContaining({ file: 'returns.csv', row: 2, column: 'tin', message: expect.stringMatching(/^Amended return: TIN ••• ••• 042 already has a 2024 return on file \(return_ref AM-1\)/) }),
+      expect.objectContaining({
+        file: 'returns.csv',
+        row: 2,
+        column: 'tin',
+        message: expect.stringMatching(/^Amended return: TIN ••• ••• 042 already has a 2024 return on file \(return_ref AM-1\)/),
+      }),
     ]);
   });
 
@@ -218,15 +237,21 @@ describe('batches API: the validation report as XLSX', () => {
 
   it('downloads every error with row, column and value, text from the upload neutralised against formulas', async () => {
     const res = await upload(clerk, {
-      returns: { name: 'returns.csv', content: csv([RETURNS_HEADER, '"=HYPERLINK(""http://example.net/x"")",123456789,2024,"@Bad Name",none,,,', 'R-2,12345678,2024,Ivo Brackley,none,,,']) },
+      returns: {
+        name: 'returns.csv',
+        content: csv([RETURNS_HEADER, '"=HYPERLINK(""http://example.net/x"")",123456789,2024,"@Bad Name",none,,,', 'R-2,12345678,2024,Ivo Brackley,none,,,']),
+      },
       line_items: { name: 'line_items.csv', content: csv([LINES_HEADER, 'R-2,inc.wages,+1000', 'R-2,tot.income,1000.00']) },
     });
     expect(res.status).toBe(422);
-    const report = await clerk.agent.get(`/api/batches/${res.body.batchId}/report.xlsx`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const report = await clerk.agent
+      .get(`/api/batches/${res.body.batchId}/report.xlsx`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(report.status).toBe(200);
     expect(report.headers['content-type']).toMatch(/spreadsheetml/);
     const wb = new ExcelJS.Workbook();
@@ -238,7 +263,13 @@ describe('batches API: the validation report as XLSX', () => {
     const data = rows.slice(1);
     expect(data).toHaveLength(res.body.errorCount);
     // The formula-looking reference comes back as text with a leading apostrophe, never as a formula.
-    expect(data).toContainEqual(['returns.csv', 2, 'return_ref', `'=HYPERLINK("http://example.net/x")`, expect.stringMatching(/is not a valid return reference/)]);
+    expect(data).toContainEqual([
+      'returns.csv',
+      2,
+      'return_ref',
+      `'=HYPERLINK("http://example.net/x")`,
+      expect.stringMatching(/is not a valid return reference/),
+    ]);
     expect(data).toContainEqual(['line_items.csv', 2, 'amount', `'+1000`, expect.stringMatching(/is not an amount/)]);
     ws.eachRow((r) => r.eachCell((c) => expect(c.type).not.toBe(ExcelJS.ValueType.Formula)));
     expect(wb.getWorksheet('batch')).toBeDefined();

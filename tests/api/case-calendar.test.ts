@@ -36,7 +36,11 @@ describe('assessment deadlines', () => {
 
   /** Gives a case's return a tax year and filing date, and works its deadline out again. */
   async function setFiling(caseId: string, taxYear: number, filedOn: string | null) {
-    await ctx.dataSource.query(`UPDATE tax_return SET tax_year = $2, filed_on = $3 WHERE id = (SELECT return_id FROM exam_case WHERE id = $1)`, [caseId, taxYear, filedOn]);
+    await ctx.dataSource.query(`UPDATE tax_return SET tax_year = $2, filed_on = $3 WHERE id = (SELECT return_id FROM exam_case WHERE id = $1)`, [
+      caseId,
+      taxYear,
+      filedOn,
+    ]);
     await refreshDeadlines(ctx.dataSource, [caseId]);
   }
   const detail = async (id: string) => {
@@ -51,7 +55,12 @@ describe('assessment deadlines', () => {
     expect(rows[0].dated).toBe(rows[0].n);
     const [id] = await openCaseIds(ctx.dataSource, 1);
     const d = await detail(id);
-    const ret = (await ctx.dataSource.query(`SELECT r.tax_year, b.created_at::date::text AS batch_day FROM exam_case c JOIN tax_return r ON r.id = c.return_id JOIN filing_batch b ON b.id = r.batch_id WHERE c.id = $1`, [id]))[0];
+    const ret = (
+      await ctx.dataSource.query(
+        `SELECT r.tax_year, b.created_at::date::text AS batch_day FROM exam_case c JOIN tax_return r ON r.id = c.return_id JOIN filing_batch b ON b.id = r.batch_id WHERE c.id = $1`,
+        [id],
+      )
+    )[0];
     const due = `${Number(ret.tax_year) + 1}-04-30`;
     const from = ret.batch_day > due ? ret.batch_day : due;
     expect(d.deadline.assessBy).toBe(addYears(from, d.deadline.basis === 'omitted-income' ? 6 : 3));
@@ -73,10 +82,21 @@ describe('assessment deadlines', () => {
     resetClock();
 
     // A wage statement far above the wages the return reported: more than 25 % left out → 6 years.
-    const r = (await ctx.dataSource.query(`SELECT t.tin, r.batch_id, (r.total_wages + r.total_interest + r.total_receipts)::text AS gross FROM exam_case c JOIN tax_return r ON r.id = c.return_id JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`, [b]))[0];
+    const r = (
+      await ctx.dataSource.query(
+        `SELECT t.tin, r.batch_id, (r.total_wages + r.total_interest + r.total_receipts)::text AS gross FROM exam_case c JOIN tax_return r ON r.id = c.return_id JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`,
+        [b],
+      )
+    )[0];
     await ctx.dataSource.query(`DELETE FROM third_party_statement WHERE tin = $1`, [r.tin]);
-    await ctx.dataSource.query(`UPDATE tax_return SET total_wages = 40000, total_interest = 0, total_receipts = 0 WHERE id = (SELECT return_id FROM exam_case WHERE id = $1)`, [b]);
-    await ctx.dataSource.query(`INSERT INTO third_party_statement (batch_id, tin, tax_year, kind, payer, amount, source_row) VALUES ($1, $2, 2002, 'wages', 'Harbour Works', 50000.01, 2)`, [r.batch_id, r.tin]);
+    await ctx.dataSource.query(
+      `UPDATE tax_return SET total_wages = 40000, total_interest = 0, total_receipts = 0 WHERE id = (SELECT return_id FROM exam_case WHERE id = $1)`,
+      [b],
+    );
+    await ctx.dataSource.query(
+      `INSERT INTO third_party_statement (batch_id, tin, tax_year, kind, payer, amount, source_row) VALUES ($1, $2, 2002, 'wages', 'Harbour Works', 50000.01, 2)`,
+      [r.batch_id, r.tin],
+    );
     await setFiling(b, 2002, '2003-03-01');
     d = await detail(b);
     // Left out 10,000.01 of 40,000 reported (> 25 %): 6 years from the due date 2003-04-30.
@@ -128,7 +148,14 @@ describe('assessment deadlines', () => {
     const clerk = await signIn(ctx, 'clerk');
     const year = new Date().getUTCFullYear() - 2;
     const withDate = await upload(clerk, {
-      returns: { name: 'returns.csv', content: csv([`${RETURNS_HEADER},filed_on`, `CAL-FILED-1,987650001,${year},Orla Vantreck,retail,,,,${year + 1}-09-02`, `CAL-FILED-2,987650002,${year},Piet Lorrimer,none,,,,`]) },
+      returns: {
+        name: 'returns.csv',
+        content: csv([
+          `${RETURNS_HEADER},filed_on`,
+          `CAL-FILED-1,987650001,${year},Orla Vantreck,retail,,,,${year + 1}-09-02`,
+          `CAL-FILED-2,987650002,${year},Piet Lorrimer,none,,,,`,
+        ]),
+      },
       line_items: { name: 'line_items.csv', content: csv([LINES_HEADER, 'CAL-FILED-1,inc.wages,41000.00', 'CAL-FILED-2,inc.wages,39000.00']) },
     });
     expect(withDate.status).toBe(201);

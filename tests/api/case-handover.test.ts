@@ -42,7 +42,11 @@ describe('handing a case over', () => {
   it('hands over an awaiting-reply case: state, letter and link kept; the reply reaches the new examiner', async () => {
     const { caseId } = await caseInReview(ctx.dataSource, ivo);
     const to = uniqueAddress();
-    const sent = await post(ivo, `/api/cases/${caseId}/document-requests`, { items: ['Bank statements for the business account'], dueDate: dueIn(21), email: to });
+    const sent = await post(ivo, `/api/cases/${caseId}/document-requests`, {
+      items: ['Bank statements for the business account'],
+      dueDate: dueIn(21),
+      email: to,
+    });
     expect(sent.status).toBe(201);
     const token = /\/reply\/([A-Za-z0-9_-]{43})/.exec((await waitForMail(to)).text ?? '')![1];
 
@@ -54,7 +58,12 @@ describe('handing a case over', () => {
     const d = await detail(nell, caseId);
     expect(d.state).toBe('awaiting_reply');
     expect(d.assignee).toEqual({ id: nell.user.id, name: 'Nell Quarrender' });
-    expect(d.history.at(-1)).toMatchObject({ kind: 'handed-over', fromState: 'awaiting_reply', toState: 'awaiting_reply', summary: 'Test supervisor handed the case over from Ivo Brackley to Nell Quarrender; it stays awaiting reply' });
+    expect(d.history.at(-1)).toMatchObject({
+      kind: 'handed-over',
+      fromState: 'awaiting_reply',
+      toState: 'awaiting_reply',
+      summary: 'Test supervisor handed the case over from Ivo Brackley to Nell Quarrender; it stays awaiting reply',
+    });
     expect(d.actions.canAct).toBe(true);
     // The letter stays with the case.
     const letters = LetterListSchema.parse((await nell.agent.get(`/api/cases/${caseId}/letters`)).body);

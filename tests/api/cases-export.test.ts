@@ -59,13 +59,39 @@ describe('queue export (XLSX)', () => {
     expect(res.headers['content-disposition']).toMatch(/^attachment; filename="plumbline-queue-\d{4}-\d{2}-\d{2}\.xlsx"$/);
     const wb = await workbookOf(res.body as Buffer);
     const rows = rowsOf(wb);
-    expect(rows[0]).toEqual(['Return', 'Tax year', 'Taxpayer', 'TIN (masked)', 'Activity', 'Risk score', 'Amount at stake', 'Priority', 'State', 'Examiner', 'Opened', 'Due', 'Case id', 'Assess by']);
+    expect(rows[0]).toEqual([
+      'Return',
+      'Tax year',
+      'Taxpayer',
+      'TIN (masked)',
+      'Activity',
+      'Risk score',
+      'Amount at stake',
+      'Priority',
+      'State',
+      'Examiner',
+      'Opened',
+      'Due',
+      'Case id',
+      'Assess by',
+    ]);
     const list = CaseListSchema.parse((await supervisor.agent.get('/api/cases?pageSize=100')).body);
     expect(rows.length - 1).toBe(list.total);
     expect(rows.slice(1).map((r) => r[12])).toEqual(list.items.map((i) => i.id));
     const first = rows[1];
     const item = list.items[0];
-    expect(first.slice(0, 10)).toEqual([item.returnRef, item.taxYear, item.taxpayerName, item.maskedTin, item.activityCode, item.riskScore, Number(item.amountAtStake), item.priority, 'Open', undefined]);
+    expect(first.slice(0, 10)).toEqual([
+      item.returnRef,
+      item.taxYear,
+      item.taxpayerName,
+      item.maskedTin,
+      item.activityCode,
+      item.riskScore,
+      Number(item.amountAtStake),
+      item.priority,
+      'Open',
+      undefined,
+    ]);
     expect(first[10]).toBeInstanceOf(Date);
     const about = wb.getWorksheet('About')!;
     const aboutText: string[] = [];
@@ -78,7 +104,12 @@ describe('queue export (XLSX)', () => {
     await caseInState(ctx.dataSource, ids[0], 'in_review', examiner);
     await caseInState(ctx.dataSource, ids[1], 'assigned', examiner);
     const rows = rowsOf(await workbookOf((await download(`?assignee=${examiner.user.id}&sort=score`)).body as Buffer));
-    expect(rows.slice(1).map((r) => r[12]).sort()).toEqual([ids[0], ids[1]].sort());
+    expect(
+      rows
+        .slice(1)
+        .map((r) => r[12])
+        .sort(),
+    ).toEqual([ids[0], ids[1]].sort());
     expect(rows.slice(1).map((r) => r[9])).toEqual(['Test examiner', 'Test examiner']);
     const review = rowsOf(await workbookOf((await download('?state=in_review')).body as Buffer));
     expect(review.slice(1).map((r) => [r[12], r[8]])).toEqual([[ids[0], 'In review']]);
@@ -87,7 +118,10 @@ describe('queue export (XLSX)', () => {
 
   it('neutralises text that a spreadsheet would read as a formula', async () => {
     const [id] = await openCaseIds(ctx.dataSource, 1);
-    await ctx.dataSource.query(`UPDATE taxpayer SET name = '=HYPERLINK("http://evil.example","Click")' WHERE id = (SELECT taxpayer_id FROM exam_case WHERE id = $1)`, [id]);
+    await ctx.dataSource.query(
+      `UPDATE taxpayer SET name = '=HYPERLINK("http://evil.example","Click")' WHERE id = (SELECT taxpayer_id FROM exam_case WHERE id = $1)`,
+      [id],
+    );
     const wb = await workbookOf((await download()).body as Buffer);
     const row = rowsOf(wb).find((r) => r[12] === id)!;
     expect(row[2]).toBe(`'=HYPERLINK("http://evil.example","Click")`);
@@ -101,8 +135,12 @@ describe('queue export (XLSX)', () => {
     const before = (await ctx.dataSource.query(`SELECT count(*)::int AS n FROM access_log WHERE action = 'export'`))[0].n;
     const res = await download('?state=open&sort=age');
     const n = rowsOf(await workbookOf(res.body as Buffer)).length - 1;
-    const log = await ctx.dataSource.query(`SELECT user_id, route, record_type, detail FROM access_log WHERE action = 'export' ORDER BY id OFFSET $1`, [before]);
-    expect(log).toEqual([{ user_id: supervisor.user.id, route: 'GET /api/cases/export.xlsx', record_type: 'case-queue', detail: `${n} cases; state open, sorted by age` }]);
+    const log = await ctx.dataSource.query(`SELECT user_id, route, record_type, detail FROM access_log WHERE action = 'export' ORDER BY id OFFSET $1`, [
+      before,
+    ]);
+    expect(log).toEqual([
+      { user_id: supervisor.user.id, route: 'GET /api/cases/export.xlsx', record_type: 'case-queue', detail: `${n} cases; state open, sorted by age` },
+    ]);
   });
 
   it('is for supervisors only, and checks its query like the list (422)', async () => {

@@ -113,9 +113,13 @@ describe('case workflow through the API', () => {
       expect(res.status).toBe(409);
       expect(res.body.error).toBe('A case that is assigned cannot move to closed, no change. From here it can move to: in review, open.');
       const done = await caseInState(ctx.dataSource, take(), 'closed_no_change', examiner);
-      expect((await post(examiner, `/api/cases/${done}/transition`, { to: 'in_review' })).body.error).toBe('A case that is closed, no change cannot move to in review. It is finished; nothing more can change.');
+      expect((await post(examiner, `/api/cases/${done}/transition`, { to: 'in_review' })).body.error).toBe(
+        'A case that is closed, no change cannot move to in review. It is finished; nothing more can change.',
+      );
       const review = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
-      expect((await post(examiner, `/api/cases/${review}/transition`, { to: 'awaiting_reply' })).body.error).toMatch(/^A case waits for a reply once a document request is sent/);
+      expect((await post(examiner, `/api/cases/${review}/transition`, { to: 'awaiting_reply' })).body.error).toMatch(
+        /^A case waits for a reply once a document request is sent/,
+      );
     });
   });
 
@@ -128,17 +132,25 @@ describe('case workflow through the API', () => {
       expect(d).toMatchObject({ state: 'closed_no_change', outcome: 'Bank statements match every receipt line.', adjustedAmount: null });
       expect(d.closedAt).not.toBeNull();
       expect(d.actions).toMatchObject({ transitions: [], claim: false, assign: false });
-      expect(d.history[d.history.length - 1].summary).toBe('Test examiner moved the case from in review to closed, no change: Bank statements match every receipt line.');
+      expect(d.history[d.history.length - 1].summary).toBe(
+        'Test examiner moved the case from in review to closed, no change: Bank statements match every receipt line.',
+      );
     });
 
     it('closes as adjusted with the adjusted amount (numeric, exact)', async () => {
       const id = await caseInState(ctx.dataSource, take(), 'awaiting_reply', examiner);
-      const res = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_adjusted', outcome: 'Vehicle costs were private use.', adjustedAmount: '1234.05' });
+      const res = await post(examiner, `/api/cases/${id}/transition`, {
+        to: 'closed_adjusted',
+        outcome: 'Vehicle costs were private use.',
+        adjustedAmount: '1234.05',
+      });
       expect(res.status).toBe(200);
       const row = (await ctx.dataSource.query(`SELECT adjusted_amount, outcome, closed_at IS NOT NULL AS closed FROM exam_case WHERE id = $1`, [id]))[0];
       expect(row).toEqual({ adjusted_amount: '1234.05', outcome: 'Vehicle costs were private use.', closed: true });
       const d = await detail(examiner, id);
-      expect(d.history[d.history.length - 1].summary).toBe('Test examiner moved the case from awaiting reply to closed, adjusted, adjusted amount 1234.05: Vehicle costs were private use.');
+      expect(d.history[d.history.length - 1].summary).toBe(
+        'Test examiner moved the case from awaiting reply to closed, adjusted, adjusted amount 1234.05: Vehicle costs were private use.',
+      );
     });
 
     it('refuses a close without its facts (422, each named)', async () => {
@@ -195,7 +207,10 @@ describe('case workflow through the API', () => {
       );
       const d = await detail(examiner, id);
       const summaries = d.history.map((h) => h.summary);
-      expect(summaries.slice(-2)).toEqual(['The taxpayer replied through the reply link (2 files); the case is back in review', 'The taxpayer replied through the reply link (1 file)']);
+      expect(summaries.slice(-2)).toEqual([
+        'The taxpayer replied through the reply link (2 files); the case is back in review',
+        'The taxpayer replied through the reply link (1 file)',
+      ]);
       expect(summaries.join('\n')).not.toContain('?');
     });
   });
@@ -281,7 +296,9 @@ describe('case workflow through the API', () => {
       const toSup = await post(supervisor, `/api/cases/${open}/assign`, { assigneeId: supervisor.user.id });
       expect(toSup.status).toBe(422);
       expect(toSup.body.error).toBe('Assign cases to an active examiner.');
-      expect((await post(supervisor, `/api/cases/${open}/assign`, { assigneeId: 'nobody' })).body.issues).toEqual([{ path: 'assigneeId', message: 'Choose an examiner' }]);
+      expect((await post(supervisor, `/api/cases/${open}/assign`, { assigneeId: 'nobody' })).body.issues).toEqual([
+        { path: 'assigneeId', message: 'Choose an examiner' },
+      ]);
       expect((await post(examiner, `/api/cases/${open}/assign`, { assigneeId: examiner.user.id })).status).toBe(403);
     });
   });

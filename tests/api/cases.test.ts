@@ -109,12 +109,16 @@ describe('the examination queue (GET /api/cases)', () => {
     expect((await list(examiner, `?batch=${batch.batchId}`)).total).toBe(caseCount);
     expect((await list(examiner, '?batch=00000000-0000-4000-8000-000000000000')).total).toBe(0);
 
-    const years = (await ctx.dataSource.query(`SELECT r.tax_year AS y, count(*)::int AS n FROM exam_case c JOIN tax_return r ON r.id = c.return_id GROUP BY 1 ORDER BY 2 DESC`)) as { y: number; n: number }[];
+    const years = (await ctx.dataSource.query(
+      `SELECT r.tax_year AS y, count(*)::int AS n FROM exam_case c JOIN tax_return r ON r.id = c.return_id GROUP BY 1 ORDER BY 2 DESC`,
+    )) as { y: number; n: number }[];
     const byYear = await list(examiner, `?taxYear=${years[0].y}&pageSize=100`);
     expect(byYear.total).toBe(years[0].n);
     expect(byYear.items.every((i) => i.taxYear === years[0].y)).toBe(true);
 
-    const acts = (await ctx.dataSource.query(`SELECT t.activity_code AS a, count(*)::int AS n FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id GROUP BY 1 ORDER BY 2 DESC`)) as { a: string; n: number }[];
+    const acts = (await ctx.dataSource.query(
+      `SELECT t.activity_code AS a, count(*)::int AS n FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id GROUP BY 1 ORDER BY 2 DESC`,
+    )) as { a: string; n: number }[];
     const byAct = await list(examiner, `?activity=${acts[0].a}&pageSize=100`);
     expect(byAct.total).toBe(acts[0].n);
     expect(byAct.items.every((i) => i.activityCode === acts[0].a)).toBe(true);
@@ -147,7 +151,10 @@ describe('the examination queue (GET /api/cases)', () => {
   it('writes one access-log line per case shown, with the taxpayer, in one page listing', async () => {
     const before = (await ctx.dataSource.query(`SELECT count(*)::int AS n FROM access_log WHERE user_id = $1`, [examiner2.user.id]))[0].n;
     const page = await list(examiner2, '?pageSize=7');
-    const rows = await ctx.dataSource.query(`SELECT action, route, record_type, record_id, taxpayer_id, taxpayer_label FROM access_log WHERE user_id = $1 ORDER BY id OFFSET $2`, [examiner2.user.id, before]);
+    const rows = await ctx.dataSource.query(
+      `SELECT action, route, record_type, record_id, taxpayer_id, taxpayer_label FROM access_log WHERE user_id = $1 ORDER BY id OFFSET $2`,
+      [examiner2.user.id, before],
+    );
     expect(rows).toHaveLength(7);
     expect(rows.map((r: { record_id: string }) => r.record_id)).toEqual(page.items.map((i) => i.id));
     for (const [k, r] of rows.entries()) {
@@ -185,18 +192,30 @@ describe('the examination queue (GET /api/cases)', () => {
       expect(b.components.some((c) => c.points > 0 && c.evidence.length > 0)).toBe(true);
       expect(b.digits.firstDigitCounts).toHaveLength(9);
       // The score is the components' points, summed and capped at 100 (one decimal).
-      expect(Math.abs(Math.min(100, b.components.reduce((s, c) => s + c.points, 0)) - d.riskScore)).toBeLessThan(0.06);
+      expect(
+        Math.abs(
+          Math.min(
+            100,
+            b.components.reduce((s, c) => s + c.points, 0),
+          ) - d.riskScore,
+        ),
+      ).toBeLessThan(0.06);
       expect(d.history[0]).toMatchObject({ kind: 'opened', toState: 'open' });
       expect(d.history[0].summary).toMatch(/^Opened by scoring/);
       expect(d.notes).toEqual([]);
       expect(d.letters).toEqual([]);
       expect(d.actions).toEqual({ canAct: false, claim: true, assign: false, transitions: [], note: false, revealTin: false });
-      const log = await ctx.dataSource.query(`SELECT action, route, taxpayer_id, taxpayer_label FROM access_log WHERE user_id = $1 AND record_id = $2 AND route LIKE 'GET /api/cases/%'`, [examiner.user.id, top.id]);
+      const log = await ctx.dataSource.query(
+        `SELECT action, route, taxpayer_id, taxpayer_label FROM access_log WHERE user_id = $1 AND record_id = $2 AND route LIKE 'GET /api/cases/%'`,
+        [examiner.user.id, top.id],
+      );
       expect(log).toEqual([{ action: 'view', route: `GET /api/cases/${top.id}`, taxpayer_id: d.taxpayer.id, taxpayer_label: top.maskedTin }]);
     });
 
     it('carries the preparer pool digits when the return has a preparer', async () => {
-      const withPreparer = (await ctx.dataSource.query(`SELECT c.id FROM exam_case c JOIN tax_return r ON r.id = c.return_id WHERE r.preparer_id IS NOT NULL LIMIT 1`))[0];
+      const withPreparer = (
+        await ctx.dataSource.query(`SELECT c.id FROM exam_case c JOIN tax_return r ON r.id = c.return_id WHERE r.preparer_id IS NOT NULL LIMIT 1`)
+      )[0];
       const d = CaseDetailSchema.parse((await examiner.agent.get(`/api/cases/${withPreparer.id}`)).body);
       expect(d.return.preparerCode).toMatch(/\S/);
       expect(d.score.breakdown.preparerPool?.firstDigitCounts).toHaveLength(9);
@@ -253,7 +272,7 @@ describe('the examination queue (GET /api/cases)', () => {
       expect((await supervisor.agent.post(`/api/cases/${id}/reveal-tin`).set('X-CSRF-Token', supervisor.csrf)).status).toBe(200);
     });
 
-    it('lists the letters kept with the case (from the letters feature\'s table)', async () => {
+    it("lists the letters kept with the case (from the letters feature's table)", async () => {
       const [id] = await openCaseIds(ctx.dataSource, 1);
       const present = (await ctx.dataSource.query(`SELECT to_regclass('public.letter') IS NOT NULL AS p`))[0].p;
       if (present) {

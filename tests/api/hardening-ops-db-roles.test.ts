@@ -56,7 +56,15 @@ describe('database roles', () => {
     const privs = await app.query(
       `SELECT p, has_table_privilege(current_user, 'access_log', p) AS ok FROM unnest(ARRAY['SELECT', 'INSERT', 'UPDATE', 'DELETE', 'TRUNCATE', 'REFERENCES', 'TRIGGER']) AS p`,
     );
-    expect(Object.fromEntries(privs.rows.map((r) => [r.p, r.ok]))).toEqual({ SELECT: true, INSERT: true, UPDATE: false, DELETE: false, TRUNCATE: false, REFERENCES: false, TRIGGER: false });
+    expect(Object.fromEntries(privs.rows.map((r) => [r.p, r.ok]))).toEqual({
+      SELECT: true,
+      INSERT: true,
+      UPDATE: false,
+      DELETE: false,
+      TRUNCATE: false,
+      REFERENCES: false,
+      TRIGGER: false,
+    });
     await app.query(`INSERT INTO access_log (action, route, detail) VALUES ('sign-in', 'test', 'role check')`);
     const seen = await app.query(`SELECT count(*)::int AS n FROM access_log WHERE detail = 'role check'`);
     expect(seen.rows[0].n).toBe(1);

@@ -54,7 +54,10 @@ describe('server logs of a scripted session', () => {
     // 2. A document request by the API; its reply link comes by mail.
     const to = uniqueAddress('log-check');
     const { caseId } = await caseInReview(ds, { user: { id: user.id, username: user.username, role: 'examiner' } }, to);
-    const sent = await agent.post(`/api/cases/${caseId}/document-requests`).set('X-CSRF-Token', csrf).send({ items: ['Bank statements for the year'], dueDate: dueIn(21) });
+    const sent = await agent
+      .post(`/api/cases/${caseId}/document-requests`)
+      .set('X-CSRF-Token', csrf)
+      .send({ items: ['Bank statements for the year'], dueDate: dueIn(21) });
     expect(sent.status).toBe(201);
     const mail = await waitForMail(to, 30_000);
     const token = /\/reply\/([A-Za-z0-9_-]{43})/.exec(mail.text ?? '')![1];
@@ -96,7 +99,10 @@ describe('server logs of a scripted session', () => {
     expect(out).toContain('listening on');
     // Each leak with its line, the secret itself replaced by its name.
     const found = Object.entries(secrets).flatMap(([name, v]) =>
-      out.split('\n').filter((line) => line.includes(v)).map((line) => `${name}: ${line.split(v).join(`<${name}>`).slice(0, 300)}`),
+      out
+        .split('\n')
+        .filter((line) => line.includes(v))
+        .map((line) => `${name}: ${line.split(v).join(`<${name}>`).slice(0, 300)}`),
     );
     expect(found).toEqual([]);
   });

@@ -41,7 +41,10 @@ describe('recovery of a batch interrupted mid-intake', () => {
 
     const recovered = await recoverInterruptedIntake(ctx.dataSource, new Date('2026-03-02T09:30:00Z'));
     expect(recovered).toEqual([{ id: first.body.id, fileNames: expect.any(Array) }]);
-    const [row] = await ctx.dataSource.query(`SELECT state, error_count AS "errorCount", errors, return_count AS "returnCount" FROM filing_batch WHERE id = $1`, [first.body.id]);
+    const [row] = await ctx.dataSource.query(
+      `SELECT state, error_count AS "errorCount", errors, return_count AS "returnCount" FROM filing_batch WHERE id = $1`,
+      [first.body.id],
+    );
     expect(row).toEqual({
       state: 'rejected',
       errorCount: 1,
@@ -51,7 +54,11 @@ describe('recovery of a batch interrupted mid-intake', () => {
     expect(row.errors[0].message).toMatch(/2026-03-02 09:30 UTC\)\. Nothing of it was stored\. Upload the same file again\./);
     const rows = await countIntakeRows(ctx.dataSource);
     // Taxpayers and preparers are shared records, not the batch's rows.
-    expect({ returns: rows.returns, lineItems: rows.lineItems, statements: rows.statements }).toEqual({ returns: before.returns, lineItems: before.lineItems, statements: before.statements });
+    expect({ returns: rows.returns, lineItems: rows.lineItems, statements: rows.statements }).toEqual({
+      returns: before.returns,
+      lineItems: before.lineItems,
+      statements: before.statements,
+    });
     // The report says why, through the API as well.
     const detail = await clerk.agent.get(`/api/batches/${first.body.id}`);
     expect(detail.body.state).toBe('rejected');

@@ -25,7 +25,13 @@ describe('hardening: sign-in and free text', () => {
 
   /** A fresh app (own throttle, default limits: 20 failures per address) with the given config overrides. */
   function appWith(overrides: Record<string, string> = {}) {
-    return createApp({ config: testConfig(ctx.db.url, overrides), dataSource: ctx.dataSource, boss: ctx.boss, mailer: ctx.mailer, throttle: new LoginThrottle() });
+    return createApp({
+      config: testConfig(ctx.db.url, overrides),
+      dataSource: ctx.dataSource,
+      boss: ctx.boss,
+      mailer: ctx.mailer,
+      throttle: new LoginThrottle(),
+    });
   }
 
   /** Thirty failed sign-ins, each for another user name and with another forged X-Forwarded-For. */
@@ -64,7 +70,10 @@ describe('hardening: sign-in and free text', () => {
     expect(form.status).toBe(415);
     expect(form.body.error).toMatch(/application\/json/);
     expect(form.headers['set-cookie'] ?? []).not.toEqual(expect.arrayContaining([expect.stringMatching(/plumbline\.sid=/)]));
-    const text = await request(ctx.app).post('/api/auth/login').set('Content-Type', 'text/plain').send(JSON.stringify({ username: user.username, password }));
+    const text = await request(ctx.app)
+      .post('/api/auth/login')
+      .set('Content-Type', 'text/plain')
+      .send(JSON.stringify({ username: user.username, password }));
     expect(text.status).toBe(415);
     const json = await request(ctx.app).post('/api/auth/login').send({ username: user.username, password });
     expect(json.status).toBe(200);
@@ -73,7 +82,9 @@ describe('hardening: sign-in and free text', () => {
   describe('control characters are a 422 naming the field', () => {
     const expectRefused = (res: request.Response, field: string) => {
       expect(res.status).toBe(422);
-      expect(res.body.issues).toEqual(expect.arrayContaining([{ path: field, message: expect.stringMatching(/control character \(U\+0000, character \d+\)/) }]));
+      expect(res.body.issues).toEqual(
+        expect.arrayContaining([{ path: field, message: expect.stringMatching(/control character \(U\+0000, character \d+\)/) }]),
+      );
     };
 
     it('a user name at sign-in (and nothing is logged with it)', async () => {
@@ -86,7 +97,10 @@ describe('hardening: sign-in and free text', () => {
 
     it('a display name, when an account is created or renamed', async () => {
       const admin = await signIn(ctx, 'admin');
-      const created = await admin.agent.post('/api/users').set('X-CSRF-Token', admin.csrf).send({ username: 'nul-name', displayName: 'Ada\u0000Lovelace', role: 'clerk', password: 'long-enough-pw' });
+      const created = await admin.agent
+        .post('/api/users')
+        .set('X-CSRF-Token', admin.csrf)
+        .send({ username: 'nul-name', displayName: 'Ada\u0000Lovelace', role: 'clerk', password: 'long-enough-pw' });
       expectRefused(created, 'displayName');
       expect(await ctx.dataSource.query(`SELECT id FROM app_user WHERE username = 'nul-name'`)).toEqual([]);
       const { user } = await createUser(ctx, 'clerk');
@@ -105,7 +119,7 @@ describe('hardening: sign-in and free text', () => {
     });
   });
 
-  describe('a rejected batch\'s report', () => {
+  describe("a rejected batch's report", () => {
     it('lists TIN-like values masked, and its read is access-logged', async () => {
       const clerk = await signIn(ctx, 'clerk');
       const returns = csv([
@@ -128,7 +142,10 @@ describe('hardening: sign-in and free text', () => {
           expect.objectContaining({ row: 3, column: 'tin', message: expect.stringMatching(/"•••-••-•321" must be 9 digits .* e\.g\. ••••••321/) }),
         ]),
       );
-      const logged = await ctx.dataSource.query(`SELECT action, record_type, detail FROM access_log WHERE record_id = $1 AND user_id = $2 AND action = 'view'`, [id, clerk.user.id]);
+      const logged = await ctx.dataSource.query(
+        `SELECT action, record_type, detail FROM access_log WHERE record_id = $1 AND user_id = $2 AND action = 'view'`,
+        [id, clerk.user.id],
+      );
       expect(logged).toEqual([{ action: 'view', record_type: 'filing_batch', detail: 'rejection report' }]);
     });
 

@@ -119,16 +119,28 @@ describe('XLSX reading caps', () => {
 
   it('stops at too many cells, too wide a row, too long a cell, too many shared strings', async () => {
     const sheet = (rows: string) => `<worksheet><sheetData>${rows}</sheetData></worksheet>`;
-    await expect(readAll(workbook('cells.xlsx', sheet('<row><c><v>1</v></c><c><v>2</v></c></row>'.repeat(10))), caps({ maxCells: 15 }))).rejects.toMatchObject({ cap: 'maxCells' });
-    await expect(readAll(workbook('wide.xlsx', sheet('<row><c r="XFE1"><v>1</v></c></row>')), DEFAULT_READ_CAPS)).rejects.toMatchObject({ cap: 'maxColumns', message: expect.stringMatching(/more than 16,384 cells/) });
-    await expect(readAll(workbook('long.xlsx', sheet(`<row><c t="inlineStr"><is><t>${'x'.repeat(40_000)}</t></is></c></row>`)), DEFAULT_READ_CAPS)).rejects.toMatchObject({
+    await expect(readAll(workbook('cells.xlsx', sheet('<row><c><v>1</v></c><c><v>2</v></c></row>'.repeat(10))), caps({ maxCells: 15 }))).rejects.toMatchObject({
+      cap: 'maxCells',
+    });
+    await expect(readAll(workbook('wide.xlsx', sheet('<row><c r="XFE1"><v>1</v></c></row>')), DEFAULT_READ_CAPS)).rejects.toMatchObject({
+      cap: 'maxColumns',
+      message: expect.stringMatching(/more than 16,384 cells/),
+    });
+    await expect(
+      readAll(workbook('long.xlsx', sheet(`<row><c t="inlineStr"><is><t>${'x'.repeat(40_000)}</t></is></c></row>`)), DEFAULT_READ_CAPS),
+    ).rejects.toMatchObject({
       cap: 'maxCellChars',
       message: expect.stringMatching(/more than 32,767 characters \(Excel's own limit\)/),
     });
     const sst = (n: number, declared: string) => `<sst${declared}>${'<si><t>a</t></si>'.repeat(n)}</sst>`;
     await expect(readAll(workbook('strings.xlsx', sheet(''), sst(11, '')), caps({ maxSharedStrings: 10 }))).rejects.toMatchObject({ cap: 'maxSharedStrings' });
-    await expect(readAll(workbook('declared.xlsx', sheet(''), sst(1, ' uniqueCount="99"')), caps({ maxSharedStrings: 10 }))).rejects.toMatchObject({ cap: 'maxSharedStrings' });
-    await expect(readAll(workbook('rows.xlsx', sheet('<row><c><v>1</v></c></row>'.repeat(6))), caps({ maxRows: 5 }))).rejects.toMatchObject({ cap: 'maxRows', message: expect.stringMatching(/more than 5 rows/) });
+    await expect(readAll(workbook('declared.xlsx', sheet(''), sst(1, ' uniqueCount="99"')), caps({ maxSharedStrings: 10 }))).rejects.toMatchObject({
+      cap: 'maxSharedStrings',
+    });
+    await expect(readAll(workbook('rows.xlsx', sheet('<row><c><v>1</v></c></row>'.repeat(6))), caps({ maxRows: 5 }))).rejects.toMatchObject({
+      cap: 'maxRows',
+      message: expect.stringMatching(/more than 5 rows/),
+    });
   });
 
   it('refuses a DOCTYPE (entity bombs) and a file that is not a ZIP, as unreadable workbooks', async () => {
@@ -143,7 +155,10 @@ describe('XLSX reading caps', () => {
     const file = workbook('thread.xlsx', `<worksheet><sheetData>${'<row><c><v>1</v></c></row>'.repeat(20)}</sheetData></worksheet>`);
     await expect(readAmountsInThread(file, null, 'xlsx', caps({ maxRows: 10 }))).rejects.toMatchObject({ cap: 'maxRows' });
     // And the thread is still good for the next file.
-    const ok = workbook('ok.xlsx', `<worksheet><sheetData><row><c t="inlineStr"><is><t>amount</t></is></c></row><row><c><v>12.5</v></c></row></sheetData></worksheet>`);
+    const ok = workbook(
+      'ok.xlsx',
+      `<worksheet><sheetData><row><c t="inlineStr"><is><t>amount</t></is></c></row><row><c><v>12.5</v></c></row></sheetData></worksheet>`,
+    );
     const r = await readAmountsInThread(ok, null, 'xlsx', DEFAULT_READ_CAPS);
     expect(Array.from(r.cents)).toEqual([1250]);
   });
@@ -159,9 +174,15 @@ describe('CSV reading caps', () => {
   }
 
   it('stops a line that never ends and too many rows with a fatal error naming the limit; blank lines are free', async () => {
-    await expect(read('a,b\n' + 'x'.repeat(5000), caps({ maxLineChars: 1000 }))).rejects.toMatchObject({ fatal: true, issue: { file: 'returns.csv', message: expect.stringMatching(/a line of more than 1,000 characters/) } });
+    await expect(read('a,b\n' + 'x'.repeat(5000), caps({ maxLineChars: 1000 }))).rejects.toMatchObject({
+      fatal: true,
+      issue: { file: 'returns.csv', message: expect.stringMatching(/a line of more than 1,000 characters/) },
+    });
     await expect(read('a,"b\n' + 'x'.repeat(5000) + '"\n', caps({ maxLineChars: 1000 }))).rejects.toBeInstanceOf(SourceError);
-    await expect(read('a\n1\n2\n3\n', caps({ maxRows: 3 }))).rejects.toMatchObject({ fatal: true, issue: { message: expect.stringMatching(/more than 3 rows.*Split/) } });
+    await expect(read('a\n1\n2\n3\n', caps({ maxRows: 3 }))).rejects.toMatchObject({
+      fatal: true,
+      issue: { message: expect.stringMatching(/more than 3 rows.*Split/) },
+    });
     expect(await read('a\n1\n\n\n2\n', caps({ maxRows: 3 }))).toHaveLength(5);
   });
 });

@@ -15,7 +15,10 @@ import { createTestContext, type TestContext } from '../helpers/test-app';
 
 // exceljs writes its workbooks with archiver; the test uses it to stream fixtures to disk.
 // eslint-disable-next-line @typescript-eslint/no-require-imports
-const archiver = require('archiver') as (format: 'zip', opts: { zlib: { level: number } }) => {
+const archiver = require('archiver') as (
+  format: 'zip',
+  opts: { zlib: { level: number } },
+) => {
   pipe(out: NodeJS.WritableStream): void;
   append(source: string | Readable, data: { name: string }): void;
   finalize(): Promise<void>;
@@ -51,8 +54,14 @@ async function writeXlsx(file: string, sheet: Readable, sharedStrings: Readable 
   const out = fs.createWriteStream(file);
   const zip = archiver('zip', { zlib: { level: 6 } });
   zip.pipe(out);
-  zip.append(`<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="${REL}/officeDocument" Target="xl/workbook.xml"/></Relationships>`, { name: '_rels/.rels' });
-  zip.append(`<?xml version="1.0"?><workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="${REL}"><sheets><sheet name="amounts" sheetId="1" r:id="rId1"/></sheets></workbook>`, { name: 'xl/workbook.xml' });
+  zip.append(
+    `<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="${REL}/officeDocument" Target="xl/workbook.xml"/></Relationships>`,
+    { name: '_rels/.rels' },
+  );
+  zip.append(
+    `<?xml version="1.0"?><workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="${REL}"><sheets><sheet name="amounts" sheetId="1" r:id="rId1"/></sheets></workbook>`,
+    { name: 'xl/workbook.xml' },
+  );
   zip.append(
     `<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="${REL}/worksheet" Target="worksheets/sheet1.xml"/><Relationship Id="rId2" Type="${REL}/sharedStrings" Target="sharedStrings.xml"/></Relationships>`,
     { name: 'xl/_rels/workbook.xml.rels' },
@@ -123,8 +132,16 @@ describe('hostile uploads (issue 12)', () => {
     examiner = await signIn(ctx, 'examiner');
     clerk = await signIn(ctx, 'clerk');
     // 6 million one-character strings (the issue's bomb: 30 million in 11.8 MB); the cap is 4 million.
-    await writeXlsx(bomb(), lazy('<worksheet><sheetData>', 1, () => '<row r="1"><c r="A1" t="s"><v>0</v></c></row>', '</sheetData></worksheet>'), lazy('<sst>', 6_000_000, (i) => `<si><t>${i % 10}</t></si>`, '</sst>'));
-    await writeXlsx(tall(), lazy('<worksheet><sheetData>', 2_000_000, (i) => `<row r="${i + 1}"><c r="A${i + 1}"><v>${i + 1}.25</v></c></row>`, '</sheetData></worksheet>'), null);
+    await writeXlsx(
+      bomb(),
+      lazy('<worksheet><sheetData>', 1, () => '<row r="1"><c r="A1" t="s"><v>0</v></c></row>', '</sheetData></worksheet>'),
+      lazy('<sst>', 6_000_000, (i) => `<si><t>${i % 10}</t></si>`, '</sst>'),
+    );
+    await writeXlsx(
+      tall(),
+      lazy('<worksheet><sheetData>', 2_000_000, (i) => `<row r="${i + 1}"><c r="A${i + 1}"><v>${i + 1}.25</v></c></row>`, '</sheetData></worksheet>'),
+      null,
+    );
     // 60 MB of amounts, over the analysis route's 50 MB.
     const line = '1234.56\n';
     fs.writeFileSync(big(), Buffer.alloc(60 * 1024 * 1024, line));
@@ -136,11 +153,14 @@ describe('hostile uploads (issue 12)', () => {
     console.log(log.join('\n'));
   });
 
-  const analyse = (file: string, name: string) => () => examiner.agent.post('/api/analyses/digits').set('X-CSRF-Token', examiner.csrf).attach('file', file, name);
+  const analyse = (file: string, name: string) => () =>
+    examiner.agent.post('/api/analyses/digits').set('X-CSRF-Token', examiner.csrf).attach('file', file, name);
 
   it('refuses a shared-strings bomb on the analysis route with 413 naming the limit, and stays up', async () => {
     const r = await underWatch(ctx, analyse(bomb(), 'bomb.xlsx'));
-    log.push(`bomb → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`);
+    log.push(
+      `bomb → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`,
+    );
     expect(r.res.status).toBe(413);
     expect(r.res.body.error).toMatch(/^bomb\.xlsx: .*more than 4,000,000 different texts.*Split the data into several smaller files/);
     expect(r.res.body.limit).toBe('maxSharedStrings');
@@ -151,7 +171,9 @@ describe('hostile uploads (issue 12)', () => {
 
   it('refuses the same bomb as a batch workbook with 422 naming the limit, nothing stored', async () => {
     const r = await underWatch(ctx, () => clerk.agent.post('/api/batches').set('X-CSRF-Token', clerk.csrf).attach('file', bomb(), 'bomb.xlsx'));
-    log.push(`bomb → batches: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`);
+    log.push(
+      `bomb → batches: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`,
+    );
     expect(r.res.status).toBe(422);
     expect(r.res.body.errors[0]).toMatchObject({ file: 'bomb.xlsx', message: expect.stringMatching(/more than 4,000,000 different texts/) });
     expect(r.growthMb).toBeLessThan(SERVER_BUDGET_MB - RESTING_SERVER_MB);
@@ -162,7 +184,9 @@ describe('hostile uploads (issue 12)', () => {
 
   it('refuses a 2-million-row sheet with 413 at the row limit, and stays up', async () => {
     const r = await underWatch(ctx, analyse(tall(), 'tall.xlsx'));
-    log.push(`2,000,000 rows → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`);
+    log.push(
+      `2,000,000 rows → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`,
+    );
     expect(r.res.status).toBe(413);
     expect(r.res.body.error).toMatch(/tall\.xlsx, sheet "amounts" has more than 1,048,576 rows.*Split/);
     expect(r.growthMb).toBeLessThan(SERVER_BUDGET_MB - RESTING_SERVER_MB);
@@ -173,7 +197,9 @@ describe('hostile uploads (issue 12)', () => {
     const spool = path.resolve(__dirname, '..', '..', '.data', 'uploads');
     const mine = () => (fs.existsSync(spool) ? fs.readdirSync(spool).filter((n) => n.startsWith(`${process.pid}-`)) : []);
     const r = await underWatch(ctx, analyse(big(), 'big.csv'));
-    log.push(`60 MB → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`);
+    log.push(
+      `60 MB → analyses: ${r.res.status} in ${r.seconds.toFixed(1)} s (CPU ${r.cpuSeconds.toFixed(1)} s), RSS growth ${r.growthMb} MB, ${r.healthStatuses.length} health answers`,
+    );
     expect(r.res.status).toBe(413);
     expect(r.res.body.error).toMatch(/larger than 50 MB.*Split/);
     expect(r.growthMb).toBeLessThan(SERVER_BUDGET_MB - RESTING_SERVER_MB);
@@ -192,12 +218,19 @@ describe('hostile uploads (issue 12)', () => {
       expect({ url, status: res.status }).toEqual({ url, status: 400 });
       expect(res.body.error).toMatch(/not a readable multipart form/);
     }
-    const noBoundary = await examiner.agent.post('/api/analyses/digits').set('X-CSRF-Token', examiner.csrf).set('Content-Type', 'multipart/form-data').send('x');
+    const noBoundary = await examiner.agent
+      .post('/api/analyses/digits')
+      .set('X-CSRF-Token', examiner.csrf)
+      .set('Content-Type', 'multipart/form-data')
+      .send('x');
     expect(noBoundary.status).toBe(400);
   });
 
   it('answers a file named .xlsx that is not a workbook with a clear 422', async () => {
-    const res = await examiner.agent.post('/api/analyses/digits').set('X-CSRF-Token', examiner.csrf).attach('file', Buffer.from('amount\n1.00\n'), 'amounts.xlsx');
+    const res = await examiner.agent
+      .post('/api/analyses/digits')
+      .set('X-CSRF-Token', examiner.csrf)
+      .attach('file', Buffer.from('amount\n1.00\n'), 'amounts.xlsx');
     expect(res.status).toBe(422);
     expect(res.body.error).toMatch(/"amounts\.xlsx" is named \.xlsx but is a text file\. .*save it as an Excel Workbook/);
     // A ZIP that is no workbook (a cut-off file): still 422, with the reason.

@@ -51,7 +51,10 @@ describe('the daily pass', () => {
   async function requestSent(due: string) {
     const { caseId } = await caseInReview(ctx.dataSource, examiner);
     const to = uniqueAddress();
-    const res = await examiner.agent.post(`/api/cases/${caseId}/document-requests`).set('X-CSRF-Token', examiner.csrf).send({ items: ITEMS, dueDate: due, email: to });
+    const res = await examiner.agent
+      .post(`/api/cases/${caseId}/document-requests`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ items: ITEMS, dueDate: due, email: to });
     expect(res.status).toBe(201);
     return { caseId, to, token: tokenIn((await waitForMail(to)).text) };
   }
@@ -98,11 +101,14 @@ describe('the daily pass', () => {
     expect(letters.items.map((l) => l.kind).sort()).toEqual(['document_request', 'reminder']);
     // The office copy keeps the link masked.
     const reminderLetter = letters.items.find((l) => l.kind === 'reminder')!;
-    const office = await examiner.agent.get(`/api/cases/${caseId}/letters/${reminderLetter.id}/pdf`).buffer(true).parse((res, cb) => {
-      const chunks: Buffer[] = [];
-      res.on('data', (c: Buffer) => chunks.push(c));
-      res.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const office = await examiner.agent
+      .get(`/api/cases/${caseId}/letters/${reminderLetter.id}/pdf`)
+      .buffer(true)
+      .parse((res, cb) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (c: Buffer) => chunks.push(c));
+        res.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(office.status).toBe(200);
     expect(pdfText(office.body as Buffer)).not.toContain(fresh);
   });
@@ -120,7 +126,12 @@ describe('the daily pass', () => {
     expect(r.deadlineWarnings).toBeGreaterThanOrEqual(1);
     const d = CaseDetailSchema.parse((await examiner.agent.get(`/api/cases/${caseId}`)).body);
     expect(d.state).toBe('in_review');
-    expect(d.history.at(-1)).toMatchObject({ kind: 'reply-overdue', fromState: 'awaiting_reply', toState: 'in_review', summary: `No reply by ${longDate(due)}; the case is back in review` });
+    expect(d.history.at(-1)).toMatchObject({
+      kind: 'reply-overdue',
+      fromState: 'awaiting_reply',
+      toState: 'in_review',
+      summary: `No reply by ${longDate(due)}; the case is back in review`,
+    });
     const letters = LetterListSchema.parse((await examiner.agent.get(`/api/cases/${caseId}/letters`)).body);
     expect(letters.items[0].documentRequest?.state).toBe('expired');
 
@@ -146,7 +157,7 @@ describe('the daily pass', () => {
     expect(day[0].result.requestsExpired).toBe(r.requestsExpired);
   });
 
-  it('is the supervisor\'s to run', async () => {
+  it("is the supervisor's to run", async () => {
     expect((await examiner.agent.post('/api/housekeeping/run').set('X-CSRF-Token', examiner.csrf)).status).toBe(403);
   });
 

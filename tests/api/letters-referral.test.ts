@@ -39,7 +39,11 @@ describe('referral memos', () => {
 
   it('writes the memo with facts, masked TIN, score breakdown, digit chart and notes, and refers the case', async () => {
     const { caseId, taxpayerId } = await caseInReview(ctx.dataSource, examiner);
-    await ctx.dataSource.query(`INSERT INTO case_note (case_id, author_id, text) VALUES ($1, $2, $3)`, [caseId, examiner.user.id, 'Spoke with the preparer; the wage statement from Harrow Mills was not on the return.']);
+    await ctx.dataSource.query(`INSERT INTO case_note (case_id, author_id, text) VALUES ($1, $2, $3)`, [
+      caseId,
+      examiner.user.id,
+      'Spoke with the preparer; the wage statement from Harrow Mills was not on the return.',
+    ]);
     const res = await refer(examiner, caseId, { unit: 'income-matching', summary: SUMMARY });
     expect(res.status).toBe(201);
     expect(res.body.caseState).toBe('referred');
@@ -50,7 +54,9 @@ describe('referral memos', () => {
     expect(c.outcome).toBe(`Referred to the Cross-Check Team: ${SUMMARY}`);
     expect(c.closed_at).not.toBeNull();
     const ev = await ctx.dataSource.query(`SELECT from_state, to_state, detail FROM case_event WHERE case_id = $1 AND kind = 'referral'`, [caseId]);
-    expect(ev).toEqual([{ from_state: 'in_review', to_state: 'referred', detail: expect.objectContaining({ letterId: res.body.letter.id, unit: 'income-matching' }) }]);
+    expect(ev).toEqual([
+      { from_state: 'in_review', to_state: 'referred', detail: expect.objectContaining({ letterId: res.body.letter.id, unit: 'income-matching' }) },
+    ]);
 
     const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(binary);
     expect(pdf.status).toBe(200);
@@ -92,13 +98,18 @@ describe('referral memos', () => {
     expect(text).toContain('Moved (from assigned to in review)');
 
     // The whole memo was logged when it was opened.
-    const log = await ctx.dataSource.query(`SELECT action, record_type, taxpayer_id FROM access_log WHERE user_id = $1 AND record_type = 'letter'`, [examiner.user.id]);
+    const log = await ctx.dataSource.query(`SELECT action, record_type, taxpayer_id FROM access_log WHERE user_id = $1 AND record_type = 'letter'`, [
+      examiner.user.id,
+    ]);
     expect(log).toEqual([{ action: 'view', record_type: 'letter', taxpayer_id: taxpayerId }]);
   });
 
   it('refers a case awaiting a reply, and refuses a finished case', async () => {
     const { caseId } = await caseInReview(ctx.dataSource, examiner);
-    const sent = await examiner.agent.post(`/api/cases/${caseId}/document-requests`).set('X-CSRF-Token', examiner.csrf).send({ items: ['Receipts for 2024'], dueDate: dueIn(), email: uniqueAddress() });
+    const sent = await examiner.agent
+      .post(`/api/cases/${caseId}/document-requests`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ items: ['Receipts for 2024'], dueDate: dueIn(), email: uniqueAddress() });
     expect(sent.status).toBe(201);
     const res = await refer(examiner, caseId, { summary: SUMMARY });
     expect(res.status).toBe(201);

@@ -79,7 +79,7 @@ describe('wording of the documents', () => {
     expect(res.body.warnings).toEqual([{ item: 1, words: ['risk', 'pattern'] }]);
   });
 
-  it('the referral memo carries the short caution in full, licensed professional practice, and the unit\'s own name', async () => {
+  it("the referral memo carries the short caution in full, licensed professional practice, and the unit's own name", async () => {
     const { caseId } = await caseInReview(ctx.dataSource, examiner);
     const res = await examiner.agent
       .post(`/api/cases/${caseId}/referral`)

@@ -36,7 +36,8 @@ describe('document requests', () => {
     await ctx.close();
   });
 
-  const send = (who: SignedIn, caseId: string, body: object) => who.agent.post(`/api/cases/${caseId}/document-requests`).set('X-CSRF-Token', who.csrf).send(body);
+  const send = (who: SignedIn, caseId: string, body: object) =>
+    who.agent.post(`/api/cases/${caseId}/document-requests`).set('X-CSRF-Token', who.csrf).send(body);
 
   it('mails the letter with its PDF, keeps it with the case and moves the case to awaiting reply', async () => {
     const to = uniqueAddress();
@@ -45,7 +46,12 @@ describe('document requests', () => {
     const res = await send(examiner, caseId, { items: ITEMS, dueDate, email: to });
     expect(res.status).toBe(201);
     expect(res.body.caseState).toBe('awaiting_reply');
-    expect(res.body.letter).toMatchObject({ kind: 'document_request', recipient: to, caseId, documentRequest: { items: ITEMS, dueDate, state: 'sent', uploads: [] } });
+    expect(res.body.letter).toMatchObject({
+      kind: 'document_request',
+      recipient: to,
+      caseId,
+      documentRequest: { items: ITEMS, dueDate, state: 'sent', uploads: [] },
+    });
 
     // The mail: to the given address, from the office, with the PDF attached.
     const mail = await waitForMail(to);
@@ -73,7 +79,8 @@ describe('document requests', () => {
     expect(text).toContain('+44 1632 960 418');
     expect(text).toContain('Test examiner');
     // …and nothing that reads as suspicion or names the screening.
-    for (const word of [/risk/i, /score/i, /digit/i, /benford/i, /suspic/i, /fraud/i, /penalt/i, /evasion/i, /irregular/i]) expect({ word: String(word), found: word.test(text) }).toEqual({ word: String(word), found: false });
+    for (const word of [/risk/i, /score/i, /digit/i, /benford/i, /suspic/i, /fraud/i, /penalt/i, /evasion/i, /irregular/i])
+      expect({ word: String(word), found: word.test(text) }).toEqual({ word: String(word), found: false });
 
     // Kept with the case: the office copy has the link masked; the mailed copy's hash is on record.
     const row = (await ctx.dataSource.query(`SELECT sha256, sent_sha256, recipient, message_id FROM letter WHERE case_id = $1`, [caseId]))[0];
@@ -82,11 +89,14 @@ describe('document requests', () => {
     const list = await examiner.agent.get(`/api/cases/${caseId}/letters`);
     expect(list.status).toBe(200);
     expect(list.body.items).toHaveLength(1);
-    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const pdf = await examiner.agent
+      .get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(pdf.status).toBe(200);
     expect(pdf.headers['content-type']).toBe('application/pdf');
     const office = pdf.body as Buffer;
@@ -103,10 +113,21 @@ describe('document requests', () => {
     // The case moved through the workflow, with its event, due date and access-log line.
     const c = (await ctx.dataSource.query(`SELECT state, due_date::text AS due FROM exam_case WHERE id = $1`, [caseId]))[0];
     expect(c).toEqual({ state: 'awaiting_reply', due: dueDate });
-    const ev = await ctx.dataSource.query(`SELECT kind, from_state, to_state, actor_id, detail FROM case_event WHERE case_id = $1 AND kind = 'document-request'`, [caseId]);
+    const ev = await ctx.dataSource.query(
+      `SELECT kind, from_state, to_state, actor_id, detail FROM case_event WHERE case_id = $1 AND kind = 'document-request'`,
+      [caseId],
+    );
     expect(ev).toHaveLength(1);
-    expect(ev[0]).toMatchObject({ from_state: 'in_review', to_state: 'awaiting_reply', actor_id: examiner.user.id, detail: { letterId: res.body.letter.id, dueDate } });
-    const log = await ctx.dataSource.query(`SELECT action, route, detail FROM access_log WHERE record_id = $1 AND user_id = $2 ORDER BY id`, [caseId, examiner.user.id]);
+    expect(ev[0]).toMatchObject({
+      from_state: 'in_review',
+      to_state: 'awaiting_reply',
+      actor_id: examiner.user.id,
+      detail: { letterId: res.body.letter.id, dueDate },
+    });
+    const log = await ctx.dataSource.query(`SELECT action, route, detail FROM access_log WHERE record_id = $1 AND user_id = $2 ORDER BY id`, [
+      caseId,
+      examiner.user.id,
+    ]);
     expect(log).toEqual(
       expect.arrayContaining([
         { action: 'change', route: `POST /api/cases/${caseId}/document-requests`, detail: 'in_review → awaiting_reply' },
@@ -159,7 +180,7 @@ describe('document requests', () => {
     expect((await send(examiner, caseId, { items: ITEMS, dueDate: addDays(isoToday(), 90), email: uniqueAddress() })).status).toBe(201);
   });
 
-  it('lets only the case\'s examiner or a supervisor send, and only while the case is in review', async () => {
+  it("lets only the case's examiner or a supervisor send, and only while the case is in review", async () => {
     const { caseId } = await caseInReview(ctx.dataSource, examiner);
     const other = await send(examiner2, caseId, { items: ITEMS, dueDate: dueIn(), email: uniqueAddress() });
     expect(other.status).toBe(403);
@@ -198,10 +219,16 @@ describe('document requests', () => {
       const agent = request.agent(app);
       const login = await agent.post('/api/auth/login').send({ username: examiner.user.username, password: examiner.password });
       expect(login.status).toBe(200);
-      const res = await agent.post(`/api/cases/${caseId}/document-requests`).set('X-CSRF-Token', login.body.csrfToken).send({ items: ITEMS, dueDate: dueIn(), email: uniqueAddress() });
+      const res = await agent
+        .post(`/api/cases/${caseId}/document-requests`)
+        .set('X-CSRF-Token', login.body.csrfToken)
+        .send({ items: ITEMS, dueDate: dueIn(), email: uniqueAddress() });
       expect(res.status).toBe(502);
       expect(res.body.error).toMatch(/could not be sent.*Nothing was saved and the case has not moved/);
-      expect(logged).toHaveBeenCalledWith(expect.stringMatching(/^\[letters\] sending document request DR-[0-9A-F]{8} failed:/), expect.stringContaining('ECONNREFUSED'));
+      expect(logged).toHaveBeenCalledWith(
+        expect.stringMatching(/^\[letters\] sending document request DR-[0-9A-F]{8} failed:/),
+        expect.stringContaining('ECONNREFUSED'),
+      );
     } finally {
       logged.mockRestore();
       mailer.close();
@@ -225,10 +252,19 @@ describe('document requests', () => {
     expect(pdf.status).toBe(200);
     expect(pdf.headers['cache-control']).toBe('private, no-store');
     expect(pdf.headers['content-disposition']).toMatch(/^inline; filename="request-for-records-DR-/);
-    const log = await ctx.dataSource.query(`SELECT action, record_type, record_id, detail, taxpayer_label FROM access_log WHERE user_id = $1 AND action = 'view' ORDER BY id`, [examiner2.user.id]);
+    const log = await ctx.dataSource.query(
+      `SELECT action, record_type, record_id, detail, taxpayer_label FROM access_log WHERE user_id = $1 AND action = 'view' ORDER BY id`,
+      [examiner2.user.id],
+    );
     expect(log).toEqual([
       expect.objectContaining({ action: 'view', record_type: 'case', record_id: caseId, detail: 'letters' }),
-      expect.objectContaining({ action: 'view', record_type: 'letter', record_id: letterId, detail: 'document_request PDF', taxpayer_label: expect.stringMatching(/^••• ••• \d{3}$/) }),
+      expect.objectContaining({
+        action: 'view',
+        record_type: 'letter',
+        record_id: letterId,
+        detail: 'document_request PDF',
+        taxpayer_label: expect.stringMatching(/^••• ••• \d{3}$/),
+      }),
     ]);
     const admin = await signIn(ctx, 'admin');
     expect((await admin.agent.get(`/api/cases/${caseId}/letters`)).status).toBe(403);

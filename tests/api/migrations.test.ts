@@ -2,15 +2,17 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { createDataSource, runMigrations } from '../../server/db/data-source';
 import { migrations } from '../../server/db/migrations';
-import { createTestDatabase } from '../helpers/test-db';
-import { testCluster } from '../helpers/test-db';
+import { createTestDatabase, testCluster } from '../helpers/test-db';
 import { Client } from 'pg';
 
 const dir = path.join(__dirname, '..', '..', 'server', 'db', 'migrations');
 
 describe('migrations', () => {
   it('registers every migration file in server/db/migrations/index.ts, in time order', () => {
-    const files = fs.readdirSync(dir).filter((f) => /^\d+-.+\.ts$/.test(f)).sort();
+    const files = fs
+      .readdirSync(dir)
+      .filter((f) => /^\d+-.+\.ts$/.test(f))
+      .sort();
     const names = migrations.map((m) => m.name);
     expect(names.length).toBe(files.length);
     const stamps = files.map((f) => f.split('-')[0]);
@@ -31,12 +33,14 @@ describe('migrations', () => {
       expect(applied).toHaveLength(migrations.length);
       expect(await ds.showMigrations()).toBe(false);
       for (const meta of ds.entityMetadatas) {
-        const cols = await ds.query(
-          `SELECT column_name FROM information_schema.columns WHERE table_schema = 'public' AND table_name = $1`,
-          [meta.tableName],
-        );
+        const cols = await ds.query(`SELECT column_name FROM information_schema.columns WHERE table_schema = 'public' AND table_name = $1`, [meta.tableName]);
         const have = new Set(cols.map((r: { column_name: string }) => r.column_name));
-        for (const col of meta.columns) expect({ table: meta.tableName, column: col.databaseName, present: have.has(col.databaseName) }).toEqual({ table: meta.tableName, column: col.databaseName, present: true });
+        for (const col of meta.columns)
+          expect({ table: meta.tableName, column: col.databaseName, present: have.has(col.databaseName) }).toEqual({
+            table: meta.tableName,
+            column: col.databaseName,
+            present: true,
+          });
       }
       // And every migration can be undone, newest first, leaving no table behind.
       for (let i = 0; i < migrations.length; i++) await ds.undoLastMigration({ transaction: 'each' });

@@ -48,10 +48,14 @@ describe('letters of random review cases', () => {
     const pdf = (mail.attachments ?? []).find((a) => a.contentType === 'application/pdf')!;
     const own = (s: string) =>
       s
-        .split(row.name).join('<taxpayer>')
-        .split(row.return_ref).join('<return>')
-        .split(String(row.tax_year)).join('<year>')
-        .split(to).join('<email>')
+        .split(row.name)
+        .join('<taxpayer>')
+        .split(row.return_ref)
+        .join('<return>')
+        .split(String(row.tax_year))
+        .join('<year>')
+        .split(to)
+        .join('<email>')
         .replace(/https?:\/\/\S+/g, '<link>')
         .replace(/\b[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}\b/gi, '<id>')
         .replace(/\b[A-Z]{2,}-[0-9A-Z-]{4,}\b/g, '<ref>')

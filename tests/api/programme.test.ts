@@ -43,7 +43,9 @@ describe('programme', () => {
     expect(run.seed).toMatch(/^[0-9a-f]{32}$/);
     expect(run.rate).toBeCloseTo(4 / run.candidates, 12);
     // Scored cases are still exactly the selected returns.
-    const [{ sel }] = await ctx.dataSource.query(`SELECT count(*)::int AS sel FROM return_score WHERE batch_id = $1 AND (breakdown->>'selected')::boolean`, [b.batchId]);
+    const [{ sel }] = await ctx.dataSource.query(`SELECT count(*)::int AS sel FROM return_score WHERE batch_id = $1 AND (breakdown->>'selected')::boolean`, [
+      b.batchId,
+    ]);
     const [{ cases }] = await ctx.dataSource.query(`SELECT count(*)::int AS cases FROM exam_case WHERE batch_id = $1 AND selection = 'score'`, [b.batchId]);
     expect(cases).toBe(sel);
     // The opening event says so.
@@ -70,7 +72,7 @@ describe('programme', () => {
     expect(d.history[0].summary).toMatch(/^Opened for random review/);
   });
 
-  it('GET /api/programme/controls lists the batch\'s random cases for a supervisor; 403 for an examiner', async () => {
+  it("GET /api/programme/controls lists the batch's random cases for a supervisor; 403 for an examiner", async () => {
     const rnd = await randomCases();
     const res = await supervisor.agent.get(`/api/programme/controls?batch=${b.batchId}`);
     expect(res.status).toBe(200);
@@ -92,15 +94,25 @@ describe('programme', () => {
     // Fixture: 12 selected cases closed (6 adjusted: 100 … 600), one selected case referred, and
     // 10 random cases closed (2 adjusted: 50 and 150): the 4 drawn plus 6 more marked random here.
     const rnd = (await randomCases()).map((r) => r.id);
-    const sel: string[] = (await ctx.dataSource.query(`SELECT id FROM exam_case WHERE batch_id = $1 AND selection = 'score' ORDER BY id LIMIT 19`, [b.batchId])).map((r: { id: string }) => r.id);
+    const sel: string[] = (
+      await ctx.dataSource.query(`SELECT id FROM exam_case WHERE batch_id = $1 AND selection = 'score' ORDER BY id LIMIT 19`, [b.batchId])
+    ).map((r: { id: string }) => r.id);
     const extra = sel.slice(13, 19);
     await ctx.dataSource.query(`UPDATE exam_case SET selection = 'random' WHERE id = ANY($1::uuid[])`, [extra]);
     const random = [...rnd, ...extra];
     const close = (id: string, state: string, amount: string | null, at: string) =>
-      ctx.dataSource.query(`UPDATE exam_case SET state = $2, adjusted_amount = $3, outcome = 'fixture', assignee_id = $4, closed_at = $5 WHERE id = $1`, [id, state, amount, ivo.user.id, at]);
-    for (let i = 0; i < 12; i++) await close(sel[i], i < 6 ? 'closed_adjusted' : 'closed_no_change', i < 6 ? `${(i + 1) * 100}.00` : null, '2026-03-03T10:00:00Z');
+      ctx.dataSource.query(`UPDATE exam_case SET state = $2, adjusted_amount = $3, outcome = 'fixture', assignee_id = $4, closed_at = $5 WHERE id = $1`, [
+        id,
+        state,
+        amount,
+        ivo.user.id,
+        at,
+      ]);
+    for (let i = 0; i < 12; i++)
+      await close(sel[i], i < 6 ? 'closed_adjusted' : 'closed_no_change', i < 6 ? `${(i + 1) * 100}.00` : null, '2026-03-03T10:00:00Z');
     await close(sel[12], 'referred', null, '2026-03-04T10:00:00Z');
-    for (let i = 0; i < 10; i++) await close(random[i], i < 2 ? 'closed_adjusted' : 'closed_no_change', i === 0 ? '50.00' : i === 1 ? '150.00' : null, '2026-03-10T10:00:00Z');
+    for (let i = 0; i < 10; i++)
+      await close(random[i], i < 2 ? 'closed_adjusted' : 'closed_no_change', i === 0 ? '50.00' : i === 1 ? '150.00' : null, '2026-03-10T10:00:00Z');
 
     const res = await supervisor.agent.get(`/api/programme/outcomes?batch=${b.batchId}&from=2026-03-01&to=2026-03-31`);
     expect(res.status).toBe(200);

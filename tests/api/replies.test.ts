@@ -20,7 +20,7 @@ const PDF = Buffer.concat([Buffer.from('%PDF-1.4\n1 0 obj << /Type /Catalog >> e
 const PNG = Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), randomBytes(3000)]);
 const JPEG = Buffer.concat([Buffer.from([0xff, 0xd8, 0xff, 0xe0]), randomBytes(3000)]);
 
-const ITEMS = ['Receipts for the vehicle expenses claimed for 2024', 'Your employer\'s wage statement for 2024'];
+const ITEMS = ['Receipts for the vehicle expenses claimed for 2024', "Your employer's wage statement for 2024"];
 
 describe('reply links', () => {
   let ctx: TestContext;
@@ -39,7 +39,10 @@ describe('reply links', () => {
   async function requestSent(dueDate = dueIn(21)): Promise<{ caseId: string; token: string; requestId: string; taxpayerId: string }> {
     const { caseId, taxpayerId } = await caseInReview(ctx.dataSource, examiner);
     const to = uniqueAddress();
-    const res = await examiner.agent.post(`/api/cases/${caseId}/document-requests`).set('X-CSRF-Token', examiner.csrf).send({ items: ITEMS, dueDate, email: to });
+    const res = await examiner.agent
+      .post(`/api/cases/${caseId}/document-requests`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ items: ITEMS, dueDate, email: to });
     expect(res.status).toBe(201);
     const mail = await waitForMail(to);
     const token = /\/reply\/([A-Za-z0-9_-]{43})/.exec(mail.text ?? '')![1];
@@ -58,14 +61,24 @@ describe('reply links', () => {
     const res = await request(ctx.app).get(`/api/replies/${token}`);
     expect(res.status).toBe(200);
     expect(res.headers['cache-control']).toBe('no-store');
-    const facts = (await ctx.dataSource.query(`SELECT t.name, t.tin, c.amount_at_stake::text AS stake, c.risk_score::text AS score FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`, [caseId]))[0];
+    const facts = (
+      await ctx.dataSource.query(
+        `SELECT t.name, t.tin, c.amount_at_stake::text AS stake, c.risk_score::text AS score FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`,
+        [caseId],
+      )
+    )[0];
     expect(res.body).toEqual({
       state: 'open',
       taxpayerName: facts.name,
       items: ITEMS,
       dueDate: due,
       office: expect.objectContaining({ name: 'Aldermere Revenue Office', phone: expect.any(String), email: expect.any(String) }),
-      limits: { maxFiles: REPLY_MAX_FILES, maxFileBytes: REPLY_MAX_FILE_BYTES, maxTotalBytes: expect.any(Number), types: ['application/pdf', 'image/jpeg', 'image/png'] },
+      limits: {
+        maxFiles: REPLY_MAX_FILES,
+        maxFileBytes: REPLY_MAX_FILE_BYTES,
+        maxTotalBytes: expect.any(Number),
+        types: ['application/pdf', 'image/jpeg', 'image/png'],
+      },
     });
     const raw = JSON.stringify(res.body);
     expect(raw).not.toContain(String(facts.tin));
@@ -97,7 +110,10 @@ describe('reply links', () => {
     expect(res.status).toBe(201);
     expect(res.body.received.map((f: { fileName: string }) => f.fileName)).toEqual(['receipts 2024.pdf', 'wage-statement.png', 'fuel.jpeg']);
 
-    const stored = await ctx.dataSource.query(`SELECT file_name, content_type, size, content FROM reply_upload WHERE document_request_id = $1 ORDER BY file_name`, [requestId]);
+    const stored = await ctx.dataSource.query(
+      `SELECT file_name, content_type, size, content FROM reply_upload WHERE document_request_id = $1 ORDER BY file_name`,
+      [requestId],
+    );
     expect(stored.map((s: { file_name: string; content_type: string; size: number }) => [s.file_name, s.content_type, s.size])).toEqual([
       ['fuel.jpeg', 'image/jpeg', JPEG.length],
       ['receipts 2024.pdf', 'application/pdf', PDF.length],
@@ -110,9 +126,15 @@ describe('reply links', () => {
 
     const c = (await ctx.dataSource.query(`SELECT state, due_date FROM exam_case WHERE id = $1`, [caseId]))[0];
     expect(c).toEqual({ state: 'in_review', due_date: null });
-    const ev = await ctx.dataSource.query(`SELECT actor_id, from_state, to_state, detail FROM case_event WHERE case_id = $1 AND kind = 'reply-received'`, [caseId]);
-    expect(ev).toEqual([{ actor_id: null, from_state: 'awaiting_reply', to_state: 'in_review', detail: expect.objectContaining({ documentRequestId: requestId, files: 3 }) }]);
-    const log = await ctx.dataSource.query(`SELECT user_id, action, route, taxpayer_id, detail FROM access_log WHERE action = 'change' AND record_id = $1`, [requestId]);
+    const ev = await ctx.dataSource.query(`SELECT actor_id, from_state, to_state, detail FROM case_event WHERE case_id = $1 AND kind = 'reply-received'`, [
+      caseId,
+    ]);
+    expect(ev).toEqual([
+      { actor_id: null, from_state: 'awaiting_reply', to_state: 'in_review', detail: expect.objectContaining({ documentRequestId: requestId, files: 3 }) },
+    ]);
+    const log = await ctx.dataSource.query(`SELECT user_id, action, route, taxpayer_id, detail FROM access_log WHERE action = 'change' AND record_id = $1`, [
+      requestId,
+    ]);
     expect(log).toEqual([{ user_id: null, action: 'change', route: 'POST /api/replies/:token', taxpayer_id: taxpayerId, detail: 'reply received: 3 files' }]);
 
     // Used up: the page and a second upload say so.
@@ -208,7 +230,10 @@ describe('reply links', () => {
 
     // Four files of 8 MB: each within its limit, together over the total.
     const eight = Buffer.concat([PDF, Buffer.alloc(8 * 1024 * 1024)]);
-    const total = await upload(token, Array.from({ length: 4 }, (_, i) => ({ name: `part-${i}.pdf`, bytes: eight, type: 'application/pdf' })));
+    const total = await upload(
+      token,
+      Array.from({ length: 4 }, (_, i) => ({ name: `part-${i}.pdf`, bytes: eight, type: 'application/pdf' })),
+    );
     expect(total.status).toBe(413);
     expect(total.body.error).toMatch(/together are larger than 30 MB/);
 
@@ -226,7 +251,11 @@ describe('reply links', () => {
     const boundary = `----plumbline-${randomBytes(8).toString('hex')}`;
     const chunks: Buffer[] = [];
     for (const p of parts) {
-      chunks.push(Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="files"; filename="${p.filename}"\r\nContent-Type: ${p.type}\r\n\r\n`), p.bytes, Buffer.from('\r\n'));
+      chunks.push(
+        Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="files"; filename="${p.filename}"\r\nContent-Type: ${p.type}\r\n\r\n`),
+        p.bytes,
+        Buffer.from('\r\n'),
+      );
     }
     chunks.push(Buffer.from(`--${boundary}--\r\n`));
     return { body: Buffer.concat(chunks), contentType: `multipart/form-data; boundary=${boundary}` };
@@ -316,7 +345,9 @@ describe('reply links', () => {
   it('answers a broken multipart body with 400 and writes no token to the log (issue 12)', async () => {
     const { token } = await requestSent();
     const logged: string[] = [];
-    const spies = (['error', 'warn', 'log'] as const).map((k) => jest.spyOn(console, k).mockImplementation((...args: unknown[]) => void logged.push(args.map(String).join(' '))));
+    const spies = (['error', 'warn', 'log'] as const).map((k) =>
+      jest.spyOn(console, k).mockImplementation((...args: unknown[]) => void logged.push(args.map(String).join(' '))),
+    );
     try {
       const cut = await request(ctx.app)
         .post(`/api/replies/${token}`)
@@ -335,14 +366,20 @@ describe('reply links', () => {
 
   it('accepts exactly one of two replies racing on the same link', async () => {
     const { token, requestId } = await requestSent();
-    const [a, b] = await Promise.all([upload(token, [{ name: 'a.pdf', bytes: PDF, type: 'application/pdf' }]), upload(token, [{ name: 'b.pdf', bytes: PDF, type: 'application/pdf' }])]);
+    const [a, b] = await Promise.all([
+      upload(token, [{ name: 'a.pdf', bytes: PDF, type: 'application/pdf' }]),
+      upload(token, [{ name: 'b.pdf', bytes: PDF, type: 'application/pdf' }]),
+    ]);
     expect([a.status, b.status].sort()).toEqual([201, 410]);
     expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM reply_upload WHERE document_request_id = $1`, [requestId]))[0].n).toBe(1);
   });
 
   it('keeps a reply that arrives after the case moved on, without moving it', async () => {
     const { token, caseId } = await requestSent();
-    const refer = await examiner.agent.post(`/api/cases/${caseId}/referral`).set('X-CSRF-Token', examiner.csrf).send({ summary: 'Handed to field audit before the reply came in.' });
+    const refer = await examiner.agent
+      .post(`/api/cases/${caseId}/referral`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ summary: 'Handed to field audit before the reply came in.' });
     expect(refer.status).toBe(201);
     const res = await upload(token, [{ name: 'late-but-welcome.pdf', bytes: PDF, type: 'application/pdf' }]);
     expect(res.status).toBe(201);
@@ -355,7 +392,10 @@ describe('reply links', () => {
     const back = await examiner.agent.post(`/api/cases/${first.caseId}/transition`).set('X-CSRF-Token', examiner.csrf).send({ to: 'in_review' });
     expect(back.status).toBe(200);
     const to = uniqueAddress();
-    const second = await examiner.agent.post(`/api/cases/${first.caseId}/document-requests`).set('X-CSRF-Token', examiner.csrf).send({ items: ['Bank statements for March 2024'], dueDate: dueIn(30), email: to });
+    const second = await examiner.agent
+      .post(`/api/cases/${first.caseId}/document-requests`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ items: ['Bank statements for March 2024'], dueDate: dueIn(30), email: to });
     expect(second.status).toBe(201);
     const token2 = /\/reply\/([A-Za-z0-9_-]{43})/.exec((await waitForMail(to)).text ?? '')![1];
     const state = async () => (await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [first.caseId]))[0].state;

@@ -19,8 +19,16 @@ describe('user administration', () => {
     await ctx.close();
   });
 
-  const post = (path: string, body: unknown) => admin.agent.post(path).set('X-CSRF-Token', admin.csrf).send(body as object);
-  const patch = (path: string, body: unknown) => admin.agent.patch(path).set('X-CSRF-Token', admin.csrf).send(body as object);
+  const post = (path: string, body: unknown) =>
+    admin.agent
+      .post(path)
+      .set('X-CSRF-Token', admin.csrf)
+      .send(body as object);
+  const patch = (path: string, body: unknown) =>
+    admin.agent
+      .patch(path)
+      .set('X-CSRF-Token', admin.csrf)
+      .send(body as object);
 
   it('creates a user who can then sign in, and refuses a taken name', async () => {
     const res = await post('/api/users', { username: 'maud', displayName: 'Maud F.', role: 'supervisor', password: 'a-long-password' });
@@ -86,12 +94,22 @@ describe('access log', () => {
   });
 
   it('records changes with who and what, and filters by user, action and date', async () => {
-    await admin.agent.post('/api/users').set('X-CSRF-Token', admin.csrf).send({ username: 'nell', displayName: 'Nell Q.', role: 'examiner', password: 'a-long-password' });
+    await admin.agent
+      .post('/api/users')
+      .set('X-CSRF-Token', admin.csrf)
+      .send({ username: 'nell', displayName: 'Nell Q.', role: 'examiner', password: 'a-long-password' });
     const res = await admin.agent.get('/api/access-log').query({ user: 'auditor', action: 'change' });
     expect(res.status).toBe(200);
     const page = AccessLogPageSchema.parse(res.body);
     expect(page.items).toHaveLength(1);
-    expect(page.items[0]).toMatchObject({ username: 'auditor', role: 'admin', action: 'change', route: 'POST /api/users', recordType: 'user', detail: 'created nell as examiner' });
+    expect(page.items[0]).toMatchObject({
+      username: 'auditor',
+      role: 'admin',
+      action: 'change',
+      route: 'POST /api/users',
+      recordType: 'user',
+      detail: 'created nell as examiner',
+    });
     const today = new Date().toISOString().slice(0, 10);
     const dated = AccessLogPageSchema.parse((await admin.agent.get('/api/access-log').query({ from: today, to: today })).body);
     expect(dated.total).toBeGreaterThanOrEqual(2); // the sign-in and the change
@@ -101,7 +119,10 @@ describe('access log', () => {
 
   it('filters by taxpayer (id, or the last digits of the TIN) ', async () => {
     const tp = '11111111-2222-4333-8444-555555555555';
-    await ctx.dataSource.query(`INSERT INTO access_log (user_id, username, role, action, route, record_type, record_id, taxpayer_id, taxpayer_label) VALUES (NULL, 'someone', 'examiner', 'view', 'GET /api/cases/x', 'case', 'x', $1, '••• ••• 789')`, [tp]);
+    await ctx.dataSource.query(
+      `INSERT INTO access_log (user_id, username, role, action, route, record_type, record_id, taxpayer_id, taxpayer_label) VALUES (NULL, 'someone', 'examiner', 'view', 'GET /api/cases/x', 'case', 'x', $1, '••• ••• 789')`,
+      [tp],
+    );
     const byId = AccessLogPageSchema.parse((await admin.agent.get('/api/access-log').query({ taxpayer: tp })).body);
     expect(byId.items.map((i) => i.taxpayerId)).toEqual([tp]);
     const byTin = AccessLogPageSchema.parse((await admin.agent.get('/api/access-log').query({ taxpayer: '123456789' })).body);
@@ -112,7 +133,10 @@ describe('access log', () => {
     const sup = await signIn(ctx, 'supervisor');
     const clerk = await signIn(ctx, 'clerk');
     const b = await loadScoredBatch(ctx.dataSource, { seed: 'access-log-types', returns: 20, plantShare: 0.1 });
-    const added = await sup.agent.post('/api/scoring/profiles').set('X-CSRF-Token', sup.csrf).send({ settings: DEFAULT_SCORING_SETTINGS, note: 'same weights, second version', activate: false });
+    const added = await sup.agent
+      .post('/api/scoring/profiles')
+      .set('X-CSRF-Token', sup.csrf)
+      .send({ settings: DEFAULT_SCORING_SETTINGS, note: 'same weights, second version', activate: false });
     expect(added.status).toBe(201);
     expect((await sup.agent.post(`/api/batches/${b.batchId}/rescore`).set('X-CSRF-Token', sup.csrf).send({ version: added.body.version })).status).toBe(202);
     expect((await clerk.agent.get(`/api/batches/${b.batchId}/report.xlsx`)).status).toBe(200);

@@ -39,7 +39,7 @@ describe('workload and reassignment', () => {
   };
   const rowOf = (w: Awaited<ReturnType<typeof workload>>, id: string) => w.examiners.find((e) => e.examinerId === id)!;
 
-  it('counts each examiner\'s assigned, in-review, awaiting-reply and overdue cases', async () => {
+  it("counts each examiner's assigned, in-review, awaiting-reply and overdue cases", async () => {
     const ids = await openCaseIds(ctx.dataSource, 8);
     await caseInState(ctx.dataSource, ids[0], 'assigned', ivo);
     await caseInState(ctx.dataSource, ids[1], 'assigned', ivo);
@@ -51,7 +51,18 @@ describe('workload and reassignment', () => {
     // One reply is past its due date.
     await ctx.dataSource.query(`UPDATE exam_case SET due_date = current_date - 3 WHERE id = $1`, [ids[4]]);
     const w = await workload();
-    expect(rowOf(w, ivo.user.id)).toEqual({ examinerId: ivo.user.id, username: 'ivo', displayName: 'Ivo Brackley', assigned: 2, inReview: 1, awaitingReply: 2, overdue: 1, open: 5, finished30d: 1, deadlinesNear: 0 });
+    expect(rowOf(w, ivo.user.id)).toEqual({
+      examinerId: ivo.user.id,
+      username: 'ivo',
+      displayName: 'Ivo Brackley',
+      assigned: 2,
+      inReview: 1,
+      awaitingReply: 2,
+      overdue: 1,
+      open: 5,
+      finished30d: 1,
+      deadlinesNear: 0,
+    });
     expect(rowOf(w, nell.user.id)).toMatchObject({ assigned: 0, inReview: 1, awaitingReply: 0, overdue: 0, open: 1, finished30d: 0 });
     expect(w.unassigned).toBe(total - 7);
     expect(w.asOf).toMatch(/^\d{4}-\d{2}-\d{2}$/);
@@ -59,7 +70,7 @@ describe('workload and reassignment', () => {
     expect(w.examiners.map((e) => e.displayName)).toEqual(['Ivo Brackley', 'Nell Quarrender']);
   });
 
-  it('is the supervisor\'s (403 for an examiner) and lists examiners to assign to', async () => {
+  it("is the supervisor's (403 for an examiner) and lists examiners to assign to", async () => {
     expect((await ivo.agent.get('/api/workload')).status).toBe(403);
     const ex = ExaminerListSchema.parse((await ivo.agent.get('/api/examiners')).body);
     expect(ex.items.map((e) => e.displayName)).toEqual(['Ivo Brackley', 'Nell Quarrender']);
@@ -67,7 +78,9 @@ describe('workload and reassignment', () => {
 
   it('reassigns a selection to another examiner; a case not assignable is refused with its reason', async () => {
     const before = await workload();
-    const ivoAssigned = (await ctx.dataSource.query(`SELECT id FROM exam_case WHERE assignee_id = $1 AND state = 'assigned' ORDER BY id`, [ivo.user.id])).map((r: { id: string }) => r.id);
+    const ivoAssigned = (await ctx.dataSource.query(`SELECT id FROM exam_case WHERE assignee_id = $1 AND state = 'assigned' ORDER BY id`, [ivo.user.id])).map(
+      (r: { id: string }) => r.id,
+    );
     // A finished case is refused (a case in review would be handed over: tests/api/case-handover.test.ts).
     const ivoReview = (await ctx.dataSource.query(`SELECT id FROM exam_case WHERE assignee_id = $1 AND state = 'closed_no_change'`, [ivo.user.id]))[0].id;
     expect(ivoAssigned).toHaveLength(2);
@@ -83,10 +96,17 @@ describe('workload and reassignment', () => {
     // The history stays on the case and is visible to whoever opens it.
     const d = CaseDetailSchema.parse((await nell.agent.get(`/api/cases/${ivoAssigned[0]}`)).body);
     expect(d.assignee).toEqual({ id: nell.user.id, name: 'Nell Quarrender' });
-    expect(d.history.map((h) => h.summary)).toEqual([expect.stringMatching(/^Opened by scoring/), 'Ivo Brackley claimed the case', 'Test supervisor reassigned the case from Ivo Brackley to Nell Quarrender']);
+    expect(d.history.map((h) => h.summary)).toEqual([
+      expect.stringMatching(/^Opened by scoring/),
+      'Ivo Brackley claimed the case',
+      'Test supervisor reassigned the case from Ivo Brackley to Nell Quarrender',
+    ]);
     expect(d.actions.canAct).toBe(true);
     // The route the supervisor called, not `POST …/assign` (a route this action never calls).
-    const log = await ctx.dataSource.query(`SELECT user_id, route, detail FROM access_log WHERE record_id = $1 AND user_id = $2 AND action = 'change'`, [ivoAssigned[0], supervisor.user.id]);
+    const log = await ctx.dataSource.query(`SELECT user_id, route, detail FROM access_log WHERE record_id = $1 AND user_id = $2 AND action = 'change'`, [
+      ivoAssigned[0],
+      supervisor.user.id,
+    ]);
     expect(log).toEqual([{ user_id: supervisor.user.id, route: 'POST /api/cases/reassign', detail: 'assigned to Nell Quarrender' }]);
   });
 
@@ -94,7 +114,9 @@ describe('workload and reassignment', () => {
     const ids = await openCaseIds(ctx.dataSource, 3);
     const ok = BulkReassignResultSchema.parse((await post(supervisor, '/api/cases/reassign', { caseIds: ids, assigneeId: ivo.user.id })).body);
     expect(ok).toEqual({ moved: ids, refused: [] });
-    const again = BulkReassignResultSchema.parse((await post(supervisor, '/api/cases/reassign', { caseIds: [ids[0], '00000000-0000-4000-8000-000000000000'], assigneeId: ivo.user.id })).body);
+    const again = BulkReassignResultSchema.parse(
+      (await post(supervisor, '/api/cases/reassign', { caseIds: [ids[0], '00000000-0000-4000-8000-000000000000'], assigneeId: ivo.user.id })).body,
+    );
     expect(again.refused).toEqual([
       { id: ids[0], reason: 'The case is already with Ivo Brackley.' },
       { id: '00000000-0000-4000-8000-000000000000', reason: 'No such case.' },

@@ -15,7 +15,8 @@ describe('DigitChart', () => {
     const t = texts(r);
     for (const d of ['1', '2', '3', '4', '5', '6', '7', '8', '9']) expect(t).toContain(d);
     expect(t).toEqual(expect.arrayContaining(['0%', '10%', '20%', '30%', "Expected (Benford's law)", 'Observed share of leading digit']));
-    const label = r.root.findAll((n) => typeof n.props?.accessibilityLabel === 'string' && n.props.accessibilityLabel.startsWith("This return's amounts"))[0].props.accessibilityLabel as string;
+    const label = r.root.findAll((n) => typeof n.props?.accessibilityLabel === 'string' && n.props.accessibilityLabel.startsWith("This return's amounts"))[0]
+      .props.accessibilityLabel as string;
     expect(label).toContain('Digit 1: 30% observed, 30% expected');
     expect(label).toContain('Digit 9: 4% observed, 5% expected');
   });

@@ -25,7 +25,11 @@ describe('IntervalChart', () => {
         />,
       );
     });
-    expect(r.root.findAll((n) => n.type === ('Rect' as unknown) || (typeof n.type !== 'string' && (n.type as { displayName?: string; name?: string }).name === 'Rect')).length).toBeGreaterThanOrEqual(1);
+    expect(
+      r.root.findAll(
+        (n) => n.type === ('Rect' as unknown) || (typeof n.type !== 'string' && (n.type as { displayName?: string; name?: string }).name === 'Rect'),
+      ).length,
+    ).toBeGreaterThanOrEqual(1);
     const l = label(r, 'Adjustment rate');
     expect(l).toContain('Selected: Rate 60% (95 % interval 48% to 72%)');
     expect(l).toContain('Random: Rate not enough closed cases yet');

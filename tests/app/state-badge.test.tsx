@@ -15,7 +15,14 @@ function contrast(a: string, b: string): number {
   return (hi + 0.05) / (lo + 0.05);
 }
 
-const TONE: Record<string, string> = { ink: colours.ink, brass: colours.brassInk, warn: colours.warn, ok: colours.ok, alert: colours.alert, soft: colours.inkSoft };
+const TONE: Record<string, string> = {
+  ink: colours.ink,
+  brass: colours.brassInk,
+  warn: colours.warn,
+  ok: colours.ok,
+  alert: colours.alert,
+  soft: colours.inkSoft,
+};
 
 describe('StateBadge', () => {
   it('shows a referred case in a neutral colour, never the alert red (a referral is no verdict)', async () => {

@@ -142,7 +142,13 @@ describe('errors: one clear line on stderr, exit code 2', () => {
   it.each([
     ['a comma decimal, naming the line', 'bad.txt', '1.00\n2.00\n12,5\n', [], /^digits: bad\.txt: Amount at line 3 \("12,5"\) contains a comma/],
     ['an exponent', 'exp.txt', '1e21\n', [], /^digits: exp\.txt: Amount at line 1 \("1e21"\) is in exponent notation/],
-    ['3 decimals in a CSV cell, naming line and column', 'bad.csv', 'amount\n1.00\n2.005\n', [], /^digits: bad\.csv: Amount at line 3, column "amount" \("2\.005"\) has more than 2 decimals/],
+    [
+      '3 decimals in a CSV cell, naming line and column',
+      'bad.csv',
+      'amount\n1.00\n2.005\n',
+      [],
+      /^digits: bad\.csv: Amount at line 3, column "amount" \("2\.005"\) has more than 2 decimals/,
+    ],
     ['an unknown column', 'cols.csv', 'a,b\n1,2\n', ['--column', 'amount'], /^digits: cols\.csv has no column "amount" \(columns: "a", "b"\)/],
     ['several columns and no --column', 'many.csv', 'a,b\n1,2\n', [], /^digits: many\.csv has several columns \("a", "b"\); choose one with --column NAME/],
     ['--column on a text file', 'plain.txt', '1\n', ['--column', 'x'], /^digits: --column applies to CSV and XLSX files/],

@@ -89,7 +89,10 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       await expectNoSeriousAxeViolations(page, `about ${size}`);
 
       await page.goto(base + '/queue?state=all', { waitUntil: 'networkidle' });
-      await page.locator(`[data-testid^="${wide ? 'queue-row-' : 'queue-card-'}"]`).first().waitFor();
+      await page
+        .locator(`[data-testid^="${wide ? 'queue-row-' : 'queue-card-'}"]`)
+        .first()
+        .waitFor();
       if (!wide) await page.getByTestId('queue-filters-toggle').click();
       await page.getByTestId('queue-more').click();
       await page.getByTestId('queue-activity').waitFor();
@@ -143,7 +146,10 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       page.on('pageerror', (e) => errors.push(e.message));
       await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
       await page.waitForURL((u) => u.pathname === '/queue', { timeout: WAIT_MS });
-      await page.locator(`[data-testid^="${wide ? 'queue-row-' : 'queue-card-'}"]`).first().waitFor();
+      await page
+        .locator(`[data-testid^="${wide ? 'queue-row-' : 'queue-card-'}"]`)
+        .first()
+        .waitFor();
       await expectNoSeriousAxeViolations(page, `queue (examiner) ${size}`);
 
       await page.goto(`${s.server.baseUrl}/cases/${nextCase()}`, { waitUntil: 'networkidle' });

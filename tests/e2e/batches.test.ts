@@ -18,7 +18,16 @@ function badFiles(tag: string): string[] {
   const returns = path.join(dir, 'returns.csv');
   const lines = path.join(dir, 'line_items.csv');
   fs.writeFileSync(returns, csv([RETURNS_HEADER, `${tag}-1,012345678,2024,Maud Fennick,retail,PRP-0001,,`, `${tag}-2,12345678,2024,Ivo Brackley,bakery,,,`]));
-  fs.writeFileSync(lines, csv([LINES_HEADER, `${tag}-1,inc.business.receipts,52000.00`, `${tag}-1,exp.business.supplies,"1,200.50"`, `${tag}-1,tot.income,50799.50`, `${tag}-9,inc.wages,10`]));
+  fs.writeFileSync(
+    lines,
+    csv([
+      LINES_HEADER,
+      `${tag}-1,inc.business.receipts,52000.00`,
+      `${tag}-1,exp.business.supplies,"1,200.50"`,
+      `${tag}-1,tot.income,50799.50`,
+      `${tag}-9,inc.wages,10`,
+    ]),
+  );
   return [returns, lines];
 }
 

@@ -97,7 +97,11 @@ describe('case work (browser)', () => {
       await waitForText(factors.first(), /^\+\d+\.\d/);
       const chart = page.getByTestId('digit-chart-return').locator('svg').first();
       await chart.waitFor();
-      for (const d of ['1', '2', '3', '4', '5', '6', '7', '8', '9']) await chart.locator('text', { hasText: new RegExp(`^${d}$`) }).first().waitFor();
+      for (const d of ['1', '2', '3', '4', '5', '6', '7', '8', '9'])
+        await chart
+          .locator('text', { hasText: new RegExp(`^${d}$`) })
+          .first()
+          .waitFor();
       await waitForCount(page.getByTestId('letters-panel'), 1);
       await screenshot(page, `case-${name}`);
       await screenshotWhole(page, `case-whole-${name}`);

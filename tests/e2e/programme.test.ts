@@ -45,7 +45,13 @@ describe('programme screen (supervisor, browser)', () => {
         const week = rng.int(0, 9);
         await ds.query(
           `UPDATE exam_case SET state = $2, outcome = 'Invented outcome for the browser test', adjusted_amount = $3, assignee_id = $4, closed_at = now() - make_interval(days => $5) WHERE id = $1`,
-          [c.id, adjusted ? 'closed_adjusted' : 'closed_no_change', adjusted ? (rng.logNormal(900, 0.8)).toFixed(2) : null, users[rng.int(0, users.length - 1)].id, week * 7 + rng.int(0, 4)],
+          [
+            c.id,
+            adjusted ? 'closed_adjusted' : 'closed_no_change',
+            adjusted ? rng.logNormal(900, 0.8).toFixed(2) : null,
+            users[rng.int(0, users.length - 1)].id,
+            week * 7 + rng.int(0, 4),
+          ],
         );
       }
     } finally {
@@ -81,7 +87,7 @@ describe('programme screen (supervisor, browser)', () => {
     });
   }
 
-  it('is not in an examiner\'s navigation', async () => {
+  it("is not in an examiner's navigation", async () => {
     const page = await browser.newPage({ viewport: VIEWPORTS.wide });
     await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
     await page.getByRole('link', { name: 'Queue' }).first().waitFor();

@@ -21,7 +21,11 @@ import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 
 jest.setTimeout(180_000);
 
-const ITEMS = ['Receipts for the vehicle expenses claimed for 2024', 'Bank statements for the business account, January to December 2024', 'Your employer\'s wage statement for 2024'];
+const ITEMS = [
+  'Receipts for the vehicle expenses claimed for 2024',
+  'Bank statements for the business account, January to December 2024',
+  "Your employer's wage statement for 2024",
+];
 const PDF = Buffer.concat([Buffer.from('%PDF-1.4\n'), randomBytes(40_000), Buffer.from('\n%%EOF\n')]);
 const PNG = Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), randomBytes(60_000)]);
 
@@ -41,7 +45,10 @@ describe('taxpayer reply page in the browser', () => {
     // No e-mail given: the letter goes to the address on file, which is ours.
     await sendDocumentRequest(
       { dataSource: ds, mailer, publicUrl: server.baseUrl },
-      { actor: { id: examiner.id, username: examiner.username, displayName: examiner.displayName, role: 'examiner' }, route: `POST /api/cases/${caseId}/document-requests` },
+      {
+        actor: { id: examiner.id, username: examiner.username, displayName: examiner.displayName, role: 'examiner' },
+        route: `POST /api/cases/${caseId}/document-requests`,
+      },
       caseId,
       { items: ITEMS, dueDate: dueIn(21) },
     );
@@ -130,10 +137,13 @@ describe('taxpayer reply page in the browser', () => {
       // Coming back to the link: used up.
       await page.unroute('**/api/replies/**');
       await page.goto(`${server.baseUrl}/reply/${r.token}`, { waitUntil: 'networkidle' });
-      await page.getByTestId('reply-used').waitFor().catch(async (e) => {
-        await screenshot(page, `debug-reply-used-${name}`);
-        throw e;
-      });
+      await page
+        .getByTestId('reply-used')
+        .waitFor()
+        .catch(async (e) => {
+          await screenshot(page, `debug-reply-used-${name}`);
+          throw e;
+        });
       await waitForCount(page.getByRole('heading', { name: 'This link has been used' }), 1);
       await screenshot(page, `reply-used-${name}`);
       expect(errors).toEqual([]);
@@ -213,13 +223,18 @@ describe('taxpayer reply page in the browser', () => {
 
       await page.getByTestId('open-referral').click();
       await page.getByTestId('referral-unit-income-matching').click();
-      await page.getByTestId('referral-summary').fill('The receipts do not cover the vehicle expenses claimed; income matching should compare the third-party statements.');
+      await page
+        .getByTestId('referral-summary')
+        .fill('The receipts do not cover the vehicle expenses claimed; income matching should compare the third-party statements.');
       await screenshot(page, `letters-panel-referral-${name}`);
       await page.getByTestId('referral-send').click();
-      await page.getByTestId('letters-notice').waitFor().catch(async (e) => {
-        await screenshot(page, `debug-referral-${name}`);
-        throw e;
-      });
+      await page
+        .getByTestId('letters-notice')
+        .waitFor()
+        .catch(async (e) => {
+          await screenshot(page, `debug-referral-${name}`);
+          throw e;
+        });
       await waitForText(page.getByTestId('case-state'), 'Referred', { exact: true });
       await waitForText(panel, 'For the Cross-Check Team');
       // A finished case offers no more letter forms.

@@ -57,10 +57,13 @@ describe('signing in as each demo role (browser)', () => {
       await page.getByTestId('user-examiner2').waitFor();
       await screenshot(page, `users-${name}`);
       await page.goto(s.server.baseUrl + '/access-log', { waitUntil: 'networkidle' });
-      await page.getByTestId('log-filter-user').waitFor().catch(async (e) => {
-        await screenshot(page, `debug-access-log-${name}`);
-        throw e;
-      });
+      await page
+        .getByTestId('log-filter-user')
+        .waitFor()
+        .catch(async (e) => {
+          await screenshot(page, `debug-access-log-${name}`);
+          throw e;
+        });
       await page.getByTestId('log-filter-user').fill('admin');
       await page.getByTestId('log-filter-apply').click();
       await page.getByText('signed in').first().waitFor();

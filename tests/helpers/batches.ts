@@ -27,7 +27,10 @@ export async function countIntakeRows(ds: DataSource): Promise<Record<string, nu
 }
 
 /** A generated batch as CSV files in a new folder. */
-export async function csvBatch(opts: Partial<GenerateOptions> & { seed: string | number }, format?: { crlf?: boolean; bom?: boolean }): Promise<WrittenBatch & { dir: string }> {
+export async function csvBatch(
+  opts: Partial<GenerateOptions> & { seed: string | number },
+  format?: { crlf?: boolean; bom?: boolean },
+): Promise<WrittenBatch & { dir: string }> {
   const dir = tmpDir();
   const w = await writeCsvBatch(dir, { returns: 40, plantShare: 0.1, ...opts }, format);
   return { ...w, dir };
@@ -48,7 +51,10 @@ export function upload(client: SignedIn, parts: Partial<Record<'file' | 'returns
   let req = client.agent.post('/api/batches').set('X-CSRF-Token', client.csrf);
   for (const [field, part] of Object.entries(parts)) {
     if (!part) continue;
-    req = typeof part === 'string' ? req.attach(field, part) : req.attach(field, Buffer.isBuffer(part.content) ? part.content : Buffer.from(part.content, 'utf8'), part.name);
+    req =
+      typeof part === 'string'
+        ? req.attach(field, part)
+        : req.attach(field, Buffer.isBuffer(part.content) ? part.content : Buffer.from(part.content, 'utf8'), part.name);
   }
   return req;
 }

@@ -126,24 +126,44 @@ export async function waitForText(locator: Locator, expected: string | RegExp, o
 /** Waits until the locator's text no longer contains `text` (e.g. a "Loading…" line has gone). */
 export async function waitForNoText(locator: Locator, text: string, opts: WaitOptions = {}): Promise<string> {
   const timeout = opts.timeout ?? WAIT_MS;
-  return waitUntil(async () => (await locator.textContent({ timeout: Math.min(timeout, 2_000) })) ?? '', (t) => !t.includes(text), `the text of ${locator} to lose ${JSON.stringify(text)}`, timeout);
+  return waitUntil(
+    async () => (await locator.textContent({ timeout: Math.min(timeout, 2_000) })) ?? '',
+    (t) => !t.includes(text),
+    `the text of ${locator} to lose ${JSON.stringify(text)}`,
+    timeout,
+  );
 }
 
 /** Waits until the locator matches exactly `n` elements (0 waits for them to go). */
 export async function waitForCount(locator: Locator, n: number, opts: WaitOptions = {}): Promise<number> {
-  return waitUntil(() => locator.count(), (c) => c === n, `${locator} to match ${n} element(s)`, opts.timeout ?? WAIT_MS);
+  return waitUntil(
+    () => locator.count(),
+    (c) => c === n,
+    `${locator} to match ${n} element(s)`,
+    opts.timeout ?? WAIT_MS,
+  );
 }
 
 /** Waits until an input's value matches (string: equal; RegExp: tested). */
 export async function waitForValue(locator: Locator, expected: string | RegExp, opts: WaitOptions = {}): Promise<string> {
   const timeout = opts.timeout ?? WAIT_MS;
-  return waitUntil(() => locator.inputValue({ timeout: Math.min(timeout, 2_000) }), (v) => matchesText(v, expected, true), `the value of ${locator} to be ${String(expected)}`, timeout);
+  return waitUntil(
+    () => locator.inputValue({ timeout: Math.min(timeout, 2_000) }),
+    (v) => matchesText(v, expected, true),
+    `the value of ${locator} to be ${String(expected)}`,
+    timeout,
+  );
 }
 
 /** Waits until an attribute of the locator's element has the value given (null: absent). */
 export async function waitForAttribute(locator: Locator, name: string, expected: string | null, opts: WaitOptions = {}): Promise<string | null> {
   const timeout = opts.timeout ?? WAIT_MS;
-  return waitUntil(() => locator.getAttribute(name, { timeout: Math.min(timeout, 2_000) }), (v) => v === expected, `${name} of ${locator} to be ${JSON.stringify(expected)}`, timeout);
+  return waitUntil(
+    () => locator.getAttribute(name, { timeout: Math.min(timeout, 2_000) }),
+    (v) => v === expected,
+    `${name} of ${locator} to be ${JSON.stringify(expected)}`,
+    timeout,
+  );
 }
 
 /** One axe-core finding, as the failure message prints it. */
@@ -158,7 +178,15 @@ export interface AxeFinding {
  * Rules that fail a screen whatever impact axe gives them: WCAG 2.1 AA asks for
  * landmarks the content sits in (1.3.1, 2.4.1), and axe files these as "moderate".
  */
-const ALWAYS_FAIL = new Set(['region', 'landmark-one-main', 'landmark-no-duplicate-main', 'landmark-no-duplicate-banner', 'landmark-unique', 'landmark-main-is-top-level', 'landmark-banner-is-top-level']);
+const ALWAYS_FAIL = new Set([
+  'region',
+  'landmark-one-main',
+  'landmark-no-duplicate-main',
+  'landmark-no-duplicate-banner',
+  'landmark-unique',
+  'landmark-main-is-top-level',
+  'landmark-banner-is-top-level',
+]);
 
 let axeScript: string | null = null;
 function axeSource(): string {
@@ -178,13 +206,28 @@ export async function axeViolations(page: Page): Promise<AxeFinding[]> {
   // Fonts change text metrics (and so what overlaps what); measure the page as people see it.
   await page.evaluate(() => document.fonts.ready.then(() => undefined));
   const found = await page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run(ctx: Document, opts: object): Promise<{ violations: { id: string; impact: string | null; help: string; nodes: { target: unknown[]; html: string; failureSummary?: string }[] }[] }> } }).axe;
+    const axe = (
+      window as unknown as {
+        axe: {
+          run(
+            ctx: Document,
+            opts: object,
+          ): Promise<{
+            violations: { id: string; impact: string | null; help: string; nodes: { target: unknown[]; html: string; failureSummary?: string }[] }[];
+          }>;
+        };
+      }
+    ).axe;
     const r = await axe.run(document, { resultTypes: ['violations'] });
     return r.violations.map((v) => ({
       id: v.id,
       impact: v.impact,
       help: v.help,
-      nodes: v.nodes.map((n) => ({ target: n.target.map(String).join(' > '), html: n.html.replace(/\s+/g, ' ').slice(0, 160), summary: (n.failureSummary ?? '').replace(/\s+/g, ' ').slice(0, 300) })),
+      nodes: v.nodes.map((n) => ({
+        target: n.target.map(String).join(' > '),
+        html: n.html.replace(/\s+/g, ' ').slice(0, 160),
+        summary: (n.failureSummary ?? '').replace(/\s+/g, ' ').slice(0, 300),
+      })),
     }));
   });
   return found.filter((v) => v.impact === 'serious' || v.impact === 'critical' || ALWAYS_FAIL.has(v.id));
@@ -198,7 +241,11 @@ export async function axeViolations(page: Page): Promise<AxeFinding[]> {
 export async function expectNoSeriousAxeViolations(page: Page, label: string): Promise<void> {
   const found = await axeViolations(page);
   if (found.length === 0) return;
-  const lines = found.flatMap((v) => [`  ${v.id} (${v.impact}): ${v.help}`, ...v.nodes.slice(0, 12).map((n) => `      ${n.target}\n        ${n.html}${n.summary ? `\n        ${n.summary}` : ''}`), ...(v.nodes.length > 12 ? [`      … and ${v.nodes.length - 12} more`] : [])]);
+  const lines = found.flatMap((v) => [
+    `  ${v.id} (${v.impact}): ${v.help}`,
+    ...v.nodes.slice(0, 12).map((n) => `      ${n.target}\n        ${n.html}${n.summary ? `\n        ${n.summary}` : ''}`),
+    ...(v.nodes.length > 12 ? [`      … and ${v.nodes.length - 12} more`] : []),
+  ]);
   throw new Error(`axe-core: ${found.reduce((a, v) => a + v.nodes.length, 0)} serious/critical or landmark finding(s) on ${label}:\n${lines.join('\n')}`);
 }
 
@@ -213,7 +260,10 @@ export async function tabTo(page: Page, testId: string, maxTabs = 80): Promise<s
     const here = await page.evaluate(() => {
       const el = document.activeElement as HTMLElement | null;
       if (!el || el === document.body) return 'body';
-      return el.getAttribute('data-testid') ?? `${el.tagName.toLowerCase()}${el.getAttribute('aria-label') ? `[${el.getAttribute('aria-label')}]` : el.textContent ? `:${el.textContent.slice(0, 30)}` : ''}`;
+      return (
+        el.getAttribute('data-testid') ??
+        `${el.tagName.toLowerCase()}${el.getAttribute('aria-label') ? `[${el.getAttribute('aria-label')}]` : el.textContent ? `:${el.textContent.slice(0, 30)}` : ''}`
+      );
     });
     path.push(here);
     if (here === testId) return path;

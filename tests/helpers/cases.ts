@@ -41,7 +41,14 @@ export async function caseInState(ds: DataSource, caseId: string, state: CaseSta
   // The routes the API would log for these moves.
   await claimCase(ds, { actor, route: `POST /api/cases/${caseId}/claim` }, caseId);
   for (const step of PATH[state]) {
-    await ds.transaction((m) => moveCase(m, { actor, route: `POST /api/cases/${caseId}/transition` }, caseId, step.to, { kind: step.kind, outcome: step.outcome, adjustedAmount: step.adjustedAmount, dueDate: step.dueDate }));
+    await ds.transaction((m) =>
+      moveCase(m, { actor, route: `POST /api/cases/${caseId}/transition` }, caseId, step.to, {
+        kind: step.kind,
+        outcome: step.outcome,
+        adjustedAmount: step.adjustedAmount,
+        dueDate: step.dueDate,
+      }),
+    );
   }
   return caseId;
 }

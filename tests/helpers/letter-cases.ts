@@ -28,7 +28,11 @@ export function dueIn(days = 30): string {
  * Takes the next open case, has `examiner` claim it and move it to in review, and gives its
  * taxpayer `email` (null for none) as the address on file.
  */
-export async function caseInReview(ds: DataSource, examiner: Pick<SignedIn, 'user'>, email: string | null = uniqueAddress()): Promise<{ caseId: string; taxpayerId: string; email: string | null }> {
+export async function caseInReview(
+  ds: DataSource,
+  examiner: Pick<SignedIn, 'user'>,
+  email: string | null = uniqueAddress(),
+): Promise<{ caseId: string; taxpayerId: string; email: string | null }> {
   const rows = await ds.query(`SELECT id, taxpayer_id FROM exam_case WHERE state = 'open' ORDER BY priority DESC, id LIMIT 1`);
   if (!rows.length) throw new Error('no open case left in the fixture batch: load a bigger one');
   const { id, taxpayer_id } = rows[0];

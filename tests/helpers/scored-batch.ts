@@ -38,8 +38,15 @@ export async function loadGeneratedBatch(ds: DataSource, opts: GenerateOptions):
   );
   const preparers = [...new Set(g.returns.map((r) => r.preparer_id).filter(Boolean))];
   await ds.query(`INSERT INTO preparer (code) SELECT unnest($1::text[]) ON CONFLICT (code) DO NOTHING`, [preparers]);
-  const tpId = new Map<string, string>((await ds.query(`SELECT id, tin FROM taxpayer WHERE tin = ANY($1::char(9)[])`, [[...tins.keys()]])).map((r: { id: string; tin: string }) => [String(r.tin), r.id]));
-  const prId = new Map<string, string>((await ds.query(`SELECT id, code FROM preparer WHERE code = ANY($1::text[])`, [preparers])).map((r: { id: string; code: string }) => [r.code, r.id]));
+  const tpId = new Map<string, string>(
+    (await ds.query(`SELECT id, tin FROM taxpayer WHERE tin = ANY($1::char(9)[])`, [[...tins.keys()]])).map((r: { id: string; tin: string }) => [
+      String(r.tin),
+      r.id,
+    ]),
+  );
+  const prId = new Map<string, string>(
+    (await ds.query(`SELECT id, code FROM preparer WHERE code = ANY($1::text[])`, [preparers])).map((r: { id: string; code: string }) => [r.code, r.id]),
+  );
 
   const linesByRef = new Map<string, { code: LineCode; cents: number }[]>();
   for (const l of g.lineItems) {
@@ -54,7 +61,24 @@ export async function loadGeneratedBatch(ds: DataSource, opts: GenerateOptions):
     returnIdOf.set(r.return_ref, id);
     const t = computeTotals(linesByRef.get(r.return_ref) ?? []);
     const m = (c: number | null) => (c === null ? null : formatCents(c));
-    [id, tpId.get(r.tin), r.preparer_id ? prId.get(r.preparer_id) : null, r.return_ref, Number(r.tax_year), i + 2, (linesByRef.get(r.return_ref) ?? []).length, m(t.reported.income), m(t.reported.deductions), m(t.reported.refund), m(t.wages), m(t.interest), m(t.receipts), m(t.businessExpenses), m(t.income), m(t.deductions)].forEach((v, k) => cols[k].push(v));
+    [
+      id,
+      tpId.get(r.tin),
+      r.preparer_id ? prId.get(r.preparer_id) : null,
+      r.return_ref,
+      Number(r.tax_year),
+      i + 2,
+      (linesByRef.get(r.return_ref) ?? []).length,
+      m(t.reported.income),
+      m(t.reported.deductions),
+      m(t.reported.refund),
+      m(t.wages),
+      m(t.interest),
+      m(t.receipts),
+      m(t.businessExpenses),
+      m(t.income),
+      m(t.deductions),
+    ].forEach((v, k) => cols[k].push(v));
   });
   await ds.query(
     `INSERT INTO tax_return (id, batch_id, taxpayer_id, preparer_id, return_ref, tax_year, source_row, line_count, reported_income, reported_deductions, reported_refund,
@@ -76,11 +100,22 @@ export async function loadGeneratedBatch(ds: DataSource, opts: GenerateOptions):
     li[2].push(l.line_code);
     li[3].push(l.amount);
   }
-  await ds.query(`INSERT INTO line_item (return_id, line_no, line_code, amount) SELECT * FROM unnest($1::uuid[], $2::smallint[], $3::text[], $4::numeric[])`, li);
+  await ds.query(
+    `INSERT INTO line_item (return_id, line_no, line_code, amount) SELECT * FROM unnest($1::uuid[], $2::smallint[], $3::text[], $4::numeric[])`,
+    li,
+  );
   if (g.statements.length) {
     await ds.query(
       `INSERT INTO third_party_statement (batch_id, tin, tax_year, kind, payer, amount, source_row) SELECT $1, * FROM unnest($2::char(9)[], $3::smallint[], $4::text[], $5::text[], $6::numeric[], $7::int[])`,
-      [batchId, g.statements.map((s) => s.tin), g.statements.map((s) => Number(s.tax_year)), g.statements.map((s) => s.kind), g.statements.map((s) => s.payer), g.statements.map((s) => s.amount), g.statements.map((_, i) => i + 2)],
+      [
+        batchId,
+        g.statements.map((s) => s.tin),
+        g.statements.map((s) => Number(s.tax_year)),
+        g.statements.map((s) => s.kind),
+        g.statements.map((s) => s.payer),
+        g.statements.map((s) => s.amount),
+        g.statements.map((_, i) => i + 2),
+      ],
     );
   }
   return { batchId, generated: g, returnIdOf };

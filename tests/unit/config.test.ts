@@ -32,8 +32,13 @@ describe('loadConfig', () => {
       expect(loadConfig(base).TRUST_PROXY).toBe(false);
       expect(loadConfig({ ...base, TRUST_PROXY: ' ' }).TRUST_PROXY).toBe(false);
     });
-    it('takes addresses, CIDR ranges and Express\'s range names, comma-separated', () => {
-      expect(loadConfig({ ...base, TRUST_PROXY: '10.0.0.5, 192.168.1.0/24,loopback, fd00::/8' }).TRUST_PROXY).toEqual(['10.0.0.5', '192.168.1.0/24', 'loopback', 'fd00::/8']);
+    it("takes addresses, CIDR ranges and Express's range names, comma-separated", () => {
+      expect(loadConfig({ ...base, TRUST_PROXY: '10.0.0.5, 192.168.1.0/24,loopback, fd00::/8' }).TRUST_PROXY).toEqual([
+        '10.0.0.5',
+        '192.168.1.0/24',
+        'loopback',
+        'fd00::/8',
+      ]);
     });
     it.each(['true', '1', '*', '10.0.0.0/33', 'proxy.example', '10.0.0.5/24/1'])('refuses %p with a message saying what to write', (value) => {
       expect(() => loadConfig({ ...base, TRUST_PROXY: value })).toThrow(/TRUST_PROXY: must name the proxies to trust/);

@@ -137,7 +137,8 @@ describe('documentation pointers stay inside the repository', () => {
     const design = headingsOf(path.join(root, 'docs/design.md')).map(headingId);
     for (const id of ['roles', 'case-states', 'batch-states', 'data-model', 'batch-files', 'api-contract']) expect(design).toContain(id);
     const methods = headingsOf(path.join(root, 'docs/methods.md')).map(headingId);
-    for (const id of ['which-amounts-each-test-takes', 'expected-proportions', 'conformity-figures', 'small-samples', 'risk-factors', 'scoring-components']) expect(methods).toContain(id);
+    for (const id of ['which-amounts-each-test-takes', 'expected-proportions', 'conformity-figures', 'small-samples', 'risk-factors', 'scoring-components'])
+      expect(methods).toContain(id);
   });
 
   it('catches a missing file, a missing heading and a quoted heading that does not exist', () => {

@@ -22,11 +22,17 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
     expect(first.scored + first.failed).toBe(400);
     const again = await scoreBatchNow(ctx.dataSource, b.batchId);
     expect(again).toMatchObject({ scored: 0, failed: 0 });
-    const [{ n, distinct }] = await ctx.dataSource.query(`SELECT count(*)::int AS n, count(DISTINCT return_id)::int AS distinct FROM return_score WHERE batch_id = $1`, [b.batchId]);
+    const [{ n, distinct }] = await ctx.dataSource.query(
+      `SELECT count(*)::int AS n, count(DISTINCT return_id)::int AS distinct FROM return_score WHERE batch_id = $1`,
+      [b.batchId],
+    );
     expect({ n, distinct }).toEqual({ n: 400, distinct: 400 });
     const batch = (await ctx.dataSource.query(`SELECT state, scored_count FROM filing_batch WHERE id = $1`, [b.batchId]))[0];
     expect(batch).toEqual({ state: 'scored', scored_count: 400 });
-    const [{ selected }] = await ctx.dataSource.query(`SELECT count(*)::int AS selected FROM return_score WHERE batch_id = $1 AND (breakdown->>'selected')::boolean`, [b.batchId]);
+    const [{ selected }] = await ctx.dataSource.query(
+      `SELECT count(*)::int AS selected FROM return_score WHERE batch_id = $1 AND (breakdown->>'selected')::boolean`,
+      [b.batchId],
+    );
     const [{ cases }] = await ctx.dataSource.query(`SELECT count(*)::int AS cases FROM exam_case WHERE batch_id = $1 AND selection = 'score'`, [b.batchId]);
     expect(cases).toBe(selected);
     expect(cases).toBeGreaterThan(0);
@@ -39,7 +45,7 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
     expect(() => ScoreBreakdownSchema.parse(one.breakdown)).not.toThrow();
   });
 
-  it('the run\'s finishing step gives every score its Benjamini–Hochberg q-value over the whole batch, in the evidence too', async () => {
+  it("the run's finishing step gives every score its Benjamini–Hochberg q-value over the whole batch, in the evidence too", async () => {
     const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-bh', returns: 120, plantShare: 0.1 });
     await scoreBatchNow(ctx.dataSource, b.batchId);
     const rows: { p: number; q: number; evidence: string }[] = await ctx.dataSource.query(
@@ -73,14 +79,25 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
     const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-3', returns: 80, plantShare: 0.1 });
     await scoreBatchNow(ctx.dataSource, b.batchId);
     // The active (default) profile is version 2 (server/db/migrations/1764960000000-scoring-v2.ts).
-    const before = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 2 ORDER BY return_id`, [b.batchId]);
+    const before = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 2 ORDER BY return_id`, [
+      b.batchId,
+    ]);
     // One case is closed before the re-score: it must keep the score it was decided on.
-    const closed = (await ctx.dataSource.query(`UPDATE exam_case SET state = 'closed_no_change' WHERE id = (SELECT id FROM exam_case WHERE batch_id = $1 LIMIT 1) RETURNING id, score_id`, [b.batchId]))[0][0];
-    await ctx.dataSource.query(`INSERT INTO scoring_profile (version, settings, note) SELECT 3, jsonb_set(settings, '{weights,cashHeavy}', '40'), 'test' FROM scoring_profile WHERE version = 2`);
+    const closed = (
+      await ctx.dataSource.query(
+        `UPDATE exam_case SET state = 'closed_no_change' WHERE id = (SELECT id FROM exam_case WHERE batch_id = $1 LIMIT 1) RETURNING id, score_id`,
+        [b.batchId],
+      )
+    )[0][0];
+    await ctx.dataSource.query(
+      `INSERT INTO scoring_profile (version, settings, note) SELECT 3, jsonb_set(settings, '{weights,cashHeavy}', '40'), 'test' FROM scoring_profile WHERE version = 2`,
+    );
     await scoreBatchNow(ctx.dataSource, b.batchId, 3);
     const kept = (await ctx.dataSource.query(`SELECT score_id FROM exam_case WHERE id = $1`, [closed.id]))[0];
     expect(kept.score_id).toBe(closed.score_id);
-    const after = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 2 ORDER BY return_id`, [b.batchId]);
+    const after = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 2 ORDER BY return_id`, [
+      b.batchId,
+    ]);
     expect(after).toEqual(before);
     const v3 = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM return_score WHERE batch_id = $1 AND profile_version = 3`, [b.batchId]);
     expect(v3[0].n).toBe(80);

@@ -77,7 +77,8 @@ describe('npm start supervision with the real processes', () => {
     const b = await loadGeneratedBatch(ds, { seed: 'supervised-worker', returns: 2000, plantShare: 0.05 });
     // Short expiry so the slice the dead worker held is retried within seconds.
     await boss.updateQueue(QUEUES.scoreChunk, { name: QUEUES.scoreChunk, expireInSeconds: 4, retryLimit: 5, retryDelay: 1 });
-    const state = async () => (await ds.query(`SELECT state, scored_count FROM filing_batch WHERE id = $1`, [b.batchId]))[0] as { state: string; scored_count: number };
+    const state = async () =>
+      (await ds.query(`SELECT state, scored_count FROM filing_batch WHERE id = $1`, [b.batchId]))[0] as { state: string; scored_count: number };
     await boss.send(QUEUES.scoreBatch, { batchId: b.batchId });
     await waitFor('some progress', async () => (await state()).scored_count > 0, 120_000, 20);
     const worker = supervised[1];

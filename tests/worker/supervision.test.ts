@@ -45,7 +45,13 @@ describe('supervise', () => {
   it('restarts a child killed with SIGKILL, and starts the back-off again after a healthy run', async () => {
     const lines: string[] = [];
     let clock = 0;
-    sup = supervise('sleep', sleeper, (l) => lines.push(l), { initialDelayMs: 100, maxDelayMs: 1000, resetAfterMs: 60_000 }, () => clock);
+    sup = supervise(
+      'sleep',
+      sleeper,
+      (l) => lines.push(l),
+      { initialDelayMs: 100, maxDelayMs: 1000, resetAfterMs: 60_000 },
+      () => clock,
+    );
     const first = sup.current();
     // Two quick deaths: the wait doubles.
     let next = sup.nextStart();

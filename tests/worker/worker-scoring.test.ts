@@ -50,7 +50,8 @@ describe('scoring worker processes', () => {
     return w;
   };
   const batchState = async (id: string) => (await ds.query(`SELECT state, scored_count, return_count FROM filing_batch WHERE id = $1`, [id]))[0];
-  const scoreCount = async (id: string) => (await ds.query(`SELECT count(*)::int AS n, count(DISTINCT return_id)::int AS d FROM return_score WHERE batch_id = $1`, [id]))[0];
+  const scoreCount = async (id: string) =>
+    (await ds.query(`SELECT count(*)::int AS n, count(DISTINCT return_id)::int AS d FROM return_score WHERE batch_id = $1`, [id]))[0];
 
   it('takes a batch job, scores every return once and marks the batch scored with progress', async () => {
     const b = await loadGeneratedBatch(ds, { seed: 'worker-e2e', returns: 300, plantShare: 0.1 });
@@ -77,10 +78,15 @@ describe('scoring worker processes', () => {
     await boss.updateQueue(QUEUES.scoreChunk, { name: QUEUES.scoreChunk, expireInSeconds: 4, retryLimit: 5, retryDelay: 1 });
     const first = await startWorker({ SCORING_CHUNK_SIZE: '100' });
     await boss.send(QUEUES.scoreBatch, { batchId: b.batchId });
-    const partial = await waitFor('some progress', async () => {
-      const s = await batchState(b.batchId);
-      return s.scored_count > 0 ? s : null;
-    }, 60_000, 20);
+    const partial = await waitFor(
+      'some progress',
+      async () => {
+        const s = await batchState(b.batchId);
+        return s.scored_count > 0 ? s : null;
+      },
+      60_000,
+      20,
+    );
     await first.kill9();
     const afterKill = await batchState(b.batchId);
     expect(afterKill.state).toBe('scoring');

@@ -12,9 +12,9 @@ export function AboutScreen() {
         About Plumbline
       </Txt>
       <Txt variant="lead">
-        Plumbline helps a revenue office decide which filed income-tax returns a person should look at first. It measures how
-        far each return's figures drift from the digit patterns that ordinary bookkeeping produces, adds plain rule-based
-        risk factors, and ranks the returns into an examination queue where every number can be explained.
+        Plumbline helps a revenue office decide which filed income-tax returns a person should look at first. It measures how far each return's figures drift
+        from the digit patterns that ordinary bookkeeping produces, adds plain rule-based risk factors, and ranks the returns into an examination queue where
+        every number can be explained.
       </Txt>
       <Card style={{ borderLeftWidth: 4, borderLeftColor: colours.brass, gap: space.sm }} testID="cautions">
         <Txt variant="title" bold>
@@ -30,8 +30,8 @@ export function AboutScreen() {
         ))}
       </Card>
       <Txt variant="small" tone="soft">
-        Methods: Benford (1938); Hill (1995, Statistical Science); Nigrini (2012, Benford's Law, Wiley); Barney & Schulzke
-        (2016, Journal of Forensic Accounting Research). The demo county of Aldermere, its people and figures are invented.
+        Methods: Benford (1938); Hill (1995, Statistical Science); Nigrini (2012, Benford's Law, Wiley); Barney & Schulzke (2016, Journal of Forensic Accounting
+        Research). The demo county of Aldermere, its people and figures are invented.
       </Txt>
       <Txt variant="caption" tone="faint">
         Typefaces: Atkinson Hyperlegible and IBM Plex Mono, SIL Open Font License.

@@ -26,11 +26,46 @@ function when(iso: string) {
 
 function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
   const cells = [
-    { w: 150, node: <Txt variant="small" figures>{when(e.at)}</Txt> },
-    { w: 130, node: <Txt variant="small" bold>{e.username ?? '(not signed in)'}</Txt> },
-    { w: 130, node: <Txt variant="small" tone={e.action === 'sign-in-refused' ? 'alert' : 'ink'}>{ACTION_WORDS[e.action]}</Txt> },
-    { w: 120, node: <Txt variant="small" figures>{e.taxpayerLabel ?? '—'}</Txt> },
-    { w: 0, node: <Txt variant="small" tone="soft">{[e.route, e.detail].filter(Boolean).join(' · ')}</Txt> },
+    {
+      w: 150,
+      node: (
+        <Txt variant="small" figures>
+          {when(e.at)}
+        </Txt>
+      ),
+    },
+    {
+      w: 130,
+      node: (
+        <Txt variant="small" bold>
+          {e.username ?? '(not signed in)'}
+        </Txt>
+      ),
+    },
+    {
+      w: 130,
+      node: (
+        <Txt variant="small" tone={e.action === 'sign-in-refused' ? 'alert' : 'ink'}>
+          {ACTION_WORDS[e.action]}
+        </Txt>
+      ),
+    },
+    {
+      w: 120,
+      node: (
+        <Txt variant="small" figures>
+          {e.taxpayerLabel ?? '—'}
+        </Txt>
+      ),
+    },
+    {
+      w: 0,
+      node: (
+        <Txt variant="small" tone="soft">
+          {[e.route, e.detail].filter(Boolean).join(' · ')}
+        </Txt>
+      ),
+    },
   ];
   if (!wide) {
     return (
@@ -48,7 +83,16 @@ function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
     );
   }
   return (
-    <View style={{ flexDirection: 'row', gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1, borderBottomColor: colours.line }}>
+    <View
+      style={{
+        flexDirection: 'row',
+        gap: space.md,
+        paddingVertical: space.sm,
+        paddingHorizontal: space.md,
+        borderBottomWidth: 1,
+        borderBottomColor: colours.line,
+      }}
+    >
       {cells.map((c, i) => (
         <View key={i} style={c.w ? { width: c.w } : { flex: 1 }}>
           {c.node}
@@ -84,7 +128,14 @@ export function AccessLogScreen() {
           ] as const
         ).map(([k, label, ph]) => (
           <View key={k} style={{ flex: wide ? 1 : undefined }}>
-            <Field testID={`log-filter-${k}`} label={label} placeholder={ph} autoCapitalize="none" value={draft[k]} onChangeText={(v) => setDraft({ ...draft, [k]: v })} />
+            <Field
+              testID={`log-filter-${k}`}
+              label={label}
+              placeholder={ph}
+              autoCapitalize="none"
+              value={draft[k]}
+              onChangeText={(v) => setDraft({ ...draft, [k]: v })}
+            />
           </View>
         ))}
         <Button
@@ -102,9 +153,26 @@ export function AccessLogScreen() {
           <Txt variant="small" tone="soft" testID="log-total">
             {log.data.total} entr{log.data.total === 1 ? 'y' : 'ies'}
           </Txt>
-          <View style={{ gap: wide ? 0 : space.sm, backgroundColor: wide ? colours.surface : 'transparent', borderWidth: wide ? 1 : 0, borderColor: colours.line, borderRadius: 8 }}>
+          <View
+            style={{
+              gap: wide ? 0 : space.sm,
+              backgroundColor: wide ? colours.surface : 'transparent',
+              borderWidth: wide ? 1 : 0,
+              borderColor: colours.line,
+              borderRadius: 8,
+            }}
+          >
             {wide && (
-              <View style={{ flexDirection: 'row', gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1.5, borderBottomColor: colours.ink }}>
+              <View
+                style={{
+                  flexDirection: 'row',
+                  gap: space.md,
+                  paddingVertical: space.sm,
+                  paddingHorizontal: space.md,
+                  borderBottomWidth: 1.5,
+                  borderBottomColor: colours.ink,
+                }}
+              >
                 {(['When', 'Who', 'What', 'Taxpayer', 'Where'] as const).map((h, i) => (
                   <View key={h} style={[150, 130, 130, 120, 0][i] ? { width: [150, 130, 130, 120][i] } : { flex: 1 }}>
                     <Txt variant="caption" bold tone="soft">

@@ -54,7 +54,11 @@ export function ScoringProgress({ batch, testID }: { batch: Pick<BatchSummary, '
     <View style={{ gap: space.xs }} testID={testID}>
       <ProgressBar value={done ? 1 : share} label="Returns scored" tone={done ? 'ok' : 'cord'} />
       <Txt variant="caption" figures tone="soft">
-        {done ? `all ${num(total)} returns scored` : batch.state === 'queued' ? `waiting for the scoring worker · 0 of ${num(total)}` : `${num(scored)} of ${num(total)} returns scored`}
+        {done
+          ? `all ${num(total)} returns scored`
+          : batch.state === 'queued'
+            ? `waiting for the scoring worker · 0 of ${num(total)}`
+            : `${num(scored)} of ${num(total)} returns scored`}
       </Txt>
     </View>
   );

@@ -62,7 +62,16 @@ function IssueTable({ issues, wide, testID }: { issues: BatchIssue[]; wide: bool
   }
   return (
     <View style={{ backgroundColor: colours.surface, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID={testID}>
-      <View style={{ flexDirection: 'row', gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1.5, borderBottomColor: colours.ink }}>
+      <View
+        style={{
+          flexDirection: 'row',
+          gap: space.md,
+          paddingVertical: space.sm,
+          paddingHorizontal: space.md,
+          borderBottomWidth: 1.5,
+          borderBottomColor: colours.ink,
+        }}
+      >
         {COLS.map(([h, w]) => (
           <View key={h} style={w ? { width: w } : { flex: 1 }}>
             <Txt variant="caption" bold tone="soft">
@@ -72,7 +81,18 @@ function IssueTable({ issues, wide, testID }: { issues: BatchIssue[]; wide: bool
         ))}
       </View>
       {issues.map((e, i) => (
-        <View key={i} testID={`${testID}-row`} style={{ flexDirection: 'row', gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1, borderBottomColor: colours.line }}>
+        <View
+          key={i}
+          testID={`${testID}-row`}
+          style={{
+            flexDirection: 'row',
+            gap: space.md,
+            paddingVertical: space.sm,
+            paddingHorizontal: space.md,
+            borderBottomWidth: 1,
+            borderBottomColor: colours.line,
+          }}
+        >
           <View style={{ width: 170 }}>
             <Txt variant="small" numberOfLines={2}>
               {e.file}
@@ -123,7 +143,14 @@ function Report({ batch, wide }: { batch: BatchDetail; wide: boolean }) {
       </Card>
       <View style={{ flexDirection: wide ? 'row' : 'column', gap: space.md, alignItems: wide ? 'flex-end' : 'stretch' }}>
         <View style={{ flex: wide ? 1 : undefined }}>
-          <Field testID="report-filter" label="Filter" placeholder="column, value, row or words of the message" autoCapitalize="none" value={query} onChangeText={setQuery} />
+          <Field
+            testID="report-filter"
+            label="Filter"
+            placeholder="column, value, row or words of the message"
+            autoCapitalize="none"
+            value={query}
+            onChangeText={setQuery}
+          />
         </View>
         <Button testID="report-download" kind="secondary" label="Download report (.xlsx)" onPress={() => download(reportUrl(batch.id))} />
       </View>
@@ -137,7 +164,9 @@ function Report({ batch, wide }: { batch: BatchDetail; wide: boolean }) {
         />
       )}
       <Txt variant="small" tone="soft" testID="report-count">
-        {shown.length === batch.errors.length ? `${num(shown.length)} line${shown.length === 1 ? '' : 's'}` : `${num(shown.length)} of ${num(batch.errors.length)} lines`}
+        {shown.length === batch.errors.length
+          ? `${num(shown.length)} line${shown.length === 1 ? '' : 's'}`
+          : `${num(shown.length)} of ${num(batch.errors.length)} lines`}
       </Txt>
       <IssueTable issues={shown} wide={wide} testID="report" />
     </View>

@@ -23,7 +23,9 @@ function UploadResult({ outcome }: { outcome: UploadOutcome }) {
         <Txt bold tone="ok">
           Accepted and stored: {num(c.returns)} returns, {num(c.lineItems)} line items, {num(c.statements)} statements.
         </Txt>
-        {outcome.batch.amendedReturns > 0 && <Txt variant="small">{num(outcome.batch.amendedReturns)} of them amend returns already on file (see the batch).</Txt>}
+        {outcome.batch.amendedReturns > 0 && (
+          <Txt variant="small">{num(outcome.batch.amendedReturns)} of them amend returns already on file (see the batch).</Txt>
+        )}
         <Link href={`/batches/${outcome.batch.id}`}>
           <Txt bold tone="brass">
             Open the batch and follow its scoring →
@@ -89,12 +91,19 @@ function UploadCard() {
           Upload a batch
         </Txt>
         <Txt variant="small" tone="soft">
-          One .xlsx workbook with the sheets returns and line_items (and statements), or the CSV files returns.csv and line_items.csv (and statements.csv). Every row is checked; a batch with any
-          error is refused whole and nothing of it is stored.
+          One .xlsx workbook with the sheets returns and line_items (and statements), or the CSV files returns.csv and line_items.csv (and statements.csv).
+          Every row is checked; a batch with any error is refused whole and nothing of it is stored.
         </Txt>
       </View>
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, alignItems: 'center' }}>
-        <FilePicker testID="batch-files" disabled={sending} onPick={(f) => { setFiles(f); upload.reset(); }} />
+        <FilePicker
+          testID="batch-files"
+          disabled={sending}
+          onPick={(f) => {
+            setFiles(f);
+            upload.reset();
+          }}
+        />
         <Button
           testID="batch-upload"
           label={sending ? 'Uploading…' : 'Upload and check'}
@@ -131,7 +140,10 @@ function UploadCard() {
 }
 
 function BatchRow({ b, wide }: { b: BatchSummary; wide: boolean }) {
-  const counts = b.state === 'rejected' ? `${num(b.errorCount)} error${b.errorCount === 1 ? '' : 's'}` : `${num(b.counts.returns)} returns · ${num(b.counts.lineItems)} lines`;
+  const counts =
+    b.state === 'rejected'
+      ? `${num(b.errorCount)} error${b.errorCount === 1 ? '' : 's'}`
+      : `${num(b.counts.returns)} returns · ${num(b.counts.lineItems)} lines`;
   const files = b.fileNames.join(', ');
   const who = b.loadedBy?.displayName ?? '—';
   const inner = wide ? (
@@ -198,7 +210,8 @@ export function BatchesScreen() {
           Batches
         </Txt>
         <Txt tone="soft">
-          Filed returns come in here: checked row by row, stored whole or not at all, then scored.{mayUpload || !session.data ? '' : ' Intake clerks upload batches; you can follow them here.'}
+          Filed returns come in here: checked row by row, stored whole or not at all, then scored.
+          {mayUpload || !session.data ? '' : ' Intake clerks upload batches; you can follow them here.'}
         </Txt>
       </View>
       {mayUpload && <UploadCard />}
@@ -214,7 +227,16 @@ export function BatchesScreen() {
           style={wide ? { backgroundColor: colours.surface, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md } : { gap: space.sm }}
         >
           {wide && (
-            <View style={{ flexDirection: 'row', gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1.5, borderBottomColor: colours.ink }}>
+            <View
+              style={{
+                flexDirection: 'row',
+                gap: space.md,
+                paddingVertical: space.sm,
+                paddingHorizontal: space.md,
+                borderBottomWidth: 1.5,
+                borderBottomColor: colours.ink,
+              }}
+            >
               {(
                 [
                   ['State', 160],

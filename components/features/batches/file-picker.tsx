@@ -37,7 +37,13 @@ export function FilePicker({ onPick, disabled, testID }: FilePickerProps) {
             e.target.value = ''; // choosing the same file again still fires
           },
         })}
-        <Button kind="secondary" label="Choose files…" disabled={disabled} onPress={() => input.current?.click()} testID={testID ? `${testID}-button` : undefined} />
+        <Button
+          kind="secondary"
+          label="Choose files…"
+          disabled={disabled}
+          onPress={() => input.current?.click()}
+          testID={testID ? `${testID}-button` : undefined}
+        />
       </View>
     );
   }
@@ -48,7 +54,11 @@ export function FilePicker({ onPick, disabled, testID }: FilePickerProps) {
       disabled={disabled}
       testID={testID ? `${testID}-button` : undefined}
       onPress={async () => {
-        const r = await DocumentPicker.getDocumentAsync({ multiple: true, copyToCacheDirectory: true, type: ['text/csv', 'text/comma-separated-values', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet'] });
+        const r = await DocumentPicker.getDocumentAsync({
+          multiple: true,
+          copyToCacheDirectory: true,
+          type: ['text/csv', 'text/comma-separated-values', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet'],
+        });
         if (r.canceled) return;
         onPick(r.assets.map((a) => ({ name: a.name, size: a.size ?? 0, uri: a.uri, mimeType: a.mimeType })));
       }}

@@ -4,7 +4,14 @@
  */
 import { API_BASE, getCsrfToken } from '../../../hooks/api-client';
 import { CSRF_HEADER } from '../../../shared/auth';
-import { BatchCreatedSchema, BatchDuplicateSchema, BatchRejectedSchema, type BatchCreated, type BatchRejected, type BatchTable } from '../../../shared/returns/batch-rows';
+import {
+  BatchCreatedSchema,
+  BatchDuplicateSchema,
+  BatchRejectedSchema,
+  type BatchCreated,
+  type BatchRejected,
+  type BatchTable,
+} from '../../../shared/returns/batch-rows';
 
 /** A file chosen by the clerk: a browser File on the web, a local uri on a phone. */
 export type PickedFile = { name: string; size: number; file: Blob } | { name: string; size: number; uri: string; mimeType?: string };
@@ -47,7 +54,8 @@ export function partsFromFiles(files: PickedFile[]): { parts: UploadParts } | { 
     if (parts[t]) return { problem: `Two files look like ${t}: "${parts[t]!.name}" and "${f.name}". Choose one of them.` };
     parts[t] = f;
   }
-  if (!parts.returns || !parts.line_items) return { problem: `A CSV batch needs both returns and line_items; ${parts.returns ? 'line_items' : 'returns'} is missing.` };
+  if (!parts.returns || !parts.line_items)
+    return { problem: `A CSV batch needs both returns and line_items; ${parts.returns ? 'line_items' : 'returns'} is missing.` };
   return { parts };
 }
 

@@ -4,7 +4,15 @@ import { useState, type ReactNode } from 'react';
 import { useForm } from 'react-hook-form';
 import { Pressable, View } from 'react-native';
 import type { CaseDetail } from '../../../shared/case-api';
-import { CASE_SELECTION_LABELS, CASE_STATE_LABELS, NoteRequestSchema, TransitionRequestSchema, type CaseState, type NoteRequest, type TransitionRequest } from '../../../shared/cases';
+import {
+  CASE_SELECTION_LABELS,
+  CASE_STATE_LABELS,
+  NoteRequestSchema,
+  TransitionRequestSchema,
+  type CaseState,
+  type NoteRequest,
+  type TransitionRequest,
+} from '../../../shared/cases';
 import { SCREENING_CAUTION } from '../../../shared/cautions';
 import { LINE_CODE_DEFS } from '../../../shared/returns/line-codes';
 import type { PoolSnapshot } from '../../../shared/scoring/breakdown';
@@ -161,7 +169,8 @@ function ScoreSummary({ d }: { d: CaseDetail }) {
         </View>
       </View>
       <Txt variant="small" style={{ color: '#D5DFDD' }}>
-        {b.stakeBasis.replace(/\.\s*$/, '')}. Scored under profile version {d.score.profileVersion} on {when(d.score.scoredAt).slice(0, 10)}; a case opens at {b.selectionCut} points.
+        {b.stakeBasis.replace(/\.\s*$/, '')}. Scored under profile version {d.score.profileVersion} on {when(d.score.scoredAt).slice(0, 10)}; a case opens at{' '}
+        {b.selectionCut} points.
       </Txt>
     </Card>
   );
@@ -191,7 +200,11 @@ function Factors({ d }: { d: CaseDetail }) {
     <Section title="Why it was selected" testID="case-factors">
       {raised.length === 0 && <Txt tone="soft">No factor added points.</Txt>}
       {raised.map((c) => (
-        <View key={c.key} style={{ flexDirection: 'row', gap: space.md, paddingTop: space.sm, borderTopWidth: 1, borderTopColor: colours.line }} testID={`factor-${c.key}`}>
+        <View
+          key={c.key}
+          style={{ flexDirection: 'row', gap: space.md, paddingTop: space.sm, borderTopWidth: 1, borderTopColor: colours.line }}
+          testID={`factor-${c.key}`}
+        >
           <View style={{ width: 86, gap: 4 }}>
             <Txt figures bold tone="brass">
               +{c.points.toFixed(1)}
@@ -238,8 +251,8 @@ function Digits({ d }: { d: CaseDetail }) {
   return (
     <Section title="Leading digits against the expected curve" testID="case-digits">
       <Txt variant="small" tone="soft">
-        In many ordinary sets of amounts, 1 leads about 30 % of the time and 9 under 5 % (Benford&apos;s law). Departures point at figures worth a look; they do not show
-        that anything is wrong.
+        In many ordinary sets of amounts, 1 leads about 30 % of the time and 9 under 5 % (Benford&apos;s law). Departures point at figures worth a look; they do
+        not show that anything is wrong.
       </Txt>
       <View style={{ flexDirection: wide ? 'row' : 'column', gap: space.xl }}>
         <View style={{ flex: wide ? 1 : undefined }}>
@@ -252,7 +265,12 @@ function Digits({ d }: { d: CaseDetail }) {
         </View>
         <View style={{ flex: wide ? 1 : undefined }}>
           {pool?.firstDigitCounts ? (
-            <DigitChart testID="digit-chart-preparer" counts={pool.firstDigitCounts} title={`Preparer ${d.return.preparerCode ?? ''}: all clients' amounts`} caption={`${whole(pool.n)} amounts · ${poolWords(pool)}`} />
+            <DigitChart
+              testID="digit-chart-preparer"
+              counts={pool.firstDigitCounts}
+              title={`Preparer ${d.return.preparerCode ?? ''}: all clients' amounts`}
+              caption={`${whole(pool.n)} amounts · ${poolWords(pool)}`}
+            />
           ) : (
             <View style={{ gap: space.xs }}>
               <Txt bold>Preparer&apos;s pooled amounts</Txt>
@@ -423,7 +441,13 @@ function Actions({ d, onChanged }: { d: CaseDetail; onChanged(message: string): 
       )}
       {a.claim && (
         <View style={{ gap: space.xs }}>
-          <Button label="Claim this case" testID="case-claim" busy={claim.isPending} onPress={() => claim.mutate(undefined, { onSuccess: () => onChanged('The case is yours now.') })} style={{ alignSelf: 'flex-start' }} />
+          <Button
+            label="Claim this case"
+            testID="case-claim"
+            busy={claim.isPending}
+            onPress={() => claim.mutate(undefined, { onSuccess: () => onChanged('The case is yours now.') })}
+            style={{ alignSelf: 'flex-start' }}
+          />
           <Txt variant="small" tone="soft">
             Claiming puts the case in your name, so you can review it, write notes and send letters.
           </Txt>
@@ -442,7 +466,13 @@ function Actions({ d, onChanged }: { d: CaseDetail; onChanged(message: string): 
             />
           ))}
           {closes.map((t) => (
-            <Button key={t.to} kind={closing === t.to ? 'primary' : 'secondary'} label={t.label} testID={`case-move-${t.to}`} onPress={() => setClosing(closing === t.to ? null : (t.to as typeof closing))} />
+            <Button
+              key={t.to}
+              kind={closing === t.to ? 'primary' : 'secondary'}
+              label={t.label}
+              testID={`case-move-${t.to}`}
+              onPress={() => setClosing(closing === t.to ? null : (t.to as typeof closing))}
+            />
           ))}
         </View>
       )}
@@ -464,7 +494,13 @@ function Actions({ d, onChanged }: { d: CaseDetail; onChanged(message: string): 
       )}
       {a.assign && (
         <View style={{ gap: space.sm, paddingTop: space.sm, borderTopWidth: 1, borderTopColor: colours.line }} testID="case-assign">
-          <ChoiceRow label={d.assignee ? 'Move to another examiner' : 'Give to an examiner'} options={others.map((e) => ({ value: e.id, label: e.displayName }))} value={target} onChange={setTarget} testID="case-assign-to" />
+          <ChoiceRow
+            label={d.assignee ? 'Move to another examiner' : 'Give to an examiner'}
+            options={others.map((e) => ({ value: e.id, label: e.displayName }))}
+            value={target}
+            onChange={setTarget}
+            testID="case-assign-to"
+          />
           <Button
             kind="secondary"
             label={target ? `${d.assignee ? 'Move' : 'Give'} to ${others.find((e) => e.id === target)?.displayName ?? ''}` : 'Choose an examiner'}
@@ -490,7 +526,15 @@ function Notes({ d }: { d: CaseDetail }) {
   const form = useForm<NoteRequest>({ resolver: zodResolver(NoteRequestSchema), defaultValues: { text: '' } });
   const submit = form.handleSubmit((v) => add.mutate(v.text, { onSuccess: () => form.reset({ text: '' }) }));
   return (
-    <Section title="Notes" testID="case-notes" right={<Txt variant="small" tone="soft">{d.notes.length ? `${d.notes.length}` : ''}</Txt>}>
+    <Section
+      title="Notes"
+      testID="case-notes"
+      right={
+        <Txt variant="small" tone="soft">
+          {d.notes.length ? `${d.notes.length}` : ''}
+        </Txt>
+      }
+    >
       {d.notes.length === 0 && <Txt tone="soft">No notes yet.</Txt>}
       {d.notes.map((n) => (
         <View key={n.id} style={{ gap: 2, paddingBottom: space.sm, borderBottomWidth: 1, borderBottomColor: colours.line }} testID={`note-item-${n.id}`}>
@@ -498,7 +542,10 @@ function Notes({ d }: { d: CaseDetail }) {
             <Txt variant="small" bold>
               {n.authorName}
             </Txt>{' '}
-            · <Txt variant="small" figures tone="soft">{when(n.at)}</Txt>
+            ·{' '}
+            <Txt variant="small" figures tone="soft">
+              {when(n.at)}
+            </Txt>
           </Txt>
           <Txt>{n.text}</Txt>
         </View>

@@ -43,7 +43,13 @@ export function DeadlineLabel({ assessBy, daysLeft, testID }: { assessBy: string
   const look = LOOK[urgency];
   return (
     <View
-      style={{ alignSelf: 'flex-start', backgroundColor: look.bg, borderRadius: radius.sm, paddingHorizontal: urgency === 'normal' ? 0 : space.xs, paddingVertical: urgency === 'normal' ? 0 : 1 }}
+      style={{
+        alignSelf: 'flex-start',
+        backgroundColor: look.bg,
+        borderRadius: radius.sm,
+        paddingHorizontal: urgency === 'normal' ? 0 : space.xs,
+        paddingVertical: urgency === 'normal' ? 0 : 1,
+      }}
       testID={testID}
       accessibilityLabel={`Assessment deadline ${assessBy}, ${daysLeftText(days)}${urgency === 'urgent' ? ', under 30 days' : urgency === 'soon' ? ', under 90 days' : ''}`}
     >

@@ -56,7 +56,14 @@ export function DigitChart({ counts, title, caption, testID }: DigitChartProps) 
           <Svg width={width} height={HEIGHT}>
             {ticks.map((t) => (
               <G key={t}>
-                <Line x1={PAD.left} x2={PAD.left + plotW} y1={y(t)} y2={y(t)} stroke={t === 0 ? colours.inkSoft : colours.line} strokeWidth={t === 0 ? 1.2 : 1} />
+                <Line
+                  x1={PAD.left}
+                  x2={PAD.left + plotW}
+                  y1={y(t)}
+                  y2={y(t)}
+                  stroke={t === 0 ? colours.inkSoft : colours.line}
+                  strokeWidth={t === 0 ? 1.2 : 1}
+                />
                 <SvgText x={PAD.left - 6} y={y(t) + 4} fontSize={11} fontFamily={fonts.figures} fill={colours.inkSoft} textAnchor="end">
                   {pct(t)}
                 </SvgText>

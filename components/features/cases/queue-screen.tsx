@@ -42,7 +42,21 @@ function useQueueParams() {
   const set = (next: Partial<Params>, keepPage = false) => {
     const merged: Params = { ...p, ...next, ...(keepPage ? {} : { page: undefined }) };
     // setParams keeps keys it is not given; empty values clear them.
-    router.setParams(Object.fromEntries(Object.entries({ state: undefined, sort: undefined, page: undefined, q: undefined, taxYear: undefined, activity: undefined, assignee: undefined, batch: undefined, ...merged }).map(([k, v]) => [k, v ?? ''])));
+    router.setParams(
+      Object.fromEntries(
+        Object.entries({
+          state: undefined,
+          sort: undefined,
+          page: undefined,
+          q: undefined,
+          taxYear: undefined,
+          activity: undefined,
+          assignee: undefined,
+          batch: undefined,
+          ...merged,
+        }).map(([k, v]) => [k, v ?? '']),
+      ),
+    );
   };
   return { p, set };
 }
@@ -60,7 +74,16 @@ function TableHeader() {
     </Txt>
   );
   return (
-    <View style={{ flexDirection: 'row', gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1.5, borderBottomColor: colours.ink }}>
+    <View
+      style={{
+        flexDirection: 'row',
+        gap: space.md,
+        paddingVertical: space.sm,
+        paddingHorizontal: space.md,
+        borderBottomWidth: 1.5,
+        borderBottomColor: colours.ink,
+      }}
+    >
       <Cell w={COLS.ref}>{h('Return')}</Cell>
       <Cell>{h('Taxpayer')}</Cell>
       <Cell w={COLS.score}>{h('Risk score')}</Cell>
@@ -85,7 +108,15 @@ function TableRow({ c }: { c: CaseListItem }) {
         role="link"
         testID={`queue-row-${c.returnRef}`}
         // A plain style object: Link's asChild does not resolve Pressable's style function.
-        style={{ flexDirection: 'row', gap: space.md, alignItems: 'center', paddingVertical: space.sm + 2, paddingHorizontal: space.md, borderBottomWidth: 1, borderBottomColor: colours.line }}
+        style={{
+          flexDirection: 'row',
+          gap: space.md,
+          alignItems: 'center',
+          paddingVertical: space.sm + 2,
+          paddingHorizontal: space.md,
+          borderBottomWidth: 1,
+          borderBottomColor: colours.line,
+        }}
       >
         <Cell w={COLS.ref}>
           <Txt figures bold>
@@ -235,7 +266,9 @@ export function QueueScreen() {
             {SCREENING_CAUTION}
           </Txt>
         </View>
-        {role === 'supervisor' && <Button kind="secondary" label="Export to XLSX" testID="queue-export" onPress={download} style={{ alignSelf: wide ? 'auto' : 'flex-start' }} />}
+        {role === 'supervisor' && (
+          <Button kind="secondary" label="Export to XLSX" testID="queue-export" onPress={download} style={{ alignSelf: wide ? 'auto' : 'flex-start' }} />
+        )}
       </View>
 
       <Card style={{ gap: space.md }}>
@@ -262,9 +295,15 @@ export function QueueScreen() {
           </Pressable>
         )}
         {!wide && (
-          <Pressable accessibilityRole="button" onPress={() => setShowFilters(!showFilters)} testID="queue-filters-toggle" style={{ flexDirection: 'row', justifyContent: 'space-between', gap: space.sm }}>
+          <Pressable
+            accessibilityRole="button"
+            onPress={() => setShowFilters(!showFilters)}
+            testID="queue-filters-toggle"
+            style={{ flexDirection: 'row', justifyContent: 'space-between', gap: space.sm }}
+          >
             <Txt variant="small" tone="soft" style={{ flex: 1 }} numberOfLines={1}>
-              {STATE_CHOICES.find((c) => c.value === (p.state ?? 'active'))?.label ?? p.state} · {CASE_SORT_LABELS[query.sort as CaseSort]} · {whoChoices.find((c) => c.value === (p.assignee ?? 'any'))?.label ?? 'One examiner'}
+              {STATE_CHOICES.find((c) => c.value === (p.state ?? 'active'))?.label ?? p.state} · {CASE_SORT_LABELS[query.sort as CaseSort]} ·{' '}
+              {whoChoices.find((c) => c.value === (p.assignee ?? 'any'))?.label ?? 'One examiner'}
             </Txt>
             <Txt variant="small" bold tone="brass">
               {showFilters ? 'Hide filters ▴' : 'Filters ▾'}
@@ -274,10 +313,28 @@ export function QueueScreen() {
         {(wide || showFilters) && (
           <>
             <View style={{ flexDirection: wide ? 'row' : 'column', gap: space.md, flexWrap: 'wrap' }}>
-              <ChoiceRow testID="queue-state" label="State" options={STATE_CHOICES} value={p.state ?? 'active'} onChange={(v) => set({ state: v === 'active' ? undefined : v })} />
-              <ChoiceRow testID="queue-sort" label="Order" options={SORT_CHOICES} value={query.sort as CaseSort} onChange={(v) => set({ sort: v === 'priority' ? undefined : v })} />
+              <ChoiceRow
+                testID="queue-state"
+                label="State"
+                options={STATE_CHOICES}
+                value={p.state ?? 'active'}
+                onChange={(v) => set({ state: v === 'active' ? undefined : v })}
+              />
+              <ChoiceRow
+                testID="queue-sort"
+                label="Order"
+                options={SORT_CHOICES}
+                value={query.sort as CaseSort}
+                onChange={(v) => set({ sort: v === 'priority' ? undefined : v })}
+              />
             </View>
-            <ChoiceRow testID="queue-who" label="Held by" options={whoChoices} value={p.assignee ?? 'any'} onChange={(v) => set({ assignee: v === 'any' ? undefined : v })} />
+            <ChoiceRow
+              testID="queue-who"
+              label="Held by"
+              options={whoChoices}
+              value={p.assignee ?? 'any'}
+              onChange={(v) => set({ assignee: v === 'any' ? undefined : v })}
+            />
             <Pressable accessibilityRole="button" onPress={() => setMore(!more)} testID="queue-more">
               <Txt variant="small" bold tone="brass">
                 {more ? 'Fewer filters ▴' : 'More filters: tax year, activity, batch ▾'}
@@ -289,7 +346,15 @@ export function QueueScreen() {
           <View style={{ gap: space.md }}>
             <View style={{ flexDirection: 'row', gap: space.sm, alignItems: 'flex-end' }}>
               <View style={{ width: 140 }}>
-                <Field testID="queue-year" label="Tax year" placeholder="e.g. 2024" keyboardType="number-pad" value={year} onChangeText={setYear} onSubmitEditing={() => set({ taxYear: year.trim() || undefined })} />
+                <Field
+                  testID="queue-year"
+                  label="Tax year"
+                  placeholder="e.g. 2024"
+                  keyboardType="number-pad"
+                  value={year}
+                  onChangeText={setYear}
+                  onSubmitEditing={() => set({ taxYear: year.trim() || undefined })}
+                />
               </View>
               <Button kind="secondary" label="Apply" onPress={() => set({ taxYear: year.trim() || undefined })} />
             </View>
@@ -327,7 +392,16 @@ export function QueueScreen() {
             {` · by ${CASE_SORT_LABELS[query.sort as CaseSort].toLowerCase()}`}
           </Txt>
           {wide ? (
-            <View style={{ backgroundColor: colours.surface, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md, opacity: list.isPlaceholderData ? 0.6 : 1 }} testID="queue-table">
+            <View
+              style={{
+                backgroundColor: colours.surface,
+                borderWidth: 1,
+                borderColor: colours.line,
+                borderRadius: radius.md,
+                opacity: list.isPlaceholderData ? 0.6 : 1,
+              }}
+              testID="queue-table"
+            >
               <TableHeader />
               {list.data.items.map((c) => (
                 <TableRow key={c.id} c={c} />

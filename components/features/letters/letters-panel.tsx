@@ -135,8 +135,8 @@ function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentReques
         Ask the taxpayer for records
       </Txt>
       <Txt variant="small" tone="soft">
-        The letter asks politely for the records below and gives the taxpayer a one-time link to upload them. It names no score, test or
-        suspicion. Sending it moves the case to awaiting reply.
+        The letter asks politely for the records below and gives the taxpayer a one-time link to upload them. It names no score, test or suspicion. Sending it
+        moves the case to awaiting reply.
       </Txt>
       <View style={{ gap: space.sm }}>
         {items.map((_, i) => (
@@ -157,7 +157,13 @@ function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentReques
               )}
             </View>
             {items.length > 1 && (
-              <Button kind="quiet" label="Remove" accessibilityLabel={`Remove record ${i + 1}`} testID={`request-item-${i}-remove`} onPress={() => setItems(items.filter((_x, k) => k !== i))} />
+              <Button
+                kind="quiet"
+                label="Remove"
+                accessibilityLabel={`Remove record ${i + 1}`}
+                testID={`request-item-${i}-remove`}
+                onPress={() => setItems(items.filter((_x, k) => k !== i))}
+              />
             )}
           </View>
         ))}
@@ -166,7 +172,15 @@ function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentReques
             {itemsError.message}
           </Txt>
         )}
-        {items.length < 12 && <Button kind="secondary" label="Add another record" testID="request-item-add" onPress={() => setItems([...items, ''])} style={{ alignSelf: 'flex-start' }} />}
+        {items.length < 12 && (
+          <Button
+            kind="secondary"
+            label="Add another record"
+            testID="request-item-add"
+            onPress={() => setItems([...items, ''])}
+            style={{ alignSelf: 'flex-start' }}
+          />
+        )}
       </View>
       <Controller
         control={form.control}
@@ -216,7 +230,11 @@ function ReferralForm({ onSubmit, busy, error }: FormProps<ReferralInput>) {
       <Txt variant="small" tone="soft">
         The memo carries the case facts, the score breakdown, the digit chart and the case history. Referring finishes the case here.
       </Txt>
-      <Controller control={form.control} name="unit" render={({ field }) => <ChoiceRow testID="referral-unit" label="Unit" options={unitOptions} value={field.value} onChange={field.onChange} />} />
+      <Controller
+        control={form.control}
+        name="unit"
+        render={({ field }) => <ChoiceRow testID="referral-unit" label="Unit" options={unitOptions} value={field.value} onChange={field.onChange} />}
+      />
       <FormField
         control={form.control}
         name="summary"
@@ -265,7 +283,9 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
       {letters.isPending && <Txt tone="soft">Loading letters…</Txt>}
       {letters.error && <Txt tone="alert">{letters.error.message}</Txt>}
       {letters.data && letters.data.items.length === 0 && <Txt tone="soft">No letters yet.</Txt>}
-      {letters.data?.items.map((l) => <LetterRow key={l.id} caseId={caseId} letter={l} />)}
+      {letters.data?.items.map((l) => (
+        <LetterRow key={l.id} caseId={caseId} letter={l} />
+      ))}
       {notice && (
         <Txt tone="ok" accessibilityRole="alert" testID="letters-notice">
           {notice}
@@ -274,9 +294,16 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
       {(mayRequest || mayRefer) && (
         <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, paddingTop: space.sm, borderTopWidth: 1, borderTopColor: colours.line }}>
           {mayRequest && (
-            <Button kind={open === 'request' ? 'primary' : 'secondary'} label="Request documents" testID="open-document-request" onPress={() => toggle('request')} />
+            <Button
+              kind={open === 'request' ? 'primary' : 'secondary'}
+              label="Request documents"
+              testID="open-document-request"
+              onPress={() => toggle('request')}
+            />
           )}
-          {mayRefer && <Button kind={open === 'referral' ? 'primary' : 'secondary'} label="Refer the case" testID="open-referral" onPress={() => toggle('referral')} />}
+          {mayRefer && (
+            <Button kind={open === 'referral' ? 'primary' : 'secondary'} label="Refer the case" testID="open-referral" onPress={() => toggle('referral')} />
+          )}
         </View>
       )}
       {open === 'request' && mayRequest && (
@@ -287,7 +314,11 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
         />
       )}
       {open === 'referral' && mayRefer && (
-        <ReferralForm onSubmit={(v) => refer.mutate(v, { onSuccess: done('The referral memo was written and is kept with the case.') })} busy={refer.isPending} error={refer.error} />
+        <ReferralForm
+          onSubmit={(v) => refer.mutate(v, { onSuccess: done('The referral memo was written and is kept with the case.') })}
+          busy={refer.isPending}
+          error={refer.error}
+        />
       )}
     </Card>
   );

@@ -13,7 +13,11 @@ export const lettersKey = (caseId: string) => ['case', caseId, 'letters'] as con
 
 /** Everything a letter's case move changes on screen. */
 function refreshAfterMove(qc: QueryClient, caseId: string) {
-  return Promise.all([qc.invalidateQueries({ queryKey: ['case', caseId] }), qc.invalidateQueries({ queryKey: ['cases'] }), qc.invalidateQueries({ queryKey: ['workload'] })]);
+  return Promise.all([
+    qc.invalidateQueries({ queryKey: ['case', caseId] }),
+    qc.invalidateQueries({ queryKey: ['cases'] }),
+    qc.invalidateQueries({ queryKey: ['workload'] }),
+  ]);
 }
 
 /** The letters kept with a case, newest first. */
@@ -25,7 +29,8 @@ export function useLetters(caseId: string) {
 export function useSendDocumentRequest(caseId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: DocumentRequestInput) => apiSend('POST', `/api/cases/${caseId}/document-requests`, { ...input, email: input.email ? input.email : undefined }, LetterCreatedSchema),
+    mutationFn: (input: DocumentRequestInput) =>
+      apiSend('POST', `/api/cases/${caseId}/document-requests`, { ...input, email: input.email ? input.email : undefined }, LetterCreatedSchema),
     onSuccess: () => refreshAfterMove(qc, caseId),
   });
 }

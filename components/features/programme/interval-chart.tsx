@@ -76,11 +76,30 @@ export function IntervalChart({ title, caption, series, categories, testID }: In
                 {c.values.map((v, si) => {
                   const x = cx - (bw * series.length) / 2 + bw * si + bw / 2;
                   if (!v.enoughData || v.estimate === null || v.low === null || v.high === null) {
-                    return <Line key={si} x1={x - bw * 0.3} x2={x + bw * 0.3} y1={y(0) - 3} y2={y(0) - 3} stroke={series[si].colour} strokeWidth={2} strokeDasharray="3,2" />;
+                    return (
+                      <Line
+                        key={si}
+                        x1={x - bw * 0.3}
+                        x2={x + bw * 0.3}
+                        y1={y(0) - 3}
+                        y2={y(0) - 3}
+                        stroke={series[si].colour}
+                        strokeWidth={2}
+                        strokeDasharray="3,2"
+                      />
+                    );
                   }
                   return (
                     <G key={si}>
-                      <Rect x={x - bw * 0.4} y={y(v.estimate)} width={bw * 0.8} height={Math.max(0, y(0) - y(v.estimate))} fill={series[si].colour} opacity={0.85} rx={2} />
+                      <Rect
+                        x={x - bw * 0.4}
+                        y={y(v.estimate)}
+                        width={bw * 0.8}
+                        height={Math.max(0, y(0) - y(v.estimate))}
+                        fill={series[si].colour}
+                        opacity={0.85}
+                        rx={2}
+                      />
                       <Line x1={x} x2={x} y1={y(v.low)} y2={y(v.high)} stroke={colours.ink} strokeWidth={1.5} />
                       <Line x1={x - bw * 0.25} x2={x + bw * 0.25} y1={y(v.low)} y2={y(v.low)} stroke={colours.ink} strokeWidth={1.5} />
                       <Line x1={x - bw * 0.25} x2={x + bw * 0.25} y1={y(v.high)} y2={y(v.high)} stroke={colours.ink} strokeWidth={1.5} />

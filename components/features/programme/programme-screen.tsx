@@ -140,8 +140,8 @@ export function ProgrammeScreen() {
           Programme
         </Txt>
         <Txt tone="soft">
-          Is the selection finding anything, and how much? Outcomes of finished cases chosen by score, against cases chosen at random from the returns below the cut. Scores select returns for
-          a human look and prove nothing by themselves.
+          Is the selection finding anything, and how much? Outcomes of finished cases chosen by score, against cases chosen at random from the returns below the
+          cut. Scores select returns for a human look and prove nothing by themselves.
         </Txt>
       </View>
       {o.error && (
@@ -204,12 +204,12 @@ export function ProgrammeScreen() {
           <View style={{ gap: space.xs, padding: space.md, borderRadius: radius.md, backgroundColor: colours.neutralSoft }} testID="programme-methods">
             <Txt bold>How these figures are computed</Txt>
             <Txt variant="small">
-              Rates: {d.overall.selected.rate.method}. Mean adjusted amounts: {d.overall.selected.meanAdjusted.method}. Lift of the rate: {d.overall.rateLift.method}. Lift of the amount:{' '}
-              {d.overall.amountLift.method}. All intervals are 95 %.
+              Rates: {d.overall.selected.rate.method}. Mean adjusted amounts: {d.overall.selected.meanAdjusted.method}. Lift of the rate:{' '}
+              {d.overall.rateLift.method}. Lift of the amount: {d.overall.amountLift.method}. All intervals are 95 %.
             </Txt>
             <Txt variant="small">
-              A figure resting on fewer than {d.minClosed} closed cases, or whose interval is too wide to say anything, is shown as “not enough closed cases yet”. Referred cases are finished but
-              have no adjustment outcome yet, so they are not in the rates.
+              A figure resting on fewer than {d.minClosed} closed cases, or whose interval is too wide to say anything, is shown as “not enough closed cases
+              yet”. Referred cases are finished but have no adjustment outcome yet, so they are not in the rates.
             </Txt>
           </View>
         </>

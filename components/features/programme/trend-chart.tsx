@@ -25,7 +25,9 @@ export function TrendChart({ weeks, testID }: { weeks: Outcomes['weekly']; testI
   const bw = Math.min(28, slot * 0.7);
   const y = (v: number) => PAD.top + plotH * (1 - v / top);
   const ticks = Array.from({ length: top / step + 1 }, (_, k) => k * step);
-  const summary = 'Cases finished per week. ' + shown.map((w) => `Week of ${w.week}: ${w.finished} finished, ${w.adjusted} adjusted, adjustments ${w.adjustedTotal}`).join('; ');
+  const summary =
+    'Cases finished per week. ' +
+    shown.map((w) => `Week of ${w.week}: ${w.finished} finished, ${w.adjusted} adjusted, adjustments ${w.adjustedTotal}`).join('; ');
   const labelEvery = Math.ceil(shown.length / Math.max(1, Math.floor(plotW / 48)));
   return (
     <View style={{ gap: space.xs }} testID={testID}>
@@ -40,7 +42,14 @@ export function TrendChart({ weeks, testID }: { weeks: Outcomes['weekly']; testI
           <Svg width={width} height={HEIGHT}>
             {ticks.map((t) => (
               <G key={t}>
-                <Line x1={PAD.left} x2={PAD.left + plotW} y1={y(t)} y2={y(t)} stroke={t === 0 ? colours.inkSoft : colours.line} strokeWidth={t === 0 ? 1.2 : 1} />
+                <Line
+                  x1={PAD.left}
+                  x2={PAD.left + plotW}
+                  y1={y(t)}
+                  y2={y(t)}
+                  stroke={t === 0 ? colours.inkSoft : colours.line}
+                  strokeWidth={t === 0 ? 1.2 : 1}
+                />
                 <SvgText x={PAD.left - 6} y={y(t) + 4} fontSize={11} fontFamily={fonts.figures} fill={colours.inkSoft} textAnchor="end">
                   {String(t)}
                 </SvgText>
@@ -50,7 +59,16 @@ export function TrendChart({ weeks, testID }: { weeks: Outcomes['weekly']; testI
               const x = PAD.left + slot * i + slot / 2;
               return (
                 <G key={w.week}>
-                  <Rect x={x - bw / 2} y={y(w.finished)} width={bw} height={y(0) - y(w.finished)} fill={colours.line} stroke={colours.cord} strokeWidth={1} rx={2} />
+                  <Rect
+                    x={x - bw / 2}
+                    y={y(w.finished)}
+                    width={bw}
+                    height={y(0) - y(w.finished)}
+                    fill={colours.line}
+                    stroke={colours.cord}
+                    strokeWidth={1}
+                    rx={2}
+                  />
                   <Rect x={x - bw / 2} y={y(w.adjusted)} width={bw} height={y(0) - y(w.adjusted)} fill={colours.cord} opacity={0.9} rx={2} />
                   {i % labelEvery === 0 && (
                     <SvgText x={x} y={HEIGHT - 9} fontSize={11} fontFamily={fonts.figures} fill={colours.ink} textAnchor="middle">

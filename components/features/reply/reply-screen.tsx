@@ -9,7 +9,17 @@ import { useLocalSearchParams } from 'expo-router';
 import { useRef, useState, type ChangeEvent } from 'react';
 import { ActivityIndicator, Platform, Pressable, ScrollView, View } from 'react-native';
 import { ApiError } from '../../../hooks/api-client';
-import { isoToday, longDate, OFFICE, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES, replyFileProblem, type ReplyReceipt, type ReplyRequestDto } from '../../../shared/letters';
+import {
+  isoToday,
+  longDate,
+  OFFICE,
+  REPLY_MAX_FILE_BYTES,
+  REPLY_MAX_FILES,
+  REPLY_MAX_TOTAL_BYTES,
+  replyFileProblem,
+  type ReplyReceipt,
+  type ReplyRequestDto,
+} from '../../../shared/letters';
 import { colours, radius, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
@@ -37,7 +47,17 @@ function Frame({ children }: { children: React.ReactNode }) {
   const wide = useIsWide();
   return (
     <View style={{ flex: 1, backgroundColor: colours.paper }}>
-      <View role="banner" style={{ backgroundColor: colours.ink, paddingHorizontal: space.lg, paddingVertical: space.md, flexDirection: 'row', alignItems: 'center', gap: space.sm }}>
+      <View
+        role="banner"
+        style={{
+          backgroundColor: colours.ink,
+          paddingHorizontal: space.lg,
+          paddingVertical: space.md,
+          flexDirection: 'row',
+          alignItems: 'center',
+          gap: space.sm,
+        }}
+      >
         <PlumbMark />
         <View>
           <Txt variant="lead" bold tone="white">
@@ -72,7 +92,11 @@ function Notice({ testID, title, tone, children }: { testID: string; title: stri
   const bar = { ok: colours.ok, warn: colours.warn, alert: colours.alert }[tone];
   const bg = { ok: colours.okSoft, warn: colours.warnSoft, alert: colours.alertSoft }[tone];
   return (
-    <View testID={testID} style={{ backgroundColor: bg, borderLeftWidth: 5, borderLeftColor: bar, borderRadius: radius.md, padding: space.xl, gap: space.sm }} accessibilityRole="summary">
+    <View
+      testID={testID}
+      style={{ backgroundColor: bg, borderLeftWidth: 5, borderLeftColor: bar, borderRadius: radius.md, padding: space.xl, gap: space.sm }}
+      accessibilityRole="summary"
+    >
       <Txt variant="display" bold accessibilityRole="header">
         {title}
       </Txt>
@@ -101,7 +125,14 @@ function FilePicker({ onPick, disabled }: { onPick(files: File[]): void; disable
           e.target.value = '';
         }}
       />
-      <Button kind="secondary" label="Choose files" testID="reply-choose" disabled={disabled} onPress={() => input.current?.click()} style={{ alignSelf: 'flex-start' }} />
+      <Button
+        kind="secondary"
+        label="Choose files"
+        testID="reply-choose"
+        disabled={disabled}
+        onPress={() => input.current?.click()}
+        style={{ alignSelf: 'flex-start' }}
+      />
     </View>
   );
 }
@@ -117,7 +148,17 @@ function UploadProgress({ share }: { share: number }) {
   );
 }
 
-function RequestForm({ token, request, onDone, onClosed }: { token: string; request: ReplyRequestDto; onDone(r: ReplyReceipt): void; onClosed(state: 'answered' | 'expired'): void }) {
+function RequestForm({
+  token,
+  request,
+  onDone,
+  onClosed,
+}: {
+  token: string;
+  request: ReplyRequestDto;
+  onDone(r: ReplyReceipt): void;
+  onClosed(state: 'answered' | 'expired'): void;
+}) {
   const [files, setFiles] = useState<File[]>([]);
   const [progress, setProgress] = useState(0);
   const upload = useUploadReply(token, setProgress);
@@ -189,14 +230,30 @@ function RequestForm({ token, request, onDone, onClosed }: { token: string; requ
             {files.map((f, i) => {
               const problem = replyFileProblem(f);
               return (
-                <View key={`${f.name}-${i}`} style={{ flexDirection: 'row', alignItems: 'center', gap: space.sm, paddingVertical: space.xs, borderBottomWidth: 1, borderBottomColor: colours.line }}>
+                <View
+                  key={`${f.name}-${i}`}
+                  style={{
+                    flexDirection: 'row',
+                    alignItems: 'center',
+                    gap: space.sm,
+                    paddingVertical: space.xs,
+                    borderBottomWidth: 1,
+                    borderBottomColor: colours.line,
+                  }}
+                >
                   <View style={{ flex: 1 }}>
                     <Txt numberOfLines={1}>{f.name}</Txt>
                     <Txt variant="caption" tone={problem ? 'alert' : 'faint'} figures={!problem}>
                       {problem ?? size(f.size)}
                     </Txt>
                   </View>
-                  <Pressable accessibilityRole="button" accessibilityLabel={`Remove ${f.name}`} disabled={upload.isPending} onPress={() => setFiles(files.filter((_x, k) => k !== i))} style={{ padding: space.xs }}>
+                  <Pressable
+                    accessibilityRole="button"
+                    accessibilityLabel={`Remove ${f.name}`}
+                    disabled={upload.isPending}
+                    onPress={() => setFiles(files.filter((_x, k) => k !== i))}
+                    style={{ padding: space.xs }}
+                  >
                     <Txt variant="small" bold tone="brass">
                       Remove
                     </Txt>
@@ -249,7 +306,10 @@ export function ReplyScreen() {
               <Txt key={i} figures variant="small">{`• ${f.fileName} (${size(f.size)})`}</Txt>
             ))}
           </View>
-          <Txt>There is nothing more you need to do. The person looking at your return will contact you if anything else is needed. This link has now been used and will not accept more files.</Txt>
+          <Txt>
+            There is nothing more you need to do. The person looking at your return will contact you if anything else is needed. This link has now been used and
+            will not accept more files.
+          </Txt>
         </Notice>
         <Contact lead="If you have more to send, or a question:" />
       </Frame>
@@ -293,7 +353,11 @@ export function ReplyScreen() {
     return (
       <Frame>
         <Notice testID="reply-not-found" title={notFound ? 'We could not find this link' : 'This page could not be loaded'} tone="alert">
-          <Txt>{notFound ? 'Please check that the whole link was copied from the e-mail or letter. Links are long and easy to cut short.' : 'Please try again in a few minutes.'}</Txt>
+          <Txt>
+            {notFound
+              ? 'Please check that the whole link was copied from the e-mail or letter. Links are long and easy to cut short.'
+              : 'Please try again in a few minutes.'}
+          </Txt>
         </Notice>
         <Contact lead="If it still does not work, contact us:" />
       </Frame>

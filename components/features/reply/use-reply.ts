@@ -59,7 +59,10 @@ export function uploadReply(token: string, files: readonly File[], onProgress: (
         resolve(ReplyReceiptSchema.parse(body));
         return;
       }
-      const msg = body && typeof body === 'object' && 'error' in body ? String((body as { error: unknown }).error) : `The upload failed (${xhr.status}). Please try again.`;
+      const msg =
+        body && typeof body === 'object' && 'error' in body
+          ? String((body as { error: unknown }).error)
+          : `The upload failed (${xhr.status}). Please try again.`;
       reject(new ApiError(xhr.status, msg, body));
     };
     xhr.onerror = () => reject(new ApiError(0, 'The connection was lost while sending. Please check your connection and try again.', null));

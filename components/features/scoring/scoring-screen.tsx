@@ -35,18 +35,32 @@ function WeightsForm({ active, performance }: { active: ProfileVersion; performa
         Weights of version {active.version}
       </Txt>
       <Txt variant="small" tone="soft">
-        Each factor adds up to this many points at full strength; the risk score is the sum, capped at 100. Saving makes a new
-        version: scores already made keep the version they were made with.
+        Each factor adds up to this many points at full strength; the risk score is the sum, capped at 100. Saving makes a new version: scores already made keep
+        the version they were made with.
       </Txt>
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.md }}>
         {COMPONENTS.map((key) => (
           <View key={key} style={{ width: wide ? 230 : '100%' }}>
-            <FormField control={form.control} name={`settings.weights.${key}`} toValue={num} testID={`weight-${key}`} label={COMPONENT_LABELS[key]} keyboardType="numeric" />
+            <FormField
+              control={form.control}
+              name={`settings.weights.${key}`}
+              toValue={num}
+              testID={`weight-${key}`}
+              label={COMPONENT_LABELS[key]}
+              keyboardType="numeric"
+            />
           </View>
         ))}
       </View>
       <View style={{ width: wide ? 230 : '100%' }}>
-        <FormField control={form.control} name="settings.selectionCut" toValue={num} testID="selection-cut" label="Open a case at or above (score)" keyboardType="numeric" />
+        <FormField
+          control={form.control}
+          name="settings.selectionCut"
+          toValue={num}
+          testID="selection-cut"
+          label="Open a case at or above (score)"
+          keyboardType="numeric"
+        />
       </View>
       <FormField control={form.control} name="note" testID="profile-note" label="Why the change" />
       {add.error && <Txt tone="alert">{add.error.message}</Txt>}
@@ -68,17 +82,31 @@ function PerformanceTable({ p }: { p: Performance }) {
       </Txt>
       <Txt variant="small" tone="soft">
         {p.closedCases} closed case{p.closedCases === 1 ? '' : 's'}, {p.adjustedCases} adjusted
-        {p.baseRate !== null ? ` (${Math.round(p.baseRate * 100)} %)` : ''}. A suggestion moves a weight by how much more often the cases a
-        factor flagged ended adjusted, within half to double, once it has flagged {p.minEvidence} closed cases. It changes nothing until you
-        save it.
+        {p.baseRate !== null ? ` (${Math.round(p.baseRate * 100)} %)` : ''}. A suggestion moves a weight by how much more often the cases a factor flagged ended
+        adjusted, within half to double, once it has flagged {p.minEvidence} closed cases. It changes nothing until you save it.
       </Txt>
       {p.factors.map((f) => (
-        <View key={f.key} style={{ flexDirection: wide ? 'row' : 'column', gap: wide ? space.md : 0, paddingVertical: space.xs, borderTopWidth: 1, borderTopColor: colours.line }}>
+        <View
+          key={f.key}
+          style={{
+            flexDirection: wide ? 'row' : 'column',
+            gap: wide ? space.md : 0,
+            paddingVertical: space.xs,
+            borderTopWidth: 1,
+            borderTopColor: colours.line,
+          }}
+        >
           <Txt style={{ flex: 1 }}>{f.label}</Txt>
           <Txt variant="small" figures style={{ width: 170 }}>
             {f.adjusted}/{f.flagged} adjusted{f.adjustedRate !== null ? ` (${Math.round(f.adjustedRate * 100)} %)` : ''}
           </Txt>
-          <Txt variant="small" figures bold={f.suggestedWeight !== f.weight} tone={f.suggestedWeight > f.weight ? 'ok' : f.suggestedWeight < f.weight ? 'warn' : 'soft'} style={{ width: 150 }}>
+          <Txt
+            variant="small"
+            figures
+            bold={f.suggestedWeight !== f.weight}
+            tone={f.suggestedWeight > f.weight ? 'ok' : f.suggestedWeight < f.weight ? 'warn' : 'soft'}
+            style={{ width: 150 }}
+          >
             {f.weight} → {f.suggestedWeight} points
           </Txt>
         </View>
@@ -100,7 +128,9 @@ export function ScoringScreen() {
         <Txt variant="display" bold accessibilityRole="header">
           Scoring profile
         </Txt>
-        <Txt tone="soft">The weights that turn digit tests and risk factors into the queue's order. A score selects a return for a look; it proves nothing.</Txt>
+        <Txt tone="soft">
+          The weights that turn digit tests and risk factors into the queue's order. A score selects a return for a look; it proves nothing.
+        </Txt>
       </View>
       {profiles.error && <Txt tone="alert">{profiles.error.message}</Txt>}
       <View style={{ flexDirection: wide ? 'row' : 'column', gap: space.lg, alignItems: 'flex-start' }}>

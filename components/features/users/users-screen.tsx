@@ -30,7 +30,11 @@ function NewUserForm() {
       </Txt>
       <FormField control={form.control} name="username" testID="new-user-username" label="User name" autoCapitalize="none" />
       <FormField control={form.control} name="displayName" testID="new-user-name" label="Full name" />
-      <Controller control={form.control} name="role" render={({ field }) => <ChoiceRow testID="new-user-role" label="Role" options={roleOptions} value={field.value} onChange={field.onChange} />} />
+      <Controller
+        control={form.control}
+        name="role"
+        render={({ field }) => <ChoiceRow testID="new-user-role" label="Role" options={roleOptions} value={field.value} onChange={field.onChange} />}
+      />
       <FormField
         control={form.control}
         name="password"
@@ -82,7 +86,14 @@ function UserRow({ user }: { user: UserDto }) {
           </View>
           <View style={{ gap: space.sm }}>
             <Field label="New password" secureTextEntry value={pw} onChangeText={setPw} hint="At least 10 characters; signs the person out everywhere." />
-            <Button kind="secondary" label="Reset password" disabled={pw.length < 10} busy={reset.isPending} onPress={() => reset.mutate({ id: user.id, password: pw }, { onSuccess: () => setPw('') })} style={{ alignSelf: 'flex-start' }} />
+            <Button
+              kind="secondary"
+              label="Reset password"
+              disabled={pw.length < 10}
+              busy={reset.isPending}
+              onPress={() => reset.mutate({ id: user.id, password: pw }, { onSuccess: () => setPw('') })}
+              style={{ alignSelf: 'flex-start' }}
+            />
             {reset.isSuccess && <Txt tone="ok">Password reset.</Txt>}
           </View>
           {(update.error || reset.error) && <Txt tone="alert">{(update.error ?? reset.error)!.message}</Txt>}
@@ -108,7 +119,9 @@ export function UsersScreen() {
         <View style={{ flex: wide ? 3 : undefined, width: wide ? undefined : '100%', gap: space.sm }}>
           {users.isPending && <Txt tone="soft">Loading…</Txt>}
           {users.error && <Txt tone="alert">{users.error.message}</Txt>}
-          {users.data?.items.map((u) => <UserRow key={u.id} user={u} />)}
+          {users.data?.items.map((u) => (
+            <UserRow key={u.id} user={u} />
+          ))}
         </View>
         <View style={{ flex: wide ? 2 : undefined, width: wide ? undefined : '100%' }}>
           <NewUserForm />

@@ -15,7 +15,11 @@ import { useWorkload } from './use-workload';
 /** Whose cases the reassignment panel lists: an examiner's id, or 'none' for open cases nobody holds. */
 type Source = string;
 
-const COUNTS: { key: keyof Pick<WorkloadRow, 'assigned' | 'inReview' | 'awaitingReply' | 'overdue' | 'deadlinesNear' | 'open' | 'finished30d'>; label: string; short: string }[] = [
+const COUNTS: {
+  key: keyof Pick<WorkloadRow, 'assigned' | 'inReview' | 'awaitingReply' | 'overdue' | 'deadlinesNear' | 'open' | 'finished30d'>;
+  label: string;
+  short: string;
+}[] = [
   { key: 'assigned', label: 'Not started', short: 'Not started' },
   { key: 'inReview', label: 'In review', short: 'In review' },
   { key: 'awaitingReply', label: 'Awaiting reply', short: 'Awaiting reply' },
@@ -61,7 +65,16 @@ function Checkbox({ checked, onPress, label, testID }: { checked: boolean; onPre
 function ExaminerTable({ rows, onPick, picked }: { rows: WorkloadRow[]; onPick(id: string): void; picked: Source | null }) {
   return (
     <View style={{ backgroundColor: colours.surface, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID="workload-table">
-      <View style={{ flexDirection: 'row', gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1.5, borderBottomColor: colours.ink }}>
+      <View
+        style={{
+          flexDirection: 'row',
+          gap: space.md,
+          paddingVertical: space.sm,
+          paddingHorizontal: space.md,
+          borderBottomWidth: 1.5,
+          borderBottomColor: colours.ink,
+        }}
+      >
         <View style={{ flex: 1 }}>
           <Txt variant="caption" bold tone="soft">
             EXAMINER
@@ -79,7 +92,16 @@ function ExaminerTable({ rows, onPick, picked }: { rows: WorkloadRow[]; onPick(i
       {rows.map((r) => (
         <View
           key={r.examinerId}
-          style={{ flexDirection: 'row', gap: space.md, alignItems: 'center', paddingVertical: space.sm, paddingHorizontal: space.md, borderBottomWidth: 1, borderBottomColor: colours.line, backgroundColor: picked === r.examinerId ? colours.brassSoft : 'transparent' }}
+          style={{
+            flexDirection: 'row',
+            gap: space.md,
+            alignItems: 'center',
+            paddingVertical: space.sm,
+            paddingHorizontal: space.md,
+            borderBottomWidth: 1,
+            borderBottomColor: colours.line,
+            backgroundColor: picked === r.examinerId ? colours.brassSoft : 'transparent',
+          }}
           testID={`workload-${r.username}`}
         >
           <View style={{ flex: 1 }}>
@@ -94,7 +116,13 @@ function ExaminerTable({ rows, onPick, picked }: { rows: WorkloadRow[]; onPick(i
             </View>
           ))}
           <View style={{ width: 120, alignItems: 'flex-end' }}>
-            <Button kind="quiet" label="Reassign…" testID={`workload-${r.username}-reassign`} disabled={r.assigned === 0} onPress={() => onPick(r.examinerId)} />
+            <Button
+              kind="quiet"
+              label="Reassign…"
+              testID={`workload-${r.username}-reassign`}
+              disabled={r.assigned === 0}
+              onPress={() => onPick(r.examinerId)}
+            />
           </View>
         </View>
       ))}
@@ -116,7 +144,11 @@ function ExaminerCard({ r, onPick, picked }: { r: WorkloadRow; onPick(id: string
       </View>
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', rowGap: space.sm }}>
         {COUNTS.filter((c) => c.key !== 'open').map((c) => (
-          <View key={c.key} style={{ width: '50%', flexDirection: 'row', justifyContent: 'space-between', paddingRight: space.md }} testID={`workload-${r.username}-${c.key}`}>
+          <View
+            key={c.key}
+            style={{ width: '50%', flexDirection: 'row', justifyContent: 'space-between', paddingRight: space.md }}
+            testID={`workload-${r.username}-${c.key}`}
+          >
             <Txt variant="small" tone="soft">
               {c.short}
             </Txt>
@@ -124,14 +156,23 @@ function ExaminerCard({ r, onPick, picked }: { r: WorkloadRow; onPick(id: string
           </View>
         ))}
       </View>
-      <Button kind="secondary" label="Reassign cases…" testID={`workload-${r.username}-reassign`} disabled={r.assigned === 0} onPress={() => onPick(r.examinerId)} style={{ alignSelf: 'flex-start' }} />
+      <Button
+        kind="secondary"
+        label="Reassign cases…"
+        testID={`workload-${r.username}-reassign`}
+        disabled={r.assigned === 0}
+        onPress={() => onPick(r.examinerId)}
+        style={{ alignSelf: 'flex-start' }}
+      />
     </Card>
   );
 }
 
 function CaseChoice({ c, checked, onToggle }: { c: CaseListItem; checked: boolean; onToggle(): void }) {
   return (
-    <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.md, paddingVertical: space.sm, borderBottomWidth: 1, borderBottomColor: colours.line }}>
+    <View
+      style={{ flexDirection: 'row', alignItems: 'center', gap: space.md, paddingVertical: space.sm, borderBottomWidth: 1, borderBottomColor: colours.line }}
+    >
       <Checkbox checked={checked} onPress={onToggle} label={`Select ${c.returnRef}`} testID={`pick-${c.returnRef}`} />
       <View style={{ flex: 1, gap: 2 }}>
         <Txt figures bold>
@@ -190,7 +231,16 @@ function ReassignPanel({ source, rows, onClose }: { source: Source; rows: Worklo
       {cases.data && items.length === 0 && <Txt tone="soft">No cases to move.</Txt>}
       {items.length > 0 && (
         <View>
-          <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.md, paddingBottom: space.sm, borderBottomWidth: 1.5, borderBottomColor: colours.ink }}>
+          <View
+            style={{
+              flexDirection: 'row',
+              alignItems: 'center',
+              gap: space.md,
+              paddingBottom: space.sm,
+              borderBottomWidth: 1.5,
+              borderBottomColor: colours.ink,
+            }}
+          >
             <Checkbox
               checked={picked.size === items.length}
               onPress={() => setPicked(picked.size === items.length ? new Set() : new Set(items.map((c) => c.id)))}
@@ -198,7 +248,9 @@ function ReassignPanel({ source, rows, onClose }: { source: Source; rows: Worklo
               testID="pick-all"
             />
             <Txt variant="small" bold>
-              {picked.size ? `${picked.size} of ${items.length} chosen` : `Choose cases (${items.length}${cases.data && cases.data.total > items.length ? ` of ${whole(cases.data.total)}` : ''})`}
+              {picked.size
+                ? `${picked.size} of ${items.length} chosen`
+                : `Choose cases (${items.length}${cases.data && cases.data.total > items.length ? ` of ${whole(cases.data.total)}` : ''})`}
             </Txt>
           </View>
           {items.map((c) => (
@@ -206,7 +258,13 @@ function ReassignPanel({ source, rows, onClose }: { source: Source; rows: Worklo
           ))}
         </View>
       )}
-      <ChoiceRow testID="reassign-to" label="To" options={targets.map((t) => ({ value: t.examinerId, label: `${t.displayName} (${t.open} open)` }))} value={target} onChange={setTarget} />
+      <ChoiceRow
+        testID="reassign-to"
+        label="To"
+        options={targets.map((t) => ({ value: t.examinerId, label: `${t.displayName} (${t.open} open)` }))}
+        value={target}
+        onChange={setTarget}
+      />
       {move.error && (
         <Txt tone="alert" accessibilityRole="alert">
           {move.error.message}
@@ -270,7 +328,16 @@ export function WorkloadScreen() {
       {w.isPending && <Txt tone="soft">Counting…</Txt>}
       {w.data && (
         <>
-          <Card style={{ flexDirection: wide ? 'row' : 'column', gap: space.md, alignItems: wide ? 'center' : 'flex-start', borderLeftWidth: 4, borderLeftColor: colours.brass }} testID="workload-unassigned">
+          <Card
+            style={{
+              flexDirection: wide ? 'row' : 'column',
+              gap: space.md,
+              alignItems: wide ? 'center' : 'flex-start',
+              borderLeftWidth: 4,
+              borderLeftColor: colours.brass,
+            }}
+            testID="workload-unassigned"
+          >
             <View style={{ flex: wide ? 1 : undefined, gap: 2 }}>
               <Txt>
                 <Txt figures bold variant="title">
@@ -290,7 +357,13 @@ export function WorkloadScreen() {
                   </Txt>
                 </Pressable>
               </Link>
-              <Button kind="secondary" label="Give some out…" testID="workload-assign-open" disabled={w.data.unassigned === 0} onPress={() => setSource('none')} />
+              <Button
+                kind="secondary"
+                label="Give some out…"
+                testID="workload-assign-open"
+                disabled={w.data.unassigned === 0}
+                onPress={() => setSource('none')}
+              />
             </View>
           </Card>
           {!wide && source === 'none' && panel}

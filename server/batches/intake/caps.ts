@@ -72,19 +72,37 @@ export function capError(cap: CapName, caps: ReadCaps, where: string): CapError 
     case 'maxRows':
       return new CapError(cap, `${where} has more than ${n(caps.maxRows)} rows, the most one file may hold. ${split}`);
     case 'maxColumns':
-      return new CapError(cap, `${where} has a row with more than ${n(caps.maxColumns)} cells. Remove the columns that are not needed, or ${split.charAt(0).toLowerCase()}${split.slice(1)}`);
+      return new CapError(
+        cap,
+        `${where} has a row with more than ${n(caps.maxColumns)} cells. Remove the columns that are not needed, or ${split.charAt(0).toLowerCase()}${split.slice(1)}`,
+      );
     case 'maxCells':
-      return new CapError(cap, `${where}: the workbook holds more than ${n(caps.maxCells)} cells in all, the most one upload may hold. Remove the sheets and columns that are not needed, or ${split.charAt(0).toLowerCase()}${split.slice(1)}`);
+      return new CapError(
+        cap,
+        `${where}: the workbook holds more than ${n(caps.maxCells)} cells in all, the most one upload may hold. Remove the sheets and columns that are not needed, or ${split.charAt(0).toLowerCase()}${split.slice(1)}`,
+      );
     case 'maxSharedStrings':
-      return new CapError(cap, `${where}: the workbook's table of texts holds more than ${n(caps.maxSharedStrings)} different texts, the most one upload may hold. ${split}`);
+      return new CapError(
+        cap,
+        `${where}: the workbook's table of texts holds more than ${n(caps.maxSharedStrings)} different texts, the most one upload may hold. ${split}`,
+      );
     case 'maxSharedStringBytes':
-      return new CapError(cap, `${where}: the workbook's table of texts holds more than ${mb(caps.maxSharedStringBytes)} of text, the most one upload may hold. ${split}`);
+      return new CapError(
+        cap,
+        `${where}: the workbook's table of texts holds more than ${mb(caps.maxSharedStringBytes)} of text, the most one upload may hold. ${split}`,
+      );
     case 'maxInflatedBytes':
       return new CapError(cap, `${where}: the workbook unpacks to more than ${mb(caps.maxInflatedBytes)}, the most one upload may unpack to. ${split}`);
     case 'maxCellChars':
-      return new CapError(cap, `${where} has a cell of more than ${n(caps.maxCellChars)} characters (Excel's own limit). Shorten that cell; a batch or amounts file needs no such text.`);
+      return new CapError(
+        cap,
+        `${where} has a cell of more than ${n(caps.maxCellChars)} characters (Excel's own limit). Shorten that cell; a batch or amounts file needs no such text.`,
+      );
     case 'maxLineChars':
-      return new CapError(cap, `${where} has a line of more than ${n(caps.maxLineChars)} characters. Check that it is a CSV or text file with one record a line (quotes closed), or ${split.charAt(0).toLowerCase()}${split.slice(1)}`);
+      return new CapError(
+        cap,
+        `${where} has a line of more than ${n(caps.maxLineChars)} characters. Check that it is a CSV or text file with one record a line (quotes closed), or ${split.charAt(0).toLowerCase()}${split.slice(1)}`,
+      );
   }
 }
 

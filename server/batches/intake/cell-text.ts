@@ -48,13 +48,20 @@ export function cellText(v: unknown): CellText {
       if (!('result' in o) || o.result === undefined || o.result === null) {
         return {
           text: '',
-          problem: 'holds a formula with no saved value (Plumbline never calculates formulas); open the workbook in Excel and save it, or paste the values in place of the formulas',
+          problem:
+            'holds a formula with no saved value (Plumbline never calculates formulas); open the workbook in Excel and save it, or paste the values in place of the formulas',
         };
       }
       const inner = cellText(o.result);
       return inner.problem ? { text: '', problem: `holds a formula whose saved result is not usable: ${inner.problem}` } : inner;
     }
-    if (Array.isArray(o.richText)) return { text: (o.richText as { text?: string }[]).map((r) => r.text ?? '').join('').trim() };
+    if (Array.isArray(o.richText))
+      return {
+        text: (o.richText as { text?: string }[])
+          .map((r) => r.text ?? '')
+          .join('')
+          .trim(),
+      };
     if ('hyperlink' in o && typeof o.text === 'string') return { text: o.text.trim() };
     if ('error' in o) return { text: '', problem: `holds the error value ${String(o.error)}; correct the cell in Excel` };
   }

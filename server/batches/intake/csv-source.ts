@@ -68,13 +68,20 @@ export async function* csvRows(file: UploadedFile, opts: { chunkBytes?: number; 
   } catch (e) {
     const at = (line: number | null, message: string) => new SourceError({ file: file.originalName, row: line, column: null, message }, false);
     if (e instanceof CapError) throw new SourceError({ file: file.originalName, row: null, column: null, message: e.message }, true);
-    if (e instanceof CsvError && e.code === 'CSV_MAX_RECORD_SIZE') throw new SourceError({ file: file.originalName, row: null, column: null, message: capError('maxLineChars', caps, file.originalName).message }, true);
+    if (e instanceof CsvError && e.code === 'CSV_MAX_RECORD_SIZE')
+      throw new SourceError({ file: file.originalName, row: null, column: null, message: capError('maxLineChars', caps, file.originalName).message }, true);
     if (e instanceof Utf8Problem) {
-      throw at(e.line, `The file is not UTF-8 text (an unreadable character on line ${e.line}). In Excel choose "Save as… CSV UTF-8 (Comma delimited)" and upload it again.`);
+      throw at(
+        e.line,
+        `The file is not UTF-8 text (an unreadable character on line ${e.line}). In Excel choose "Save as… CSV UTF-8 (Comma delimited)" and upload it again.`,
+      );
     }
     if (e instanceof CsvError) {
       const line = typeof (e as { lines?: number }).lines === 'number' ? (e as unknown as { lines: number }).lines : null;
-      throw at(line, `The CSV cannot be read past line ${line}: ${csvProblem(e)} Check that every value containing a comma, quote or line break is enclosed in double quotes, and that quotes inside a value are doubled ("").`);
+      throw at(
+        line,
+        `The CSV cannot be read past line ${line}: ${csvProblem(e)} Check that every value containing a comma, quote or line break is enclosed in double quotes, and that quotes inside a value are doubled ("").`,
+      );
     }
     throw e;
   }
@@ -150,7 +157,8 @@ async function* plainCsvRows(path: string, limits: RowLimits, chunkBytes?: numbe
   if (carry.length > limits.caps.maxLineChars) throw capError('maxLineChars', limits.caps, limits.where);
   // Whole lines read so far were csv-parse's records too; hand them on before any stop.
   if (!stopped && carry !== '') {
-    if (delim === '' && carry.charCodeAt(carry.length - 1) === 13) stopped = true; // ends in a lone CR: csv-parse
+    if (delim === '' && carry.charCodeAt(carry.length - 1) === 13)
+      stopped = true; // ends in a lone CR: csv-parse
     else {
       const cells = plainCells(carry);
       limits.count(cells);
@@ -256,4 +264,3 @@ class RowLimits {
     }
   }
 }
-

@@ -54,7 +54,15 @@ export class IssueList {
   report(): BatchIssue[] {
     const more = this.count - this.items.length;
     if (more <= 0) return this.items;
-    return [...this.items, { file: '', row: null, column: null, message: `…and ${more.toLocaleString('en-GB')} more errors not listed. Fix the ones above (they are often the same mistake) and upload the batch again to see the rest.` }];
+    return [
+      ...this.items,
+      {
+        file: '',
+        row: null,
+        column: null,
+        message: `…and ${more.toLocaleString('en-GB')} more errors not listed. Fix the ones above (they are often the same mistake) and upload the batch again to see the rest.`,
+      },
+    ];
   }
 }
 
@@ -102,7 +110,11 @@ export interface IntakeOptions {
  * @param sources the tables in the order the upload holds them
  * @param describeMissing builds the message for a missing table (CSV part vs XLSX sheet)
  */
-export async function runIntake(opts: IntakeOptions, sources: AsyncIterable<TableSource>, describeMissing: (table: BatchTable) => BatchIssue): Promise<IntakeResult> {
+export async function runIntake(
+  opts: IntakeOptions,
+  sources: AsyncIterable<TableSource>,
+  describeMissing: (table: BatchTable) => BatchIssue,
+): Promise<IntakeResult> {
   const intake = new Intake(opts);
   try {
     return await intake.run(sources, describeMissing);
@@ -147,7 +159,12 @@ class Intake {
       try {
         for await (const src of sources) {
           if (seen.has(src.table)) {
-            this.errors.add({ file: src.label, row: null, column: null, message: `A second ${src.table} table was found; a batch has exactly one. Remove or rename the extra one.` });
+            this.errors.add({
+              file: src.label,
+              row: null,
+              column: null,
+              message: `A second ${src.table} table was found; a batch has exactly one. Remove or rename the extra one.`,
+            });
             continue;
           }
           seen.add(src.table);
@@ -250,75 +267,99 @@ class Intake {
     let dataRows = 0;
     const values: Record<string, string> = {};
     let fastRow: FastRow | null = null;
-    for await (const batch of src.rows) for (const r of batch) {
-      if (isBlank(r)) continue;
-      if (!header) {
-        const h = this.readHeader(src, r, known);
-        header = { ...h, absent: known.filter((k) => !h.names.includes(k)) };
-        for (const k of header.absent) values[k] = '';
-        headerOk = h.names.length > 0;
-        if (headerOk && fast) fastRow = fast(h.names, h.index);
-        continue;
-      }
-      dataRows++;
-      if (dataRows > this.opts.limits.maxRows) {
-        this.errors.add({
-          file: src.label,
-          row: r.row,
-          column: null,
-          message: `The ${table} table has more than ${this.opts.limits.maxRows.toLocaleString('en-GB')} rows, the most one batch file may hold. Split it into several batches.`,
-        });
-        return false; // not read to the end: nothing more can be said about it
-      }
-      if (!headerOk) continue;
-      // The fast path takes the rows it is sure of (no cell problems, no extra cells) and
-      // gives back the rest, which the schema judges and reports as before.
-      if (fastRow !== null && r.problems === null && r.cells.length <= header.width) {
-        const took = fastRow(r.cells, r.row);
-        if (took !== false) {
-          if (took !== true) await took;
+    for await (const batch of src.rows)
+      for (const r of batch) {
+        if (isBlank(r)) continue;
+        if (!header) {
+          const h = this.readHeader(src, r, known);
+          header = { ...h, absent: known.filter((k) => !h.names.includes(k)) };
+          for (const k of header.absent) values[k] = '';
+          headerOk = h.names.length > 0;
+          if (headerOk && fast) fastRow = fast(h.names, h.index);
           continue;
         }
-      }
-      // One object per table, refilled for each row: a million rows need no million objects.
-      const { names, index } = header;
-      for (let i = 0; i < names.length; i++) values[names[i]] = r.cells[index[i]] ?? '';
-      let skip: Set<string> | null = null;
-      if (r.problems) {
-        for (let i = 0; i < names.length; i++) {
-          const p = r.problems[index[i]];
-          if (p) {
-            this.errors.add({ file: src.label, row: r.row, column: names[i], message: `The cell ${p}`, value: null });
-            (skip ??= new Set()).add(names[i]);
+        dataRows++;
+        if (dataRows > this.opts.limits.maxRows) {
+          this.errors.add({
+            file: src.label,
+            row: r.row,
+            column: null,
+            message: `The ${table} table has more than ${this.opts.limits.maxRows.toLocaleString('en-GB')} rows, the most one batch file may hold. Split it into several batches.`,
+          });
+          return false; // not read to the end: nothing more can be said about it
+        }
+        if (!headerOk) continue;
+        // The fast path takes the rows it is sure of (no cell problems, no extra cells) and
+        // gives back the rest, which the schema judges and reports as before.
+        if (fastRow !== null && r.problems === null && r.cells.length <= header.width) {
+          const took = fastRow(r.cells, r.row);
+          if (took !== false) {
+            if (took !== true) await took;
+            continue;
           }
         }
+        // One object per table, refilled for each row: a million rows need no million objects.
+        const { names, index } = header;
+        for (let i = 0; i < names.length; i++) values[names[i]] = r.cells[index[i]] ?? '';
+        let skip: Set<string> | null = null;
+        if (r.problems) {
+          for (let i = 0; i < names.length; i++) {
+            const p = r.problems[index[i]];
+            if (p) {
+              this.errors.add({ file: src.label, row: r.row, column: names[i], message: `The cell ${p}`, value: null });
+              (skip ??= new Set()).add(names[i]);
+            }
+          }
+        }
+        if (r.cells.length > header.width) {
+          const extra = r.cells.slice(header.width).filter((c) => c !== '');
+          if (extra.length)
+            this.errors.add({
+              file: src.label,
+              row: r.row,
+              column: null,
+              message: `The row has ${r.cells.length} values but the header has ${header.width} columns; remove the extra values or add their column names.`,
+              value: shorten(extra[0]),
+            });
+        }
+        const parsed = schema.safeParse(values);
+        if (parsed.success) {
+          if (!skip) {
+            // Handlers return a promise only when they must wait (COPY back-pressure).
+            const wait = onRow(parsed.data, r.row, values);
+            if (wait) await wait;
+          } else onInvalid?.(values);
+          continue;
+        }
+        onInvalid?.(values);
+        for (const issue of parsed.error.issues) {
+          const column = typeof issue.path[0] === 'string' ? issue.path[0] : null;
+          if (column && skip?.has(column)) continue;
+          this.errors.add({
+            file: src.label,
+            row: r.row,
+            column,
+            message: `${columnTitle(column)} ${issue.message}`,
+            value: column ? shorten(values[column]) : null,
+          });
+        }
       }
-      if (r.cells.length > header.width) {
-        const extra = r.cells.slice(header.width).filter((c) => c !== '');
-        if (extra.length) this.errors.add({ file: src.label, row: r.row, column: null, message: `The row has ${r.cells.length} values but the header has ${header.width} columns; remove the extra values or add their column names.`, value: shorten(extra[0]) });
-      }
-      const parsed = schema.safeParse(values);
-      if (parsed.success) {
-        if (!skip) {
-          // Handlers return a promise only when they must wait (COPY back-pressure).
-          const wait = onRow(parsed.data, r.row, values);
-          if (wait) await wait;
-        } else onInvalid?.(values);
-        continue;
-      }
-      onInvalid?.(values);
-      for (const issue of parsed.error.issues) {
-        const column = typeof issue.path[0] === 'string' ? issue.path[0] : null;
-        if (column && skip?.has(column)) continue;
-        this.errors.add({ file: src.label, row: r.row, column, message: `${columnTitle(column)} ${issue.message}`, value: column ? shorten(values[column]) : null });
-      }
-    }
     if (!header) {
-      this.errors.add({ file: src.label, row: null, column: null, message: `The ${table} ${src.label.includes('›') ? 'sheet' : 'file'} is empty: it needs a header row (${BATCH_COLUMNS[table].required.join(', ')}) and then one row per ${rowNoun(table)}.` });
+      this.errors.add({
+        file: src.label,
+        row: null,
+        column: null,
+        message: `The ${table} ${src.label.includes('›') ? 'sheet' : 'file'} is empty: it needs a header row (${BATCH_COLUMNS[table].required.join(', ')}) and then one row per ${rowNoun(table)}.`,
+      });
       return false;
     }
     if (dataRows === 0 && table !== 'statements') {
-      this.errors.add({ file: src.label, row: null, column: null, message: `The ${table} table has a header but no rows; it needs one row per ${rowNoun(table)}.` });
+      this.errors.add({
+        file: src.label,
+        row: null,
+        column: null,
+        message: `The ${table} table has a header but no rows; it needs one row per ${rowNoun(table)}.`,
+      });
     }
     return headerOk;
   }
@@ -333,12 +374,23 @@ class Intake {
       if (name === '') return;
       if (!known.includes(name)) {
         ok = false;
-        this.errors.add({ file: src.label, row: r.row, column: cell, message: `Unknown column "${shorten(cell)}". The ${src.table} table has the columns ${known.join(', ')}; rename or remove this one.`, value: shorten(cell) });
+        this.errors.add({
+          file: src.label,
+          row: r.row,
+          column: cell,
+          message: `Unknown column "${shorten(cell)}". The ${src.table} table has the columns ${known.join(', ')}; rename or remove this one.`,
+          value: shorten(cell),
+        });
         return;
       }
       if (seen.has(name)) {
         ok = false;
-        this.errors.add({ file: src.label, row: r.row, column: name, message: `The column ${name} appears twice (columns ${seen.get(name)! + 1} and ${i + 1}); keep one.` });
+        this.errors.add({
+          file: src.label,
+          row: r.row,
+          column: name,
+          message: `The column ${name} appears twice (columns ${seen.get(name)! + 1} and ${i + 1}); keep one.`,
+        });
         return;
       }
       seen.set(name, i);
@@ -371,7 +423,13 @@ class Intake {
       (r, row) => {
         const dupe = this.refIndex.get(r.returnRef);
         if (dupe !== undefined) {
-          this.errors.add({ file: src.label, row, column: 'return_ref', message: `return_ref ${r.returnRef} is used again (first on row ${this.returns[dupe].row}); every return in a batch needs its own reference.`, value: r.returnRef });
+          this.errors.add({
+            file: src.label,
+            row,
+            column: 'return_ref',
+            message: `return_ref ${r.returnRef} is used again (first on row ${this.returns[dupe].row}); every return in a batch needs its own reference.`,
+            value: r.returnRef,
+          });
           return;
         }
         const key = `${r.tin}:${r.taxYear}`;
@@ -468,18 +526,37 @@ class Intake {
       const idx = refIndex.get(returnRef);
       if (idx === undefined) {
         if (checkRefs && !this.refsInError.has(returnRef)) {
-          errors.add({ file: src.label, row, column: 'return_ref', message: `return_ref ${returnRef} has no row in returns; every line item must belong to a return of this batch.`, value: returnRef });
+          errors.add({
+            file: src.label,
+            row,
+            column: 'return_ref',
+            message: `return_ref ${returnRef} has no row in returns; every line item must belong to a return of this batch.`,
+            value: returnRef,
+          });
         }
         return;
       }
       const bit = 1 << code;
       if (SINGLE_MASK & bit & present[idx]) {
-        errors.add({ file: src.label, row, column: 'line_code', message: `${LINE_CODES[code]} appears more than once for return ${returnRef}; a total or refund is a single line (only itemised codes may repeat).`, value: LINE_CODES[code] });
+        errors.add({
+          file: src.label,
+          row,
+          column: 'line_code',
+          message: `${LINE_CODES[code]} appears more than once for return ${returnRef}; a total or refund is a single line (only itemised codes may repeat).`,
+          value: LINE_CODES[code],
+        });
         return;
       }
       const lineNo = ++counts[idx];
       if (lineNo > MAX_LINES_PER_RETURN) {
-        if (lineNo === MAX_LINES_PER_RETURN + 1) errors.add({ file: src.label, row, column: 'return_ref', message: `Return ${returnRef} has more than ${MAX_LINES_PER_RETURN} line items; combine small entries of the same code.`, value: returnRef });
+        if (lineNo === MAX_LINES_PER_RETURN + 1)
+          errors.add({
+            file: src.label,
+            row,
+            column: 'return_ref',
+            message: `Return ${returnRef} has more than ${MAX_LINES_PER_RETURN} line items; combine small entries of the same code.`,
+            value: returnRef,
+          });
         return;
       }
       present[idx] |= bit;
@@ -509,7 +586,13 @@ class Intake {
       };
     };
     try {
-      const headerOk = await this.eachRow(src, LineItemRowSchema, (li, row) => onLine(li.returnRef, LINE_CODE_INDEX[li.lineCode], li.cents, row), undefined, fast);
+      const headerOk = await this.eachRow(
+        src,
+        LineItemRowSchema,
+        (li, row) => onLine(li.returnRef, LINE_CODE_INDEX[li.lineCode], li.cents, row),
+        undefined,
+        fast,
+      );
       this.lineItemsRead = headerOk;
     } finally {
       if (copy) {
@@ -523,7 +606,13 @@ class Intake {
     for (let i = 0; i < this.returns.length; i++) {
       if (this.lineCounts[i] === 0) {
         const r = this.returns[i];
-        this.errors.add({ file: this.returnsLabel, row: r.row, column: 'return_ref', message: `Return ${r.returnRef} has no line items; add its lines (at least tot.income) to line_items, or remove the return.`, value: r.returnRef });
+        this.errors.add({
+          file: this.returnsLabel,
+          row: r.row,
+          column: 'return_ref',
+          message: `Return ${r.returnRef} has no line items; add its lines (at least tot.income) to line_items, or remove the return.`,
+          value: r.returnRef,
+        });
       }
     }
   }

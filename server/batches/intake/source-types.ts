@@ -14,9 +14,7 @@ export interface UploadedFile {
 }
 
 /** What was uploaded: one workbook, or one CSV file per table. */
-export type BatchUpload =
-  | { format: 'xlsx'; workbook: UploadedFile }
-  | { format: 'csv'; parts: Partial<Record<BatchTable, UploadedFile>> };
+export type BatchUpload = { format: 'xlsx'; workbook: UploadedFile } | { format: 'csv'; parts: Partial<Record<BatchTable, UploadedFile>> };
 
 /** One row as read: its number as a spreadsheet shows it, its cells as trimmed text. */
 export interface RawRow {

@@ -40,7 +40,6 @@ async function readHead(path: string, n = 8192): Promise<Buffer> {
   }
 }
 
-
 /**
  * Checks each file before anything is parsed: not empty, not too large, and of the kind
  * its part expects. These problems reject the upload without recording a batch.
@@ -66,10 +65,22 @@ export async function checkUploadFiles(upload: BatchUpload, limits: IntakeLimits
       if (kind === 'ole') whole(name, 'This is an old Excel 97–2003 workbook (.xls). Open it in Excel and save it as an Excel Workbook (.xlsx).');
       else if (lower.endsWith('.xlsm')) whole(name, 'Macro-enabled workbooks (.xlsm) are not accepted. Save the workbook as an Excel Workbook (.xlsx).');
       else if (lower.endsWith('.ods')) whole(name, 'This is an OpenDocument spreadsheet (.ods). Save it as an Excel Workbook (.xlsx).');
-      else if (kind === 'text') whole(name, 'This is a text file, not an XLSX workbook. Send CSV files as the parts "returns" and "line_items" (and "statements"), or upload an .xlsx workbook.');
-      else if (kind !== 'zip') whole(name, `This is not an XLSX workbook${kind === 'pdf' ? ' (it is a PDF)' : ''}. Upload an .xlsx workbook with sheets returns and line_items, or CSV files.`);
+      else if (kind === 'text')
+        whole(
+          name,
+          'This is a text file, not an XLSX workbook. Send CSV files as the parts "returns" and "line_items" (and "statements"), or upload an .xlsx workbook.',
+        );
+      else if (kind !== 'zip')
+        whole(
+          name,
+          `This is not an XLSX workbook${kind === 'pdf' ? ' (it is a PDF)' : ''}. Upload an .xlsx workbook with sheets returns and line_items, or CSV files.`,
+        );
     } else {
-      if (kind === 'zip') whole(name, 'This is an XLSX workbook (or another ZIP file), not a CSV file. Upload a workbook as the single part "file", or export each sheet as CSV UTF-8.');
+      if (kind === 'zip')
+        whole(
+          name,
+          'This is an XLSX workbook (or another ZIP file), not a CSV file. Upload a workbook as the single part "file", or export each sheet as CSV UTF-8.',
+        );
       else if (kind === 'ole') whole(name, 'This is an old Excel 97–2003 file (.xls), not a CSV file. Save each sheet as CSV UTF-8, or the workbook as .xlsx.');
       else if (kind === 'pdf') whole(name, 'This is a PDF, not a CSV file. Export the data from its program as CSV UTF-8.');
       else if (kind === 'binary') whole(name, 'This file holds binary data, not CSV text. Export the data as CSV UTF-8.');
@@ -112,8 +123,11 @@ function unreadable(file: UploadedFile, e: unknown): SourceError {
   if (e instanceof SourceError) return e;
   const issue = (message: string) => new SourceError({ file: file.originalName, row: null, column: null, message }, true);
   if (e instanceof CapError) return issue(e.message);
-  if (e instanceof WorkbookError) return issue(`The workbook cannot be read: ${e.message}. Open it in Excel, save it as an Excel Workbook (.xlsx) and upload it again.`);
-  return issue(`The workbook cannot be read (${e instanceof Error ? e.message : String(e)}). Open it in Excel, save it as an Excel Workbook (.xlsx) and upload it again.`);
+  if (e instanceof WorkbookError)
+    return issue(`The workbook cannot be read: ${e.message}. Open it in Excel, save it as an Excel Workbook (.xlsx) and upload it again.`);
+  return issue(
+    `The workbook cannot be read (${e instanceof Error ? e.message : String(e)}). Open it in Excel, save it as an Excel Workbook (.xlsx) and upload it again.`,
+  );
 }
 
 /** A sheet's rows as the intake reads them: cells as text, with the problems of cells that have none. */
@@ -195,7 +209,11 @@ export function batchReadCaps(maxRows = EXCEL_MAX_ROWS): ReadCaps {
  * reported through `onSheet` in the order of its tabs, then the tables are handed on
  * returns first.
  */
-export function xlsxTables(file: UploadedFile, onSheet: (name: string, table: BatchTable | null) => void, caps: ReadCaps = batchReadCaps()): AsyncGenerator<TableSource> {
+export function xlsxTables(
+  file: UploadedFile,
+  onSheet: (name: string, table: BatchTable | null) => void,
+  caps: ReadCaps = batchReadCaps(),
+): AsyncGenerator<TableSource> {
   return uploadTables({ format: 'xlsx', workbook: file }, caps, onSheet);
 }
 

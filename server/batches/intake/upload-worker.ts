@@ -162,10 +162,14 @@ export function diedMessage(reason: 'memory' | 'crash'): string {
  * {@link SourceError}. The thread ends when the iteration ends, however it ends.
  * @param onSheet told each sheet of a workbook, in the order of its tabs
  */
-export async function* uploadTables(upload: BatchUpload, caps: ReadCaps, onSheet: (name: string, table: BatchTable | null) => void): AsyncGenerator<TableSource> {
+export async function* uploadTables(
+  upload: BatchUpload,
+  caps: ReadCaps,
+  onSheet: (name: string, table: BatchTable | null) => void,
+): AsyncGenerator<TableSource> {
   const inbox = new Inbox({ job: 'tables', upload, caps });
   let clean = false;
-  const label = upload.format === 'xlsx' ? upload.workbook.originalName : Object.values(upload.parts)[0]?.originalName ?? '';
+  const label = upload.format === 'xlsx' ? upload.workbook.originalName : (Object.values(upload.parts)[0]?.originalName ?? '');
   /** Tables whose rows were read to their end (or abandoned and told to stop). */
   let finished = 0;
   const died = (m: Extract<FromThread, { type: 'died' }>) => {
@@ -235,7 +239,12 @@ export async function* uploadTables(upload: BatchUpload, caps: ReadCaps, onSheet
  * @throws CapError, Error with `kind` 'amount-file' | 'amount-parse' (the file's fault),
  *   ReaderDiedError (the thread ran out of memory or stopped)
  */
-export async function readAmountsInThread(file: string, column: string | null, kind: 'csv' | 'xlsx' | 'text', caps: ReadCaps): Promise<{ cents: Float64Array; what: string }> {
+export async function readAmountsInThread(
+  file: string,
+  column: string | null,
+  kind: 'csv' | 'xlsx' | 'text',
+  caps: ReadCaps,
+): Promise<{ cents: Float64Array; what: string }> {
   const inbox = new Inbox({ job: 'amounts', file, column, kind, caps });
   let clean = false;
   try {

@@ -153,7 +153,8 @@ export class XlsxReader {
     const root = await this.relationships('');
     const officeDoc = [...root.values()].find((r) => r.type.endsWith('/officeDocument'))?.target ?? 'xl/workbook.xml';
     const wbEntry = this.zip.find(officeDoc);
-    if (!wbEntry) throw new WorkbookError('it is not an XLSX workbook: it has no workbook part (is it another kind of ZIP file, or a Word or PowerPoint file?)');
+    if (!wbEntry)
+      throw new WorkbookError('it is not an XLSX workbook: it has no workbook part (is it another kind of ZIP file, or a Word or PowerPoint file?)');
     const rels = await this.relationships(officeDoc);
     const listed: { name: string; rid: string }[] = [];
     await this.scan(wbEntry, {

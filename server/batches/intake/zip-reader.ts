@@ -60,7 +60,8 @@ export class ZipFile {
       const count = tail.readUInt16LE(at + 10);
       const dirSize = tail.readUInt32LE(at + 12);
       const dirOffset = tail.readUInt32LE(at + 16);
-      if (count === 0xffff || dirSize === 0xffffffff || dirOffset === 0xffffffff) throw new ZipError('it is a ZIP64 file, which a workbook of an accepted size never needs');
+      if (count === 0xffff || dirSize === 0xffffffff || dirOffset === 0xffffffff)
+        throw new ZipError('it is a ZIP64 file, which a workbook of an accepted size never needs');
       if (dirOffset + dirSize > size) throw new ZipError('its ZIP directory points past the end of the file');
       const dir = await readAt(fh, dirOffset, dirSize);
       const entries = new Map<string, ZipEntry>();
@@ -99,7 +100,8 @@ export class ZipFile {
    */
   async *read(entry: ZipEntry, budget: InflateBudget): AsyncGenerator<Buffer> {
     if (entry.encrypted) throw new ZipError(`its part ${entry.name} is encrypted (the workbook has a password)`);
-    if (entry.method !== 0 && entry.method !== 8) throw new ZipError(`its part ${entry.name} uses a compression method (${entry.method}) that Excel never writes`);
+    if (entry.method !== 0 && entry.method !== 8)
+      throw new ZipError(`its part ${entry.name} uses a compression method (${entry.method}) that Excel never writes`);
     const header = await readAt(this.fh, entry.localHeaderOffset, 30);
     if (header.length < 30 || header.readUInt32LE(0) !== LFH) throw new ZipError(`its part ${entry.name} is damaged`);
     const start = entry.localHeaderOffset + 30 + header.readUInt16LE(26) + header.readUInt16LE(28);
@@ -113,7 +115,8 @@ export class ZipFile {
         yield chunk as Buffer;
       }
     } catch (e) {
-      if (e instanceof Error && 'code' in e && String((e as { code?: unknown }).code).startsWith('Z_')) throw new ZipError(`its part ${entry.name} cannot be unpacked (${e.message})`);
+      if (e instanceof Error && 'code' in e && String((e as { code?: unknown }).code).startsWith('Z_'))
+        throw new ZipError(`its part ${entry.name} cannot be unpacked (${e.message})`);
       throw e;
     } finally {
       raw.destroy();

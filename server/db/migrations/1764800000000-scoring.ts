@@ -28,7 +28,10 @@ export class Scoring1764800000000 implements MigrationInterface {
         created_at timestamptz NOT NULL DEFAULT now()
       )`);
     await q.query(`CREATE UNIQUE INDEX uq_scoring_profile_active ON scoring_profile (active) WHERE active`);
-    await q.query(`INSERT INTO scoring_profile (version, settings, note, active) VALUES (1, $1::jsonb, 'Starting profile: common-practice defaults (docs/methods.md)', true)`, [VERSION_1]);
+    await q.query(
+      `INSERT INTO scoring_profile (version, settings, note, active) VALUES (1, $1::jsonb, 'Starting profile: common-practice defaults (docs/methods.md)', true)`,
+      [VERSION_1],
+    );
 
     await q.query(`
       CREATE TABLE scoring_run (

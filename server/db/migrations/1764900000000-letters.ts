@@ -31,7 +31,9 @@ export class Letters1764900000000 implements MigrationInterface {
         created_at timestamptz NOT NULL DEFAULT now()
       )`);
     await q.query(`CREATE INDEX idx_letter_case ON letter (case_id, created_at DESC)`);
-    await q.query(`COMMENT ON COLUMN letter.pdf IS 'The office copy. For a document request the reply token is masked in it; sent_sha256 is the hash of the PDF as mailed.'`);
+    await q.query(
+      `COMMENT ON COLUMN letter.pdf IS 'The office copy. For a document request the reply token is masked in it; sent_sha256 is the hash of the PDF as mailed.'`,
+    );
 
     await q.query(`
       CREATE TABLE document_request (

@@ -9,7 +9,9 @@ export class Programme1765000000000 implements MigrationInterface {
   name = 'Programme1765000000000';
 
   async up(q: QueryRunner): Promise<void> {
-    await q.query(`ALTER TABLE exam_case ADD COLUMN selection text NOT NULL DEFAULT 'score' CONSTRAINT exam_case_selection_check CHECK (selection IN ('score', 'random'))`);
+    await q.query(
+      `ALTER TABLE exam_case ADD COLUMN selection text NOT NULL DEFAULT 'score' CONSTRAINT exam_case_selection_check CHECK (selection IN ('score', 'random'))`,
+    );
     await q.query(`CREATE INDEX idx_exam_case_random ON exam_case (batch_id) WHERE selection = 'random'`);
     // {seed, share, candidates, drawn, rate}: null until the run's finishing step draws the sample.
     await q.query(`ALTER TABLE scoring_run ADD COLUMN random_sample jsonb`);

@@ -19,13 +19,17 @@ export class CaseCalendar1765100000000 implements MigrationInterface {
 
   async up(q: QueryRunner): Promise<void> {
     await q.query(`ALTER TABLE tax_return ADD COLUMN filed_on date`);
-    await q.query(`ALTER TABLE exam_case ADD COLUMN assess_by date, ADD COLUMN assess_basis text CHECK (assess_basis IN ('standard', 'omitted-income', 'no-return'))`);
+    await q.query(
+      `ALTER TABLE exam_case ADD COLUMN assess_by date, ADD COLUMN assess_basis text CHECK (assess_basis IN ('standard', 'omitted-income', 'no-return'))`,
+    );
     await q.query(`CREATE INDEX idx_case_assess_by ON exam_case (assess_by, id)`);
     await q.query(`ALTER TABLE document_request ADD COLUMN reminded_at timestamptz`);
     // Where an examiner's daily digest goes (null: username at STAFF_MAIL_DOMAIN).
     await q.query(`ALTER TABLE app_user ADD COLUMN email text`);
     await q.query(`ALTER TABLE letter DROP CONSTRAINT letter_kind_check`);
-    await q.query(`ALTER TABLE letter ADD CONSTRAINT letter_kind_check CHECK (kind IN ('document_request', 'referral_memo', 'reminder', 'acknowledgement', 'no_change', 'adjustment_proposal'))`);
+    await q.query(
+      `ALTER TABLE letter ADD CONSTRAINT letter_kind_check CHECK (kind IN ('document_request', 'referral_memo', 'reminder', 'acknowledgement', 'no_change', 'adjustment_proposal'))`,
+    );
     await q.query(`
       CREATE TABLE housekeeping_run (
         day date PRIMARY KEY,

@@ -12,4 +12,14 @@ import { ScoringVersionTwo1764960000000 } from './1764960000000-scoring-v2';
 import { Programme1765000000000 } from './1765000000000-programme';
 import { CaseCalendar1765100000000 } from './1765100000000-case-calendar';
 
-export const migrations = [Foundation1764600000000, Auth1764650000000, Intake1764700000000, Scoring1764800000000, CaseNotes1764850000000, Letters1764900000000, ScoringVersionTwo1764960000000, Programme1765000000000, CaseCalendar1765100000000];
+export const migrations = [
+  Foundation1764600000000,
+  Auth1764650000000,
+  Intake1764700000000,
+  Scoring1764800000000,
+  CaseNotes1764850000000,
+  Letters1764900000000,
+  ScoringVersionTwo1764960000000,
+  Programme1765000000000,
+  CaseCalendar1765100000000,
+];

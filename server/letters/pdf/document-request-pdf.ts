@@ -32,7 +32,8 @@ export const letterWording = {
   notADecision:
     'This is a request for records, not a decision. We have not reached any conclusion about your return, and this letter does not change the tax you owe.',
   howToSend: `Please upload copies through your personal reply link. You do not need an account. You can send up to ${REPLY_MAX_FILES} files (PDF, JPEG or PNG, up to ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB each), once, until the end of the due date. The link is for this request only; please do not share it.`,
-  missing: 'If a record does not exist or you cannot find it, please tell us in a short note uploaded with the other files, or contact us. A brief explanation is welcome.',
+  missing:
+    'If a record does not exist or you cannot find it, please tell us in a short note uploaded with the other files, or contact us. A brief explanation is welcome.',
   help: `If you need more time or have a question, please contact us before the due date: telephone ${OFFICE.phone} (${OFFICE.hours}) or e-mail ${OFFICE.email}. You can also write to us at ${OFFICE.address.join(', ')}.`,
   thanks: 'Thank you for your help.',
 };
@@ -47,9 +48,17 @@ export async function renderDocumentRequestPdf(l: DocumentRequestLetter): Promis
   // Address block and date.
   const addressLines = [l.taxpayerName, ...(l.postalAddress ? l.postalAddress.split(/\s*[,\n]\s*/).filter(Boolean) : [])];
   const top = doc.y;
-  doc.font(F.body).fontSize(10.5).fillColor(INK).text(addressLines.join('\n'), x, top, { width: w * 0.6 });
+  doc
+    .font(F.body)
+    .fontSize(10.5)
+    .fillColor(INK)
+    .text(addressLines.join('\n'), x, top, { width: w * 0.6 });
   const afterAddress = doc.y;
-  doc.font(F.body).fontSize(10.5).fillColor(INK).text(longDate(l.date), x + w * 0.6, top, { width: w * 0.4, align: 'right' });
+  doc
+    .font(F.body)
+    .fontSize(10.5)
+    .fillColor(INK)
+    .text(longDate(l.date), x + w * 0.6, top, { width: w * 0.4, align: 'right' });
   doc.y = Math.max(afterAddress, doc.y) + 18;
   doc.x = x;
 
@@ -71,8 +80,14 @@ export async function renderDocumentRequestPdf(l: DocumentRequestLetter): Promis
     doc.font(F.body).fontSize(10.5);
     keepTogether(doc, doc.heightOfString(item, { width: w - 24 }) + 4);
     const y = doc.y;
-    doc.font(F.bold).fillColor(BRASS).text(`${i + 1}.`, x + 4, y, { width: 18 });
-    doc.font(F.body).fillColor(INK).text(item, x + 24, y, { width: w - 24, lineGap: 1 });
+    doc
+      .font(F.bold)
+      .fillColor(BRASS)
+      .text(`${i + 1}.`, x + 4, y, { width: 18 });
+    doc
+      .font(F.body)
+      .fillColor(INK)
+      .text(item, x + 24, y, { width: w - 24, lineGap: 1 });
     doc.y += 3;
   });
   doc.moveDown(0.6);
@@ -90,10 +105,25 @@ export async function renderDocumentRequestPdf(l: DocumentRequestLetter): Promis
   keepTogether(doc, boxH + 8);
   const by = doc.y;
   doc.save().rect(x, by, w, boxH).fill(PAPER).rect(x, by, 4, boxH).fill(INK).restore();
-  doc.font(F.bold).fontSize(12).fillColor(INK).text(dueLine, x + 16, by + 10, { width: w - 24 });
-  doc.font(F.body).fontSize(10).fillColor(INK).text(letterWording.howToSend, x + 16, doc.y + 4, { width: w - 24, lineGap: 1 });
-  doc.font(F.bold).fontSize(9.5).text('Your reply link:', x + 16, doc.y + 6, { width: w - 24 });
-  doc.font(urlFace).fontSize(9).fillColor(INK).text(l.replyUrl, x + 16, doc.y + 1, { width: w - 24 });
+  doc
+    .font(F.bold)
+    .fontSize(12)
+    .fillColor(INK)
+    .text(dueLine, x + 16, by + 10, { width: w - 24 });
+  doc
+    .font(F.body)
+    .fontSize(10)
+    .fillColor(INK)
+    .text(letterWording.howToSend, x + 16, doc.y + 4, { width: w - 24, lineGap: 1 });
+  doc
+    .font(F.bold)
+    .fontSize(9.5)
+    .text('Your reply link:', x + 16, doc.y + 6, { width: w - 24 });
+  doc
+    .font(urlFace)
+    .fontSize(9)
+    .fillColor(INK)
+    .text(l.replyUrl, x + 16, doc.y + 1, { width: w - 24 });
   doc.x = x;
   doc.y = by + boxH + 12;
 

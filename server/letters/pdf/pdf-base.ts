@@ -60,7 +60,6 @@ export function newPdf(info: { title: string; subject: string; author: string })
  * "->", control characters other than line breaks are dropped.
  */
 export function printable(text: string): string {
-  // eslint-disable-next-line no-control-regex
   return text.replace(/[\u2190-\u21ff]/g, '->').replace(/[\u0000-\u0009\u000b-\u001f\u007f]/g, '');
 }
 
@@ -83,9 +82,20 @@ export function keepTogether(doc: Pdf, height: number): void {
 export function heading(doc: Pdf, text: string, size = 12.5): void {
   keepTogether(doc, size * 4);
   doc.moveDown(0.6);
-  doc.font(F.bold).fontSize(size).fillColor(INK).text(text, doc.page.margins.left, doc.y, { width: contentWidth(doc) });
+  doc
+    .font(F.bold)
+    .fontSize(size)
+    .fillColor(INK)
+    .text(text, doc.page.margins.left, doc.y, { width: contentWidth(doc) });
   const y = doc.y + 2;
-  doc.save().moveTo(doc.page.margins.left, y).lineTo(doc.page.margins.left + 36, y).lineWidth(1.5).strokeColor(BRASS).stroke().restore();
+  doc
+    .save()
+    .moveTo(doc.page.margins.left, y)
+    .lineTo(doc.page.margins.left + 36, y)
+    .lineWidth(1.5)
+    .strokeColor(BRASS)
+    .stroke()
+    .restore();
   doc.y = y + 6;
   doc.font(F.body).fontSize(10.5).fillColor(INK);
 }
@@ -103,8 +113,16 @@ export function callout(doc: Pdf, title: string, body: string, colours: { bg: st
   keepTogether(doc, h + 6);
   const top = doc.y;
   doc.save().rect(x, top, w, h).fill(colours.bg).rect(x, top, 4, h).fill(colours.bar).restore();
-  doc.font(F.bold).fontSize(10.5).fillColor(INK).text(title, x + pad + 4, top + pad, { width: w - 2 * pad - 4 });
-  doc.font(F.body).fontSize(10).fillColor(INK).text(body, x + pad + 4, doc.y + 3, { width: w - 2 * pad - 4 });
+  doc
+    .font(F.bold)
+    .fontSize(10.5)
+    .fillColor(INK)
+    .text(title, x + pad + 4, top + pad, { width: w - 2 * pad - 4 });
+  doc
+    .font(F.body)
+    .fontSize(10)
+    .fillColor(INK)
+    .text(body, x + pad + 4, doc.y + 3, { width: w - 2 * pad - 4 });
   doc.x = x;
   doc.y = top + h + 6;
   doc.fontSize(10.5);
@@ -124,8 +142,16 @@ export function facts(doc: Pdf, rows: readonly { label: string; value: string; f
     const h = Math.max(hv, hl) + 4;
     keepTogether(doc, h);
     const y = doc.y;
-    doc.font(F.body).fontSize(10).fillColor(INK_SOFT).text(r.label, x, y, { width: labelWidth - 8 });
-    doc.font(face).fontSize(size).fillColor(INK).text(r.value, x + labelWidth, y, { width: w - labelWidth });
+    doc
+      .font(F.body)
+      .fontSize(10)
+      .fillColor(INK_SOFT)
+      .text(r.label, x, y, { width: labelWidth - 8 });
+    doc
+      .font(face)
+      .fontSize(size)
+      .fillColor(INK)
+      .text(r.value, x + labelWidth, y, { width: w - labelWidth });
     doc.y = y + h;
   }
   doc.x = x;
@@ -149,7 +175,16 @@ export function table(doc: Pdf, columns: readonly Column[], rows: readonly strin
     doc.font(F.bold).fontSize(9).fillColor(INK_SOFT);
     let x = x0;
     const h = Math.max(...columns.map((c) => doc.heightOfString(c.header, { width: c.width - 2 * pad }))) + 2 * pad;
-    doc.save().rect(x0, y, columns.reduce((s, c) => s + c.width, 0), h).fill(PAPER).restore();
+    doc
+      .save()
+      .rect(
+        x0,
+        y,
+        columns.reduce((s, c) => s + c.width, 0),
+        h,
+      )
+      .fill(PAPER)
+      .restore();
     for (const c of columns) {
       doc.fillColor(INK_SOFT).text(c.header, x + pad, y + pad, { width: c.width - 2 * pad, align: c.align ?? 'left' });
       x += c.width;
@@ -179,10 +214,21 @@ export function table(doc: Pdf, columns: readonly Column[], rows: readonly strin
     let x = x0;
     columns.forEach((c, i) => {
       const t = row[i] ?? '';
-      doc.font(fontOf(c, t)).fontSize(sizeOf(c, t)).fillColor(INK).text(t, x + pad, y + pad, { width: c.width - 2 * pad, align: c.align ?? 'left' });
+      doc
+        .font(fontOf(c, t))
+        .fontSize(sizeOf(c, t))
+        .fillColor(INK)
+        .text(t, x + pad, y + pad, { width: c.width - 2 * pad, align: c.align ?? 'left' });
       x += c.width;
     });
-    doc.save().moveTo(x0, y + h).lineTo(x, y + h).lineWidth(0.6).strokeColor(LINE).stroke().restore();
+    doc
+      .save()
+      .moveTo(x0, y + h)
+      .lineTo(x, y + h)
+      .lineWidth(0.6)
+      .strokeColor(LINE)
+      .stroke()
+      .restore();
     doc.y = y + h;
   });
   doc.x = x0;
@@ -202,7 +248,14 @@ export function footers(doc: Pdf, left: string): void {
     const y = doc.page.height - 40;
     const x = doc.page.margins.left;
     const w = contentWidth(doc);
-    doc.save().moveTo(x, y - 6).lineTo(x + w, y - 6).lineWidth(0.5).strokeColor(LINE).stroke().restore();
+    doc
+      .save()
+      .moveTo(x, y - 6)
+      .lineTo(x + w, y - 6)
+      .lineWidth(0.5)
+      .strokeColor(LINE)
+      .stroke()
+      .restore();
     doc.font(F.body).fontSize(8).fillColor(INK_FAINT);
     doc.text(left, x, y, { width: w - 80, lineBreak: false });
     doc.text(`Page ${i - range.start + 1} of ${range.count}`, x + w - 80, y, { width: 80, align: 'right', lineBreak: false });
@@ -217,17 +270,46 @@ export function letterhead(doc: Pdf, right: string[] = []): void {
   const top = doc.page.margins.top;
   // The plumb mark of the app: a bar, a cord and a brass bob.
   doc.save();
-  doc.moveTo(x, top + 2).lineTo(x + 18, top + 2).lineWidth(2).strokeColor(INK).stroke();
-  doc.moveTo(x + 9, top + 2).lineTo(x + 9, top + 14).lineWidth(1.2).strokeColor(INK).stroke();
+  doc
+    .moveTo(x, top + 2)
+    .lineTo(x + 18, top + 2)
+    .lineWidth(2)
+    .strokeColor(INK)
+    .stroke();
+  doc
+    .moveTo(x + 9, top + 2)
+    .lineTo(x + 9, top + 14)
+    .lineWidth(1.2)
+    .strokeColor(INK)
+    .stroke();
   doc.polygon([x + 9, top + 15], [x + 14, top + 19], [x + 9, top + 25], [x + 4, top + 19]).fill(BRASS);
   doc.restore();
-  doc.font(F.bold).fontSize(14).fillColor(INK).text(OFFICE.name, x + 28, top, { width: w / 2 });
-  doc.font(F.body).fontSize(9.5).fillColor(INK_SOFT).text(OFFICE.unit, x + 28, doc.y, { width: w / 2 });
+  doc
+    .font(F.bold)
+    .fontSize(14)
+    .fillColor(INK)
+    .text(OFFICE.name, x + 28, top, { width: w / 2 });
+  doc
+    .font(F.body)
+    .fontSize(9.5)
+    .fillColor(INK_SOFT)
+    .text(OFFICE.unit, x + 28, doc.y, { width: w / 2 });
   const contact = [...OFFICE.address, OFFICE.phone, OFFICE.email, ...right];
-  doc.font(F.body).fontSize(9).fillColor(INK_SOFT).text(contact.join('\n'), x + w / 2, top, { width: w / 2, align: 'right' });
+  doc
+    .font(F.body)
+    .fontSize(9)
+    .fillColor(INK_SOFT)
+    .text(contact.join('\n'), x + w / 2, top, { width: w / 2, align: 'right' });
   doc.x = x;
   doc.y = Math.max(doc.y, top + 14 * 4) + 14;
-  doc.save().moveTo(x, doc.y).lineTo(x + w, doc.y).lineWidth(0.8).strokeColor(LINE).stroke().restore();
+  doc
+    .save()
+    .moveTo(x, doc.y)
+    .lineTo(x + w, doc.y)
+    .lineWidth(0.8)
+    .strokeColor(LINE)
+    .stroke()
+    .restore();
   doc.y += 16;
   doc.font(F.body).fontSize(10.5).fillColor(INK);
 }

@@ -10,7 +10,25 @@ import { FIRST_DIGIT_EXPECTED } from '../../../shared/digits';
 import { longDate, OFFICE } from '../../../shared/letters';
 import type { ScoreBreakdown } from '../../../shared/scoring/breakdown';
 import { money } from '../../../shared/scoring/format';
-import { BRASS, callout, contentWidth, CORD, F, facts, footers, heading, INK, INK_FAINT, INK_SOFT, keepTogether, LINE, newPdf, pdfBytes, printable, table } from './pdf-base';
+import {
+  BRASS,
+  callout,
+  contentWidth,
+  CORD,
+  F,
+  facts,
+  footers,
+  heading,
+  INK,
+  INK_FAINT,
+  INK_SOFT,
+  keepTogether,
+  LINE,
+  newPdf,
+  pdfBytes,
+  printable,
+  table,
+} from './pdf-base';
 
 /** A note or an event in the memo. */
 export interface MemoEntry {
@@ -74,11 +92,32 @@ export function digitChart(doc: PDFKit.PDFDocument, counts: readonly number[], t
   doc.font(F.bold).fontSize(10).fillColor(INK).text(title, x0, doc.y, { width: w });
   // Legend above the plot, so the plot can use the full width.
   const ly = doc.y + 4;
-  doc.save().rect(x0 + 34, ly + 1, 10, 8).fill(CORD).restore();
-  doc.font(F.body).fontSize(8.5).fillColor(INK).text(`Observed (n = ${n})`, x0 + 48, ly, { lineBreak: false });
+  doc
+    .save()
+    .rect(x0 + 34, ly + 1, 10, 8)
+    .fill(CORD)
+    .restore();
+  doc
+    .font(F.body)
+    .fontSize(8.5)
+    .fillColor(INK)
+    .text(`Observed (n = ${n})`, x0 + 48, ly, { lineBreak: false });
   const lx = x0 + 48 + doc.widthOfString(`Observed (n = ${n})`) + 18;
-  doc.save().moveTo(lx, ly + 5).lineTo(lx + 14, ly + 5).lineWidth(1.6).strokeColor(BRASS).stroke().circle(lx + 7, ly + 5, 2.4).fill(BRASS).restore();
-  doc.font(F.body).fontSize(8.5).fillColor(INK).text('Expected (Benford)', lx + 18, ly, { lineBreak: false });
+  doc
+    .save()
+    .moveTo(lx, ly + 5)
+    .lineTo(lx + 14, ly + 5)
+    .lineWidth(1.6)
+    .strokeColor(BRASS)
+    .stroke()
+    .circle(lx + 7, ly + 5, 2.4)
+    .fill(BRASS)
+    .restore();
+  doc
+    .font(F.body)
+    .fontSize(8.5)
+    .fillColor(INK)
+    .text('Expected (Benford)', lx + 18, ly, { lineBreak: false });
   const top = ly + 18;
   const left = x0 + 34;
   const plotW = w - 40;
@@ -91,7 +130,14 @@ export function digitChart(doc: PDFKit.PDFDocument, counts: readonly number[], t
   doc.font(F.mono).fontSize(7.5);
   for (let p = 0; p <= yMax + 1e-9; p += 0.1) {
     const y = yAt(p);
-    doc.save().moveTo(left, y).lineTo(left + plotW, y).lineWidth(0.4).strokeColor(LINE).stroke().restore();
+    doc
+      .save()
+      .moveTo(left, y)
+      .lineTo(left + plotW, y)
+      .lineWidth(0.4)
+      .strokeColor(LINE)
+      .stroke()
+      .restore();
     doc.fillColor(INK_FAINT).text(`${Math.round(p * 100)}%`, x0, y - 4, { width: 30, align: 'right', lineBreak: false });
   }
   // Bars: observed proportions.
@@ -99,8 +145,17 @@ export function digitChart(doc: PDFKit.PDFDocument, counts: readonly number[], t
     const bx = left + i * slot + slot * 0.2;
     const bw = slot * 0.6;
     const h = (p / yMax) * plotH;
-    if (h > 0) doc.save().rect(bx, top + plotH - h, bw, h).fill(CORD).restore();
-    doc.font(F.mono).fontSize(8).fillColor(INK).text(String(i + 1), left + i * slot, top + plotH + 4, { width: slot, align: 'center', lineBreak: false });
+    if (h > 0)
+      doc
+        .save()
+        .rect(bx, top + plotH - h, bw, h)
+        .fill(CORD)
+        .restore();
+    doc
+      .font(F.mono)
+      .fontSize(8)
+      .fillColor(INK)
+      .text(String(i + 1), left + i * slot, top + plotH + 4, { width: slot, align: 'center', lineBreak: false });
   });
   // Expected curve.
   doc.save();
@@ -113,10 +168,25 @@ export function digitChart(doc: PDFKit.PDFDocument, counts: readonly number[], t
   expected.forEach((p, i) => doc.circle(left + i * slot + slot / 2, yAt(p), 2.4).fill(BRASS));
   doc.restore();
   // Axis line.
-  doc.save().moveTo(left, top + plotH).lineTo(left + plotW, top + plotH).lineWidth(0.8).strokeColor(INK_SOFT).stroke().restore();
-  doc.font(F.body).fontSize(8).fillColor(INK_SOFT).text('First digit', left, top + plotH + 15, { width: plotW, align: 'center', lineBreak: false });
+  doc
+    .save()
+    .moveTo(left, top + plotH)
+    .lineTo(left + plotW, top + plotH)
+    .lineWidth(0.8)
+    .strokeColor(INK_SOFT)
+    .stroke()
+    .restore();
+  doc
+    .font(F.body)
+    .fontSize(8)
+    .fillColor(INK_SOFT)
+    .text('First digit', left, top + plotH + 15, { width: plotW, align: 'center', lineBreak: false });
 
-  doc.font(F.body).fontSize(8.5).fillColor(INK_SOFT).text(caption, x0, top + chartH + 6, { width: w });
+  doc
+    .font(F.body)
+    .fontSize(8.5)
+    .fillColor(INK_SOFT)
+    .text(caption, x0, top + chartH + 6, { width: w });
   doc.x = x0;
   doc.y = Math.max(doc.y, top + chartH + 6) + 10;
   doc.font(F.body).fontSize(10.5).fillColor(INK);
@@ -136,7 +206,11 @@ function entries(doc: PDFKit.PDFDocument, list: readonly MemoEntry[], empty: str
     const h = doc.heightOfString(text, { width: w - 12 }) + 18;
     keepTogether(doc, Math.min(h, 120));
     doc.font(F.bold).fontSize(8.5).fillColor(INK_SOFT).text(head, x, doc.y, { width: w });
-    doc.font(F.body).fontSize(10).fillColor(INK).text(text, x + 12, doc.y + 1, { width: w - 12, lineGap: 1 });
+    doc
+      .font(F.body)
+      .fontSize(10)
+      .fillColor(INK)
+      .text(text, x + 12, doc.y + 1, { width: w - 12, lineGap: 1 });
     doc.moveDown(0.45);
   }
   doc.x = x;
@@ -144,7 +218,11 @@ function entries(doc: PDFKit.PDFDocument, list: readonly MemoEntry[], empty: str
 
 /** Renders the memo as a PDF. */
 export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
-  const doc = newPdf({ title: `Referral memo ${m.reference}: ${m.facts.returnRef}`, subject: `Referral to the ${m.unitLabel}`, author: `${m.author}, ${OFFICE.unit}` });
+  const doc = newPdf({
+    title: `Referral memo ${m.reference}: ${m.facts.returnRef}`,
+    subject: `Referral to the ${m.unitLabel}`,
+    author: `${m.author}, ${OFFICE.unit}`,
+  });
   const x = doc.page.margins.left;
   const w = contentWidth(doc);
 
@@ -187,7 +265,7 @@ export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
 
   const b = m.breakdown;
   if (b) {
-    heading(doc, 'Return totals (as recomputed by the office\'s rules)');
+    heading(doc, "Return totals (as recomputed by the office's rules)");
     facts(
       doc,
       [
@@ -200,15 +278,23 @@ export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
       ],
       180,
     );
-    doc.font(F.body).fontSize(9).fillColor(INK_SOFT).text(`Amount at stake basis: ${b.stakeBasis}`, x, doc.y + 2, { width: w });
+    doc
+      .font(F.body)
+      .fontSize(9)
+      .fillColor(INK_SOFT)
+      .text(`Amount at stake basis: ${b.stakeBasis}`, x, doc.y + 2, { width: w });
 
     heading(doc, 'Score breakdown');
-    doc.font(F.body).fontSize(9.5).fillColor(INK_SOFT).text(
-      `Each component gives a strength from 0 to 1; its points are the profile's weight times that strength. The score is the blend of the points on a 0–100 scale; returns at or above ${b.selectionCut} were selected.`,
-      x,
-      doc.y,
-      { width: w },
-    );
+    doc
+      .font(F.body)
+      .fontSize(9.5)
+      .fillColor(INK_SOFT)
+      .text(
+        `Each component gives a strength from 0 to 1; its points are the profile's weight times that strength. The score is the blend of the points on a 0–100 scale; returns at or above ${b.selectionCut} were selected.`,
+        x,
+        doc.y,
+        { width: w },
+      );
     doc.moveDown(0.4);
     const comps = [...b.components].sort((p, q) => q.points - p.points);
     table(
@@ -227,7 +313,7 @@ export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
       { bold: (i) => i === comps.length },
     );
 
-    heading(doc, 'First digits of the return\'s amounts');
+    heading(doc, "First digits of the return's amounts");
     const d = b.digits;
     digitChart(
       doc,
@@ -251,7 +337,7 @@ export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
     doc.font(F.body).fontSize(10).fillColor(INK_SOFT).text('The score that opened this case has no stored breakdown.', x, doc.y, { width: w });
   }
 
-  heading(doc, 'Examiner\'s notes');
+  heading(doc, "Examiner's notes");
   entries(doc, m.notes, 'No notes were written on this case.');
 
   heading(doc, 'Case history');
@@ -261,12 +347,16 @@ export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
   keepTogether(doc, 50);
   doc.save().rect(x, doc.y, w, 0.6).fill(LINE).restore();
   doc.moveDown(0.5);
-  doc.font(F.body).fontSize(9).fillColor(INK_SOFT).text(
-    'Handle under the office\'s confidentiality rules. The office\'s own law, procedure and licensed professional practice come first; this memo records why the case was selected and what the examiner found, and decides nothing.',
-    x,
-    doc.y,
-    { width: w },
-  );
+  doc
+    .font(F.body)
+    .fontSize(9)
+    .fillColor(INK_SOFT)
+    .text(
+      "Handle under the office's confidentiality rules. The office's own law, procedure and licensed professional practice come first; this memo records why the case was selected and what the examiner found, and decides nothing.",
+      x,
+      doc.y,
+      { width: w },
+    );
 
   footers(doc, `Referral memo ${m.reference} · ${m.facts.returnRef} · Internal`);
   return pdfBytes(doc);

@@ -47,7 +47,11 @@ export async function renderReminderPdf(l: ReminderLetter): Promise<Buffer> {
   const w = contentWidth(doc);
   const top = doc.y;
   const address = [l.taxpayerName, ...(l.postalAddress ? l.postalAddress.split(/\s*[,\n]\s*/).filter(Boolean) : [])];
-  doc.font(F.body).fontSize(10.5).fillColor(INK).text(address.join('\n'), x, top, { width: w * 0.6 });
+  doc
+    .font(F.body)
+    .fontSize(10.5)
+    .fillColor(INK)
+    .text(address.join('\n'), x, top, { width: w * 0.6 });
   const after = doc.y;
   doc.text(longDate(l.date), x + w * 0.6, top, { width: w * 0.4, align: 'right' });
   doc.y = Math.max(after, doc.y) + 18;
@@ -65,8 +69,14 @@ export async function renderReminderPdf(l: ReminderLetter): Promise<Buffer> {
     doc.font(F.body).fontSize(10.5);
     keepTogether(doc, doc.heightOfString(item, { width: w - 24 }) + 4);
     const y = doc.y;
-    doc.font(F.bold).fillColor(BRASS).text(`${i + 1}.`, x + 4, y, { width: 18 });
-    doc.font(F.body).fillColor(INK).text(item, x + 24, y, { width: w - 24 });
+    doc
+      .font(F.bold)
+      .fillColor(BRASS)
+      .text(`${i + 1}.`, x + 4, y, { width: 18 });
+    doc
+      .font(F.body)
+      .fillColor(INK)
+      .text(item, x + 24, y, { width: w - 24 });
     doc.y += 3;
   });
   doc.moveDown(0.6);
@@ -76,10 +86,23 @@ export async function renderReminderPdf(l: ReminderLetter): Promise<Buffer> {
   keepTogether(doc, h + 8);
   const by = doc.y;
   doc.save().rect(x, by, w, h).fill(PAPER).rect(x, by, 4, h).fill(INK).restore();
-  doc.font(F.bold).fontSize(12).fillColor(INK).text(`By ${longDate(l.dueDate)}`, x + 16, by + 10, { width: w - 24 });
-  doc.font(F.body).fontSize(10).text(reminderWording.link, x + 16, doc.y + 4, { width: w - 24 });
-  doc.font(F.bold).fontSize(9.5).text('Your reply link:', x + 16, doc.y + 6, { width: w - 24 });
-  doc.font(face).fontSize(9).text(l.replyUrl, x + 16, doc.y + 1, { width: w - 24 });
+  doc
+    .font(F.bold)
+    .fontSize(12)
+    .fillColor(INK)
+    .text(`By ${longDate(l.dueDate)}`, x + 16, by + 10, { width: w - 24 });
+  doc
+    .font(F.body)
+    .fontSize(10)
+    .text(reminderWording.link, x + 16, doc.y + 4, { width: w - 24 });
+  doc
+    .font(F.bold)
+    .fontSize(9.5)
+    .text('Your reply link:', x + 16, doc.y + 6, { width: w - 24 });
+  doc
+    .font(face)
+    .fontSize(9)
+    .text(l.replyUrl, x + 16, doc.y + 1, { width: w - 24 });
   doc.x = x;
   doc.y = by + h + 12;
   doc.font(F.body).fontSize(10.5).fillColor(INK);
@@ -115,5 +138,11 @@ export function reminderMail(l: ReminderLetter, to: string, pdf: Buffer, fileNam
     'Yours sincerely,',
     `${OFFICE.unit}, ${OFFICE.name}`,
   ].join('\n');
-  return { to, subject: reminderWording.subject(l), text, replyTo: OFFICE.email, attachments: [{ filename: fileName, content: pdf, contentType: 'application/pdf' }] };
+  return {
+    to,
+    subject: reminderWording.subject(l),
+    text,
+    replyTo: OFFICE.email,
+    attachments: [{ filename: fileName, content: pdf, contentType: 'application/pdf' }],
+  };
 }

@@ -28,7 +28,27 @@ async function same(bytes: Buffer, chunkBytes: number): Promise<void> {
   expect({ input: bytes.toString('utf8'), ...fast }).toEqual({ input: bytes.toString('utf8'), ...reference });
 }
 
-const piece = fc.constantFrom('a', 'R-1', ' ', ',', ',,', '\n', '\r\n', '\r', '"', '""', '"x,y"', 'é', '€', '\t', '\uFEFF', '12.50', 'inc.wages', '  b  ', '\u00A0');
+const piece = fc.constantFrom(
+  'a',
+  'R-1',
+  ' ',
+  ',',
+  ',,',
+  '\n',
+  '\r\n',
+  '\r',
+  '"',
+  '""',
+  '"x,y"',
+  'é',
+  '€',
+  '\t',
+  '\uFEFF',
+  '12.50',
+  'inc.wages',
+  '  b  ',
+  '\u00A0',
+);
 
 describe('CSV rows: the plain splitter reads as csv-parse does', () => {
   it('on random text, chunk sizes and line endings', async () => {
@@ -42,7 +62,28 @@ describe('CSV rows: the plain splitter reads as csv-parse does', () => {
   }, 60_000);
 
   it('on edge cases', async () => {
-    const cases = ['', '\n', '\r\n', '\r', 'a', 'a\r', 'a\n', 'a,b\r\nc\nd\r\n', 'a,b\nc\r\nd', '\r\na', 'a\rb\nc', ',', 'a,\n', '\uFEFF\uFEFFa,b', ' a , b \n', 'a\n\n\nb\n', 'h1,h2\r\n1,2\r\n\r\n3,"4\r\n5"\r\n6,7\r\n', 'a,b\n"open\n', 'a,b\nx"y,z\n', 'a,"b"c\n'];
+    const cases = [
+      '',
+      '\n',
+      '\r\n',
+      '\r',
+      'a',
+      'a\r',
+      'a\n',
+      'a,b\r\nc\nd\r\n',
+      'a,b\nc\r\nd',
+      '\r\na',
+      'a\rb\nc',
+      ',',
+      'a,\n',
+      '\uFEFF\uFEFFa,b',
+      ' a , b \n',
+      'a\n\n\nb\n',
+      'h1,h2\r\n1,2\r\n\r\n3,"4\r\n5"\r\n6,7\r\n',
+      'a,b\n"open\n',
+      'a,b\nx"y,z\n',
+      'a,"b"c\n',
+    ];
     for (const c of cases) for (const chunk of [1, 2, 3, 1 << 20]) await same(Buffer.from(c, 'utf8'), chunk);
   });
 

@@ -172,7 +172,8 @@ const HABITS = Object.keys(HABIT_KINDS) as HabitKind[];
 /** Line codes with n or more entries of one amount, and that amount. */
 function repeats(lines: { code: LineCode; cents: number }[], n: number): { code: LineCode; cents: number; count: number }[] {
   const counts = new Map<string, number>();
-  for (const l of lines) if (!l.code.startsWith('tot.') && l.code !== 'tax.refund') counts.set(`${l.code}|${l.cents}`, (counts.get(`${l.code}|${l.cents}`) ?? 0) + 1);
+  for (const l of lines)
+    if (!l.code.startsWith('tot.') && l.code !== 'tax.refund') counts.set(`${l.code}|${l.cents}`, (counts.get(`${l.code}|${l.cents}`) ?? 0) + 1);
   return [...counts].filter(([, c]) => c >= n).map(([k, count]) => ({ code: k.split('|')[0] as LineCode, cents: Number(k.split('|')[1]), count }));
 }
 function fingerprint(b: GeneratedBatch): string {
@@ -251,7 +252,9 @@ describe('habits of typical filers', () => {
       }
     }
     // Recurring bills come both round and with cents.
-    const bills = habitBatch.answers.filter((a) => a.habits.includes('recurring_bills') && !a.kinds.length && !a.habits.includes('whole_units')).flatMap((a) => repeats(habitLines.get(a.returnRef)!, 12).filter((r) => r.code !== 'ded.charity'));
+    const bills = habitBatch.answers
+      .filter((a) => a.habits.includes('recurring_bills') && !a.kinds.length && !a.habits.includes('whole_units'))
+      .flatMap((a) => repeats(habitLines.get(a.returnRef)!, 12).filter((r) => r.code !== 'ded.charity'));
     const round = bills.filter((b) => b.cents % 100 === 0).length / bills.length;
     expect(round).toBeGreaterThan(0.25);
     expect(round).toBeLessThan(0.75);
@@ -296,7 +299,9 @@ describe('habits of typical filers', () => {
       expect(l.habits).toContain('whole_units');
       for (const x of habitLines.get(l.returnRef)!) expect(Math.abs(x.cents % 100)).toBe(0);
     }
-    expect(habitBatch.labels.filter((l) => l.kinds.includes('invented_digits') && !l.kinds.includes('preparer_mill') && l.habits.includes('whole_units'))).toEqual([]);
+    expect(
+      habitBatch.labels.filter((l) => l.kinds.includes('invented_digits') && !l.kinds.includes('preparer_mill') && l.habits.includes('whole_units')),
+    ).toEqual([]);
     // The idealised batch never plants inside a habit.
     expect(batch.labels.some((l) => l.kinds.includes('invented_recurring') || l.kinds.includes('invented_whole_units'))).toBe(false);
   });
@@ -305,7 +310,9 @@ describe('habits of typical filers', () => {
     const again = generate({ seed: 'unit-habits', returns: 4000, plantShare: 0.06, habits: HABIT_SHARES });
     expect(fingerprint(again)).toBe(fingerprint(habitBatch));
     expect(again.answers).toEqual(habitBatch.answers);
-    expect(fingerprint(generate({ seed: 'unit-habits-2', returns: 400, habits: HABIT_SHARES }))).not.toBe(fingerprint(generate({ seed: 'unit-habits', returns: 400, habits: HABIT_SHARES })));
+    expect(fingerprint(generate({ seed: 'unit-habits-2', returns: 400, habits: HABIT_SHARES }))).not.toBe(
+      fingerprint(generate({ seed: 'unit-habits', returns: 400, habits: HABIT_SHARES })),
+    );
     const idealised = generate({ seed: 'unit-habits', returns: 4000, plantShare: 0.06 });
     const plain = new Set<string>();
     const touched = new Set(habitBatch.answers.filter((a) => a.habits.length || a.kinds.length).map((a) => a.tin));
@@ -319,14 +326,19 @@ describe('habits of typical filers', () => {
   it('reads --habit-share text: names, short forms, off, and clear errors', () => {
     expect(parseHabitShares('off')).toEqual(NO_HABITS);
     expect(parseHabitShares('on')).toEqual(DEFAULT_HABIT_SHARES);
-    expect(parseHabitShares('whole-units=0.5,recurring=0.1,zero_tax_refund=0')).toEqual({ ...DEFAULT_HABIT_SHARES, whole_units: 0.5, recurring_bills: 0.1, zero_tax_refund: 0 });
+    expect(parseHabitShares('whole-units=0.5,recurring=0.1,zero_tax_refund=0')).toEqual({
+      ...DEFAULT_HABIT_SHARES,
+      whole_units: 0.5,
+      recurring_bills: 0.1,
+      zero_tax_refund: 0,
+    });
     expect(parseHabitShares('gifts=1', NO_HABITS)).toEqual({ ...NO_HABITS, monthly_gifts: 1 });
     expect(() => parseHabitShares('cents=0.2')).toThrow(/unknown habit "cents".*whole_units/);
     expect(() => parseHabitShares('firm=1.5')).toThrow(/between 0 and 1/);
     expect(() => parseHabitShares('firm')).toThrow(/name=share/);
   });
 
-  it('writes every return\'s planted kinds and habits to the answer files, apart from the batch', () => {
+  it("writes every return's planted kinds and habits to the answer files, apart from the batch", () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-answers-'));
     try {
       const small = generate({ seed: 'unit-answers', returns: 200, plantShare: 0.1, habits: HABIT_SHARES });

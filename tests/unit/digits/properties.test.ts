@@ -69,9 +69,7 @@ describe('digit-engine properties (fast-check)', () => {
       fc.property(fc.array(signedCentsArb, { minLength: 1, maxLength: 100 }), (cents) => {
         const p = profileCents(cents);
         return [p.firstDigit, p.secondDigit, p.firstTwo, p.lastTwo].every(
-          (t) =>
-            t.n === 0 ||
-            [t.mad, t.chiSquare, t.ks, t.kuiper, t.ssd, ...t.z].every((x) => x !== null && Number.isFinite(x) && x >= 0),
+          (t) => t.n === 0 || [t.mad, t.chiSquare, t.ks, t.kuiper, t.ssd, ...t.z].every((x) => x !== null && Number.isFinite(x) && x >= 0),
         );
       }),
       { numRuns: 300 },

@@ -141,17 +141,14 @@ describe('size-aware verdict', () => {
     expect(sizeAwareFigure('firstDigit', n, at(-1)).verdict).toBe('within_expected');
   });
 
-  it.each([20, 30, 60])(
-    'Benford samples (seeded, log-uniform amounts) are within_expected at least 95 %% of 1000 draws at N = %i',
-    (n) => {
-      let within = 0;
-      for (let d = 0; d < 1000; d++) {
-        if (profileAmounts(benfordAmounts(n * 100_000 + d, n)).sizeAware.verdict === 'within_expected') within++;
-      }
-      measured.push(`  Benford amounts, N = ${n}: within_expected ${(within / 10).toFixed(1)} % of 1000`);
-      expect(within / 1000).toBeGreaterThanOrEqual(0.95);
-    },
-  );
+  it.each([20, 30, 60])('Benford samples (seeded, log-uniform amounts) are within_expected at least 95 %% of 1000 draws at N = %i', (n) => {
+    let within = 0;
+    for (let d = 0; d < 1000; d++) {
+      if (profileAmounts(benfordAmounts(n * 100_000 + d, n)).sizeAware.verdict === 'within_expected') within++;
+    }
+    measured.push(`  Benford amounts, N = ${n}: within_expected ${(within / 10).toFixed(1)} % of 1000`);
+    expect(within / 1000).toBeGreaterThanOrEqual(0.95);
+  });
 
   it.each([
     // lower bounds set below the measured rates (about 47 %, 70 %, 95 %; see the printed summary)
@@ -166,9 +163,7 @@ describe('size-aware verdict', () => {
       if (v === 'elevated' || v === 'high') flagged++;
       if (v === 'high') high++;
     }
-    measured.push(
-      `  invented amounts, N = ${n}: flagged (elevated or high) ${(flagged / 10).toFixed(1)} %, high ${(high / 10).toFixed(1)} % of 1000`,
-    );
+    measured.push(`  invented amounts, N = ${n}: flagged (elevated or high) ${(flagged / 10).toFixed(1)} %, high ${(high / 10).toFixed(1)} % of 1000`);
     expect(flagged / 1000).toBeGreaterThan(floor);
   });
 

@@ -32,9 +32,8 @@ describe('radix sort of integer keys (against the native sort)', () => {
 
   it('any integer keys below 2^53 (fast-check)', () => {
     fc.assert(
-      fc.property(
-        fc.array(fc.integer({ min: 0, max: Number.MAX_SAFE_INTEGER }), { minLength: 4096, maxLength: 5000 }),
-        (xs) => sameAsNative(Float64Array.from(xs)),
+      fc.property(fc.array(fc.integer({ min: 0, max: Number.MAX_SAFE_INTEGER }), { minLength: 4096, maxLength: 5000 }), (xs) =>
+        sameAsNative(Float64Array.from(xs)),
       ),
       { numRuns: 20 },
     );

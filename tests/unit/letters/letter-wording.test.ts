@@ -5,7 +5,14 @@
  * units' names.
  */
 import { CAUTIONS, SCREENING_CAUTION } from '../../../shared/cautions';
-import { FLAGGED_LETTER_WORDS, flaggedLetterWarning, flaggedLetterWords, letterItemWarnings, REFERRAL_UNIT_LABELS, REFERRAL_UNITS } from '../../../shared/letters';
+import {
+  FLAGGED_LETTER_WORDS,
+  flaggedLetterWarning,
+  flaggedLetterWords,
+  letterItemWarnings,
+  REFERRAL_UNIT_LABELS,
+  REFERRAL_UNITS,
+} from '../../../shared/letters';
 
 describe('flaggedLetterWords', () => {
   it('finds nothing in ordinary requests for records', () => {
@@ -72,7 +79,7 @@ describe('flaggedLetterWords', () => {
 });
 
 describe('cautions', () => {
-  it('the short caution says a score proves nothing and that the office\'s law and licensed professional practice come first', () => {
+  it("the short caution says a score proves nothing and that the office's law and licensed professional practice come first", () => {
     expect(SCREENING_CAUTION).toContain('proves nothing by itself');
     expect(SCREENING_CAUTION).toContain("The office's own law, procedure and licensed professional practice come first.");
   });

@@ -4,7 +4,11 @@ import { sampleSize, stratifiedSample, type SampleCandidate } from '../../../sha
 const ACTS = ['retail', 'consulting', 'farming', 'none'];
 const BANDS = ['0–20,000', '20,000–50,000', '50,000+'];
 function candidates(count: number): SampleCandidate[] {
-  return Array.from({ length: count }, (_, i) => ({ id: `r${String(i).padStart(5, '0')}`, activityCode: ACTS[i % 4], incomeBand: BANDS[Math.floor(i / 4) % 3] }));
+  return Array.from({ length: count }, (_, i) => ({
+    id: `r${String(i).padStart(5, '0')}`,
+    activityCode: ACTS[i % 4],
+    incomeBand: BANDS[Math.floor(i / 4) % 3],
+  }));
 }
 
 describe('sampleSize', () => {
@@ -40,7 +44,8 @@ describe('stratifiedSample', () => {
   it('every candidate has the same chance n/N (over 500 seeds, each drawn about 500 × 24/120 = 100 times)', () => {
     const small = candidates(120);
     const hits = new Map<string, number>();
-    for (let s = 0; s < 500; s++) for (const id of stratifiedSample(small, { share: 0.2, seed: `s${s}`, batchSize: 120 }).ids) hits.set(id, (hits.get(id) ?? 0) + 1);
+    for (let s = 0; s < 500; s++)
+      for (const id of stratifiedSample(small, { share: 0.2, seed: `s${s}`, batchSize: 120 }).ids) hits.set(id, (hits.get(id) ?? 0) + 1);
     expect(hits.size).toBe(120);
     // Binomial(500, 0.2): mean 100, sd 8.9; 5 sd either side.
     for (const h of hits.values()) expect(Math.abs(h - 100)).toBeLessThan(45);

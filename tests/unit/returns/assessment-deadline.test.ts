@@ -36,7 +36,11 @@ describe('assessment deadline', () => {
   });
 
   it('no limit where no return was filed', () => {
-    expect(assessmentDeadline({ taxYear: 2024, filedOn: null, reportedIncomeCents: 0, omittedIncomeCents: 500_000 })).toMatchObject({ assessBy: null, basis: 'no-return', years: null });
+    expect(assessmentDeadline({ taxYear: 2024, filedOn: null, reportedIncomeCents: 0, omittedIncomeCents: 500_000 })).toMatchObject({
+      assessBy: null,
+      basis: 'no-return',
+      years: null,
+    });
   });
 
   it('counts years on the calendar: 29 February to 28 February', () => {

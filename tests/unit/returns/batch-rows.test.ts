@@ -35,7 +35,9 @@ describe('returns row schema', () => {
   });
 
   it('reports every bad cell of a row at once, each with how to fix it', () => {
-    const m = messages(schema.safeParse({ ...goodReturn, tin: '12345678', tax_year: '2031', activity_code: 'bakery', email: 'not-an-address', taxpayer_name: '' }));
+    const m = messages(
+      schema.safeParse({ ...goodReturn, tin: '12345678', tax_year: '2031', activity_code: 'bakery', email: 'not-an-address', taxpayer_name: '' }),
+    );
     expect(m).toEqual([
       expect.stringMatching(/^tin: "12345678" has 8 digits; a TIN has 9\. If a leading zero was lost, format the column as Text/),
       expect.stringMatching(/^tax_year: 2031 is outside the tax years the office takes \(2016–2025\): a return can be filed only once its tax year has ended/),
@@ -61,7 +63,11 @@ describe('returns row schema', () => {
 
 describe('line item row schema', () => {
   it('reads the amount as cents', () => {
-    expect(LineItemRowSchema.parse({ return_ref: 'R1', line_code: 'inc.wages', amount: '1234.5' })).toEqual({ returnRef: 'R1', lineCode: 'inc.wages', cents: 123450 });
+    expect(LineItemRowSchema.parse({ return_ref: 'R1', line_code: 'inc.wages', amount: '1234.5' })).toEqual({
+      returnRef: 'R1',
+      lineCode: 'inc.wages',
+      cents: 123450,
+    });
     expect(LineItemRowSchema.parse({ return_ref: 'R1', line_code: 'tot.income', amount: '-80.00' }).cents).toBe(-8000);
   });
 
@@ -85,8 +91,16 @@ describe('line item row schema', () => {
 describe('statement row schema', () => {
   it('reads a statement and refuses an unknown kind', () => {
     const s = statementRowSchema(years);
-    expect(s.parse({ tin: '123456789', tax_year: '2023', kind: 'Wages', payer: 'Stallow Mills Ltd', amount: '30000' })).toEqual({ tin: '123456789', taxYear: 2023, kind: 'wages', payer: 'Stallow Mills Ltd', cents: 3_000_000 });
-    expect(messages(s.safeParse({ tin: '123456789', tax_year: '2023', kind: 'dividends', payer: 'X', amount: '1' })).join()).toMatch(/"dividends" is not a statement kind; use one of: wages, interest, sales/);
+    expect(s.parse({ tin: '123456789', tax_year: '2023', kind: 'Wages', payer: 'Stallow Mills Ltd', amount: '30000' })).toEqual({
+      tin: '123456789',
+      taxYear: 2023,
+      kind: 'wages',
+      payer: 'Stallow Mills Ltd',
+      cents: 3_000_000,
+    });
+    expect(messages(s.safeParse({ tin: '123456789', tax_year: '2023', kind: 'dividends', payer: 'X', amount: '1' })).join()).toMatch(
+      /"dividends" is not a statement kind; use one of: wages, interest, sales/,
+    );
   });
 });
 
@@ -109,8 +123,12 @@ describe('returns row: the optional filed_on column (issue 13)', () => {
     expect(schema.parse(goodReturn).filedOn).toBeNull();
   });
   it('refuses a date that is not one, or one inside the tax year, saying how to fix it', () => {
-    expect(messages(schema.safeParse({ ...goodReturn, filed_on: '2025-02-30' }))).toEqual([expect.stringMatching(/^filed_on: "2025-02-30" is not a date: write the filing date as YYYY-MM-DD/)]);
+    expect(messages(schema.safeParse({ ...goodReturn, filed_on: '2025-02-30' }))).toEqual([
+      expect.stringMatching(/^filed_on: "2025-02-30" is not a date: write the filing date as YYYY-MM-DD/),
+    ]);
     expect(messages(schema.safeParse({ ...goodReturn, filed_on: '15/04/2025' }))).toEqual([expect.stringMatching(/^filed_on: "15\/04\/2025" is not a date/)]);
-    expect(messages(schema.safeParse({ ...goodReturn, filed_on: '2024-12-31' }))).toEqual(['filed_on: "2024-12-31" is within tax year 2024: a return is filed after its tax year ends']);
+    expect(messages(schema.safeParse({ ...goodReturn, filed_on: '2024-12-31' }))).toEqual([
+      'filed_on: "2024-12-31" is within tax year 2024: a return is filed after its tax year ends',
+    ]);
   });
 });

@@ -54,7 +54,15 @@ describe('computeTotals (invented rules, docs/design.md#line-codes-and-tax-rules
     ];
     const t = computeTotals(lines);
     // income 80,000 − 28,000 = 52,000; deductions 3,500; taxable 52,000 − 3,500 − 12,000 = 36,500
-    expect(t).toMatchObject({ receipts: u(80_000), businessExpenses: u(28_000), income: u(52_000), deductions: u(3_500), taxable: u(36_500), tax: u(3_650), refund: 0 });
+    expect(t).toMatchObject({
+      receipts: u(80_000),
+      businessExpenses: u(28_000),
+      income: u(52_000),
+      deductions: u(3_500),
+      taxable: u(36_500),
+      tax: u(3_650),
+      refund: 0,
+    });
     expect(t.reported).toEqual({ income: u(52_000), deductions: u(3_500), refund: null });
   });
 
@@ -81,7 +89,21 @@ describe('computeTotals (invented rules, docs/design.md#line-codes-and-tax-rules
 
 describe('the line-code list', () => {
   it('has every code docs/design.md#line-codes-and-tax-rules names, each with a meaning', () => {
-    const required = ['inc.wages', 'inc.interest', 'inc.business.receipts', 'exp.business.supplies', 'exp.business.vehicle', 'exp.business.travel', 'exp.business.other', 'ded.charity', 'ded.medical', 'tot.income', 'tot.deductions', 'tax.withheld', 'tax.refund'];
+    const required = [
+      'inc.wages',
+      'inc.interest',
+      'inc.business.receipts',
+      'exp.business.supplies',
+      'exp.business.vehicle',
+      'exp.business.travel',
+      'exp.business.other',
+      'ded.charity',
+      'ded.medical',
+      'tot.income',
+      'tot.deductions',
+      'tax.withheld',
+      'tax.refund',
+    ];
     expect([...LINE_CODES].sort()).toEqual([...required].sort());
     for (const d of LINE_CODE_LIST) expect(d.meaning.length).toBeGreaterThan(20);
   });

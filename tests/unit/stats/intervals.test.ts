@@ -1,18 +1,19 @@
 /**
  * Interval methods of shared/stats against published worked examples and jstat.
  */
-// jstat (npm), an independent check, tests only.
-// eslint-disable-next-line @typescript-eslint/no-require-imports
-const jStat = require('jstat');
 import { normalQuantile, studentTQuantile } from '../../../shared/stats/distributions';
 import { katzRatioInterval, logRatioOfMeansInterval, tInterval, wilsonInterval } from '../../../shared/stats/intervals';
+// jstat (npm), an independent check, tests only; it ships no type declarations.
+// eslint-disable-next-line @typescript-eslint/no-require-imports
+const jStat = require('jstat');
 
 describe('quantiles', () => {
   it('normal quantiles agree with jstat (jStat.normal.inv)', () => {
     for (const p of [0.001, 0.01, 0.025, 0.1, 0.5, 0.9, 0.975, 0.995]) expect(normalQuantile(p)).toBeCloseTo(jStat.normal.inv(p, 0, 1), 7);
   });
   it("Student's t quantiles agree with jstat (jStat.studentt.inv)", () => {
-    for (const df of [1, 2, 5, 9, 30, 200]) for (const p of [0.9, 0.975, 0.995, 0.05]) expect(studentTQuantile(p, df)).toBeCloseTo(jStat.studentt.inv(p, df), 6);
+    for (const df of [1, 2, 5, 9, 30, 200])
+      for (const p of [0.9, 0.975, 0.995, 0.05]) expect(studentTQuantile(p, df)).toBeCloseTo(jStat.studentt.inv(p, df), 6);
   });
 });
 
