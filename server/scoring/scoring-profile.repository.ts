@@ -23,7 +23,14 @@ export async function findProfiles(db: Db): Promise<ProfileRecord[]> {
   const rows: { version: number; note: string; active: boolean; created_at: Date; settings: unknown; author: string | null }[] = await db.query(
     `SELECT p.version, p.note, p.active, p.created_at, p.settings, u.display_name AS author FROM scoring_profile p LEFT JOIN app_user u ON u.id = p.author_id ORDER BY p.version DESC`,
   );
-  return rows.map((r) => ({ version: Number(r.version), note: String(r.note), active: Boolean(r.active), createdAt: r.created_at, settings: r.settings, authorName: r.author ?? null }));
+  return rows.map((r) => ({
+    version: Number(r.version),
+    note: String(r.note),
+    active: Boolean(r.active),
+    createdAt: r.created_at,
+    settings: r.settings,
+    authorName: r.author ?? null,
+  }));
 }
 
 /** The active version and its settings (the scoring migration creates version 1, active). */
@@ -59,9 +66,18 @@ export async function nextProfileVersion(m: EntityManager): Promise<number> {
 }
 
 /** Stores a new version; when it is to be active, the previously active one stops being so. */
-export async function insertProfile(m: EntityManager, p: { version: number; settings: unknown; note: string; authorId: string; active: boolean }): Promise<void> {
+export async function insertProfile(
+  m: EntityManager,
+  p: { version: number; settings: unknown; note: string; authorId: string; active: boolean },
+): Promise<void> {
   if (p.active) await m.query(`UPDATE scoring_profile SET active = false WHERE active`);
-  await m.query(`INSERT INTO scoring_profile (version, settings, note, author_id, active) VALUES ($1, $2::jsonb, $3, $4, $5)`, [p.version, JSON.stringify(p.settings), p.note, p.authorId, p.active]);
+  await m.query(`INSERT INTO scoring_profile (version, settings, note, author_id, active) VALUES ($1, $2::jsonb, $3, $4, $5)`, [
+    p.version,
+    JSON.stringify(p.settings),
+    p.note,
+    p.authorId,
+    p.active,
+  ]);
 }
 
 /** Makes one version the only active one. */

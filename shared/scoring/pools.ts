@@ -131,7 +131,14 @@ export function poolPValue(counts: readonly number[], expected: readonly number[
  * @param fixedMinN pools this large also show the fixed thresholds
  * @param pStart, pFull the profile's p-value scale for strength
  */
-export function judgePool(byCode: CodeDigitCounts, batch: CodeDigitCounts, alpha: number, fixedMinN: number, pStart: number, pFull: number): PooledDigits & { firstDigitCounts: number[] } {
+export function judgePool(
+  byCode: CodeDigitCounts,
+  batch: CodeDigitCounts,
+  alpha: number,
+  fixedMinN: number,
+  pStart: number,
+  pFull: number,
+): PooledDigits & { firstDigitCounts: number[] } {
   const counts = totalCounts(byCode);
   const fd = evaluateDigitTest('firstDigit', counts);
   const sa = sizeAwareFigure('firstDigit', fd.n, fd.mad);
@@ -141,6 +148,7 @@ export function judgePool(byCode: CodeDigitCounts, batch: CodeDigitCounts, alpha
   }
   const p = poolPValue(counts, expectedForPool(byCode, batch), alpha);
   const strength = strengthFromP(p, pStart, pFull);
-  if (fd.n >= fixedMinN) return { n: fd.n, mad: fd.mad, conformity: fd.conformity, verdict: sa.verdict, zScore: sa.zScore, strength, judgedBy: 'fixed', p, firstDigitCounts };
+  if (fd.n >= fixedMinN)
+    return { n: fd.n, mad: fd.mad, conformity: fd.conformity, verdict: sa.verdict, zScore: sa.zScore, strength, judgedBy: 'fixed', p, firstDigitCounts };
   return { n: fd.n, mad: fd.mad, conformity: 'too_few', verdict: sa.verdict, zScore: sa.zScore, strength, judgedBy: 'size-aware', p, firstDigitCounts };
 }

@@ -21,7 +21,12 @@ export const ProfileListSchema = z.object({ items: z.array(ProfileVersionSchema)
 /** Body of `POST /api/scoring/profiles`: a new version (never an edit of an old one). */
 export const NewProfileSchema = z.object({
   settings: ScoringSettingsSchema,
-  note: z.string().trim().min(3, 'Say in a few words why the weights change').max(500).check(noControlChars({ lines: true })),
+  note: z
+    .string()
+    .trim()
+    .min(3, 'Say in a few words why the weights change')
+    .max(500)
+    .check(noControlChars({ lines: true })),
   activate: z.boolean().default(true),
 });
 export type NewProfileInput = z.infer<typeof NewProfileSchema>;

@@ -28,7 +28,7 @@ describe('Benjamini–Hochberg q-values', () => {
   // thrombolysis study; at level 0.05 the procedure rejects the four smallest (Bonferroni
   // three). The q-values below were computed here by hand: q_(i) = min_{j>=i} 15 p_(j) / j.
   const ps = [0.0001, 0.0004, 0.0019, 0.0095, 0.0201, 0.0278, 0.0298, 0.0344, 0.0459, 0.324, 0.4262, 0.5719, 0.6528, 0.759, 1.0];
-  it('reproduces the paper\'s example: four rejections at 0.05', () => {
+  it("reproduces the paper's example: four rejections at 0.05", () => {
     const q = benjaminiHochberg(ps);
     expect(q.filter((x) => x <= 0.05)).toHaveLength(4);
   });
@@ -94,12 +94,13 @@ describe('Poisson-binomial and Poisson tails', () => {
       [1, 0.3],
       [4, 1.2],
       [10, 4],
-    ]) expect(poissonUpperTail(k, l)).toBeCloseTo(1 - jStat.poisson.cdf(k - 1, l), 10);
+    ])
+      expect(poissonUpperTail(k, l)).toBeCloseTo(1 - jStat.poisson.cdf(k - 1, l), 10);
   });
 });
 
 describe('digit MAD p-values (Monte Carlo from the size-aware simulator)', () => {
-  it('are uniform under Benford\'s law: about 5 % below 0.05 and 1 % below 0.01 (fresh seeds, not the cached ones)', () => {
+  it("are uniform under Benford's law: about 5 % below 0.05 and 1 % below 0.01 (fresh seeds, not the cached ones)", () => {
     for (const n of [20, 40]) {
       const sims = simulateMads(n, 3000, 0xabc00 + n);
       let p05 = 0;
