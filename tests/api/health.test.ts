@@ -1,3 +1,4 @@
+import { Client } from 'pg';
 import request from 'supertest';
 import { createTestContext, type TestContext } from '../helpers/test-app';
 import { HealthResponseSchema } from '../../shared/health';
@@ -52,7 +53,14 @@ describe('GET /api/health', () => {
   it('reports pending migrations as a database problem', async () => {
     const other = await createTestContext();
     try {
-      await other.dataSource.query(`DELETE FROM migrations WHERE id = (SELECT max(id) FROM migrations)`);
+      // The application login may not touch the migrations table; the owner's may.
+      const owner = new Client({ connectionString: other.db.ownerUrl });
+      await owner.connect();
+      try {
+        await owner.query(`DELETE FROM migrations WHERE id = (SELECT max(id) FROM migrations)`);
+      } finally {
+        await owner.end();
+      }
       const res = await request(other.app).get('/api/health');
       expect(res.status).toBe(503);
       expect(res.body.checks.database.detail).toMatch(/migrations are pending/);
