@@ -13,7 +13,16 @@ import { DigitCounter, SIZE_AWARE_MIN_N, summarizeCounter } from '../digits';
 import { computeTax, computeTotals, LINE_CODE_DEFS, type CentsLine, type LineCode, type ReturnTotals } from '../returns/line-codes';
 import type { ComponentResult, PoolSnapshot, ScoreBreakdown } from './breakdown';
 import { digitMadPValue, formatP, shrunkRate, simes, strengthFromP } from './calibration';
-import { COST_CODES, isRoundHundred, repeatedAmounts, roundAmounts, type AmountPopularity, type FactorResult, type PeerBands, type ReturnFacts } from './factors';
+import {
+  COST_CODES,
+  isRoundHundred,
+  repeatedAmounts,
+  roundAmounts,
+  type AmountPopularity,
+  type FactorResult,
+  type PeerBands,
+  type ReturnFacts,
+} from './factors';
 import { money } from './format';
 import type { PooledDigits } from './pools';
 import { collapseRecurring, describeRecurring, type CollapsedAmounts, type RecurrenceRates } from './recurring';
@@ -88,12 +97,21 @@ const counter = new DigitCounter();
 
 function poolSnapshot(p: (PooledDigits & { firstDigitCounts?: number[] }) | null): PoolSnapshot | null {
   if (!p) return null;
-  return { n: p.n, mad: p.mad, conformity: p.conformity, verdict: p.verdict, zScore: p.zScore, judgedBy: p.judgedBy, ...(p.firstDigitCounts ? { firstDigitCounts: p.firstDigitCounts } : {}) };
+  return {
+    n: p.n,
+    mad: p.mad,
+    conformity: p.conformity,
+    verdict: p.verdict,
+    zScore: p.zScore,
+    judgedBy: p.judgedBy,
+    ...(p.firstDigitCounts ? { firstDigitCounts: p.firstDigitCounts } : {}),
+  };
 }
 
 function poolEvidence(what: string, pool: PooledDigits | null): FactorResult {
   const zero = { stakeIncomeCents: 0, stakeTaxCents: 0 };
-  if (!pool || pool.judgedBy === 'none' || pool.p === null || pool.p === undefined) return { strength: 0, evidence: `Too few amounts ${what} for a pooled digit test.`, ...zero };
+  if (!pool || pool.judgedBy === 'none' || pool.p === null || pool.p === undefined)
+    return { strength: 0, evidence: `Too few amounts ${what} for a pooled digit test.`, ...zero };
   const fixed = pool.judgedBy === 'fixed' ? `; MAD ${pool.mad?.toFixed(4)}, ${pool.conformity} by the published thresholds (Nigrini 2012)` : '';
   return {
     strength: pool.strength,
@@ -121,7 +139,12 @@ export function prepareReturn(facts: ReturnFacts, ctx: ScoreContext): PrepareRes
   const rates = ctx.batch ? ctx.batch.recurrence : null;
   const minRate = p.recurrenceMinRate;
   const gated: RecurrenceRates | null = rates
-    ? Object.fromEntries(Object.entries(rates).map(([c, r]) => [c, r.returns > 0 && r.recurring / r.returns >= minRate ? { returns: 1, recurring: 1 } : { returns: 1, recurring: 0 }]))
+    ? Object.fromEntries(
+        Object.entries(rates).map(([c, r]) => [
+          c,
+          r.returns > 0 && r.recurring / r.returns >= minRate ? { returns: 1, recurring: 1 } : { returns: 1, recurring: 0 },
+        ]),
+      )
     : null;
   const collapsed = collapseRecurring(itemised, gated);
   const wholeUnit = isWholeUnitFiler(itemised);
@@ -200,7 +223,13 @@ export function prepareReturn(facts: ReturnFacts, ctx: ScoreContext): PrepareRes
     },
   };
   const repeatRaw = repeatedAmounts(collapsed.lines, wholeUnit, pop, ctx.sharing ?? null, p);
-  const repeatResult = { ...repeatRaw, evidence: collapsed.recurring.length && repeatRaw.strength === 0 ? `${repeatRaw.evidence.replace(/\.$/, '')}; ${describeRecurring(collapsed.recurring, labelOf)}: counted once, as a recurring bill.` : repeatRaw.evidence };
+  const repeatResult = {
+    ...repeatRaw,
+    evidence:
+      collapsed.recurring.length && repeatRaw.strength === 0
+        ? `${repeatRaw.evidence.replace(/\.$/, '')}; ${describeRecurring(collapsed.recurring, labelOf)}: counted once, as a recurring bill.`
+        : repeatRaw.evidence,
+  };
 
   const poolResult = (what: string, pool: PooledDigits | null): FactorResult => {
     const r = poolEvidence(what, pool);
@@ -243,7 +272,10 @@ export function scoreReturn(facts: ReturnFacts, ctx: ScoreContext): ReturnScore 
   const results = Object.fromEntries(COMPONENTS.map((key) => [key, FACTORS[key].run(prep)])) as Record<ComponentKey, FactorResult & { p?: number | null }>;
   // The pattern evidence of the return as one test, with the q-value placeholder the run's finishing step fills in.
   const patternP = simes([prep.digitPs[0], prep.digitPs[1], prep.roundResult.p, prep.repeatResult.pWithin, prep.repeatResult.pShared]);
-  results.digits = { ...results.digits, evidence: `${results.digits.evidence} All pattern tests of this return together (Simes): ${formatP(patternP)}. ${PENDING_Q_TEXT}` };
+  results.digits = {
+    ...results.digits,
+    evidence: `${results.digits.evidence} All pattern tests of this return together (Simes): ${formatP(patternP)}. ${PENDING_Q_TEXT}`,
+  };
 
   // A group adds only its strongest member's points.
   const raw = COMPONENTS.map((key) => ({ key, points: settings.weights[key] * results[key].strength }));
@@ -285,7 +317,13 @@ export function scoreReturn(facts: ReturnFacts, ctx: ScoreContext): ReturnScore 
     }
   }
   // Patterns alone (digits, round, bunching, repeats) point at itemised figures as a whole.
-  const patternStrength = Math.max(results.digits.strength, results.roundAmounts.strength, results.thresholdBunching.strength, results.repeatedAmounts.strength, results.preparerDigits.strength);
+  const patternStrength = Math.max(
+    results.digits.strength,
+    results.roundAmounts.strength,
+    results.thresholdBunching.strength,
+    results.repeatedAmounts.strength,
+    results.preparerDigits.strength,
+  );
   const patternIncome = Math.round(p.patternStakeShare * patternStrength * (totals.businessExpenses + totals.deductions));
   if (patternIncome > stakeIncome) {
     stakeIncome = patternIncome;

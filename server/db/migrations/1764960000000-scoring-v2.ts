@@ -28,9 +28,12 @@ export class ScoringVersionTwo1764960000000 implements MigrationInterface {
     if (!r.length) return;
     const v = r[0].version;
     const used: { n: string }[] = await q.query(`SELECT count(*) AS n FROM return_score WHERE profile_version = $1`, [v]);
-    if (Number(used[0].n) > 0) throw new Error(`Profile version ${v} has ${used[0].n} scores; they keep their version, so it cannot be removed. Activate another version instead.`);
+    if (Number(used[0].n) > 0)
+      throw new Error(`Profile version ${v} has ${used[0].n} scores; they keep their version, so it cannot be removed. Activate another version instead.`);
     await q.query(`DELETE FROM scoring_run WHERE profile_version = $1`, [v]);
     await q.query(`DELETE FROM scoring_profile WHERE version = $1`, [v]);
-    await q.query(`UPDATE scoring_profile SET active = true WHERE version = (SELECT max(version) FROM scoring_profile) AND NOT EXISTS (SELECT 1 FROM scoring_profile WHERE active)`);
+    await q.query(
+      `UPDATE scoring_profile SET active = true WHERE version = (SELECT max(version) FROM scoring_profile) AND NOT EXISTS (SELECT 1 FROM scoring_profile WHERE active)`,
+    );
   }
 }
