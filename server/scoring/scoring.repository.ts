@@ -4,8 +4,7 @@
  * the worker's memory at once.
  */
 import type { DataSource, EntityManager } from 'typeorm';
-import type { StatementKind } from '../../shared/returns/line-codes';
-import type { LineCode } from '../../shared/returns/line-codes';
+import type { StatementKind, LineCode } from '../../shared/returns/line-codes';
 import type { PeerFigures } from '../../shared/scoring/factors';
 
 type Db = DataSource | EntityManager;
