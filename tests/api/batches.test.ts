@@ -10,7 +10,7 @@ import { computeTotals, type LineCode } from '../../shared/returns/line-codes';
 import { centsFromDecimal, centsFromNumeric } from '../../shared/returns/money';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { uploadHash } from '../../server/batches/intake/sources';
-import { countIntakeRows, csv, csvBatch, LINES_HEADER, RETURNS_HEADER, upload, xlsxBatch } from '../helpers/batches';
+import { countIntakeRows, csv, csvBatch, LINES_HEADER, refusedUpload, RETURNS_HEADER, upload, xlsxBatch } from '../helpers/batches';
 import { createTestContext, type TestContext } from '../helpers/test-app';
 
 jest.setTimeout(60_000);
@@ -200,7 +200,7 @@ describe('batches API: who may do what', () => {
     const parts = { returns: b.files.returns!, line_items: b.files.line_items! };
     for (const role of ['examiner', 'supervisor', 'admin'] as const) {
       const c = await signIn(ctx, role);
-      expect((await upload(c, parts)).status).toBe(403);
+      expect((await refusedUpload(c, parts)).status).toBe(403);
       expect((await c.agent.get('/api/batches')).status).toBe(role === 'supervisor' ? 200 : 403);
     }
     expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM filing_batch`))[0].n).toBe(0);

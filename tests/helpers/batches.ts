@@ -59,6 +59,23 @@ export function upload(client: SignedIn, parts: Partial<Record<'file' | 'returns
   return req;
 }
 
+/**
+ * An upload the server is expected to refuse before reading it (401/403). The refusal can
+ * arrive while the client is still writing the file parts; supertest then closes its
+ * one-request server and the last write fails with EPIPE (superagent's "double callback").
+ * The answer is what the test asserts, so the upload is sent again, at most three times.
+ */
+export async function refusedUpload(client: SignedIn, parts: Parameters<typeof upload>[1]) {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await upload(client, parts);
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      if (attempt >= 3 || (code !== 'EPIPE' && code !== 'ECONNRESET')) throw e;
+    }
+  }
+}
+
 /** CSV text from header and rows (joined with the given line ending). */
 export function csv(rows: string[], eol = '\n'): string {
   return rows.join(eol) + eol;
