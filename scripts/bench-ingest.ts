@@ -17,12 +17,13 @@ import path from 'node:path';
 import { pipeline } from 'node:stream/promises';
 import { Client } from 'pg';
 import { from as copyFrom } from 'pg-copy-streams';
-import { createDataSource, runMigrations } from '../server/db/data-source';
+import { createDataSource } from '../server/db/data-source';
 import { ingestUpload } from '../server/batches/batch.service';
 import type { BatchUpload } from '../server/batches/intake/sources';
 import { writeCsvBatch, writeXlsxBatch } from '../server/seed/batch-files';
 import { User } from '../server/users/user.entity';
 import { DEFAULT_INTAKE_LIMITS } from '../shared/returns/batch-rows';
+import { prepareAppDatabase } from './lib/app-database';
 import { projectRoot, startSetup } from './lib/local-services';
 import { clusterStatus, connectionString, findPgBin, isReady, recreateDatabase, startCluster, stopCluster } from './lib/pg';
 
@@ -68,7 +69,7 @@ async function plainCopy(url: string, files: Record<'returns' | 'line_items' | '
   try {
     await c.query(`DROP TABLE IF EXISTS plain_returns, plain_line_items, plain_statements`);
     await c.query(
-      `CREATE TABLE plain_returns (return_ref text, tin text, tax_year int, taxpayer_name text, activity_code text, preparer_id text, email text, postal_address text)`,
+      `CREATE TABLE plain_returns (return_ref text, tin text, tax_year int, taxpayer_name text, activity_code text, preparer_id text, email text, postal_address text, filed_on text)`,
     );
     await c.query(`CREATE TABLE plain_line_items (return_ref text, line_code text, amount numeric(14,2))`);
     await c.query(`CREATE TABLE plain_statements (tin text, tax_year int, kind text, payer text, amount numeric(14,2))`);
@@ -127,9 +128,10 @@ async function main() {
   /** A fresh, migrated database for each measurement (other features' tables refuse TRUNCATE). */
   const freshDatabase = async () => {
     await recreateDatabase(spec, DB);
+    await prepareAppDatabase(spec, DB);
+    // As the superuser, who may CHECKPOINT between the measurements.
     const ds = createDataSource(url, { poolSize: 4, applicationName: 'plumbline-bench' });
     await ds.initialize();
-    await runMigrations(ds);
     const user = await ds.getRepository(User).save({ username: 'bench-clerk', displayName: 'Bench clerk', role: 'clerk' as const, active: true });
     return { ds, user };
   };

@@ -16,6 +16,9 @@
  * Each client walks pages 1..`pages` (25 cases a page) in turn, so offsets up to 1,000 rows
  * deep are measured, not only the first page.
  *
+ * The database is set up as `npm start` sets up its own (scripts/lib/app-database.ts), and
+ * the server logs in as the application role.
+ *
  * Runs on a PostgreSQL cluster of its own (data in bench-output/pg-queue/, gitignored;
  * 127.0.0.1:54349), in a throw-away database `plumbline_bench`, so neither the start
  * command's demo data nor a running `npm test` is touched, and neither can restart the
@@ -32,9 +35,9 @@ import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { Client } from 'pg';
-import { createDataSource, runMigrations } from '../server/db/data-source';
 import { ScoreBreakdownSchema, type ScoreBreakdown } from '../shared/scoring/breakdown';
 import { COMPONENT_LABELS, COMPONENTS } from '../shared/scoring/settings';
+import { prepareAppDatabase } from './lib/app-database';
 import { projectRoot } from './lib/local-services';
 import { clusterStatus, connectionString, findPgBin, isReady, recreateDatabase, startCluster, stopCluster, type ClusterSpec } from './lib/pg';
 import { startMaildev, startProcess, stopProcess, tsxArgs, waitForPort, type Managed } from './lib/processes';
@@ -255,11 +258,8 @@ async function main() {
     await startCluster(spec, log);
     log(`PostgreSQL ${clusterStatus(spec)}`);
     await recreateDatabase(spec, DB);
+    const { appUrl } = await prepareAppDatabase(spec, DB);
     const url = connectionString(spec, DB);
-    const ds = createDataSource(url, { poolSize: 2, applicationName: 'plumbline-bench' });
-    await ds.initialize();
-    await runMigrations(ds);
-    await ds.destroy();
     const t0 = performance.now();
     const { examiners } = await fill(url, cases, clients);
     log(`filled ${cases.toLocaleString('en-GB')} cases (with their returns, scores and taxpayers) in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
@@ -274,7 +274,7 @@ async function main() {
       quiet: true,
       env: {
         ...process.env,
-        DATABASE_URL: url,
+        DATABASE_URL: appUrl,
         PORT: String(httpPort),
         HOST: '127.0.0.1',
         SMTP_PORT: String(smtpPort),

@@ -1,6 +1,7 @@
 import { Link, usePathname, type Href } from 'expo-router';
 import type { ReactNode } from 'react';
 import { Pressable, ScrollView, View } from 'react-native';
+import { OFFICE } from '../../shared/letters';
 import { colours, MAX_CONTENT_WIDTH, space } from '../theme';
 import { useIsWide } from './layout';
 import { PlumbMark } from './plumb-mark';
@@ -19,6 +20,30 @@ export interface AppShellProps {
   /** Shown at the right of the top bar (e.g. who is signed in). */
   accessory?: ReactNode;
   children: ReactNode;
+}
+
+/**
+ * The app's ink top bar with the mark, as the banner landmark (react-native-web renders
+ * role="banner" as <header>); what follows the mark is the caller's. The signed-in frame and
+ * the taxpayer's reply page both stand under it.
+ */
+export function TopBar({ children }: { children: ReactNode }) {
+  return (
+    <View
+      role="banner"
+      style={{
+        backgroundColor: colours.ink,
+        paddingHorizontal: space.lg,
+        paddingVertical: space.md,
+        flexDirection: 'row',
+        alignItems: 'center',
+        gap: space.sm,
+      }}
+    >
+      <PlumbMark />
+      {children}
+    </View>
+  );
 }
 
 /**
@@ -58,30 +83,19 @@ export function AppShell({ nav, accessory, children }: AppShellProps) {
 
   return (
     <View style={{ flex: 1, backgroundColor: colours.paper }}>
-      <View
-        role="banner"
-        style={{
-          backgroundColor: colours.ink,
-          paddingHorizontal: space.lg,
-          paddingVertical: space.md,
-          flexDirection: 'row',
-          alignItems: 'center',
-          gap: space.sm,
-        }}
-      >
-        <PlumbMark />
+      <TopBar>
         {/* The product's name, not a heading: each screen's own title is its first heading. */}
         <Txt variant="lead" bold tone="white">
           Plumbline
         </Txt>
         {wide && (
           <Txt variant="small" style={{ color: colours.onInkSoft, marginLeft: space.xs }} numberOfLines={1}>
-            Aldermere Revenue Office
+            {OFFICE.name}
           </Txt>
         )}
         <View style={{ flex: 1 }} />
         {accessory}
-      </View>
+      </TopBar>
       {wide ? (
         <View style={{ flex: 1, flexDirection: 'row' }}>
           <View role="navigation" aria-label="Screens" style={{ width: 210, borderRightWidth: 1, borderRightColor: colours.line, padding: space.md, gap: 2 }}>

@@ -7,7 +7,7 @@
  */
 import type { Request, RequestHandler } from 'express';
 import type { SessionUser } from '../auth/access';
-import { HttpError } from '../http/errors';
+import { HttpError, routeOf } from '../http/errors';
 
 /** The user fields an access-log line keeps. */
 export type Actor = Pick<SessionUser, 'id' | 'username' | 'role'>;
@@ -33,17 +33,30 @@ declare global {
 }
 
 /**
+ * Route parameters that are keys (a reply link's token): a route with one is logged by its
+ * pattern ("GET /api/replies/:token"), never the path called, which would put a live key in
+ * the access log.
+ */
+const SECRET_PARAMS: readonly string[] = ['token'];
+
+/**
  * Records the caller and route on the request (mounted after the session, so a signed-in
- * user is known). The route is the path actually called, without its query string.
+ * user is known). The route is the path actually called, without its query string; see
+ * {@link auditOf} for routes whose path holds a key.
  */
 export const auditContext: RequestHandler = (req, _res, next) => {
   req.audit = { actor: req.user ?? null, route: `${req.method} ${req.originalUrl.split('?')[0]}` };
   next();
 };
 
-/** The request's audit context (anonymous when nobody is signed in). */
+/**
+ * The request's audit context (anonymous when nobody is signed in). Called from a route's
+ * handlers, when the matched route is known: a route with a {@link SECRET_PARAMS} parameter
+ * is named by its pattern instead of the path called.
+ */
 export function auditOf(req: Request): AuditContext {
   if (!req.audit) throw new Error('auditContext middleware is not mounted before this route');
+  if (req.route && SECRET_PARAMS.some((p) => p in req.params)) return { ...req.audit, route: routeOf(req) };
   return req.audit;
 }
 

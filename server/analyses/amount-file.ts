@@ -154,14 +154,17 @@ function cellHeader(v: unknown): string {
   return v === null || v === undefined ? '' : String(v);
 }
 
+/** A workbook that cannot be read as XLSX (when opened or part-way through), for a person. */
+function unreadableWorkbook(file: string, e: WorkbookError): AmountFileError {
+  return new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
+}
+
 async function readXlsxFile(file: string, wanted: string | null, out: CentsBuffer, caps: ReadCaps): Promise<string> {
   let reader: XlsxReader;
   try {
     reader = await XlsxReader.open(file, caps, path.basename(file));
   } catch (e) {
-    if (e instanceof WorkbookError)
-      throw new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
-    throw e;
+    throw e instanceof WorkbookError ? unreadableWorkbook(file, e) : e;
   }
   const skipped: string[] = [];
   try {
@@ -203,9 +206,7 @@ async function readXlsxFile(file: string, wanted: string | null, out: CentsBuffe
       skipped.push(`"${sheet}"`);
     }
   } catch (e) {
-    if (e instanceof WorkbookError)
-      throw new AmountFileError(`${path.basename(file)}: ${e.message}. Open it in Excel and save it as an Excel Workbook (.xlsx)`);
-    throw e;
+    throw e instanceof WorkbookError ? unreadableWorkbook(file, e) : e;
   } finally {
     await reader.close();
   }

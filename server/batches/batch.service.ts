@@ -21,6 +21,7 @@ import {
   maskIssueForListing,
 } from '../../shared/returns/batch-rows';
 import { safeCellText } from '../../shared/spreadsheet-text';
+import { now as officeNow } from '../clock';
 import { QUEUES } from '../queue/queues';
 import { deleteBatchRecord, findBatchByHash, insertBatchRecord, markRejected, recoverInterruptedBatches, takeOverStaleBatch } from './batch-intake.repository';
 import { findBatch, findBatches, type BatchRecord } from './batch-read.repository';
@@ -121,7 +122,7 @@ export async function ingestUpload(deps: IntakeDeps, upload: BatchUpload, user: 
   let result;
   try {
     result = await runIntake(
-      { dataSource: deps.dataSource, batchId, limits: deps.limits, years: officeTaxYears(deps.now?.() ?? new Date()), trace: deps.trace },
+      { dataSource: deps.dataSource, batchId, limits: deps.limits, years: officeTaxYears(deps.now?.() ?? officeNow()), trace: deps.trace },
       sources,
       describeMissing,
     );
@@ -153,7 +154,7 @@ function duplicateMessage(state: string, createdAt: Date): string {
  * with the reason, its rows removed, and its file freed for a new upload at once.
  * @returns the batches recovered (for the start-up log)
  */
-export async function recoverInterruptedIntake(ds: DataSource, now: Date = new Date()): Promise<{ id: string; fileNames: string[] }[]> {
+export async function recoverInterruptedIntake(ds: DataSource, now: Date = officeNow()): Promise<{ id: string; fileNames: string[] }[]> {
   const when = now.toISOString().slice(0, 16).replace('T', ' ');
   return recoverInterruptedBatches(ds, {
     file: '',

@@ -43,7 +43,7 @@ export async function transition(ds: DataSource, audit: StaffAudit, caseId: stri
     assertMayAct(audit.actor, c);
     const elsewhere = MOVES_ELSEWHERE[req.to];
     if (elsewhere && CASE_TRANSITIONS[c.state].includes(req.to)) throw new HttpError(409, elsewhere);
-    return moveCase(m, audit, caseId, req.to, { outcome: req.outcome, adjustedAmount: req.adjustedAmount });
+    return moveCase(m, audit, c, req.to, { outcome: req.outcome, adjustedAmount: req.adjustedAmount });
   });
   dropQueueTotals(ds);
   return changed(moved);

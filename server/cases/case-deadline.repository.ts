@@ -2,7 +2,11 @@
  * SQL behind assessment deadlines (issue 13): the facts the rule in
  * shared/returns/assessment-deadline.ts needs per case, and the stored result on exam_case
  * (assess_by, assess_basis), which the queue filters and sorts on through idx_case_assess_by.
+ * The rule itself is pure, so the store here applies it ({@link refreshDeadlines}) and case
+ * writes (case-open.repository.ts) can keep deadlines in their own transaction.
  */
+import { assessmentDeadline, type AssessmentDeadline } from '../../shared/returns/assessment-deadline';
+import { centsFromNumeric } from '../../shared/returns/money';
 import type { Db } from '../db/db';
 
 /** What the rule needs about one case's return; money as numeric text. */
@@ -15,8 +19,33 @@ export interface DeadlineFacts {
   grossIncome: string;
   /** Income third-party statements show beyond the return's own lines, summed over kinds. */
   statementExcess: string;
-  /** Income the examiner's corrected figures add, when the case was closed adjusted (null: none). */
-  correctedExcess: string | null;
+}
+
+/** The rule applied to one case's facts. */
+export function deadlineOf(f: DeadlineFacts): AssessmentDeadline {
+  return assessmentDeadline({
+    taxYear: Number(f.taxYear),
+    filedOn: f.filedOn,
+    reportedIncomeCents: centsFromNumeric(f.grossIncome) ?? 0,
+    omittedIncomeCents: centsFromNumeric(f.statementExcess) ?? 0,
+  });
+}
+
+/** Computes and stores the deadlines of some cases (inside the caller's transaction when given one). */
+export async function refreshDeadlines(db: Db, caseIds: string[]): Promise<number> {
+  let stored = 0;
+  for (let i = 0; i < caseIds.length; i += 5000) {
+    const facts = await findDeadlineFacts(db, caseIds.slice(i, i + 5000));
+    stored += facts.length;
+    await storeDeadlines(
+      db,
+      facts.map((f) => {
+        const d = deadlineOf(f);
+        return { caseId: f.caseId, assessBy: d.assessBy, basis: d.basis };
+      }),
+    );
+  }
+  return stored;
 }
 
 /**
@@ -26,15 +55,13 @@ export interface DeadlineFacts {
  */
 export async function findDeadlineFacts(db: Db, caseIds: string[]): Promise<DeadlineFacts[]> {
   if (!caseIds.length) return [];
-  const hasCorrections = (await db.query(`SELECT to_regclass('public.case_correction') IS NOT NULL AS present`))[0].present as boolean;
   return db.query(
     `SELECT c.id AS "caseId", r.tax_year AS "taxYear",
             to_char(coalesce(r.filed_on, b.created_at::date), 'YYYY-MM-DD') AS "filedOn",
             (r.total_wages + r.total_interest + r.total_receipts)::text AS "grossIncome",
             coalesce((SELECT sum(greatest(0, s.amount - CASE s.kind WHEN 'wages' THEN r.total_wages WHEN 'interest' THEN r.total_interest ELSE r.total_receipts END))
                         FROM (SELECT kind, sum(amount) AS amount FROM third_party_statement st
-                               WHERE st.tin = t.tin AND st.tax_year = r.tax_year GROUP BY kind) s), 0)::text AS "statementExcess",
-            ${hasCorrections ? `(SELECT k.income_added::text FROM case_correction k WHERE k.case_id = c.id)` : 'NULL'} AS "correctedExcess"
+                               WHERE st.tin = t.tin AND st.tax_year = r.tax_year GROUP BY kind) s), 0)::text AS "statementExcess"
        FROM exam_case c
        JOIN tax_return r ON r.id = c.return_id
        JOIN taxpayer t ON t.id = c.taxpayer_id

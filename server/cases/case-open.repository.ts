@@ -5,7 +5,7 @@
  */
 import type { EntityManager } from 'typeorm';
 import { FINAL_STATES } from '../../shared/cases';
-import { refreshDeadlines } from './case-deadline.service';
+import { refreshDeadlines } from './case-deadline.repository';
 
 /** A newly selected return's score, as a case is opened (or updated) from it. */
 export interface SelectedScore {

@@ -19,6 +19,7 @@ import { safeCellText } from '../../shared/spreadsheet-text';
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import { caseFilterOf, countCases, findCasePage, iterateCases, type CaseFilter, type QueueCase } from './case-queue.repository';
+import { now as officeNow } from '../clock';
 
 function toItem(r: QueueCase): CaseListItem {
   return {
@@ -141,7 +142,7 @@ export async function exportCases(ds: DataSource, audit: StaffAudit, q: CaseList
 
   const wb = new ExcelJS.stream.xlsx.WorkbookWriter({ stream: out, useStyles: true, useSharedStrings: false });
   wb.creator = 'Plumbline';
-  wb.created = new Date();
+  wb.created = officeNow();
   const ws = wb.addWorksheet('Queue', { views: [{ state: 'frozen', ySplit: 1 }] });
   ws.columns = [
     { header: 'Return', key: 'ref', width: 16 },
@@ -189,7 +190,7 @@ export async function exportCases(ds: DataSource, audit: StaffAudit, q: CaseList
   about.columns = [{ width: 22 }, { width: 100 }];
   for (const [k, v] of [
     ['Exported by', actor.username],
-    ['Exported at', new Date().toISOString()],
+    ['Exported at', officeNow().toISOString()],
     ['Filters', filterText],
     ['Cases', String(written)],
     ['Caution', SCREENING_CAUTION],

@@ -2,7 +2,7 @@
  * The case workflow: claim, assign, move between states. Every change locks the case row,
  * checks the move against shared/cases.ts, records a case_event and an access-log line in
  * the same transaction. Letters and memos (server/letters) call {@link moveCase} too; the
- * taxpayer's reply (server/letters/replies.service.ts) calls {@link recordReply}.
+ * taxpayer's reply and the daily pass's overdue requests call {@link endReplyWait}.
  */
 import type { DataSource, EntityManager } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
@@ -15,6 +15,7 @@ import type { Db } from '../db/db';
 import { HttpError } from '../http/errors';
 import { findAssignee, findTaxpayerTin, insertCaseEvent, lockCaseRow, saveCase } from './case.repository';
 import type { ExamCase } from './exam-case.entity';
+import { now as officeNow } from '../clock';
 
 /** Loads a case FOR UPDATE inside a transaction, or 404. */
 export async function lockCase(m: EntityManager, caseId: string): Promise<ExamCase> {
@@ -46,23 +47,34 @@ export function assertMayAct(actor: Pick<SessionUser, 'id' | 'role'>, c: Pick<Ex
 }
 
 /**
- * Keeps a taxpayer's reply with its case, inside the caller's transaction. The taxpayer is
- * not a session user, so the event has no actor. When the case awaits this reply
- * (`endsWait`: no newer request is still waiting), it moves back to in review, the move
- * the workflow allows, and its reply due date is met; otherwise (the case moved on, or waits
- * on a newer letter) the reply is kept and the state left alone.
+ * Ends a case's wait for a taxpayer's reply, inside the caller's transaction: the reply came
+ * in through the link ('reply-received', server/letters/replies.service.ts) or its date passed
+ * without one ('reply-overdue', the daily pass). Nobody signed in acts, so the event has no
+ * actor. When the case awaits this request (`endsWait`: no other request is still waiting),
+ * it moves back to in review, the move the workflow allows, and its reply due date is
+ * cleared; otherwise (the case moved on, or waits on another letter) only the event is kept.
+ * @param caseOrId the case already locked in this transaction ({@link lockCase}), or its id
+ * @returns true when the case moved back to in review
  */
-export async function recordReply(m: EntityManager, caseId: string, detail: Record<string, unknown>, endsWait: boolean): Promise<void> {
-  const c = await lockCase(m, caseId);
-  if (endsWait && c.state === 'awaiting_reply' && canTransition(c.state, 'in_review')) {
-    c.state = 'in_review';
-    c.updatedAt = new Date();
-    c.dueDate = null;
-    await saveCase(m, c);
-    await addCaseEvent(m, c.id, null, 'reply-received', detail, 'awaiting_reply', 'in_review');
-  } else {
-    await addCaseEvent(m, c.id, null, 'reply-received', detail);
+export async function endReplyWait(
+  m: EntityManager,
+  caseOrId: ExamCase | string,
+  kind: 'reply-received' | 'reply-overdue',
+  detail: Record<string, unknown>,
+  endsWait: boolean,
+  at: Date = officeNow(),
+): Promise<boolean> {
+  const c = typeof caseOrId === 'string' ? await lockCase(m, caseOrId) : caseOrId;
+  if (!(endsWait && c.state === 'awaiting_reply' && canTransition(c.state, 'in_review'))) {
+    await addCaseEvent(m, c.id, null, kind, detail);
+    return false;
   }
+  c.state = 'in_review';
+  c.updatedAt = at;
+  c.dueDate = null;
+  await saveCase(m, c);
+  await addCaseEvent(m, c.id, null, kind, detail, 'awaiting_reply', 'in_review');
+  return true;
 }
 
 /** Appends a case event (actor null: Plumbline itself, or a taxpayer through a reply link). */
@@ -101,10 +113,11 @@ export interface MoveOptions {
 
 /**
  * Moves a case to another state inside the caller's transaction. Refuses (409) a move the
- * workflow does not allow, naming the allowed ones.
+ * workflow does not allow, naming the allowed ones. A caller that has already locked the
+ * case in this transaction ({@link lockCase}) passes it, so it is not loaded again.
  */
-export async function moveCase(m: EntityManager, audit: StaffAudit, caseId: string, to: CaseState, opts: MoveOptions = {}): Promise<ExamCase> {
-  const c = await lockCase(m, caseId);
+export async function moveCase(m: EntityManager, audit: StaffAudit, caseOrId: ExamCase | string, to: CaseState, opts: MoveOptions = {}): Promise<ExamCase> {
+  const c = typeof caseOrId === 'string' ? await lockCase(m, caseOrId) : caseOrId;
   assertMayAct(audit.actor, c);
   if (!canTransition(c.state, to)) {
     const allowed = CASE_TRANSITIONS[c.state].map((s) => CASE_STATE_LABELS[s].toLowerCase());
@@ -117,10 +130,10 @@ export async function moveCase(m: EntityManager, audit: StaffAudit, caseId: stri
   if (to === 'open' && c.state === 'assigned') c.assigneeId = null;
   const from = c.state;
   c.state = to;
-  c.updatedAt = new Date();
+  c.updatedAt = officeNow();
   if (opts.dueDate !== undefined) c.dueDate = opts.dueDate;
   if (isFinalState(to)) {
-    c.closedAt = new Date();
+    c.closedAt = officeNow();
     c.outcome = opts.outcome ?? null;
     c.adjustedAmount = to === 'closed_adjusted' ? (opts.adjustedAmount ?? null) : null;
   }
@@ -153,7 +166,7 @@ export async function claimCase(ds: DataSource, audit: StaffAudit, caseId: strin
     }
     c.state = 'assigned';
     c.assigneeId = actor.id;
-    c.updatedAt = new Date();
+    c.updatedAt = officeNow();
     await saveCase(m, c);
     await addCaseEvent(m, c.id, actor, 'claimed', { assigneeId: actor.id }, 'open', 'assigned');
     await logChange(m, audit, c, 'claimed');
@@ -182,7 +195,7 @@ export async function assignCase(ds: DataSource, audit: StaffAudit, caseId: stri
     const to: CaseState = from === 'open' ? 'assigned' : from;
     c.state = to;
     c.assigneeId = assigneeId;
-    c.updatedAt = new Date();
+    c.updatedAt = officeNow();
     await saveCase(m, c);
     const kind = !previous ? 'assigned' : from === 'open' || from === 'assigned' ? 'reassigned' : 'handed-over';
     await addCaseEvent(m, c.id, audit.actor, kind, { from: previous, to: assigneeId }, from, to);

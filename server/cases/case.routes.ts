@@ -7,6 +7,7 @@ import { validate } from '../http/validate';
 import { addNote, assign, bulkReassign, claim, revealTin, transition } from './case-actions.service';
 import { getCaseDetail, listExaminers } from './case-detail.service';
 import { exportCases, listCases } from './case-queue.service';
+import { today as officeToday } from '../clock';
 
 /**
  * Case work (issue 7). Examiners read every case and act on their
@@ -24,7 +25,7 @@ export function caseRoutes(deps: Pick<AppDeps, 'dataSource'>) {
   });
 
   r.get('/cases/export.xlsx', allow('exportQueue'), validate(CaseListQuerySchema, 'query'), async (req, res) => {
-    const stamp = new Date().toISOString().slice(0, 10);
+    const stamp = officeToday();
     res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
     res.setHeader('Content-Disposition', `attachment; filename="plumbline-queue-${stamp}.xlsx"`);
     res.setHeader('Cache-Control', 'no-store');

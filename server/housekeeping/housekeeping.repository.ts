@@ -1,6 +1,7 @@
 /**
- * SQL of the daily pass (issue 13): requests to expire or remind, the case moves and events
- * an expiry makes, examiners' digests, and the record of each day's runs.
+ * SQL of the daily pass (issue 13): requests to expire or remind, examiners' digests, and the
+ * record of each day's runs. The case moves an expiry makes are the cases module's
+ * (server/cases/case-workflow.ts).
  */
 import type { EntityManager } from 'typeorm';
 import type { Db } from '../db/db';
@@ -58,15 +59,6 @@ export async function otherRequestWaiting(m: EntityManager, caseId: string, requ
     day,
   ]);
   return r.length > 0;
-}
-
-/** Moves a case that awaits a reply back to review (the daily pass, no actor); true when it moved. */
-export async function caseBackToReview(m: EntityManager, caseId: string, at: Date): Promise<boolean> {
-  const r = await m.query(
-    `UPDATE exam_case SET state = 'in_review', due_date = NULL, updated_at = $2 WHERE id = $1 AND state = 'awaiting_reply' RETURNING id`,
-    [caseId, at],
-  );
-  return (Array.isArray(r[0]) ? r[0] : r).length > 0;
 }
 
 /** Takes a waiting request for its reminder: gives it a new token hash; false when it was reminded or answered meanwhile. */

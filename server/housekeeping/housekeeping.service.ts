@@ -15,7 +15,7 @@
  * Each change is its own transaction, with the mail sent as its last step (as for letters:
  * a refused send stores nothing, and the next run tries again).
  */
-import { createHash, randomBytes, randomUUID } from 'node:crypto';
+import { randomBytes, randomUUID } from 'node:crypto';
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
 import { DEFAULT_REMINDER_DAYS_BEFORE, type HousekeepingResult } from '../../shared/housekeeping';
@@ -24,15 +24,14 @@ import { DEADLINE_NEAR_DAYS } from '../../shared/returns/assessment-deadline';
 import { recordAccess } from '../access-log/access-log.service';
 import type { AuditContext } from '../access-log/audit-context';
 import { insertCaseEvent } from '../cases/case.repository';
-import { lockCase } from '../cases/case-workflow';
+import { endReplyWait, lockCase } from '../cases/case-workflow';
 import { dropQueueTotals } from '../cases/case-queue.service';
 import { now, today } from '../clock';
 import type { Mailer } from '../mail/mailer';
 import { insertLetter, setLetterMessageId } from '../letters/letters.repository';
-import { hashReplyToken } from '../letters/letters.service';
+import { hashReplyToken, maskedReplyUrl, sha256 } from '../letters/letters.service';
 import { reminderMail, renderReminderPdf, type ReminderLetter } from '../letters/pdf/reminder-pdf';
 import {
-  caseBackToReview,
   expireRequest,
   findDigests,
   findRequestsPastDue,
@@ -78,7 +77,6 @@ export function housekeepingSettings(env: Record<string, string | undefined> = p
 }
 
 const AUDIT: AuditContext = { actor: null, route: 'daily pass' };
-const sha256 = (b: Buffer) => createHash('sha256').update(b).digest('hex');
 
 /** Runs the pass for the office clock's today. */
 export async function runDailyPass(deps: HousekeepingDeps, settings: HousekeepingSettings = housekeepingSettings()): Promise<HousekeepingResult> {
@@ -97,18 +95,10 @@ async function expireOverdue(ds: DataSource, day: string): Promise<number> {
   let n = 0;
   for (const r of await findRequestsPastDue(ds, day)) {
     const did = await ds.transaction(async (m) => {
-      await lockCase(m, r.caseId);
+      const c = await lockCase(m, r.caseId);
       if (!(await expireRequest(m, r.id))) return false;
       const detail = { documentRequestId: r.id, letterId: r.letterId, dueDate: r.dueDate };
-      const moved = !(await otherRequestWaiting(m, r.caseId, r.id, day)) && (await caseBackToReview(m, r.caseId, now()));
-      await insertCaseEvent(m, {
-        caseId: r.caseId,
-        actorId: null,
-        kind: 'reply-overdue',
-        detail,
-        from: moved ? 'awaiting_reply' : null,
-        to: moved ? 'in_review' : null,
-      });
+      await endReplyWait(m, c, 'reply-overdue', detail, !(await otherRequestWaiting(m, r.caseId, r.id, day)), now());
       await recordAccess(m, AUDIT, {
         action: 'change',
         recordType: 'document_request',
@@ -149,7 +139,7 @@ async function sendReminders(deps: HousekeepingDeps, day: string, daysBefore: nu
           replyUrl: `${deps.publicUrl}/reply/${token}`,
         };
         const sentPdf = await renderReminderPdf(letter);
-        const officePdf = await renderReminderPdf({ ...letter, replyUrl: `${deps.publicUrl}/reply/•••••••• (personal link, sent to the taxpayer only)` });
+        const officePdf = await renderReminderPdf({ ...letter, replyUrl: maskedReplyUrl(deps.publicUrl) });
         const fileName = `reminder-${reference}.pdf`;
         const mail = reminderMail(letter, r.email, sentPdf, fileName);
         await insertLetter(m, {

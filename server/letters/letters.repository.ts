@@ -7,6 +7,7 @@ import type { EntityManager } from 'typeorm';
 import type { DocumentRequestState, LetterKind, ReplyFileType } from '../../shared/letters';
 import type { ScoreBreakdown } from '../../shared/scoring/breakdown';
 import type { Db } from '../db/db';
+import { now as officeNow } from '../clock';
 
 /** What letters need to know about a case, its return and its taxpayer. */
 export interface CaseContext {
@@ -77,10 +78,10 @@ export async function findCaseContext(db: Db, caseId: string): Promise<CaseConte
   };
 }
 
-/** True when the case exists; its taxpayer for the access log. */
-export async function findCaseTaxpayer(db: Db, caseId: string): Promise<{ taxpayerId: string } | null> {
-  const rows = await db.query(`SELECT taxpayer_id FROM exam_case WHERE id = $1`, [caseId]);
-  return rows.length ? { taxpayerId: rows[0].taxpayer_id } : null;
+/** The case's taxpayer and TIN for the access log, in one query; null when there is no such case. */
+export async function findCaseTaxpayer(db: Db, caseId: string): Promise<{ taxpayerId: string; tin: string } | null> {
+  const rows = await db.query(`SELECT c.taxpayer_id, t.tin FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`, [caseId]);
+  return rows.length ? { taxpayerId: rows[0].taxpayer_id, tin: String(rows[0].tin) } : null;
 }
 
 /** A new letter row. */
@@ -317,7 +318,7 @@ export async function storeReply(
       f.bytes,
     ]);
   }
-  const at = new Date();
+  const at = officeNow();
   await m.query(`UPDATE document_request SET state = 'answered', answered_at = $2 WHERE id = $1`, [requestId, at]);
   return at;
 }

@@ -30,7 +30,7 @@ import { centsFromNumeric } from '../../shared/returns/money';
 import { recordAccess } from '../access-log/access-log.service';
 import { today as clockToday } from '../clock';
 import type { StaffAudit } from '../access-log/audit-context';
-import { assertMayAct, lockCase, moveCase, taxpayerLabelOf } from '../cases/case-workflow';
+import { assertMayAct, lockCase, moveCase } from '../cases/case-workflow';
 import { HttpError } from '../http/errors';
 import type { Mailer } from '../mail/mailer';
 import { documentRequestMail } from './letter-mail';
@@ -60,7 +60,8 @@ export interface LetterDeps {
   publicUrl: string;
 }
 
-const sha256 = (b: Buffer | string) => createHash('sha256').update(b).digest('hex');
+/** Hex SHA-256 of a letter's bytes (kept with it) or a reply token. */
+export const sha256 = (b: Buffer | string) => createHash('sha256').update(b).digest('hex');
 
 /** The hash stored for a reply token (the token itself is never stored). */
 export function hashReplyToken(token: string): string {
@@ -68,7 +69,7 @@ export function hashReplyToken(token: string): string {
 }
 
 /** How the office copy of a letter shows the reply link: the path without its secret. */
-function maskedReplyUrl(publicUrl: string): string {
+export function maskedReplyUrl(publicUrl: string): string {
   return `${publicUrl}/reply/•••••••• (personal link, sent to the taxpayer only)`;
 }
 
@@ -209,7 +210,7 @@ export async function sendDocumentRequest(deps: LetterDeps, audit: StaffAudit, c
       tokenHash: hashReplyToken(token),
       email: to,
     });
-    const c = await moveCase(m, audit, caseId, 'awaiting_reply', {
+    const c = await moveCase(m, audit, locked, 'awaiting_reply', {
       kind: 'document-request',
       detail: { letterId, documentRequestId: requestId, dueDate: input.dueDate, items: input.items.length },
       dueDate: input.dueDate,
@@ -320,7 +321,7 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
       messageId: null,
       createdBy: actor.id,
     });
-    const c = await moveCase(m, audit, caseId, 'referred', {
+    const c = await moveCase(m, audit, locked, 'referred', {
       kind: 'referral',
       outcome: `Referred to the ${unitLabel}: ${input.summary}`.slice(0, 2000),
       detail: { letterId, unit },
@@ -333,7 +334,7 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
 async function caseForRead(ds: DataSource, caseId: string): Promise<{ taxpayerId: string; label: string | null }> {
   const c = isUuid(caseId) ? await findCaseTaxpayer(ds, caseId) : null;
   if (!c) throw new HttpError(404, 'No such case.');
-  return { taxpayerId: c.taxpayerId, label: await taxpayerLabelOf(ds, c.taxpayerId) };
+  return { taxpayerId: c.taxpayerId, label: maskTin(c.tin) };
 }
 
 /** The letters of a case, newest first, with requests and reply files; logged as a view. */

@@ -15,18 +15,24 @@ import type { Readable, Writable } from 'node:stream';
 import type { Request, RequestHandler } from 'express';
 import { REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES } from '../../shared/letters';
 import type { AppDeps } from '../app-deps';
+import { auditOf, type AuditContext } from '../access-log/audit-context';
 import { publicAccess, secureRouter } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { getReplyRequest, openRequest, receiveReply } from './replies.service';
 
 const MB = 1024 * 1024;
 
+// The refusals of the limits, each worded once (a limit can be met at more than one point).
+const tooMuch = () => new HttpError(413, `The files together are larger than ${REPLY_MAX_TOTAL_BYTES / MB} MB. Send fewer or smaller files.`);
+const fileTooBig = () =>
+  new HttpError(413, `A file is larger than ${REPLY_MAX_FILE_BYTES / MB} MB. Scan it at a lower resolution or split it, then send again.`);
+const tooManyFiles = () => new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`);
+
 /** Refuses a body over the total limit by its declared length, before reading it. */
 const totalLimit: RequestHandler = (req, _res, next) => {
   const declared = Number(req.get('content-length') ?? 0);
   // Multipart framing adds a little per part; allow 64 KB for it.
-  if (declared > REPLY_MAX_TOTAL_BYTES + 64 * 1024)
-    return next(new HttpError(413, `The files together are larger than ${REPLY_MAX_TOTAL_BYTES / MB} MB. Send fewer or smaller files.`));
+  if (declared > REPLY_MAX_TOTAL_BYTES + 64 * 1024) return next(tooMuch());
   next();
 };
 
@@ -104,26 +110,22 @@ function receiveFiles(): RequestHandler {
       stream.on('data', (c: Buffer) => {
         chunks.push(c);
         total += c.length;
-        if (total > REPLY_MAX_TOTAL_BYTES)
-          fail(new HttpError(413, `The files together are larger than ${REPLY_MAX_TOTAL_BYTES / MB} MB. Send fewer or smaller files.`));
+        if (total > REPLY_MAX_TOTAL_BYTES) fail(tooMuch());
       });
-      stream.on('limit', () =>
-        fail(new HttpError(413, `A file is larger than ${REPLY_MAX_FILE_BYTES / MB} MB. Scan it at a lower resolution or split it, then send again.`)),
-      );
+      stream.on('limit', () => fail(fileTooBig()));
       stream.on('error', () => undefined); // the parser reports the same error once, below
       stream.on('end', () => (files[slot] = { originalName: info.filename ?? '', declaredType: info.mimeType, bytes: Buffer.concat(chunks) }));
     });
     parser.on('field', (field, value, info) => {
       // An empty "files" value is a file input left empty (what a browser sends): no file.
       if (field !== 'files' || value === '') return;
-      if (info.valueTruncated)
-        return fail(new HttpError(413, `A file is larger than ${REPLY_MAX_FILE_BYTES / MB} MB. Scan it at a lower resolution or split it, then send again.`));
+      if (info.valueTruncated) return fail(fileTooBig());
       total += value.length;
-      if (files.length >= REPLY_MAX_FILES) return fail(new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`));
+      if (files.length >= REPLY_MAX_FILES) return fail(tooManyFiles());
       files.push({ originalName: '', declaredType: info.mimeType, bytes: Buffer.from(value, 'latin1') });
     });
-    parser.on('filesLimit', () => fail(new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`)));
-    parser.on('partsLimit', () => fail(new HttpError(422, `Send at most ${REPLY_MAX_FILES} files in one reply.`)));
+    parser.on('filesLimit', () => fail(tooManyFiles()));
+    parser.on('partsLimit', () => fail(tooManyFiles()));
     parser.on('fieldsLimit', () => fail(new HttpError(422, 'The upload has too many fields. Please choose the files again and send them.')));
     parser.on('error', (e) =>
       fail(new HttpError(400, `The upload is not a readable multipart form (${e.message}). Please choose the files again and send them.`)),
@@ -142,6 +144,11 @@ function replyParts(req: Request): { replyFiles?: ReceivedPart[] } {
   return req as unknown as { replyFiles?: ReceivedPart[] };
 }
 
+/** A reply link acts for the taxpayer, whoever's browser opens it: no staff actor. */
+function taxpayerAudit(req: Request): AuditContext {
+  return { actor: null, route: auditOf(req).route };
+}
+
 /** The public reply routes. */
 export function replyRoutes(deps: AppDeps) {
   const r = secureRouter();
@@ -149,7 +156,7 @@ export function replyRoutes(deps: AppDeps) {
 
   r.get('/replies/:token', publicAccess, async (req, res) => {
     res.setHeader('Cache-Control', 'no-store');
-    res.json(await getReplyRequest(ds, String(req.params.token)));
+    res.json(await getReplyRequest(ds, taxpayerAudit(req), String(req.params.token)));
   });
 
   r.post(
@@ -164,7 +171,7 @@ export function replyRoutes(deps: AppDeps) {
     async (req, res) => {
       const files = replyParts(req).replyFiles ?? [];
       res.setHeader('Cache-Control', 'no-store');
-      res.status(201).json(await receiveReply(ds, String(req.params.token), files));
+      res.status(201).json(await receiveReply(ds, taxpayerAudit(req), String(req.params.token), files));
     },
   );
 

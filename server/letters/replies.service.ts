@@ -18,8 +18,9 @@ import {
   type ReplyRequestDto,
 } from '../../shared/letters';
 import { recordAccess } from '../access-log/access-log.service';
+import type { AuditContext } from '../access-log/audit-context';
 import { today } from '../clock';
-import { recordReply } from '../cases/case-workflow';
+import { endReplyWait } from '../cases/case-workflow';
 import { HttpError } from '../http/errors';
 import { findRequestByTokenHash, hasNewerWaitingRequest, markExpired, storeReply, type RequestByToken } from './letters.repository';
 import { hashReplyToken } from './letters.service';
@@ -27,10 +28,6 @@ import { checkReplyFiles, type IncomingFile } from './reply-files';
 
 /** A token as issued: 32 random bytes in base64url. Anything else cannot be a link of ours. */
 const TOKEN = /^[A-Za-z0-9_-]{43}$/;
-
-/** The route as logged: never the token, which would put a live key in the access log. */
-const ROUTE_GET = 'GET /api/replies/:token';
-const ROUTE_POST = 'POST /api/replies/:token';
 
 const NOT_FOUND = 'This reply link is not known. Check that the whole link was copied from the e-mail, or contact the office.';
 
@@ -59,13 +56,16 @@ export async function openRequest(ds: DataSource, token: string): Promise<Reques
 }
 
 /** What the reply page shows for a usable link; the visit is written to the access log. */
-export async function getReplyRequest(ds: DataSource, token: string): Promise<ReplyRequestDto> {
+export async function getReplyRequest(ds: DataSource, audit: AuditContext, token: string): Promise<ReplyRequestDto> {
   const r = await openRequest(ds, token);
-  await recordAccess(
-    ds,
-    { actor: null, route: ROUTE_GET },
-    { action: 'view', recordType: 'document_request', recordId: r.id, taxpayerId: r.taxpayerId, taxpayerLabel: maskTin(r.tin), detail: 'reply link opened' },
-  );
+  await recordAccess(ds, audit, {
+    action: 'view',
+    recordType: 'document_request',
+    recordId: r.id,
+    taxpayerId: r.taxpayerId,
+    taxpayerLabel: maskTin(r.tin),
+    detail: 'reply link opened',
+  });
   return {
     state: 'open',
     taxpayerName: r.taxpayerName,
@@ -83,7 +83,7 @@ export async function getReplyRequest(ds: DataSource, token: string): Promise<Re
  * cannot both succeed.
  * @throws HttpError 404, 410 as {@link openRequest}; 422 for files that fail the checks
  */
-export async function receiveReply(ds: DataSource, token: string, files: IncomingFile[]): Promise<ReplyReceipt> {
+export async function receiveReply(ds: DataSource, audit: AuditContext, token: string, files: IncomingFile[]): Promise<ReplyReceipt> {
   const checked = checkReplyFiles(files);
   if (!TOKEN.test(token)) throw new HttpError(404, NOT_FOUND);
   const hash = hashReplyToken(token);
@@ -98,19 +98,15 @@ export async function receiveReply(ds: DataSource, token: string, files: Incomin
     // waiting moves the case: a late answer to an earlier letter is kept with the case but
     // does not end the wait for a later one.
     const detail = { documentRequestId: r.id, letterId: r.letterId, files: checked.length };
-    await recordReply(m, r.caseId, detail, !(await hasNewerWaitingRequest(m, r.caseId, r.id)));
-    await recordAccess(
-      m,
-      { actor: null, route: ROUTE_POST },
-      {
-        action: 'change',
-        recordType: 'document_request',
-        recordId: r.id,
-        taxpayerId: r.taxpayerId,
-        taxpayerLabel: maskTin(r.tin),
-        detail: `reply received: ${checked.length} file${checked.length === 1 ? '' : 's'}`,
-      },
-    );
+    await endReplyWait(m, r.caseId, 'reply-received', detail, !(await hasNewerWaitingRequest(m, r.caseId, r.id)));
+    await recordAccess(m, audit, {
+      action: 'change',
+      recordType: 'document_request',
+      recordId: r.id,
+      taxpayerId: r.taxpayerId,
+      taxpayerLabel: maskTin(r.tin),
+      detail: `reply received: ${checked.length} file${checked.length === 1 ? '' : 's'}`,
+    });
     return {
       kind: 'received' as const,
       receipt: {

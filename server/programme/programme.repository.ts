@@ -24,12 +24,6 @@ export async function findRun(db: Db, batchId: string, version: number): Promise
   return r[0] ?? null;
 }
 
-/** The profile version's settings (JSON as stored). */
-export async function profileSettings(db: Db, version: number): Promise<Record<string, unknown> | null> {
-  const r = await db.query(`SELECT settings FROM scoring_profile WHERE version = $1`, [version]);
-  return r[0]?.settings ?? null;
-}
-
 /** Returns scored under the version that the score did not select and that have no case. */
 export async function sampleCandidates(db: Db, batchId: string, version: number): Promise<CandidateRecord[]> {
   return db.query(

@@ -13,7 +13,8 @@ import type { CaseState } from '../../shared/cases';
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import { openRandomCases } from '../cases/case-open.repository';
-import { countOpenRandom, finishedCases, findRun, profileSettings, randomCasesOf, sampleCandidates, saveRunSample } from './programme.repository';
+import { profileSettings } from '../scoring/scoring-profile.repository';
+import { countOpenRandom, finishedCases, findRun, randomCasesOf, sampleCandidates, saveRunSample } from './programme.repository';
 
 /**
  * Draws the run's random review sample and opens a 'random' case for each return drawn, once

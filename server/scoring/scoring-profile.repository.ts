@@ -7,6 +7,12 @@ import type { EntityManager } from 'typeorm';
 import { FINAL_STATES } from '../../shared/cases';
 import type { Db } from '../db/db';
 
+/** The profile version's settings (JSON as stored). */
+export async function profileSettings(db: Db, version: number): Promise<Record<string, unknown> | null> {
+  const r = await db.query(`SELECT settings FROM scoring_profile WHERE version = $1`, [version]);
+  return r[0]?.settings ?? null;
+}
+
 /** A profile version as stored, with its author's name. */
 export interface ProfileRecord {
   version: number;

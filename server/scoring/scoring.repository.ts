@@ -3,11 +3,11 @@
  * shared between a preparer's clients) are done in SQL so a million line items never sit in
  * the worker's memory at once.
  */
-import type { DataSource, EntityManager } from 'typeorm';
+import type { EntityManager } from 'typeorm';
 import type { StatementKind, LineCode } from '../../shared/returns/line-codes';
 import type { PeerFigures } from '../../shared/scoring/factors';
-
-type Db = DataSource | EntityManager;
+import type { Db } from '../db/db';
+import { returnedRows } from '../db/returned-rows';
 
 /** First significant digit of a numeric amount, in SQL (zero amounts must be filtered out). */
 const FIRST_DIGIT_SQL = `substr(ltrim(replace(abs(li.amount)::text, '.', ''), '0'), 1, 1)::int`;
@@ -308,4 +308,95 @@ export async function writePatternQs(db: Db, index: number, pending: string, row
       WHERE s.id = u.id`,
     [String(index), pending, JSON.stringify(rows)],
   );
+}
+
+/** A run of (batch, profile version), if it was created. */
+export async function findRun(
+  db: Db,
+  batchId: string,
+  version: number,
+): Promise<{ id: string; scored: number; failed: number; finishedAt: Date | null } | null> {
+  const r: { id: string; scored: number; failed: number; finished_at: Date | null }[] = await db.query(
+    `SELECT id, scored, failed, finished_at FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`,
+    [batchId, version],
+  );
+  return r.length ? { id: String(r[0].id), scored: r[0].scored, failed: r[0].failed, finishedAt: r[0].finished_at } : null;
+}
+
+/** Creates the run of (batch, profile version) with its context, unless another caller already did. */
+export async function insertRun(db: Db, batchId: string, version: number, total: number, context: unknown): Promise<void> {
+  await db.query(
+    `INSERT INTO scoring_run (batch_id, profile_version, total, context) VALUES ($1, $2, $3, $4::jsonb) ON CONFLICT (batch_id, profile_version) DO NOTHING`,
+    [batchId, version, total, JSON.stringify(context)],
+  );
+}
+
+/** A run's batch, version, stored context and the version's settings (JSON as stored), in one read. */
+export async function runWithSettings<C>(db: Db, runId: string): Promise<{ batchId: string; version: number; context: C; settings: unknown } | null> {
+  const r: { batch_id: string; profile_version: number; context: C; settings: unknown }[] = await db.query(
+    `SELECT r.batch_id, r.profile_version, r.context, p.settings
+       FROM scoring_run r LEFT JOIN scoring_profile p ON p.version = r.profile_version
+      WHERE r.id = $1`,
+    [runId],
+  );
+  return r.length ? { batchId: r[0].batch_id, version: r[0].profile_version, context: r[0].context, settings: r[0].settings } : null;
+}
+
+/** Marks a queued (or re-scored) batch as scoring, with how many returns are done. */
+export async function markBatchScoring(db: Db, batchId: string, done: number): Promise<void> {
+  await db.query(`UPDATE filing_batch SET state = 'scoring', scored_count = $2, updated_at = now() WHERE id = $1 AND state IN ('queued', 'scored')`, [
+    batchId,
+    done,
+  ]);
+}
+
+/** One score to store (JSON keys kept short: a slice is sent as one document). */
+export interface ScoreRow {
+  r: string;
+  s: 'scored' | 'failed';
+  rs: number | null;
+  st: number | null;
+  p: number | null;
+  b: unknown;
+  f: string | null;
+}
+
+/** Stores a slice's scores; those already stored under the version are left as they are. @returns the new score ids by return id */
+export async function insertScores(m: EntityManager, batchId: string, version: number, rows: ScoreRow[]): Promise<Map<string, string>> {
+  // One JSON document for the slice: an array parameter of 500 JSON texts would be quoted and
+  // escaped into a PostgreSQL array literal, which cost more than the insert itself.
+  const inserted: { id: string; return_id: string }[] = await m.query(
+    `INSERT INTO return_score (return_id, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown, failure_reason)
+     SELECT (e->>'r')::uuid, $1, $2, e->>'s', (e->>'rs')::numeric, (e->>'st')::numeric / 100, (e->>'p')::numeric,
+            nullif((e->'b')::jsonb, 'null'::jsonb), e->>'f'
+       FROM json_array_elements($3::json) AS e
+     ON CONFLICT (return_id, profile_version) DO NOTHING
+     RETURNING id, return_id`,
+    [batchId, version, JSON.stringify(rows)],
+  );
+  return new Map(inserted.map((r) => [r.return_id, r.id]));
+}
+
+/** Adds a slice's counts to the run and the batch's progress. */
+export async function addRunProgress(m: EntityManager, runId: string, batchId: string, scored: number, failed: number): Promise<void> {
+  const run = returnedRows<{ scored: number; failed: number }>(
+    await m.query(`UPDATE scoring_run SET scored = scored + $2, failed = failed + $3 WHERE id = $1 RETURNING scored, failed`, [runId, scored, failed]),
+  );
+  await m.query(`UPDATE filing_batch SET scored_count = $2, updated_at = now() WHERE id = $1`, [batchId, run[0].scored + run[0].failed]);
+}
+
+/** Marks the run finished if every return is scored or failed and it was not yet; @returns its batch and version then, else null. */
+export async function finishRunIfComplete(m: EntityManager, runId: string): Promise<{ batchId: string; version: number } | null> {
+  const r = returnedRows<{ batch_id: string; profile_version: number }>(
+    await m.query(
+      `UPDATE scoring_run SET finished_at = now() WHERE id = $1 AND finished_at IS NULL AND scored + failed >= total RETURNING batch_id, profile_version`,
+      [runId],
+    ),
+  );
+  return r.length ? { batchId: r[0].batch_id, version: Number(r[0].profile_version) } : null;
+}
+
+/** Marks a scoring batch as scored. */
+export async function markBatchScored(m: EntityManager, batchId: string): Promise<void> {
+  await m.query(`UPDATE filing_batch SET state = 'scored', updated_at = now() WHERE id = $1 AND state = 'scoring'`, [batchId]);
 }

@@ -21,12 +21,20 @@ import { openCasesForScores } from '../cases/case-open.repository';
 import { QUEUES } from '../queue/queues';
 import {
   activeProfileVersion,
+  addRunProgress,
   batchDeductionFigures,
   batchReturnIds,
   createBatchSlots,
+  findRun,
+  finishRunIfComplete,
   historyOf,
+  insertRun,
+  insertScores,
   linesOf,
+  markBatchScored,
+  markBatchScoring,
   runPatternPs,
+  runWithSettings,
   slotDigitCounts,
   slotPopularity,
   slotPreparerSharing,
@@ -38,7 +46,8 @@ import {
   unscoredReturns,
   writePatternQs,
 } from './scoring.repository';
-import { returnedRows } from '../db/returned-rows';
+import type { Db } from '../db/db';
+import { profileSettings } from './scoring-profile.repository';
 import { drawRandomSample } from '../programme/programme.service';
 
 /** Returns per chunk job (env SCORING_CHUNK_SIZE). Large enough that a chunk outlasts pg-boss's 0.5 s polling gap. */
@@ -78,10 +87,10 @@ export interface RunContext {
   };
 }
 
-async function loadSettings(db: DataSource | EntityManager, version: number): Promise<ScoringSettings> {
-  const r = await db.query(`SELECT settings FROM scoring_profile WHERE version = $1`, [version]);
-  if (!r.length) throw new Error(`Scoring profile version ${version} does not exist.`);
-  return ScoringSettingsSchema.parse(r[0].settings);
+/** Parses a profile version's stored settings; a missing version is an error. */
+function parseSettings(version: number, stored: unknown): ScoringSettings {
+  if (stored === null || stored === undefined) throw new Error(`Scoring profile version ${version} does not exist.`);
+  return ScoringSettingsSchema.parse(stored);
 }
 
 /**
@@ -159,29 +168,18 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
 /** Creates the run for (batch, version) once, and returns it with the batch's return ids. */
 async function ensureRun(ds: DataSource, batchId: string, version?: number): Promise<{ runId: string; done: number; ids: string[] }> {
   const v = version ?? (await activeProfileVersion(ds));
-  const settings = await loadSettings(ds, v);
-  const find = () =>
-    ds.query(`SELECT id, scored, failed, finished_at FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [batchId, v]) as Promise<
-      { id: string; scored: number; failed: number; finished_at: Date | null }[]
-    >;
-  let run = await find();
+  const settings = parseSettings(v, await profileSettings(ds, v));
+  let run = await findRun(ds, batchId, v);
   const ids = await batchReturnIds(ds, batchId);
-  if (!run.length) {
-    const context = await computeRunContext(ds, batchId, settings);
-    await ds.query(
-      `INSERT INTO scoring_run (batch_id, profile_version, total, context) VALUES ($1, $2, $3, $4::jsonb) ON CONFLICT (batch_id, profile_version) DO NOTHING`,
-      [batchId, v, ids.length, JSON.stringify(context)],
-    );
-    run = await find();
+  if (!run) {
+    await insertRun(ds, batchId, v, ids.length, await computeRunContext(ds, batchId, settings));
+    run = (await findRun(ds, batchId, v))!;
   }
-  const runId = String(run[0].id);
-  const done = run[0].scored + run[0].failed;
+  const runId = run.id;
+  const done = run.scored + run.failed;
   // A finished run leaves the batch as it is (a retried job, or a second call).
-  if (!run[0].finished_at) {
-    await ds.query(`UPDATE filing_batch SET state = 'scoring', scored_count = $2, updated_at = now() WHERE id = $1 AND state IN ('queued', 'scored')`, [
-      batchId,
-      done,
-    ]);
+  if (!run.finishedAt) {
+    await markBatchScoring(ds, batchId, done);
     if (ids.length === 0) await finishIfDone(ds, runId);
   }
   return { runId, done, ids };
@@ -234,22 +232,17 @@ export async function scoreBatchNow(ds: DataSource, batchId: string, version?: n
  * scores the last returns does it, under the run row's lock, so it happens exactly once and
  * a crash before the commit leaves the run unfinished for the retried chunk to finish).
  */
-async function finishIfDone(db: DataSource | EntityManager, runId: string): Promise<boolean> {
+async function finishIfDone(db: Db, runId: string): Promise<boolean> {
   if (!('queryRunner' in db) || !db.queryRunner) {
     // Not inside a transaction yet: take one, so the finish and the q-values commit together.
     return (db as DataSource).transaction((m) => finishIfDone(m, runId));
   }
-  const r = returnedRows<{ batch_id: string; profile_version: number }>(
-    await db.query(
-      `UPDATE scoring_run SET finished_at = now() WHERE id = $1 AND finished_at IS NULL AND scored + failed >= total RETURNING batch_id, profile_version`,
-      [runId],
-    ),
-  );
-  if (!r.length) return false;
-  await writeBatchQValues(db, r[0].batch_id, Number(r[0].profile_version));
+  const run = await finishRunIfComplete(db, runId);
+  if (!run) return false;
+  await writeBatchQValues(db, run.batchId, run.version);
   // The random review sample is drawn from returns below the cut, so it waits for every score (docs/methods.md#programme-outcomes).
-  await drawRandomSample(db, r[0].batch_id, Number(r[0].profile_version));
-  await db.query(`UPDATE filing_batch SET state = 'scored', updated_at = now() WHERE id = $1 AND state = 'scoring'`, [r[0].batch_id]);
+  await drawRandomSample(db, run.batchId, run.version);
+  await markBatchScored(db, run.batchId);
   return true;
 }
 
@@ -324,13 +317,11 @@ interface Outcome {
  * @returns how many returns this call scored and how many failed
  */
 export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ scored: number; failed: number; skipped: boolean }> {
-  const runRows: { batch_id: string; profile_version: number; context: RunContext }[] = await ds.query(
-    `SELECT batch_id, profile_version, context FROM scoring_run WHERE id = $1`,
-    [job.runId],
-  );
-  if (!runRows.length) throw new Error(`scoring run ${job.runId} does not exist`);
-  const { batch_id: batchId, profile_version: version, context } = runRows[0];
-  const settings = await loadSettings(ds, version);
+  // The run and its version's settings in one read: a slice needs both.
+  const run = await runWithSettings<RunContext>(ds, job.runId);
+  if (!run) throw new Error(`scoring run ${job.runId} does not exist`);
+  const { batchId, version, context } = run;
+  const settings = parseSettings(version, run.settings);
   const todo = await unscoredReturns(ds, batchId, version, job.fromId, job.toId);
   if (!todo.length) {
     await finishIfDone(ds, job.runId);
@@ -446,22 +437,12 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
   trace('score', t);
   t = performance.now();
   return ds.transaction(async (m) => {
-    // One JSON document for the slice: an array parameter of 500 JSON texts would be quoted and
-    // escaped into a PostgreSQL array literal, which cost more than the insert itself.
-    const inserted: { id: string; return_id: string }[] = await m.query(
-      `INSERT INTO return_score (return_id, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown, failure_reason)
-       SELECT (e->>'r')::uuid, $1, $2, e->>'s', (e->>'rs')::numeric, (e->>'st')::numeric / 100, (e->>'p')::numeric,
-              nullif((e->'b')::jsonb, 'null'::jsonb), e->>'f'
-         FROM json_array_elements($3::json) AS e
-       ON CONFLICT (return_id, profile_version) DO NOTHING
-       RETURNING id, return_id`,
-      [
-        batchId,
-        version,
-        JSON.stringify(outcomes.map((o) => ({ r: o.returnId, s: o.status, rs: o.riskScore, st: o.stakeCents, p: o.priority, b: o.breakdown, f: o.reason }))),
-      ],
+    const scoreIdOf = await insertScores(
+      m,
+      batchId,
+      version,
+      outcomes.map((o) => ({ r: o.returnId, s: o.status, rs: o.riskScore, st: o.stakeCents, p: o.priority, b: o.breakdown, f: o.reason })),
     );
-    const scoreIdOf = new Map(inserted.map((r) => [r.return_id, r.id]));
     const fresh = outcomes.filter((o) => scoreIdOf.has(o.returnId));
     const selected = fresh.filter((o) => o.status === 'scored' && o.breakdown!.selected);
     await openCasesForScores(
@@ -479,10 +460,7 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
     );
     const scored = fresh.filter((o) => o.status === 'scored').length;
     const failed = fresh.length - scored;
-    const run = returnedRows<{ scored: number; failed: number }>(
-      await m.query(`UPDATE scoring_run SET scored = scored + $2, failed = failed + $3 WHERE id = $1 RETURNING scored, failed`, [job.runId, scored, failed]),
-    );
-    await m.query(`UPDATE filing_batch SET scored_count = $2, updated_at = now() WHERE id = $1`, [batchId, run[0].scored + run[0].failed]);
+    await addRunProgress(m, job.runId, batchId, scored, failed);
     await finishIfDone(m, job.runId);
     trace('store', t);
     return { scored, failed, skipped: false };

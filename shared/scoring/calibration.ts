@@ -7,7 +7,7 @@
  * follows −log10 p, never a raw z.
  */
 import { simulateMads } from '../digits/size-aware';
-import { binomialUpperTail, gammaQ } from '../digits/stats';
+import { gammaQ } from '../digits/stats';
 
 /**
  * Benjamini–Hochberg q-values (Benjamini & Hochberg 1995, JRSS-B 57(1), "Controlling the
@@ -180,9 +180,6 @@ export function strengthFromP(p: number | null, pStart: number, pFull: number): 
 export function shrunkRate(k: number, n: number, priorMean: number, priorStrength: number): number {
   return (k + priorMean * priorStrength) / (n + priorStrength);
 }
-
-/** Binomial upper tail P(X >= k), X ~ Binomial(n, p) (re-exported for factors). */
-export { binomialUpperTail };
 
 /** A p-value as evidence text shows it: "p = 0.003", "p = 2.1e-6". */
 export function formatP(p: number, name = 'p'): string {

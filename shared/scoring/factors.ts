@@ -6,15 +6,7 @@
  */
 import { binomialUpperTail } from '../digits';
 import { formatP, poissonBinomialUpperTail, poissonUpperTail, simes, strengthFromP } from './calibration';
-import {
-  computeTotals,
-  LINE_CODE_DEFS,
-  STATEMENT_KIND_LINE,
-  type CentsLine,
-  type LineCode,
-  type ReturnTotals,
-  type StatementKind,
-} from '../returns/line-codes';
+import { LINE_CODE_DEFS, STATEMENT_KIND_LINE, type CentsLine, type LineCode, type ReturnTotals, type StatementKind } from '../returns/line-codes';
 import { clamp01, money, pct } from './format';
 import type { ScoringSettings } from './settings';
 
@@ -673,5 +665,3 @@ export function repeatedAmounts(
     pShared,
   };
 }
-
-export { computeTotals };

@@ -46,6 +46,18 @@ export interface FactorRecord {
   run(r: PrepareResult): FactorResult & { p?: number | null };
 }
 
+/** A pooled digit test of related returns (the taxpayer's other years, or the preparer's other clients). */
+function pooledDigits(key: ComponentKey, label: string, defaultWeight: number, where: string, pool: 'history' | 'preparer'): FactorRecord {
+  return {
+    key,
+    label,
+    defaultWeight,
+    group: 'related',
+    params: ['pooledFixedThresholdMinN', 'patternPStart', 'patternPFull'],
+    run: (r) => r.poolResult(where, r.ctx[pool]),
+  };
+}
+
 /** The factors, in COMPONENTS order. */
 export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
   digits: {
@@ -56,22 +68,14 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
     params: ['patternPStart', 'patternPFull'],
     run: (r) => r.digitResult,
   },
-  historyDigits: {
-    key: 'historyDigits',
-    label: "Digit pattern of the taxpayer's other years on file",
-    defaultWeight: 10,
-    group: 'related',
-    params: ['pooledFixedThresholdMinN', 'patternPStart', 'patternPFull'],
-    run: (r) => r.poolResult("on the taxpayer's other returns on file", r.ctx.history),
-  },
-  preparerDigits: {
-    key: 'preparerDigits',
-    label: "Digit pattern of the preparer's other returns",
-    defaultWeight: 35,
-    group: 'related',
-    params: ['pooledFixedThresholdMinN', 'patternPStart', 'patternPFull'],
-    run: (r) => r.poolResult("on the preparer's other returns in the batch", r.ctx.preparer),
-  },
+  historyDigits: pooledDigits('historyDigits', "Digit pattern of the taxpayer's other years on file", 10, "on the taxpayer's other returns on file", 'history'),
+  preparerDigits: pooledDigits(
+    'preparerDigits',
+    "Digit pattern of the preparer's other returns",
+    35,
+    "on the preparer's other returns in the batch",
+    'preparer',
+  ),
   totalsMismatch: {
     key: 'totalsMismatch',
     label: 'Totals do not add up',

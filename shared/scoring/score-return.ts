@@ -95,6 +95,40 @@ export interface PrepareResult {
 
 const counter = new DigitCounter();
 
+/** What a batch's null models give every return alike, worked out once per batch (and recurrence gate). */
+interface BatchDerived {
+  minRate: number;
+  /** Which line codes carry recurring bills often enough to count a schedule once. */
+  gated: RecurrenceRates;
+  /** The batch's overall round-hundred rate: [whole-unit filers, filers with cents]. */
+  overallRound: [number, number];
+}
+const derivedOf = new WeakMap<BatchNulls, BatchDerived>();
+
+function batchDerived(batch: BatchNulls, minRate: number): BatchDerived {
+  const cached = derivedOf.get(batch);
+  if (cached && cached.minRate === minRate) return cached;
+  const gated: RecurrenceRates = Object.fromEntries(
+    Object.entries(batch.recurrence).map(([c, r]) => [
+      c,
+      r.returns > 0 && r.recurring / r.returns >= minRate ? { returns: 1, recurring: 1 } : { returns: 1, recurring: 0 },
+    ]),
+  );
+  const overall = (whole: boolean) => {
+    if (!batch.round) return FALLBACK_ROUND_RATE;
+    let n = 0;
+    let k = 0;
+    for (const r of Object.values(batch.round)) {
+      n += whole ? r[0] : r[2];
+      k += whole ? r[1] : r[3];
+    }
+    return shrunkRate(k, n, FALLBACK_ROUND_RATE, 100);
+  };
+  const d: BatchDerived = { minRate, gated, overallRound: [overall(true), overall(false)] };
+  derivedOf.set(batch, d);
+  return d;
+}
+
 function poolSnapshot(p: (PooledDigits & { firstDigitCounts?: number[] }) | null): PoolSnapshot | null {
   if (!p) return null;
   return {
@@ -136,17 +170,8 @@ export function prepareReturn(facts: ReturnFacts, ctx: ScoreContext): PrepareRes
   const p = ctx.settings.params;
   const totals = computeTotals(facts.lines);
   const itemised = facts.lines.filter((l) => !l.code.startsWith('tot.') && l.code !== 'tax.refund' && l.cents !== 0);
-  const rates = ctx.batch ? ctx.batch.recurrence : null;
-  const minRate = p.recurrenceMinRate;
-  const gated: RecurrenceRates | null = rates
-    ? Object.fromEntries(
-        Object.entries(rates).map(([c, r]) => [
-          c,
-          r.returns > 0 && r.recurring / r.returns >= minRate ? { returns: 1, recurring: 1 } : { returns: 1, recurring: 0 },
-        ]),
-      )
-    : null;
-  const collapsed = collapseRecurring(itemised, gated);
+  const derived = ctx.batch ? batchDerived(ctx.batch, p.recurrenceMinRate) : null;
+  const collapsed = collapseRecurring(itemised, derived ? derived.gated : null);
   const wholeUnit = isWholeUnitFiler(itemised);
   const labelOf = (code: LineCode) => LINE_CODE_DEFS[code].label;
   const recurringText = collapsed.recurring.length ? ` (${describeRecurring(collapsed.recurring, labelOf)}: counted once, as a recurring bill)` : '';
@@ -186,16 +211,7 @@ export function prepareReturn(facts: ReturnFacts, ctx: ScoreContext): PrepareRes
     own.set(l.code, o);
   }
   const roundTable = ctx.batch?.round ?? null;
-  let overall = FALLBACK_ROUND_RATE;
-  if (roundTable) {
-    let n = 0;
-    let k = 0;
-    for (const r of Object.values(roundTable)) {
-      n += wholeUnit ? r[0] : r[2];
-      k += wholeUnit ? r[1] : r[3];
-    }
-    overall = shrunkRate(k, n, FALLBACK_ROUND_RATE, 100);
-  }
+  const overall = derived ? derived.overallRound[wholeUnit ? 0 : 1] : FALLBACK_ROUND_RATE;
   const rateOf = (code: LineCode) => {
     const r = roundTable?.[code];
     if (!r) return overall;

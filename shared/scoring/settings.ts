@@ -61,7 +61,11 @@ export const ScoringSettingsSchema = z.object({
     lossYears: z.number().int().min(1),
     lossWindowYears: z.number().int().min(2),
     cashHeavyActivities: z.array(z.enum(ACTIVITY_CODES)),
-    /** Binomial tail probability below which round amounts are in excess. */
+    /**
+     * Version 1's binomial tail for excess round amounts. Read by nothing from version 2 on
+     * (round amounts are judged by p-value, patternPStart/patternPFull); kept so stored
+     * version-1 settings still parse.
+     */
     roundTailP: z.number().positive().max(0.2),
     /** The office's thresholds; amounts in [band × T, T) are "just under". */
     thresholdsCents: z.array(cents).min(1),

@@ -8,7 +8,7 @@ import ExcelJS from 'exceljs';
 import { BatchCreatedSchema, BatchDetailSchema, BatchListSchema } from '../../shared/returns/batch-rows';
 import { computeTotals, type LineCode } from '../../shared/returns/line-codes';
 import { centsFromDecimal, centsFromNumeric } from '../../shared/returns/money';
-import { signIn, type SignedIn } from '../helpers/auth';
+import { signedInContext, signIn, type SignedIn } from '../helpers/auth';
 import { uploadHash } from '../../server/batches/intake/sources';
 import { countIntakeRows, csv, csvBatch, LINES_HEADER, refusedUpload, RETURNS_HEADER, upload, xlsxBatch } from '../helpers/batches';
 import { createTestContext, type TestContext } from '../helpers/test-app';
@@ -16,21 +16,12 @@ import { createTestContext, type TestContext } from '../helpers/test-app';
 jest.setTimeout(60_000);
 
 describe('batches API: accepted batches', () => {
-  let ctx: TestContext;
-  let clerk: SignedIn;
-
-  beforeAll(async () => {
-    ctx = await createTestContext();
-    clerk = await signIn(ctx, 'clerk');
-  });
-  afterAll(async () => {
-    await ctx.close();
-  });
+  const env = signedInContext('clerk');
 
   it('stores a good CSV batch whole, with totals, and queues it for scoring', async () => {
     const b = await csvBatch({ seed: 'api-csv', returns: 40 });
-    const before = await countIntakeRows(ctx.dataSource);
-    const res = await upload(clerk, { returns: b.files.returns!, line_items: b.files.line_items!, statements: b.files.statements! });
+    const before = await countIntakeRows(env.ctx.dataSource);
+    const res = await upload(env.user, { returns: b.files.returns!, line_items: b.files.line_items!, statements: b.files.statements! });
     expect(res.status).toBe(201);
     const created = BatchCreatedSchema.parse(res.body);
     expect(created).toMatchObject({
@@ -39,7 +30,7 @@ describe('batches API: accepted batches', () => {
       amendedReturns: 0,
     });
 
-    const after = await countIntakeRows(ctx.dataSource);
+    const after = await countIntakeRows(env.ctx.dataSource);
     expect(after.returns - before.returns).toBe(40);
     expect(after.lineItems - before.lineItems).toBe(b.counts.lineItems);
     expect(after.statements - before.statements).toBe(b.counts.statements);
@@ -54,7 +45,7 @@ describe('batches API: accepted batches', () => {
       .map((l) => l.split(','));
     const ref = lines[0][0];
     const expected = computeTotals(lines.filter((l) => l[0] === ref).map((l) => ({ code: l[1] as LineCode, cents: centsFromDecimal(l[2]) })));
-    const [row] = await ctx.dataSource.query(`SELECT * FROM tax_return WHERE batch_id = $1 AND return_ref = $2`, [created.id, ref]);
+    const [row] = await env.ctx.dataSource.query(`SELECT * FROM tax_return WHERE batch_id = $1 AND return_ref = $2`, [created.id, ref]);
     expect(centsFromNumeric(row.computed_income)).toBe(expected.income);
     expect(centsFromNumeric(row.computed_tax)).toBe(expected.tax);
     expect(centsFromNumeric(row.computed_refund)).toBe(expected.refund);
@@ -63,48 +54,50 @@ describe('batches API: accepted batches', () => {
     expect(row.superseded).toBe(false);
 
     // Line numbers follow the file's order; amounts are numeric, exact to the cent.
-    const stored = await ctx.dataSource.query(`SELECT line_no, line_code, amount FROM line_item WHERE return_id = $1 ORDER BY line_no`, [row.id]);
+    const stored = await env.ctx.dataSource.query(`SELECT line_no, line_code, amount FROM line_item WHERE return_id = $1 ORDER BY line_no`, [row.id]);
     expect(stored.map((s: { line_code: string; amount: string }) => [s.line_code, s.amount])).toEqual(
       lines.filter((l) => l[0] === ref).map((l) => [l[1], l[2]]),
     );
 
-    const [batch] = await ctx.dataSource.query(`SELECT state, loaded_by, file_hash FROM filing_batch WHERE id = $1`, [created.id]);
-    expect(batch).toMatchObject({ state: 'queued', loaded_by: clerk.user.id });
+    const [batch] = await env.ctx.dataSource.query(`SELECT state, loaded_by, file_hash FROM filing_batch WHERE id = $1`, [created.id]);
+    expect(batch).toMatchObject({ state: 'queued', loaded_by: env.user.user.id });
     expect(batch.file_hash).toMatch(/^[0-9a-f]{64}$/);
 
-    const jobs = await ctx.dataSource.query(`SELECT data FROM pgboss.job WHERE name = 'score-batch'`);
+    const jobs = await env.ctx.dataSource.query(`SELECT data FROM pgboss.job WHERE name = 'score-batch'`);
     expect(jobs.map((j: { data: { batchId: string } }) => j.data.batchId)).toContain(created.id);
 
-    const log = await ctx.dataSource.query(`SELECT action, record_id FROM access_log WHERE user_id = $1 AND route = 'POST /api/batches'`, [clerk.user.id]);
+    const log = await env.ctx.dataSource.query(`SELECT action, record_id FROM access_log WHERE user_id = $1 AND route = 'POST /api/batches'`, [
+      env.user.user.id,
+    ]);
     expect(log).toContainEqual({ action: 'change', record_id: created.id });
   });
 
   it('stores a good XLSX workbook (amounts as numbers, TINs as text) the same way', async () => {
     const b = await xlsxBatch({ seed: 'api-xlsx', returns: 24 });
-    const before = await countIntakeRows(ctx.dataSource);
-    const res = await upload(clerk, { file: b.file });
+    const before = await countIntakeRows(env.ctx.dataSource);
+    const res = await upload(env.user, { file: b.file });
     expect(res.status).toBe(201);
     expect(res.body.counts).toEqual({ returns: 24, lineItems: b.counts.lineItems, statements: b.counts.statements });
-    const after = await countIntakeRows(ctx.dataSource);
+    const after = await countIntakeRows(env.ctx.dataSource);
     expect(after.lineItems - before.lineItems).toBe(b.counts.lineItems);
-    const detail = BatchDetailSchema.parse((await clerk.agent.get(`/api/batches/${res.body.id}`)).body);
+    const detail = BatchDetailSchema.parse((await env.user.agent.get(`/api/batches/${res.body.id}`)).body);
     expect(detail).toMatchObject({ format: 'xlsx', fileNames: ['aldermere-batch.xlsx'], state: 'queued', errors: [], progress: { scored: 0, total: 24 } });
-    expect(detail.loadedBy).toEqual({ id: clerk.user.id, displayName: 'Test clerk' });
+    expect(detail.loadedBy).toEqual({ id: env.user.user.id, displayName: 'Test clerk' });
   });
 
   it('answers the same file again with 409 and the earlier batch id, storing nothing twice', async () => {
     const b = await csvBatch({ seed: 'api-dup', returns: 12 });
     const parts = { returns: b.files.returns!, line_items: b.files.line_items! };
-    const first = await upload(clerk, parts);
+    const first = await upload(env.user, parts);
     expect(first.status).toBe(201);
-    const before = await countIntakeRows(ctx.dataSource);
-    const again = await upload(clerk, parts);
+    const before = await countIntakeRows(env.ctx.dataSource);
+    const again = await upload(env.user, parts);
     expect(again.status).toBe(409);
     expect(again.body).toEqual({ batchId: first.body.id, error: expect.stringMatching(/already uploaded .* accepted; it is not stored twice/) });
-    expect(await countIntakeRows(ctx.dataSource)).toEqual(before);
+    expect(await countIntakeRows(env.ctx.dataSource)).toEqual(before);
 
     // Renamed files are still the same file.
-    const renamed = await upload(clerk, {
+    const renamed = await upload(env.user, {
       returns: { name: 'week-48-returns.csv', content: fs.readFileSync(b.files.returns!) },
       line_items: { name: 'week-48-lines.csv', content: fs.readFileSync(b.files.line_items!) },
     });
@@ -121,43 +114,43 @@ describe('batches API: accepted batches', () => {
         line_items: { originalName: 'line_items.csv', path: b.files.line_items!, size: 0 },
       },
     });
-    const [{ id }] = await ctx.dataSource.query(
+    const [{ id }] = await env.ctx.dataSource.query(
       `INSERT INTO filing_batch (file_hash, format, file_names, state, updated_at) VALUES ($1, 'csv', '{returns.csv}', 'validating', now()) RETURNING id`,
       [hash],
     );
-    const busy = await upload(clerk, { returns: b.files.returns!, line_items: b.files.line_items! });
+    const busy = await upload(env.user, { returns: b.files.returns!, line_items: b.files.line_items! });
     expect(busy.status).toBe(409);
     expect(busy.body).toEqual({ batchId: id, error: expect.stringMatching(/being checked right now/) });
 
-    await ctx.dataSource.query(`UPDATE filing_batch SET updated_at = now() - interval '2 hours' WHERE id = $1`, [id]);
-    const retried = await upload(clerk, { returns: b.files.returns!, line_items: b.files.line_items! });
+    await env.ctx.dataSource.query(`UPDATE filing_batch SET updated_at = now() - interval '2 hours' WHERE id = $1`, [id]);
+    const retried = await upload(env.user, { returns: b.files.returns!, line_items: b.files.line_items! });
     expect(retried.status).toBe(201);
     expect(retried.body.id).toBe(id);
-    expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM tax_return WHERE batch_id = $1`, [id]))[0].n).toBe(8);
+    expect((await env.ctx.dataSource.query(`SELECT count(*)::int AS n FROM tax_return WHERE batch_id = $1`, [id]))[0].n).toBe(8);
   });
 
   it('stores a return for a TIN and year already on file as an amended return, with a notice', async () => {
-    const first = await upload(clerk, {
+    const first = await upload(env.user, {
       returns: { name: 'returns.csv', content: csv([RETURNS_HEADER, 'AM-1,000000042,2024,Wren Corrow,none,,,']) },
       line_items: { name: 'line_items.csv', content: csv([LINES_HEADER, 'AM-1,inc.wages,30000.00', 'AM-1,tot.income,30000.00']) },
     });
     expect(first.status).toBe(201);
-    const second = await upload(clerk, {
+    const second = await upload(env.user, {
       returns: { name: 'returns.csv', content: csv([RETURNS_HEADER, 'AM-1-R,000000042,2024,Wren Corrow,none,,wren@example.net,']) },
       line_items: { name: 'line_items.csv', content: csv([LINES_HEADER, 'AM-1-R,inc.wages,31000.00', 'AM-1-R,tot.income,31000.00']) },
     });
     expect(second.status).toBe(201);
     expect(second.body.amendedReturns).toBe(1);
-    const rows = await ctx.dataSource.query(
+    const rows = await env.ctx.dataSource.query(
       `SELECT r.return_ref, r.superseded, r.amends_return_id, r.id FROM tax_return r JOIN taxpayer t ON t.id = r.taxpayer_id WHERE t.tin = '000000042' ORDER BY r.return_ref`,
     );
     expect(rows).toEqual([
       expect.objectContaining({ return_ref: 'AM-1', superseded: true, amends_return_id: null }),
       expect.objectContaining({ return_ref: 'AM-1-R', superseded: false, amends_return_id: rows[0].id }),
     ]);
-    const [tp] = await ctx.dataSource.query(`SELECT email FROM taxpayer WHERE tin = '000000042'`);
+    const [tp] = await env.ctx.dataSource.query(`SELECT email FROM taxpayer WHERE tin = '000000042'`);
     expect(tp.email).toBe('wren@example.net');
-    const detail = BatchDetailSchema.parse((await clerk.agent.get(`/api/batches/${second.body.id}`)).body);
+    const detail = BatchDetailSchema.parse((await env.user.agent.get(`/api/batches/${second.body.id}`)).body);
     expect(detail.amendedReturns).toBe(1);
     expect(detail.notices).toEqual([
       expect.objectContaining({
@@ -170,19 +163,19 @@ describe('batches API: accepted batches', () => {
   });
 
   it('lists batches newest first with state, counts and who loaded them', async () => {
-    const res = await clerk.agent.get('/api/batches?page=1&pageSize=2');
+    const res = await env.user.agent.get('/api/batches?page=1&pageSize=2');
     expect(res.status).toBe(200);
     const list = BatchListSchema.parse(res.body);
     expect(list.total).toBeGreaterThanOrEqual(4);
     expect(list.items).toHaveLength(2);
     expect(list.items[0].createdAt >= list.items[1].createdAt).toBe(true);
-    expect(list.items[0].loadedBy?.id).toBe(clerk.user.id);
-    expect((await clerk.agent.get('/api/batches?pageSize=500')).status).toBe(422);
+    expect(list.items[0].loadedBy?.id).toBe(env.user.user.id);
+    expect((await env.user.agent.get('/api/batches?pageSize=500')).status).toBe(422);
   });
 
   it('answers an unknown batch with 404', async () => {
-    expect((await clerk.agent.get('/api/batches/00000000-0000-7000-8000-000000000000')).status).toBe(404);
-    expect((await clerk.agent.get('/api/batches/not-a-uuid')).status).toBe(404);
+    expect((await env.user.agent.get('/api/batches/00000000-0000-7000-8000-000000000000')).status).toBe(404);
+    expect((await env.user.agent.get('/api/batches/not-a-uuid')).status).toBe(404);
   });
 });
 

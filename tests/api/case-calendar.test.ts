@@ -9,7 +9,8 @@ import { CaseDetailSchema, CaseListSchema, WorkloadSchema } from '../../shared/c
 import { addDays } from '../../shared/letters';
 import { addYears, daysUntil } from '../../shared/returns/assessment-deadline';
 import { advanceClockDays, resetClock, today } from '../../server/clock';
-import { fillMissingDeadlines, refreshDeadlines } from '../../server/cases/case-deadline.service';
+import { refreshDeadlines } from '../../server/cases/case-deadline.repository';
+import { fillMissingDeadlines } from '../../server/cases/case-deadline.service';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { csv, LINES_HEADER, RETURNS_HEADER, upload } from '../helpers/batches';
 import { caseInState, openCaseIds } from '../helpers/cases';

@@ -4,44 +4,35 @@
  * (before the fix it met 409 "being checked right now" for 30 minutes).
  */
 import { recoverInterruptedIntake } from '../../server/batches/batch.service';
-import { signIn, type SignedIn } from '../helpers/auth';
+import { signedInContext } from '../helpers/auth';
 import { countIntakeRows, csvBatch, upload } from '../helpers/batches';
 import { startServer } from '../helpers/processes';
-import { createTestContext, type TestContext } from '../helpers/test-app';
 
 jest.setTimeout(120_000);
 
 describe('recovery of a batch interrupted mid-intake', () => {
-  let ctx: TestContext;
-  let clerk: SignedIn;
-  beforeAll(async () => {
-    ctx = await createTestContext();
-    clerk = await signIn(ctx, 'clerk');
-  });
-  afterAll(async () => {
-    await ctx.close();
-  });
+  const env = signedInContext('clerk');
 
   /** Puts a stored batch back to `validating`, as a server killed in the middle of it would leave one. */
   async function interrupt(id: string) {
-    await ctx.dataSource.query(`UPDATE filing_batch SET state = 'validating' WHERE id = $1`, [id]);
+    await env.ctx.dataSource.query(`UPDATE filing_batch SET state = 'validating' WHERE id = $1`, [id]);
   }
 
   it('marks it rejected with the reason, removes its rows, and takes the same file again at once', async () => {
     const b = await csvBatch({ seed: 'recover-1', returns: 6 });
     const parts = { returns: b.files.returns!, line_items: b.files.line_items!, statements: b.files.statements };
-    const before = await countIntakeRows(ctx.dataSource);
-    const first = await upload(clerk, parts);
+    const before = await countIntakeRows(env.ctx.dataSource);
+    const first = await upload(env.user, parts);
     expect(first.status).toBe(201);
     await interrupt(first.body.id);
 
     // The fault the probe found: the same file is refused while the record says "validating".
-    const refused = await upload(clerk, parts);
+    const refused = await upload(env.user, parts);
     expect(refused.status).toBe(409);
 
-    const recovered = await recoverInterruptedIntake(ctx.dataSource, new Date('2026-03-02T09:30:00Z'));
+    const recovered = await recoverInterruptedIntake(env.ctx.dataSource, new Date('2026-03-02T09:30:00Z'));
     expect(recovered).toEqual([{ id: first.body.id, fileNames: expect.any(Array) }]);
-    const [row] = await ctx.dataSource.query(
+    const [row] = await env.ctx.dataSource.query(
       `SELECT state, error_count AS "errorCount", errors, return_count AS "returnCount" FROM filing_batch WHERE id = $1`,
       [first.body.id],
     );
@@ -52,7 +43,7 @@ describe('recovery of a batch interrupted mid-intake', () => {
       errors: [{ file: '', row: null, column: null, message: expect.stringContaining('The server stopped while this batch was being checked') }],
     });
     expect(row.errors[0].message).toMatch(/2026-03-02 09:30 UTC\)\. Nothing of it was stored\. Upload the same file again\./);
-    const rows = await countIntakeRows(ctx.dataSource);
+    const rows = await countIntakeRows(env.ctx.dataSource);
     // Taxpayers and preparers are shared records, not the batch's rows.
     expect({ returns: rows.returns, lineItems: rows.lineItems, statements: rows.statements }).toEqual({
       returns: before.returns,
@@ -60,31 +51,31 @@ describe('recovery of a batch interrupted mid-intake', () => {
       statements: before.statements,
     });
     // The report says why, through the API as well.
-    const detail = await clerk.agent.get(`/api/batches/${first.body.id}`);
+    const detail = await env.user.agent.get(`/api/batches/${first.body.id}`);
     expect(detail.body.state).toBe('rejected');
 
-    const again = await upload(clerk, parts);
+    const again = await upload(env.user, parts);
     expect(again.status).toBe(201);
     expect(again.body.id).not.toBe(first.body.id);
-    expect((await countIntakeRows(ctx.dataSource)).returns).toBe(6);
+    expect((await countIntakeRows(env.ctx.dataSource)).returns).toBe(6);
     // Nothing else is touched: a second recovery finds nothing.
-    expect(await recoverInterruptedIntake(ctx.dataSource)).toEqual([]);
+    expect(await recoverInterruptedIntake(env.ctx.dataSource)).toEqual([]);
   });
 
   it('runs when the server process starts', async () => {
     const b = await csvBatch({ seed: 'recover-2', returns: 3 });
     const parts = { returns: b.files.returns!, line_items: b.files.line_items! };
-    const first = await upload(clerk, parts);
+    const first = await upload(env.user, parts);
     expect(first.status).toBe(201);
     await interrupt(first.body.id);
-    const server = await startServer(ctx.db.url);
+    const server = await startServer(env.ctx.db.url);
     try {
       expect(server.output()).toContain(`[server] batch ${first.body.id} (2 files) was left unfinished by a stop`);
-      const [row] = await ctx.dataSource.query(`SELECT state FROM filing_batch WHERE id = $1`, [first.body.id]);
+      const [row] = await env.ctx.dataSource.query(`SELECT state FROM filing_batch WHERE id = $1`, [first.body.id]);
       expect(row.state).toBe('rejected');
     } finally {
       await server.stop();
     }
-    expect((await upload(clerk, parts)).status).toBe(201);
+    expect((await upload(env.user, parts)).status).toBe(201);
   });
 });

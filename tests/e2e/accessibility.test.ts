@@ -12,7 +12,17 @@
 import type { Browser, Page } from 'playwright-core';
 import { createDataSource } from '../../server/db/data-source';
 import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
-import { expectNoSeriousAxeViolations, launchBrowser, signInThroughUi, tabTo, VIEWPORTS, waitForCount, waitForText, WAIT_MS } from '../helpers/browser';
+import {
+  expectNoSeriousAxeViolations,
+  launchBrowser,
+  signInThroughUi,
+  tabTo,
+  VIEWPORTS,
+  waitForAttribute,
+  waitForCount,
+  waitForText,
+  WAIT_MS,
+} from '../helpers/browser';
 import { uniqueAddress } from '../helpers/letter-cases';
 import { waitForMail } from '../helpers/maildev';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
@@ -206,7 +216,7 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       await waitForText(page.getByTestId('sign-in-error'), 'The user name or password is wrong.', { exact: true });
       // Back to the password with Shift+Tab, put the right one, and submit with Enter from the field.
       await page.keyboard.press('Shift+Tab');
-      expect(await page.evaluate(() => document.activeElement?.getAttribute('data-testid'))).toBe('sign-in-password');
+      await waitForAttribute(page.locator(':focus'), 'data-testid', 'sign-in-password');
       await page.keyboard.press('ControlOrMeta+A');
       await page.keyboard.type(DEMO_PASSWORD);
       await page.keyboard.press('Enter');

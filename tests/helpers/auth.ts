@@ -7,7 +7,7 @@ import { randomBytes } from 'node:crypto';
 import request from 'supertest';
 import type { Role } from '../../shared/roles';
 import { User } from '../../server/users/user.entity';
-import type { TestContext } from './test-app';
+import { createTestContext, type TestContext } from './test-app';
 
 /** A signed-in test client. */
 export interface SignedIn {
@@ -35,4 +35,21 @@ export async function signIn(ctx: TestContext, role: Role, username?: string): P
   const res = await agent.post('/api/auth/login').send({ username: user.username, password });
   if (res.status !== 200) throw new Error(`test sign-in failed: ${res.status} ${JSON.stringify(res.body)}`);
   return { agent, csrf: res.body.csrfToken, user: { id: user.id, username: user.username, role }, password };
+}
+
+/**
+ * A test context and one signed-in user of `role` for the enclosing describe block: made
+ * before its tests and closed after them. Read `.ctx` and `.user` inside the tests.
+ * @param overrides configuration for {@link createTestContext}
+ */
+export function signedInContext(role: Role, overrides: Record<string, string> = {}): { readonly ctx: TestContext; readonly user: SignedIn } {
+  const s = {} as { ctx: TestContext; user: SignedIn };
+  beforeAll(async () => {
+    s.ctx = await createTestContext(overrides);
+    s.user = await signIn(s.ctx, role);
+  });
+  afterAll(async () => {
+    await s.ctx?.close();
+  });
+  return s;
 }

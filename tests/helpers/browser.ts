@@ -108,6 +108,11 @@ function matchesText(actual: string, expected: string | RegExp, exact: boolean):
   return exact ? actual === expected : actual.includes(expected);
 }
 
+/** One read of the locator's text for the polls below (a short wait per read; the poll retries). */
+function readText(locator: Locator, timeout: number): () => Promise<string> {
+  return async () => (await locator.textContent({ timeout: Math.min(timeout, 2_000) })) ?? '';
+}
+
 /**
  * Waits until the locator's text content matches: a RegExp is tested, a string must be
  * contained (or equal, with `exact`). Returns the text that matched.
@@ -115,23 +120,13 @@ function matchesText(actual: string, expected: string | RegExp, exact: boolean):
 export async function waitForText(locator: Locator, expected: string | RegExp, opts: WaitOptions & { exact?: boolean } = {}): Promise<string> {
   const timeout = opts.timeout ?? WAIT_MS;
   const how = expected instanceof RegExp ? `match ${expected}` : opts.exact ? `be ${JSON.stringify(expected)}` : `contain ${JSON.stringify(expected)}`;
-  return waitUntil(
-    async () => (await locator.textContent({ timeout: Math.min(timeout, 2_000) })) ?? '',
-    (t) => matchesText(t, expected, !!opts.exact),
-    `the text of ${locator} to ${how}`,
-    timeout,
-  );
+  return waitUntil(readText(locator, timeout), (t) => matchesText(t, expected, !!opts.exact), `the text of ${locator} to ${how}`, timeout);
 }
 
 /** Waits until the locator's text no longer contains `text` (e.g. a "Loading…" line has gone). */
 export async function waitForNoText(locator: Locator, text: string, opts: WaitOptions = {}): Promise<string> {
   const timeout = opts.timeout ?? WAIT_MS;
-  return waitUntil(
-    async () => (await locator.textContent({ timeout: Math.min(timeout, 2_000) })) ?? '',
-    (t) => !t.includes(text),
-    `the text of ${locator} to lose ${JSON.stringify(text)}`,
-    timeout,
-  );
+  return waitUntil(readText(locator, timeout), (t) => !t.includes(text), `the text of ${locator} to lose ${JSON.stringify(text)}`, timeout);
 }
 
 /** Waits until the locator matches exactly `n` elements (0 waits for them to go). */

@@ -5,6 +5,11 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import net from 'node:net';
 import path from 'node:path';
+import type PgBoss from 'pg-boss';
+import type { DataSource } from 'typeorm';
+import { createDataSource } from '../../server/db/data-source';
+import { createBoss, ensureQueues } from '../../server/queue/queues';
+import { createTestDatabase, type TestDatabase } from './test-db';
 
 const root = path.join(__dirname, '..', '..');
 
@@ -85,4 +90,47 @@ export async function startServer(databaseUrl: string): Promise<RunningProcess &
   const port = await freePort();
   const p = await startTsx('server/main.ts', processEnv(databaseUrl, port), /listening on/);
   return { ...p, baseUrl: `http://127.0.0.1:${port}` };
+}
+
+/**
+ * Polls `fn` until it gives a truthy value and returns it; throws naming `what` after
+ * `timeoutMs`. An error thrown by `fn` ends the wait (catch it in `fn` to keep polling).
+ */
+export async function waitFor<T>(what: string, fn: () => Promise<T | null | undefined | false>, timeoutMs = 120_000, everyMs = 100): Promise<T> {
+  const until = Date.now() + timeoutMs;
+  for (;;) {
+    const v = await fn();
+    if (v) return v;
+    if (Date.now() > until) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, everyMs));
+  }
+}
+
+/** A fresh test database with a connection and a started pg-boss client (queues made), for tests that run real workers. */
+export interface QueueDatabase {
+  db: TestDatabase;
+  ds: DataSource;
+  boss: PgBoss;
+  /** Stops the client, closes the connection and drops the database. */
+  close(): Promise<void>;
+}
+
+/** Opens a {@link QueueDatabase}. */
+export async function openQueueDatabase(): Promise<QueueDatabase> {
+  const db = await createTestDatabase();
+  const ds = createDataSource(db.url, { poolSize: 3 });
+  await ds.initialize();
+  const boss = createBoss(db.url, 'server');
+  await boss.start();
+  await ensureQueues(boss);
+  return {
+    db,
+    ds,
+    boss,
+    async close() {
+      await boss.stop({ graceful: false, wait: true });
+      await ds.destroy();
+      await db.drop();
+    },
+  };
 }

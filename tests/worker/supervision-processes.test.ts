@@ -8,26 +8,14 @@ import type PgBoss from 'pg-boss';
 import type { DataSource } from 'typeorm';
 import { startProcess, tsxArgs } from '../../scripts/lib/processes';
 import { supervise, type Supervised } from '../../scripts/lib/supervisor';
-import { createDataSource } from '../../server/db/data-source';
-import { createBoss, ensureQueues, QUEUES } from '../../server/queue/queues';
-import { freePort, processEnv } from '../helpers/processes';
+import { QUEUES } from '../../server/queue/queues';
+import { freePort, openQueueDatabase, processEnv, waitFor, type QueueDatabase } from '../helpers/processes';
 import { loadGeneratedBatch } from '../helpers/scored-batch';
-import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 
 jest.setTimeout(300_000);
 
-async function waitFor<T>(what: string, fn: () => Promise<T | null | undefined | false>, timeoutMs = 120_000, everyMs = 100): Promise<T> {
-  const until = Date.now() + timeoutMs;
-  for (;;) {
-    const v = await fn().catch(() => null);
-    if (v) return v;
-    if (Date.now() > until) throw new Error(`timed out waiting for ${what}`);
-    await new Promise((r) => setTimeout(r, everyMs));
-  }
-}
-
 describe('npm start supervision with the real processes', () => {
-  let db: TestDatabase;
+  let q: QueueDatabase;
   let ds: DataSource;
   let boss: PgBoss;
   const supervised: Supervised[] = [];
@@ -35,26 +23,25 @@ describe('npm start supervision with the real processes', () => {
   let port: number;
 
   beforeAll(async () => {
-    db = await createTestDatabase();
-    ds = createDataSource(db.url, { poolSize: 3 });
-    await ds.initialize();
-    boss = createBoss(db.url, 'server');
-    await boss.start();
-    await ensureQueues(boss);
+    q = await openQueueDatabase();
+    ({ ds, boss } = q);
     port = await freePort();
-    const env = { ...process.env, ...processEnv(db.url, port), QUEUE_MAINTENANCE_SECONDS: '1', SCORING_CHUNK_SIZE: '100' };
+    const env = { ...process.env, ...processEnv(q.db.url, port), QUEUE_MAINTENANCE_SECONDS: '1', SCORING_CHUNK_SIZE: '100' };
     const log = (l: string) => restartLines.push(l);
     supervised.push(supervise('server', () => startProcess('server', ...tsxArgs('server/main.ts'), { env, quiet: true }), log));
     supervised.push(supervise('worker', () => startProcess('worker', ...tsxArgs('worker/main.ts'), { env, quiet: true }), log));
   });
   afterAll(async () => {
     for (const s of supervised) await s.stop();
-    await boss.stop({ graceful: false, wait: true });
-    await ds.destroy();
-    await db.drop();
+    await q.close();
   });
 
-  const health = async () => (await fetch(`http://127.0.0.1:${port}/api/health`)).status === 200;
+  // A refused connection while the server restarts is "not yet".
+  const health = () =>
+    fetch(`http://127.0.0.1:${port}/api/health`).then(
+      (r) => r.status === 200,
+      () => false,
+    );
 
   it('kill -9 of the server: health answers again (within 30 s on an unloaded machine), without a restart by hand', async () => {
     await waitFor('first health', health);

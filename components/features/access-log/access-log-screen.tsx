@@ -6,6 +6,7 @@ import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { Field } from '../../ui/field';
 import { useIsWide } from '../../ui/layout';
+import { TableHeader } from '../../ui/table-header-row';
 import { Txt } from '../../ui/text';
 import { useAccessLog } from './use-access-log';
 
@@ -24,61 +25,53 @@ function when(iso: string) {
   return `${d.toISOString().slice(0, 10)} ${d.toTimeString().slice(0, 8)}`;
 }
 
+/** The wide table's columns: heading and width (0: the rest of the row), in cell order. */
+const COLS = [
+  ['When', 150],
+  ['Who', 130],
+  ['What', 130],
+  ['Taxpayer', 120],
+  ['Where', 0],
+] as const;
+
 function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
-  const cells = [
-    {
-      w: 150,
-      node: (
-        <Txt variant="small" figures>
-          {when(e.at)}
-        </Txt>
-      ),
-    },
-    {
-      w: 130,
-      node: (
-        <Txt variant="small" bold>
-          {e.username ?? '(not signed in)'}
-        </Txt>
-      ),
-    },
-    {
-      w: 130,
-      node: (
-        <Txt variant="small" tone={e.action === 'sign-in-refused' ? 'alert' : 'ink'}>
-          {ACTION_WORDS[e.action]}
-        </Txt>
-      ),
-    },
-    {
-      w: 120,
-      node: (
-        <Txt variant="small" figures>
-          {e.taxpayerLabel ?? '—'}
-        </Txt>
-      ),
-    },
-    {
-      w: 0,
-      node: (
-        <Txt variant="small" tone="soft">
-          {[e.route, e.detail].filter(Boolean).join(' · ')}
-        </Txt>
-      ),
-    },
-  ];
+  const at = (
+    <Txt variant="small" figures>
+      {when(e.at)}
+    </Txt>
+  );
+  const who = (
+    <Txt variant="small" bold>
+      {e.username ?? '(not signed in)'}
+    </Txt>
+  );
+  const what = (
+    <Txt variant="small" tone={e.action === 'sign-in-refused' ? 'alert' : 'ink'}>
+      {ACTION_WORDS[e.action]}
+    </Txt>
+  );
+  const taxpayer = (
+    <Txt variant="small" figures>
+      {e.taxpayerLabel ?? '—'}
+    </Txt>
+  );
+  const where = (
+    <Txt variant="small" tone="soft">
+      {[e.route, e.detail].filter(Boolean).join(' · ')}
+    </Txt>
+  );
   if (!wide) {
     return (
       <Card style={{ gap: 2, padding: space.md }}>
         <View style={{ flexDirection: 'row', justifyContent: 'space-between' }}>
-          {cells[1].node}
-          {cells[0].node}
+          {who}
+          {at}
         </View>
         <View style={{ flexDirection: 'row', gap: space.sm }}>
-          {cells[2].node}
-          {cells[3].node}
+          {what}
+          {taxpayer}
         </View>
-        {cells[4].node}
+        {where}
       </Card>
     );
   }
@@ -93,9 +86,9 @@ function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
         borderBottomColor: colours.line,
       }}
     >
-      {cells.map((c, i) => (
-        <View key={i} style={c.w ? { width: c.w } : { flex: 1 }}>
-          {c.node}
+      {[at, who, what, taxpayer, where].map((c, i) => (
+        <View key={i} style={COLS[i][1] ? { width: COLS[i][1] } : { flex: 1 }}>
+          {c}
         </View>
       ))}
     </View>
@@ -162,26 +155,7 @@ export function AccessLogScreen() {
               borderRadius: 8,
             }}
           >
-            {wide && (
-              <View
-                style={{
-                  flexDirection: 'row',
-                  gap: space.md,
-                  paddingVertical: space.sm,
-                  paddingHorizontal: space.md,
-                  borderBottomWidth: 1.5,
-                  borderBottomColor: colours.ink,
-                }}
-              >
-                {(['When', 'Who', 'What', 'Taxpayer', 'Where'] as const).map((h, i) => (
-                  <View key={h} style={[150, 130, 130, 120, 0][i] ? { width: [150, 130, 130, 120][i] } : { flex: 1 }}>
-                    <Txt variant="caption" bold tone="soft">
-                      {h.toUpperCase()}
-                    </Txt>
-                  </View>
-                ))}
-              </View>
-            )}
+            {wide && <TableHeader columns={COLS} />}
             {log.data.items.map((e) => (
               <Row key={e.id} e={e} wide={wide} />
             ))}

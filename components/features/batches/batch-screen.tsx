@@ -8,6 +8,7 @@ import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { ChoiceRow } from '../../ui/choice-row';
 import { Field } from '../../ui/field';
+import { HeaderLabel, TableHeader } from '../../ui/table-header-row';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
 import { num, ScoringProgress, StateChip, when } from './batch-parts';
@@ -22,9 +23,7 @@ function download(url: string) {
 function Fact({ label, value, testID }: { label: string; value: string; testID?: string }) {
   return (
     <View style={{ minWidth: 120, gap: 2 }}>
-      <Txt variant="caption" bold tone="soft">
-        {label.toUpperCase()}
-      </Txt>
+      <HeaderLabel>{label}</HeaderLabel>
       <Txt variant="lead" figures bold testID={testID}>
         {value}
       </Txt>
@@ -62,24 +61,7 @@ function IssueTable({ issues, wide, testID }: { issues: BatchIssue[]; wide: bool
   }
   return (
     <View style={{ backgroundColor: colours.surface, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID={testID}>
-      <View
-        style={{
-          flexDirection: 'row',
-          gap: space.md,
-          paddingVertical: space.sm,
-          paddingHorizontal: space.md,
-          borderBottomWidth: 1.5,
-          borderBottomColor: colours.ink,
-        }}
-      >
-        {COLS.map(([h, w]) => (
-          <View key={h} style={w ? { width: w } : { flex: 1 }}>
-            <Txt variant="caption" bold tone="soft">
-              {h.toUpperCase()}
-            </Txt>
-          </View>
-        ))}
-      </View>
+      <TableHeader columns={COLS} />
       {issues.map((e, i) => (
         <View
           key={i}

@@ -9,6 +9,7 @@ import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { useIsWide } from '../../ui/layout';
 import { ProgressBar } from '../../ui/progress-bar';
+import { TableHeader } from '../../ui/table-header-row';
 import { Txt } from '../../ui/text';
 import { num, ScoringProgress, StateChip, when } from './batch-parts';
 import { FilePicker } from './file-picker';
@@ -227,31 +228,14 @@ export function BatchesScreen() {
           style={wide ? { backgroundColor: colours.surface, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md } : { gap: space.sm }}
         >
           {wide && (
-            <View
-              style={{
-                flexDirection: 'row',
-                gap: space.md,
-                paddingVertical: space.sm,
-                paddingHorizontal: space.md,
-                borderBottomWidth: 1.5,
-                borderBottomColor: colours.ink,
-              }}
-            >
-              {(
-                [
-                  ['State', 160],
-                  ['Files · uploaded by', 0],
-                  ['Contents', 200],
-                  ['Scoring', 180],
-                ] as const
-              ).map(([h, w]) => (
-                <View key={h} style={w ? { width: w } : { flex: 1 }}>
-                  <Txt variant="caption" bold tone="soft">
-                    {h.toUpperCase()}
-                  </Txt>
-                </View>
-              ))}
-            </View>
+            <TableHeader
+              columns={[
+                ['State', 160],
+                ['Files · uploaded by', 0],
+                ['Contents', 200],
+                ['Scoring', 180],
+              ]}
+            />
           )}
           {list.data.items.map((b) => (
             <BatchRow key={b.id} b={b} wide={wide} />

@@ -7,9 +7,9 @@ import type { CaseDetail } from '../../../shared/case-api';
 import {
   CASE_SELECTION_LABELS,
   CASE_STATE_LABELS,
+  isFinalState,
   NoteRequestSchema,
   TransitionRequestSchema,
-  type CaseState,
   type NoteRequest,
   type TransitionRequest,
 } from '../../../shared/cases';
@@ -415,7 +415,7 @@ function Actions({ d, onChanged }: { d: CaseDetail; onChanged(message: string): 
   const others = (examiners.data?.items ?? []).filter((e) => e.id !== d.assignee?.id);
   const nothing = !a.claim && !a.assign && a.transitions.length === 0;
   const error = claim.error ?? move.error ?? assign.error;
-  const finished = (['referred', 'closed_no_change', 'closed_adjusted'] as CaseState[]).includes(d.state);
+  const finished = isFinalState(d.state);
   return (
     <Section title="Actions" testID="case-actions">
       {finished && (

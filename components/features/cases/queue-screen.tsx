@@ -13,6 +13,7 @@ import { Card } from '../../ui/card';
 import { ChoiceRow } from '../../ui/choice-row';
 import { Field } from '../../ui/field';
 import { useIsWide } from '../../ui/layout';
+import { HeaderLabel, TableHeaderRow } from '../../ui/table-header-row';
 import { Txt } from '../../ui/text';
 import { age, amount, ScoreMeter, StateBadge, whole } from './case-bits';
 import { exportUrl, useCaseList, useExaminers } from './use-cases';
@@ -67,35 +68,31 @@ function Cell({ w, children, right }: { w?: number; children: React.ReactNode; r
 
 const COLS = { ref: 136, score: 100, stake: 104, priority: 96, state: 116, who: 124 };
 
-function TableHeader() {
-  const h = (t: string) => (
-    <Txt variant="caption" bold tone="soft">
-      {t.toUpperCase()}
-    </Txt>
-  );
+function QueueTableHeader() {
   return (
-    <View
-      style={{
-        flexDirection: 'row',
-        gap: space.md,
-        paddingVertical: space.sm,
-        paddingHorizontal: space.md,
-        borderBottomWidth: 1.5,
-        borderBottomColor: colours.ink,
-      }}
-    >
-      <Cell w={COLS.ref}>{h('Return')}</Cell>
-      <Cell>{h('Taxpayer')}</Cell>
-      <Cell w={COLS.score}>{h('Risk score')}</Cell>
+    <TableHeaderRow>
+      <Cell w={COLS.ref}>
+        <HeaderLabel>Return</HeaderLabel>
+      </Cell>
+      <Cell>
+        <HeaderLabel>Taxpayer</HeaderLabel>
+      </Cell>
+      <Cell w={COLS.score}>
+        <HeaderLabel>Risk score</HeaderLabel>
+      </Cell>
       <Cell w={COLS.stake} right>
-        {h('At stake')}
+        <HeaderLabel>At stake</HeaderLabel>
       </Cell>
       <Cell w={COLS.priority} right>
-        {h('Priority')}
+        <HeaderLabel>Priority</HeaderLabel>
       </Cell>
-      <Cell w={COLS.state}>{h('State')}</Cell>
-      <Cell w={COLS.who}>{h('Examiner')}</Cell>
-    </View>
+      <Cell w={COLS.state}>
+        <HeaderLabel>State</HeaderLabel>
+      </Cell>
+      <Cell w={COLS.who}>
+        <HeaderLabel>Examiner</HeaderLabel>
+      </Cell>
+    </TableHeaderRow>
   );
 }
 
@@ -402,7 +399,7 @@ export function QueueScreen() {
               }}
               testID="queue-table"
             >
-              <TableHeader />
+              <QueueTableHeader />
               {list.data.items.map((c) => (
                 <TableRow key={c.id} c={c} />
               ))}

@@ -139,34 +139,37 @@ function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentReques
         moves the case to awaiting reply.
       </Txt>
       <View style={{ gap: space.sm }}>
-        {items.map((_, i) => (
-          <View key={i} style={{ flexDirection: 'row', gap: space.sm, alignItems: 'flex-end' }}>
-            <View style={{ flex: 1 }}>
-              <FormField
-                control={form.control}
-                name={`items.${i}`}
-                testID={`request-item-${i}`}
-                label={`Record ${i + 1}`}
-                placeholder="e.g. Receipts for vehicle expenses claimed for 2024"
-              />
-              {/* A soft check: the examiner's own words reach the letter, which must not mention scores or suspicions. */}
-              {flaggedLetterWarning(items[i] ?? '') && (
-                <Txt variant="small" tone="warn" testID={`request-item-${i}-warning`}>
-                  {flaggedLetterWarning(items[i] ?? '')}
-                </Txt>
+        {items.map((item, i) => {
+          const warning = flaggedLetterWarning(item ?? '');
+          return (
+            <View key={i} style={{ flexDirection: 'row', gap: space.sm, alignItems: 'flex-end' }}>
+              <View style={{ flex: 1 }}>
+                <FormField
+                  control={form.control}
+                  name={`items.${i}`}
+                  testID={`request-item-${i}`}
+                  label={`Record ${i + 1}`}
+                  placeholder="e.g. Receipts for vehicle expenses claimed for 2024"
+                />
+                {/* A soft check: the examiner's own words reach the letter, which must not mention scores or suspicions. */}
+                {warning && (
+                  <Txt variant="small" tone="warn" testID={`request-item-${i}-warning`}>
+                    {warning}
+                  </Txt>
+                )}
+              </View>
+              {items.length > 1 && (
+                <Button
+                  kind="quiet"
+                  label="Remove"
+                  accessibilityLabel={`Remove record ${i + 1}`}
+                  testID={`request-item-${i}-remove`}
+                  onPress={() => setItems(items.filter((_x, k) => k !== i))}
+                />
               )}
             </View>
-            {items.length > 1 && (
-              <Button
-                kind="quiet"
-                label="Remove"
-                accessibilityLabel={`Remove record ${i + 1}`}
-                testID={`request-item-${i}-remove`}
-                onPress={() => setItems(items.filter((_x, k) => k !== i))}
-              />
-            )}
-          </View>
-        ))}
+          );
+        })}
         {itemsError?.message && (
           <Txt variant="small" tone="alert" accessibilityRole="alert">
             {itemsError.message}

@@ -10,6 +10,7 @@ import type { Comparison, GroupOutcome, IntervalDto } from '../../../shared/prog
 import { colours, radius, space } from '../../theme';
 import { Card } from '../../ui/card';
 import { useIsWide } from '../../ui/layout';
+import { HeaderLabel } from '../../ui/table-header-row';
 import { Txt } from '../../ui/text';
 import { IntervalChart } from './interval-chart';
 import { TrendChart } from './trend-chart';
@@ -23,23 +24,20 @@ const THIN = 'not enough closed cases yet';
 const pct = (v: number) => `${Math.round(v * 1000) / 10}%`;
 const money = (v: number) => v.toLocaleString('en-US', { minimumFractionDigits: 2, maximumFractionDigits: 2 });
 
-function rateText(v: IntervalDto): string {
-  return v.enoughData && v.estimate !== null ? `${pct(v.estimate)} (${pct(v.low!)} to ${pct(v.high!)})` : THIN;
-}
-function amountText(v: IntervalDto): string {
-  return v.enoughData && v.estimate !== null ? `${money(v.estimate)} (${money(v.low!)} to ${money(v.high!)})` : THIN;
-}
-function liftText(v: IntervalDto): string {
-  return v.enoughData && v.estimate !== null ? `× ${v.estimate.toFixed(2)} (${v.low!.toFixed(2)} to ${v.high!.toFixed(2)})` : THIN;
-}
+/** A figure with its interval, "estimate (low to high)", each written by `fmt`; or THIN. */
+const intervalText =
+  (fmt: (v: number) => string, prefix = '') =>
+  (v: IntervalDto): string =>
+    v.enoughData && v.estimate !== null ? `${prefix}${fmt(v.estimate)} (${fmt(v.low!)} to ${fmt(v.high!)})` : THIN;
+const rateText = intervalText(pct);
+const amountText = intervalText(money);
+const liftText = intervalText((v) => v.toFixed(2), '× ');
 
 function Figure({ label, value, note }: { label: string; value: string; note?: string }) {
   const thin = value === THIN;
   return (
     <View style={{ gap: 2, minWidth: 200, flex: 1 }}>
-      <Txt variant="caption" bold tone="soft">
-        {label.toUpperCase()}
-      </Txt>
+      <HeaderLabel>{label}</HeaderLabel>
       <Txt figures={!thin} bold={!thin} tone={thin ? 'soft' : 'ink'} variant={thin ? 'small' : 'lead'}>
         {thin ? 'Not enough closed cases yet' : value}
       </Txt>
@@ -96,9 +94,7 @@ function Table({ title, head, rows, testID }: { title: string; head: string[]; r
         <View style={{ flexDirection: 'row', gap: space.md, borderBottomWidth: 1.5, borderBottomColor: colours.ink, paddingBottom: space.xs }}>
           {head.map((h, i) => (
             <View key={h} style={{ flex: i === 0 ? 2 : 1.3 }}>
-              <Txt variant="caption" bold tone="soft">
-                {h.toUpperCase()}
-              </Txt>
+              <HeaderLabel>{h}</HeaderLabel>
             </View>
           ))}
         </View>

@@ -23,8 +23,8 @@ import {
 import { colours, radius, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
+import { TopBar } from '../../ui/app-shell';
 import { useIsWide } from '../../ui/layout';
-import { PlumbMark } from '../../ui/plumb-mark';
 import { ProgressBar } from '../../ui/progress-bar';
 import { Txt } from '../../ui/text';
 import { useReplyLink, useUploadReply } from './use-reply';
@@ -47,18 +47,7 @@ function Frame({ children }: { children: React.ReactNode }) {
   const wide = useIsWide();
   return (
     <View style={{ flex: 1, backgroundColor: colours.paper }}>
-      <View
-        role="banner"
-        style={{
-          backgroundColor: colours.ink,
-          paddingHorizontal: space.lg,
-          paddingVertical: space.md,
-          flexDirection: 'row',
-          alignItems: 'center',
-          gap: space.sm,
-        }}
-      >
-        <PlumbMark />
+      <TopBar>
         <View>
           <Txt variant="lead" bold tone="white">
             {OFFICE.name}
@@ -67,7 +56,7 @@ function Frame({ children }: { children: React.ReactNode }) {
             {OFFICE.unit}
           </Txt>
         </View>
-      </View>
+      </TopBar>
       <ScrollView role="main" tabIndex={0} style={{ flex: 1 }} contentContainerStyle={{ padding: wide ? space.xxl : space.lg }}>
         <View style={{ width: '100%', maxWidth: 680, alignSelf: 'center', gap: space.lg }}>{children}</View>
       </ScrollView>

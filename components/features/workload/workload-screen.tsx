@@ -7,6 +7,7 @@ import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { ChoiceRow } from '../../ui/choice-row';
 import { useIsWide } from '../../ui/layout';
+import { HeaderLabel, TableHeaderRow } from '../../ui/table-header-row';
 import { Txt } from '../../ui/text';
 import { amount, ScoreMeter, whole } from '../cases/case-bits';
 import { useBulkReassign, useCaseList } from '../cases/use-cases';
@@ -65,30 +66,17 @@ function Checkbox({ checked, onPress, label, testID }: { checked: boolean; onPre
 function ExaminerTable({ rows, onPick, picked }: { rows: WorkloadRow[]; onPick(id: string): void; picked: Source | null }) {
   return (
     <View style={{ backgroundColor: colours.surface, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID="workload-table">
-      <View
-        style={{
-          flexDirection: 'row',
-          gap: space.md,
-          paddingVertical: space.sm,
-          paddingHorizontal: space.md,
-          borderBottomWidth: 1.5,
-          borderBottomColor: colours.ink,
-        }}
-      >
+      <TableHeaderRow>
         <View style={{ flex: 1 }}>
-          <Txt variant="caption" bold tone="soft">
-            EXAMINER
-          </Txt>
+          <HeaderLabel>Examiner</HeaderLabel>
         </View>
         {COUNTS.map((c) => (
           <View key={c.key} style={{ width: 96, alignItems: 'flex-end' }}>
-            <Txt variant="caption" bold tone="soft" style={{ textAlign: 'right' }}>
-              {c.label.toUpperCase()}
-            </Txt>
+            <HeaderLabel right>{c.label}</HeaderLabel>
           </View>
         ))}
         <View style={{ width: 120 }} />
-      </View>
+      </TableHeaderRow>
       {rows.map((r) => (
         <View
           key={r.examinerId}

@@ -3,8 +3,8 @@
  * see, why in plain words, by when, how to send it, and whom to ask. It asks; it does not accuse. It never
  * mentions scores, digit tests or anything that reads as suspicion (docs/design.md#cautions).
  */
-import { longDate, OFFICE, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../../shared/letters';
-import { callout, contentWidth, F, figureFace, footers, INK, INK_SOFT, keepTogether, letterhead, newPdf, pdfBytes, PAPER, BRASS, printable } from './pdf-base';
+import { OFFICE, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../../shared/letters';
+import { callout, contentWidth, F, footers, INK, letterClosing, letterhead, letterOpening, newPdf, numberedItems, pdfBytes, replyLinkBox } from './pdf-base';
 
 /** Everything the letter says. */
 export interface DocumentRequestLetter {
@@ -40,105 +40,28 @@ export const letterWording = {
 
 /** Renders the letter as a PDF. */
 export async function renderDocumentRequestPdf(l: DocumentRequestLetter): Promise<Buffer> {
-  const doc = newPdf({ title: letterWording.subject(l), subject: `Reference ${l.reference}`, author: OFFICE.name });
+  const subject = letterWording.subject(l);
+  const doc = newPdf({ title: subject, subject: `Reference ${l.reference}`, author: OFFICE.name });
   letterhead(doc, [`Our reference: ${l.reference}`]);
-  const x = doc.page.margins.left;
-  const w = contentWidth(doc);
-
-  // Address block and date.
-  const addressLines = [l.taxpayerName, ...(l.postalAddress ? l.postalAddress.split(/\s*[,\n]\s*/).filter(Boolean) : [])];
-  const top = doc.y;
-  doc
-    .font(F.body)
-    .fontSize(10.5)
-    .fillColor(INK)
-    .text(addressLines.join('\n'), x, top, { width: w * 0.6 });
-  const afterAddress = doc.y;
-  doc
-    .font(F.body)
-    .fontSize(10.5)
-    .fillColor(INK)
-    .text(longDate(l.date), x + w * 0.6, top, { width: w * 0.4, align: 'right' });
-  doc.y = Math.max(afterAddress, doc.y) + 18;
-  doc.x = x;
-
-  doc.font(F.bold).fontSize(13).fillColor(INK).text(letterWording.subject(l), x, doc.y, { width: w });
-  doc.font(F.body).fontSize(9.5).fillColor(INK_SOFT).text(`Return reference ${l.returnRef}`, { width: w });
-  doc.moveDown(0.8);
-
-  doc.font(F.body).fontSize(10.5).fillColor(INK).text(`Dear ${l.taxpayerName},`, { width: w });
-  doc.moveDown(0.6);
-  doc.text(letterWording.opening(l), { width: w, lineGap: 1.5 });
+  letterOpening(doc, { ...l, subject });
+  doc.text(letterWording.opening(l), { width: contentWidth(doc), lineGap: 1.5 });
   doc.moveDown(0.6);
   callout(doc, 'This is a request for records, not a decision', letterWording.notADecision.replace(/^This is a request for records, not a decision\. /, ''));
 
-  // The records asked for, numbered.
   doc.moveDown(0.3);
-  doc.font(F.bold).fontSize(11).fillColor(INK).text('Please send us copies of:', x, doc.y, { width: w });
-  doc.moveDown(0.3);
-  l.items.map(printable).forEach((item, i) => {
-    doc.font(F.body).fontSize(10.5);
-    keepTogether(doc, doc.heightOfString(item, { width: w - 24 }) + 4);
-    const y = doc.y;
-    doc
-      .font(F.bold)
-      .fillColor(BRASS)
-      .text(`${i + 1}.`, x + 4, y, { width: 18 });
-    doc
-      .font(F.body)
-      .fillColor(INK)
-      .text(item, x + 24, y, { width: w - 24, lineGap: 1 });
-    doc.y += 3;
-  });
-  doc.moveDown(0.6);
-
-  // Due date and the link, in one shaded block so neither is missed.
-  const dueLine = `By ${longDate(l.dueDate)}`;
-  doc.font(F.bold).fontSize(12);
-  const hDue = doc.heightOfString(dueLine, { width: w - 24 });
-  doc.font(F.body).fontSize(10);
-  const hHow = doc.heightOfString(letterWording.howToSend, { width: w - 24 });
-  const urlFace = figureFace(l.replyUrl);
-  doc.font(urlFace).fontSize(9);
-  const hUrl = doc.heightOfString(l.replyUrl, { width: w - 24 });
-  const boxH = hDue + hHow + hUrl + 40;
-  keepTogether(doc, boxH + 8);
-  const by = doc.y;
-  doc.save().rect(x, by, w, boxH).fill(PAPER).rect(x, by, 4, boxH).fill(INK).restore();
   doc
     .font(F.bold)
-    .fontSize(12)
+    .fontSize(11)
     .fillColor(INK)
-    .text(dueLine, x + 16, by + 10, { width: w - 24 });
-  doc
-    .font(F.body)
-    .fontSize(10)
-    .fillColor(INK)
-    .text(letterWording.howToSend, x + 16, doc.y + 4, { width: w - 24, lineGap: 1 });
-  doc
-    .font(F.bold)
-    .fontSize(9.5)
-    .text('Your reply link:', x + 16, doc.y + 6, { width: w - 24 });
-  doc
-    .font(urlFace)
-    .fontSize(9)
-    .fillColor(INK)
-    .text(l.replyUrl, x + 16, doc.y + 1, { width: w - 24 });
-  doc.x = x;
-  doc.y = by + boxH + 12;
-
-  doc.font(F.body).fontSize(10.5).fillColor(INK);
-  for (const p of [letterWording.missing, letterWording.help, `Please quote our reference ${l.reference} in any message.`, letterWording.thanks]) {
-    keepTogether(doc, doc.heightOfString(p, { width: w }) + 8);
-    doc.text(p, x, doc.y, { width: w, lineGap: 1.5 });
-    doc.moveDown(0.5);
-  }
-  doc.moveDown(0.5);
-  keepTogether(doc, 60);
-  doc.text('Yours sincerely,', x, doc.y, { width: w });
-  doc.moveDown(1.2);
-  doc.font(F.bold).text(l.signedBy, { width: w });
-  doc.font(F.body).fillColor(INK_SOFT).text(`${OFFICE.unit}, ${OFFICE.name}`, { width: w });
+    .text('Please send us copies of:', doc.page.margins.left, doc.y, { width: contentWidth(doc) });
+  doc.moveDown(0.3);
+  numberedItems(doc, l.items);
+  replyLinkBox(doc, l.dueDate, letterWording.howToSend, l.replyUrl);
+  letterClosing(
+    doc,
+    [letterWording.missing, letterWording.help, `Please quote our reference ${l.reference} in any message.`, letterWording.thanks],
+    l.signedBy,
+  );
 
   footers(doc, `${OFFICE.name} · ${OFFICE.phone} · Reference ${l.reference}`);
   return pdfBytes(doc);

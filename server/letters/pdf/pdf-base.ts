@@ -5,7 +5,7 @@
  */
 import path from 'node:path';
 import PDFDocument from 'pdfkit';
-import { OFFICE } from '../../../shared/letters';
+import { longDate, OFFICE } from '../../../shared/letters';
 
 const FONT_DIR = path.resolve(__dirname, '..', '..', '..', 'fonts');
 
@@ -312,6 +312,127 @@ export function letterhead(doc: Pdf, right: string[] = []): void {
     .restore();
   doc.y += 16;
   doc.font(F.body).fontSize(10.5).fillColor(INK);
+}
+
+/** What the top of a letter to a taxpayer says. */
+export interface LetterHead {
+  taxpayerName: string;
+  postalAddress: string | null;
+  /** Date of the letter (YYYY-MM-DD). */
+  date: string;
+  subject: string;
+  returnRef: string;
+}
+
+/**
+ * The top of a letter to a taxpayer, below the letterhead: address block beside the date,
+ * the subject, the return reference and "Dear …". Every taxpayer letter opens this way.
+ */
+export function letterOpening(doc: Pdf, l: LetterHead): void {
+  const x = doc.page.margins.left;
+  const w = contentWidth(doc);
+  const address = [l.taxpayerName, ...(l.postalAddress ? l.postalAddress.split(/\s*[,\n]\s*/).filter(Boolean) : [])];
+  const top = doc.y;
+  doc
+    .font(F.body)
+    .fontSize(10.5)
+    .fillColor(INK)
+    .text(address.join('\n'), x, top, { width: w * 0.6 });
+  const afterAddress = doc.y;
+  doc.text(longDate(l.date), x + w * 0.6, top, { width: w * 0.4, align: 'right' });
+  doc.y = Math.max(afterAddress, doc.y) + 18;
+  doc.x = x;
+  doc.font(F.bold).fontSize(13).fillColor(INK).text(l.subject, x, doc.y, { width: w });
+  doc.font(F.body).fontSize(9.5).fillColor(INK_SOFT).text(`Return reference ${l.returnRef}`, { width: w });
+  doc.moveDown(0.8);
+  doc.font(F.body).fontSize(10.5).fillColor(INK).text(`Dear ${l.taxpayerName},`, { width: w });
+  doc.moveDown(0.6);
+}
+
+/** The records asked for, numbered in brass; each item kept whole on a page. */
+export function numberedItems(doc: Pdf, items: readonly string[]): void {
+  const x = doc.page.margins.left;
+  const w = contentWidth(doc);
+  items.map(printable).forEach((item, i) => {
+    doc.font(F.body).fontSize(10.5);
+    keepTogether(doc, doc.heightOfString(item, { width: w - 24 }) + 4);
+    const y = doc.y;
+    doc
+      .font(F.bold)
+      .fillColor(BRASS)
+      .text(`${i + 1}.`, x + 4, y, { width: 18 });
+    doc
+      .font(F.body)
+      .fillColor(INK)
+      .text(item, x + 24, y, { width: w - 24, lineGap: 1 });
+    doc.y += 3;
+  });
+  doc.moveDown(0.6);
+}
+
+/** The due date, how to reply and the personal link, in one shaded block so none is missed. */
+export function replyLinkBox(doc: Pdf, dueDate: string, how: string, replyUrl: string): void {
+  const x = doc.page.margins.left;
+  const w = contentWidth(doc);
+  const dueLine = `By ${longDate(dueDate)}`;
+  doc.font(F.bold).fontSize(12);
+  const hDue = doc.heightOfString(dueLine, { width: w - 24 });
+  doc.font(F.body).fontSize(10);
+  const hHow = doc.heightOfString(how, { width: w - 24 });
+  const urlFace = figureFace(replyUrl);
+  doc.font(urlFace).fontSize(9);
+  const hUrl = doc.heightOfString(replyUrl, { width: w - 24 });
+  const boxH = hDue + hHow + hUrl + 40;
+  keepTogether(doc, boxH + 8);
+  const by = doc.y;
+  doc.save().rect(x, by, w, boxH).fill(PAPER).rect(x, by, 4, boxH).fill(INK).restore();
+  doc
+    .font(F.bold)
+    .fontSize(12)
+    .fillColor(INK)
+    .text(dueLine, x + 16, by + 10, { width: w - 24 });
+  doc
+    .font(F.body)
+    .fontSize(10)
+    .fillColor(INK)
+    .text(how, x + 16, doc.y + 4, { width: w - 24, lineGap: 1 });
+  doc
+    .font(F.bold)
+    .fontSize(9.5)
+    .text('Your reply link:', x + 16, doc.y + 6, { width: w - 24 });
+  doc
+    .font(urlFace)
+    .fontSize(9)
+    .fillColor(INK)
+    .text(replyUrl, x + 16, doc.y + 1, { width: w - 24 });
+  doc.x = x;
+  doc.y = by + boxH + 12;
+}
+
+/**
+ * The end of a letter to a taxpayer: the closing paragraphs (each kept whole on a page),
+ * "Yours sincerely," and the signature: the examiner's name when one signs, then the unit.
+ */
+export function letterClosing(doc: Pdf, paragraphs: readonly string[], signedBy?: string): void {
+  const x = doc.page.margins.left;
+  const w = contentWidth(doc);
+  doc.font(F.body).fontSize(10.5).fillColor(INK);
+  for (const p of paragraphs) {
+    keepTogether(doc, doc.heightOfString(p, { width: w }) + 8);
+    doc.text(p, x, doc.y, { width: w, lineGap: 1.5 });
+    doc.moveDown(0.5);
+  }
+  doc.moveDown(0.5);
+  keepTogether(doc, 60);
+  doc.text('Yours sincerely,', x, doc.y, { width: w });
+  if (signedBy) {
+    doc.moveDown(1.2);
+    doc.font(F.bold).text(signedBy, { width: w });
+    doc.font(F.body).fillColor(INK_SOFT).text(`${OFFICE.unit}, ${OFFICE.name}`, { width: w });
+  } else {
+    doc.moveDown(0.8);
+    doc.font(F.bold).text(`${OFFICE.unit}, ${OFFICE.name}`, { width: w });
+  }
 }
 
 /** Finishes the document and resolves with its bytes. */
