@@ -1,6 +1,5 @@
 import multer from 'multer';
 import { DigitAnalysisRequestSchema } from '../../shared/analyses';
-import type { AppDeps } from '../app-deps';
 import { allow, secureRouter } from '../auth/access';
 import { removeSpooled, spoolStorage } from '../batches/intake/upload-spool';
 import { HttpError } from '../http/errors';
@@ -13,9 +12,10 @@ const MAX_FILE_BYTES = 50 * 1024 * 1024;
 /**
  * `POST /api/analyses/digits`: JSON {amounts} or multipart `file` (+ optional `column`).
  * The file waits in the upload spool (server/batches/intake/upload-spool.ts) and is read in
- * a worker thread under reading caps; it is removed when the answer is sent.
+ * a worker thread under reading caps; it is removed when the answer is sent. It needs none of
+ * the application's dependencies: the analysis reads the file and stores nothing.
  */
-export function analysesRoutes(_deps: AppDeps) {
+export function analysesRoutes() {
   const r = secureRouter();
   const upload = multer({ storage: spoolStorage(), limits: { fileSize: MAX_FILE_BYTES, files: 1, fields: 5 } }).single('file');
   r.post(

@@ -5,18 +5,21 @@
  *    422 {error, batchId, errorCount, errors: [{file, row, column, message, value}]},
  *    409 {error, batchId} for a file seen before, 413 for a file over the size limit;
  *  - `GET /api/batches?page=&pageSize=` and `GET /api/batches/:id` (clerk, supervisor);
- *  - `GET /api/batches/:id/report.xlsx` (clerk, supervisor): the validation report.
+ *  - `GET /api/batches/:id/report.xlsx` (clerk, supervisor): the batch's report (any state);
+ *  - `POST /api/batches/:id/retry` (clerk): ends a batch whose check has stalled, so its file
+ *    can be uploaded again (idempotent).
+ * The upload may carry a text field `label` (what people call the batch; blank: the default).
  */
 import type { RequestHandler } from 'express';
 import multer from 'multer';
-import { BatchListQuerySchema, sizeText, type BatchRejected, type BatchTable } from '../../shared/returns/batch-rows';
+import { BatchLabelSchema, BatchListQuerySchema, sizeText, type BatchRejected, type BatchTable } from '../../shared/returns/batch-rows';
 import { recordAccess } from '../access-log/access-log.service';
 import { staffAuditOf } from '../access-log/audit-context';
 import type { AppDeps } from '../app-deps';
 import { allow, secureRouter } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
-import { getBatch, ingestUpload, listBatches, uploadFromParts, writeBatchReport, type IntakeDeps } from './batch.service';
+import { endStalledIntake, getBatch, ingestUpload, listBatches, uploadFromParts, writeBatchReport, type IntakeDeps } from './batch.service';
 import type { UploadedFile } from './intake/sources';
 import { removeSpooled, spoolStorage } from './intake/upload-spool';
 import { isUuid } from '../../shared/ids';
@@ -76,7 +79,7 @@ function removeUploads(files: Record<string, Express.Multer.File[]> | undefined)
 }
 
 /** The batch routes. */
-export function batchRoutes(deps: AppDeps) {
+export function batchRoutes(deps: Pick<AppDeps, 'config' | 'dataSource' | 'boss'>) {
   const r = secureRouter();
   const limits = intakeLimits(deps.config);
   const intake: IntakeDeps = { dataSource: deps.dataSource, boss: deps.boss, limits };
@@ -89,13 +92,20 @@ export function batchRoutes(deps: AppDeps) {
         const f = files?.[p]?.[0];
         if (f) parts[p] = { originalName: f.originalname || `${p}${p === 'file' ? '.xlsx' : '.csv'}`, path: f.path, size: f.size };
       }
+      const labelIn = BatchLabelSchema.safeParse(typeof req.body?.label === 'string' ? req.body.label : '');
+      if (!labelIn.success) {
+        const message = `The batch label ${labelIn.error.issues[0].message}`.replace('The batch label Keep', 'Keep');
+        const body: BatchRejected = { error: message, batchId: null, errorCount: 1, errors: [{ file: '', row: null, column: 'label', message }] };
+        res.status(422).json(body);
+        return;
+      }
       const made = uploadFromParts(parts as Partial<Record<'file' | BatchTable, UploadedFile>>);
       if ('issues' in made) {
         const body: BatchRejected = { error: made.issues[0].message, batchId: null, errorCount: made.issues.length, errors: made.issues };
         res.status(422).json(body);
         return;
       }
-      const outcome = await ingestUpload(intake, made.upload, req.user!);
+      const outcome = await ingestUpload(intake, made.upload, req.user!, labelIn.data || null);
       const batchId = outcome.kind === 'accepted' ? outcome.batch.id : outcome.body.batchId;
       if (outcome.kind !== 'duplicate' && batchId) {
         await recordAccess(deps.dataSource, staffAuditOf(req), {
@@ -128,6 +138,14 @@ export function batchRoutes(deps: AppDeps) {
     // like any read of taxpayer data. Batches without errors are not: the screen polls them.
     if (batch.errors.length)
       await recordAccess(deps.dataSource, staffAuditOf(req), { action: 'view', recordType: 'filing_batch', recordId: id, detail: 'rejection report' });
+    res.json(batch);
+  });
+
+  r.post('/batches/:id/retry', allow('uploadBatches'), async (req, res) => {
+    const id = String(req.params.id);
+    if (!isUuid(id)) throw new HttpError(404, `There is no batch ${id}.`);
+    const { batch, ended } = await endStalledIntake(deps.dataSource, id);
+    if (ended) await recordAccess(deps.dataSource, staffAuditOf(req), { action: 'change', recordType: 'filing_batch', recordId: id, detail: 'stalled check ended' });
     res.json(batch);
   });
 

@@ -150,7 +150,7 @@ function taxpayerAudit(req: Request): AuditContext {
 }
 
 /** The public reply routes. */
-export function replyRoutes(deps: AppDeps) {
+export function replyRoutes(deps: Pick<AppDeps, 'dataSource'>) {
   const r = secureRouter();
   const ds = deps.dataSource;
 
