@@ -7,6 +7,7 @@ import type { DataSource } from 'typeorm';
 import type { HealthCheck, HealthResponse } from '../../shared/health';
 import type { Mailer } from '../mail/mailer';
 import { QUEUES } from '../queue/queues';
+import { hasPendingMigrations, pingDatabase } from './health.repository';
 
 const VERSION = process.env.npm_package_version ?? '0.1.0';
 
@@ -32,8 +33,8 @@ function withTimeout<T>(p: Promise<T>, ms: number, what: string): Promise<T> {
 export async function checkDatabase(ds: DataSource): Promise<HealthCheck> {
   return timed(async () => {
     if (!ds.isInitialized) return { ok: false, detail: 'not connected to PostgreSQL' };
-    await withTimeout(ds.query('SELECT 1'), 3000, 'PostgreSQL');
-    const pending = await ds.showMigrations();
+    await withTimeout(pingDatabase(ds), 3000, 'PostgreSQL');
+    const pending = await hasPendingMigrations(ds);
     if (pending) return { ok: false, detail: 'connected, but migrations are pending: run `npm run migration:run`' };
     return { ok: true, detail: 'connected; schema up to date' };
   });

@@ -149,6 +149,15 @@ export async function historyOf(db: Db, taxpayerIds: string[]) {
 }
 
 /**
+ * Gives the caller's transaction more sort/hash memory than PostgreSQL's default 4 MB, so the
+ * batch-wide aggregates over a million line items stay in memory. Lasts until the
+ * transaction ends.
+ */
+export async function raiseWorkMem(m: EntityManager): Promise<void> {
+  await m.query(`SET LOCAL work_mem = '64MB'`);
+}
+
+/**
  * The batch's amounts as slots: one per (return, line code, absolute amount), so a bill
  * entered twelve times on one line counts once, with whether the return is a whole-unit
  * filer (no itemised amount with cents, at least three amounts). A temporary table for the

@@ -33,6 +33,7 @@ import {
   linesOf,
   markBatchScored,
   markBatchScoring,
+  raiseWorkMem,
   runPatternPs,
   runWithSettings,
   slotDigitCounts,
@@ -48,7 +49,7 @@ import {
 } from './scoring.repository';
 import type { Db } from '../db/db';
 import { profileSettings } from './scoring-profile.repository';
-import { drawRandomSample } from '../programme/programme.service';
+import { finishSelection } from '../programme/programme.service';
 
 /** Returns per chunk job (env SCORING_CHUNK_SIZE). Large enough that a chunk outlasts pg-boss's 0.5 s polling gap. */
 export const CHUNK_SIZE = Number(process.env.SCORING_CHUNK_SIZE ?? 500);
@@ -99,7 +100,7 @@ function parseSettings(version: number, stored: unknown): ScoringSettings {
  */
 function withWorkMem<T>(ds: DataSource, fn: (m: EntityManager) => Promise<T>): Promise<T> {
   return ds.transaction(async (m) => {
-    await m.query(`SET LOCAL work_mem = '64MB'`);
+    await raiseWorkMem(m);
     return fn(m);
   });
 }
@@ -240,8 +241,8 @@ async function finishIfDone(db: Db, runId: string): Promise<boolean> {
   const run = await finishRunIfComplete(db, runId);
   if (!run) return false;
   await writeBatchQValues(db, run.batchId, run.version);
-  // The random review sample is drawn from returns below the cut, so it waits for every score (docs/methods.md#programme-outcomes).
-  await drawRandomSample(db, run.batchId, run.version);
+  // A capacity's cut and the random review sample below it need every score (docs/methods.md#programme-outcomes).
+  await finishSelection(db, run.batchId, run.version);
   await markBatchScored(db, run.batchId);
   return true;
 }

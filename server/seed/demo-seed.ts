@@ -12,8 +12,9 @@ import { DEFAULT_INTAKE_LIMITS } from '../../shared/returns/batch-rows';
 import type { Role } from '../../shared/roles';
 import { ingestUpload } from '../batches/batch.service';
 import { createBoss, ensureQueues } from '../queue/queues';
-import { User } from '../users/user.entity';
+import { insertUser, userNameTaken } from '../users/user.repository';
 import { writeAnswers, writeCsvBatch } from './batch-files';
+import { accountIdByUsername, anyBatchOnFile } from './demo-seed.repository';
 
 /** The demo password (README says: demo only, change before real use). */
 export const DEMO_PASSWORD = 'plumbline-demo';
@@ -29,13 +30,11 @@ export const DEMO_ACCOUNTS: { username: string; displayName: string; role: Role 
 
 /** Creates missing demo accounts; leaves existing ones (and changed passwords) alone. */
 export async function seedDemoAccounts(ds: DataSource): Promise<number> {
-  const repo = ds.getRepository(User);
   let created = 0;
   const hash = await bcrypt.hash(DEMO_PASSWORD, 10);
   for (const a of DEMO_ACCOUNTS) {
-    const exists = await repo.exists({ where: { username: a.username } });
-    if (exists) continue;
-    await repo.insert({ ...a, passwordHash: hash, active: true });
+    if (await userNameTaken(ds.manager, a.username)) continue;
+    await insertUser(ds.manager, a, hash);
     created++;
   }
   return created;
@@ -58,9 +57,8 @@ export const DEMO_ANSWERS_DIR = path.resolve(__dirname, '..', '..', '.data', 'de
  * @returns a line for the start command, or null when a batch was already there
  */
 export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO_BATCH): Promise<string | null> {
-  const [{ n }] = await ds.query(`SELECT count(*)::int AS n FROM filing_batch`);
-  if (n > 0) return null;
-  const clerk = await ds.getRepository(User).findOneBy({ username: 'clerk' });
+  if (await anyBatchOnFile(ds)) return null;
+  const clerkId = await accountIdByUsername(ds, 'clerk');
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-demo-'));
   const url = (ds.options as { url?: string }).url;
   const boss = url ? createBoss(url, 'server') : null;
@@ -80,7 +78,7 @@ export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO
     const outcome = await ingestUpload(
       { dataSource: ds, boss, limits: DEFAULT_INTAKE_LIMITS },
       { format: 'csv', parts: { returns: file('returns'), line_items: file('line_items'), statements: file('statements') } },
-      clerk ? { id: clerk.id } : null,
+      clerkId ? { id: clerkId } : null,
     );
     if (outcome.kind !== 'accepted') throw new Error(`the demo batch was not accepted: ${JSON.stringify(outcome.body).slice(0, 1000)}`);
     const c = outcome.batch.counts;
