@@ -69,10 +69,24 @@ function lintPasses(jestArgs: string[]): boolean {
   return false;
 }
 
+/**
+ * `npm run typecheck` (Expo Router's typed-route declarations, then `tsc --noEmit`) before a
+ * full run: jest runs TypeScript through SWC and Babel, which strip types without checking them.
+ * Skipped like the lint, or alone with PLUMBLINE_SKIP_TYPECHECK=1.
+ */
+function typecheckPasses(jestArgs: string[]): boolean {
+  if (process.env.PLUMBLINE_SKIP_LINT === '1' || process.env.PLUMBLINE_SKIP_TYPECHECK === '1' || jestArgs.length > 0) return true;
+  log('typecheck: npm run typecheck (typed routes, tsc --noEmit); PLUMBLINE_SKIP_TYPECHECK=1 skips it');
+  const r = spawnSync('npm', ['run', '--silent', 'typecheck'], { cwd: projectRoot, stdio: ['ignore', 'inherit', 'inherit'] });
+  if (r.status === 0) return true;
+  log('typecheck failed: fix the errors above (they name file, line and column)');
+  return false;
+}
+
 async function main(): Promise<number> {
   const t0 = Date.now();
   const jestArgs = process.argv.slice(2);
-  if (!lintPasses(jestArgs)) return 1;
+  if (!lintPasses(jestArgs) || !typecheckPasses(jestArgs)) return 1;
   let maildev: Managed | null = null;
   fs.mkdirSync(runsDir, { recursive: true });
   fs.writeFileSync(path.join(runsDir, String(process.pid)), '');
