@@ -187,6 +187,8 @@ export const CaseDetailSchema = z.object({
   taxpayer: z.object({ id: z.string(), name: z.string(), maskedTin: z.string(), activityCode: z.enum(ACTIVITY_CODES) }),
   return: z.object({
     id: z.string(),
+  /** Reopen the finished case with a reason (supervisor, issue 14). */
+  reopen: z.boolean(),
     returnRef: z.string(),
     taxYear: z.number().int(),
     batchId: z.string(),

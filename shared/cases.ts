@@ -34,7 +34,10 @@ export const CASE_SELECTION_LABELS: Record<CaseSelection, string> = {
   random: 'Chosen at random for review',
 };
 
-/** The finished states: a case here has an outcome and can change no more. The one list of them. */
+/**
+ * The finished states: a case here has an outcome, and no ordinary move leaves it; only a
+ * supervisor's reopen ({@link REOPEN_STATE}) does. The one list of them.
+ */
 export const FINAL_STATES: readonly CaseState[] = ['referred', 'closed_no_change', 'closed_adjusted'];
 
 /** True for a finished case (referred or closed). */
@@ -97,6 +100,25 @@ export type AssignRequest = z.infer<typeof AssignRequestSchema>;
 export const NoteRequestSchema = z.object({
   text: z
     .string()
+/**
+ * Where a finished case goes when a supervisor reopens it (issue 14): back in review, with
+ * the same examiner, so the work goes on from the records already gathered. A reopen is its
+ * own action (`POST /api/cases/:id/reopen`, capability `reopenCases`), not a move in
+ * {@link CASE_TRANSITIONS}: examiners' moves never leave a finished state.
+ */
+export const REOPEN_STATE: CaseState = 'in_review';
+
+/** Body of `POST /api/cases/:id/reopen`: why the finished case is opened again (kept in its history). */
+export const ReopenRequestSchema = z.object({
+  reason: z
+    .string()
+    .trim()
+    .min(5, 'Say in a sentence why the case is reopened')
+    .max(2000, 'Keep the reason under 2,000 characters')
+    .check(noControlChars({ lines: true })),
+});
+export type ReopenRequest = z.infer<typeof ReopenRequestSchema>;
+
     .trim()
     .min(1, 'Write the note first')
     .max(10_000, 'Keep a note under 10,000 characters')

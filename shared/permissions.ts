@@ -15,6 +15,8 @@ export const CAN = {
   readCases: ['examiner', 'supervisor'],
   workCases: ['examiner', 'supervisor'],
   assignCases: ['supervisor'],
+  /** Reopen a referred or closed case with a reason (issue 14). */
+  reopenCases: ['supervisor'],
   exportQueue: ['supervisor'],
   readWorkload: ['supervisor'],
   /** The Programme screen: outcomes of the selection and the random review cases (issue 17). */

@@ -13,7 +13,7 @@ import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
 import { findCaseTin, findExaminers, insertCaseNote } from './case.repository';
 import { dropQueueTotals } from './case-queue.service';
-import { assertMayAct, assignCase, claimCase, lockCase, moveCase, taxpayerLabelOf } from './case-workflow';
+import { assertMayAct, assignCase, claimCase, lockCase, moveCase, reopenCase, taxpayerLabelOf } from './case-workflow';
 import type { ExamCase } from './exam-case.entity';
 
 const changed = (c: ExamCase): CaseChanged => ({ id: c.id, state: c.state, assignee: c.assigneeId });
@@ -103,4 +103,11 @@ export async function bulkReassign(ds: DataSource, audit: StaffAudit, input: Bul
   }
   dropQueueTotals(ds);
   return result;
+}
+
+/** A supervisor reopens a finished case with a reason (case-workflow.ts reopenCase). */
+export async function reopen(ds: DataSource, audit: StaffAudit, caseId: string, reason: string): Promise<CaseChanged> {
+  const c = await reopenCase(ds, audit, caseId, reason);
+  dropQueueTotals(ds);
+  return changed(c);
 }

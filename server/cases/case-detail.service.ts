@@ -40,6 +40,7 @@ export function actionsFor(actor: Pick<SessionUser, 'id' | 'role'>, state: CaseS
     transitions: acts ? CASE_TRANSITIONS[state].filter((to) => !MOVES_ELSEWHERE[to]).map((to) => ({ to, label: moveLabel(state, to) })) : [],
     note: acts,
     revealTin: acts,
+    reopen: can(actor.role, 'reopenCases') && isFinalState(state),
   };
 }
 
@@ -72,6 +73,8 @@ function summarise(e: CaseEventRecord, names: Map<string, string>): string {
       return `${who} sent a document request; the case awaits the reply`;
     case 'referral':
       return `${who} referred the case${typeof d.outcome === 'string' ? `: ${d.outcome}` : ''}`;
+    case 'reopened':
+      return `${who} reopened the case (it was ${stateWord(e.fromState)}); it is back ${stateWord(e.toState)}${typeof d.reason === 'string' ? `. Reason: ${d.reason}` : ''}`;
     case 'reply-received': {
       // Written by the reply link with no actor: the taxpayer, never "Plumbline".
       const files = typeof d.files === 'number' ? ` (${d.files} file${d.files === 1 ? '' : 's'})` : '';

@@ -6,7 +6,8 @@
  */
 import type { DataSource, EntityManager } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
-import { canTransition, CASE_STATE_LABELS, CASE_TRANSITIONS, isFinalState, type CaseState } from '../../shared/cases';
+import { canTransition, CASE_STATE_LABELS, CASE_TRANSITIONS, isFinalState, REOPEN_STATE, type CaseState } from '../../shared/cases';
+import { can } from '../../shared/permissions';
 import { isUuid } from '../../shared/ids';
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
@@ -200,6 +201,35 @@ export async function assignCase(ds: DataSource, audit: StaffAudit, caseId: stri
     const kind = !previous ? 'assigned' : from === 'open' || from === 'assigned' ? 'reassigned' : 'handed-over';
     await addCaseEvent(m, c.id, audit.actor, kind, { from: previous, to: assigneeId }, from, to);
     await logChange(m, audit, c, `assigned to ${who.displayName}`);
+    return c;
+  });
+}
+
+/**
+ * A supervisor reopens a finished case (issue 14; shared/cases.ts REOPEN_STATE): it goes back
+ * in review with the same examiner, its outcome and finish time are cleared from the case row
+ * but kept in the history (the 'reopened' event holds the reason, the state it left and the
+ * outcome it had), and the access log records the reopen with its reason. Refuses (409) a
+ * case that is not finished. Only the policy table's `reopenCases` reaches this (the route's
+ * rule); the actor check here holds the same rule for any other caller.
+ */
+export async function reopenCase(ds: DataSource, audit: StaffAudit, caseId: string, reason: string): Promise<ExamCase> {
+  if (!can(audit.actor.role, 'reopenCases')) throw new HttpError(403, 'Only a supervisor can reopen a finished case.');
+  return ds.transaction(async (m) => {
+    const c = await lockCase(m, caseId);
+    if (!isFinalState(c.state)) {
+      throw new HttpError(409, `Only a finished case can be reopened; this one is ${CASE_STATE_LABELS[c.state].toLowerCase()}.`);
+    }
+    const from = c.state;
+    const detail = { reason, outcome: c.outcome, adjustedAmount: c.adjustedAmount, closedAt: c.closedAt?.toISOString() ?? null };
+    c.state = REOPEN_STATE;
+    c.closedAt = null;
+    c.outcome = null;
+    c.adjustedAmount = null;
+    c.updatedAt = officeNow();
+    await saveCase(m, c);
+    await addCaseEvent(m, c.id, audit.actor, 'reopened', detail, from, REOPEN_STATE);
+    await logChange(m, audit, c, `reopened: ${from} → ${REOPEN_STATE}; reason: ${reason}`);
     return c;
   });
 }

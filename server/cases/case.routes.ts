@@ -1,10 +1,10 @@
-import { AssignRequestSchema, NoteRequestSchema, TransitionRequestSchema } from '../../shared/cases';
+import { AssignRequestSchema, NoteRequestSchema, ReopenRequestSchema, TransitionRequestSchema } from '../../shared/cases';
 import { BulkReassignSchema, CaseListQuerySchema, type CaseListQuery } from '../../shared/case-api';
 import type { AppDeps } from '../app-deps';
 import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
-import { addNote, assign, bulkReassign, claim, revealTin, transition } from './case-actions.service';
+import { addNote, assign, bulkReassign, claim, reopen, revealTin, transition } from './case-actions.service';
 import { getCaseDetail, listExaminers } from './case-detail.service';
 import { exportCases, listCases } from './case-queue.service';
 import { today as officeToday } from '../clock';
@@ -63,6 +63,10 @@ export function caseRoutes(deps: Pick<AppDeps, 'dataSource'>) {
 
   r.post('/cases/:id/transition', allow('workCases'), validate(TransitionRequestSchema), async (req, res) => {
     res.json(await transition(ds, staffAuditOf(req), String(req.params.id), req.body));
+  });
+
+  r.post('/cases/:id/reopen', allow('reopenCases'), validate(ReopenRequestSchema), async (req, res) => {
+    res.json(await reopen(ds, staffAuditOf(req), String(req.params.id), req.body.reason));
   });
 
   r.post('/cases/:id/notes', allow('workCases'), validate(NoteRequestSchema), async (req, res) => {

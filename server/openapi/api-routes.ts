@@ -23,7 +23,7 @@ import {
   RevealedTinSchema,
   WorkloadSchema,
 } from '../../shared/case-api';
-import { AssignRequestSchema, NoteRequestSchema, TransitionRequestSchema } from '../../shared/cases';
+import { AssignRequestSchema, NoteRequestSchema, ReopenRequestSchema, TransitionRequestSchema } from '../../shared/cases';
 import { digitProfileSchema } from '../../shared/digits/schema';
 import { ControlsQuerySchema, ControlsSchema, OutcomesQuerySchema, OutcomesSchema } from '../../shared/programme/api';
 import { HealthResponseSchema } from '../../shared/health';
@@ -468,6 +468,15 @@ export const API_ROUTES: readonly ApiRoute[] = [
   },
 
   // server/cases/workload.routes.ts
+  {
+    method: 'post',
+    path: '/api/cases/:id/reopen',
+    operationId: 'reopenCase',
+    tag: 'cases',
+    summary: 'Reopen a finished case with a reason (supervisor)',
+    body: ReopenRequestSchema,
+    responses: { 200: json(CaseChangedSchema, 'The case afterwards: back in review.'), 404: noCase, 409: error('The case is not finished.') },
+  },
   {
     method: 'get',
     path: '/api/workload',

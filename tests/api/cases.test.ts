@@ -204,7 +204,7 @@ describe('the examination queue (GET /api/cases)', () => {
       expect(d.history[0].summary).toMatch(/^Opened by scoring/);
       expect(d.notes).toEqual([]);
       expect(d.letters).toEqual([]);
-      expect(d.actions).toEqual({ canAct: false, claim: true, assign: false, transitions: [], note: false, revealTin: false });
+      expect(d.actions).toEqual({ canAct: false, claim: true, assign: false, transitions: [], note: false, revealTin: false, reopen: false });
       const log = await ctx.dataSource.query(
         `SELECT action, route, taxpayer_id, taxpayer_label FROM access_log WHERE user_id = $1 AND record_id = $2 AND route LIKE 'GET /api/cases/%'`,
         [examiner.user.id, top.id],
@@ -229,7 +229,7 @@ describe('the examination queue (GET /api/cases)', () => {
     it('offers the actions of the caller and the state', async () => {
       const [id] = await openCaseIds(ctx.dataSource, 1);
       const sup = CaseDetailSchema.parse((await supervisor.agent.get(`/api/cases/${id}`)).body);
-      expect(sup.actions).toEqual({ canAct: true, claim: true, assign: true, transitions: [], note: true, revealTin: true });
+      expect(sup.actions).toEqual({ canAct: true, claim: true, assign: true, transitions: [], note: true, revealTin: true, reopen: false });
       await caseInState(ctx.dataSource, id, 'assigned', examiner);
       const own = CaseDetailSchema.parse((await examiner.agent.get(`/api/cases/${id}`)).body);
       expect(own.actions).toEqual({
@@ -242,6 +242,7 @@ describe('the examination queue (GET /api/cases)', () => {
         ],
         note: true,
         revealTin: true,
+        reopen: false,
       });
       const other = CaseDetailSchema.parse((await examiner2.agent.get(`/api/cases/${id}`)).body);
       expect(other.actions).toMatchObject({ canAct: false, claim: false, transitions: [], note: false });

@@ -69,6 +69,7 @@ const EXPECTED: Record<string, typeof PUBLIC | readonly Role[]> = {
   'POST /api/cases/:id/document-requests': CASE_WORK,
   'POST /api/cases/:id/referral': CASE_WORK,
   'GET /api/cases/:id/letters': CASE_WORK,
+  'POST /api/cases/:id/reopen': SUPERVISOR,
   'GET /api/cases/:id/letters/:letterId/pdf': CASE_WORK,
   'GET /api/cases/:id/reply-uploads/:uploadId': CASE_WORK,
 };
@@ -103,6 +104,7 @@ describe('route × role policy', () => {
       runHousekeeping: ['supervisor'],
       editScoring: ['supervisor'],
       readScoring: ['examiner', 'supervisor'],
+      reopenCases: ['supervisor'],
       analyse: ['examiner', 'supervisor'],
       manageUsers: ['admin'],
       readAccessLog: ['admin'],
