@@ -14,7 +14,7 @@ export type AccessAction = z.infer<typeof AccessActionSchema>;
  * there is one), so the administrator's log never calls one thing by two names.
  * `case-queue` is a filtered set of cases (an export), not one record.
  */
-export const ACCESS_RECORD_TYPES = ['case', 'case-queue', 'filing_batch', 'letter', 'reply_upload', 'document_request', 'scoring_profile', 'user'] as const;
+export const ACCESS_RECORD_TYPES = ['case', 'case-queue', 'filing_batch', 'letter', 'reply_upload', 'document_request', 'scoring_profile', 'user', 'saved_view'] as const;
 export const AccessRecordTypeSchema = z.enum(ACCESS_RECORD_TYPES);
 export type AccessRecordType = z.infer<typeof AccessRecordTypeSchema>;
 

@@ -49,8 +49,32 @@ export const StateFilterSchema = z
 const uuid = z.uuid();
 
 /**
+ * What "Needs me" on an examiner's start screen counts (issue 14), each a queue filter
+ * (`needs=`) over the caller's own cases still being worked: a taxpayer's reply they have
+ * not opened, a request that ran out with no reply since they last opened the case, an
+ * assessment deadline inside {@link NEEDS_DEADLINE_DAYS} days, a case handed to them by
+ * someone else that they have not opened yet.
+ */
+export const NEEDS_KINDS = ['reply', 'expired', 'deadline', 'handed'] as const;
+export const NeedsKindSchema = z.enum(NEEDS_KINDS);
+export type NeedsKind = z.infer<typeof NeedsKindSchema>;
+/** "Deadlines near" means the assessment deadline falls within this many days. */
+export const NEEDS_DEADLINE_DAYS = 30;
+/** Words for each on screen. */
+export const NEEDS_LABELS: Record<NeedsKind, string> = {
+  reply: 'Replies received',
+  expired: 'Requests expired',
+  deadline: `Deadlines within ${NEEDS_DEADLINE_DAYS} days`,
+  handed: 'Handed to me',
+};
+/** Answer of `GET /api/needs-me`: how many of the caller's cases need each. */
+export const NeedsMeSchema = z.object({ reply: z.number().int(), expired: z.number().int(), deadline: z.number().int(), handed: z.number().int() });
+export type NeedsMe = z.infer<typeof NeedsMeSchema>;
+
+/**
  * Query of `GET /api/cases` and `GET /api/cases/export.xlsx`. `assignee` is an examiner's
- * id, `me` or `none`; `q` is a return reference (prefix, any case) or a 9-digit TIN.
+ * id, `me` or `none`; `q` is a return reference (prefix, any case), a 9-digit TIN or a part
+ * of the taxpayer's name (any case). Leave `state` out to search every state.
  */
 export const CaseListQuerySchema = z.object({
   state: StateFilterSchema.optional(),
@@ -58,7 +82,9 @@ export const CaseListQuerySchema = z.object({
   batch: uuid.optional(),
   taxYear: z.coerce.number().int().min(1990).max(2100).optional(),
   activity: z.enum(ACTIVITY_CODES).optional(),
-  q: z.string().trim().max(64, 'Search by a return reference or a TIN').check(noControlChars()).optional(),
+  q: z.string().trim().max(64, 'Search by a return reference, a 9-digit TIN or a taxpayer name (at most 64 characters)').check(noControlChars()).optional(),
+  /** Only the caller's own cases that need them for this reason (issue 14). */
+  needs: NeedsKindSchema.optional(),
   sort: CaseSortSchema.default('priority'),
   /** Only cases whose assessment deadline falls within this many days from today (issue 13). */
   deadlineWithin: z.coerce
@@ -99,6 +125,10 @@ export const CaseListItemSchema = z.object({
   dueDate: z.string().nullable(),
   /** Last day the office may assess the return (YYYY-MM-DD), or null when there is no limit (issue 13). */
   assessBy: z.string().nullable(),
+  /** Referred or closed: shown as finished where a search reaches past the active states (issue 14). */
+  finished: z.boolean(),
+  /** A taxpayer's reply arrived and the case's examiner has not opened the case since (issue 14). */
+  replyUnread: z.boolean(),
 });
 export type CaseListItem = z.infer<typeof CaseListItemSchema>;
 
@@ -216,6 +246,11 @@ export const CaseDetailSchema = z.object({
   notes: z.array(CaseNoteSchema),
   letters: z.array(CaseLetterSummarySchema),
   actions: CaseActionsSchema,
+  /**
+   * A taxpayer's reply the case's examiner had not opened before this read (issue 14): when it
+   * arrived, or null. The examiner's own read clears it, so their next read says null.
+   */
+  replyUnreadSince: z.string().nullable().optional(),
 });
 export type CaseDetail = z.infer<typeof CaseDetailSchema>;
 

@@ -5,7 +5,7 @@
  * after one page.
  */
 import type { CaseState } from '../../shared/cases';
-import type { CaseListQuery, CaseSort } from '../../shared/case-api';
+import { NEEDS_DEADLINE_DAYS, type CaseListQuery, type CaseSort, type NeedsKind, type NeedsMe } from '../../shared/case-api';
 import { addDays } from '../../shared/letters';
 import { today } from '../clock';
 import type { Db } from '../db/db';
@@ -22,6 +22,8 @@ export interface CaseFilter {
   q?: string;
   /** Only cases whose assessment deadline is on or before this date (YYYY-MM-DD). */
   assessByUpTo?: string;
+  /** Only this person's cases still being worked that need them for this reason (issue 14). */
+  needs?: { kind: NeedsKind; me: string; today: string };
 }
 
 /** Builds the filter from a parsed query for the signed-in user. */
@@ -34,6 +36,7 @@ export function caseFilterOf(q: CaseListQuery, me: string): CaseFilter {
     activity: q.activity,
     q: q.q || undefined,
     assessByUpTo: q.deadlineWithin === undefined ? undefined : addDays(today(), q.deadlineWithin),
+    needs: q.needs === undefined ? undefined : { kind: q.needs, me, today: today() },
   };
 }
 
@@ -52,6 +55,7 @@ export type QueueCase = Pick<
   taxpayerName: string;
   activityCode: string;
   assessBy: string | null;
+  replyUnread: boolean;
 };
 
 // Each order matches an index column for column, so PostgreSQL reads the index in order and
@@ -65,6 +69,30 @@ const ORDER: Record<CaseSort, string> = {
 };
 
 const escapeLike = (s: string) => s.replace(/[\\%_]/g, (m) => `\\${m}`);
+
+/** Case-event kinds by which someone else gives a case to an examiner (server/cases/case-workflow.ts). */
+const HANDED_KINDS = ['assigned', 'reassigned', 'handed-over'];
+
+/**
+ * The "Needs me" conditions on exam_case (alias c) for one person, each true only for their
+ * own cases still being worked (docs/design.md#case-states). "Seen" is when that person, as
+ * the case's examiner, last opened it (case_attention.assignee_seen_at).
+ */
+function needsCondition(kind: NeedsKind, p: (v: unknown) => string, me: string, todayIso: string): string {
+  const mine = `c.assignee_id = ${p(me)} AND c.state IN ('assigned', 'in_review', 'awaiting_reply')`;
+  const seen = `COALESCE((SELECT a.assignee_seen_at FROM case_attention a WHERE a.case_id = c.id), '-infinity'::timestamptz)`;
+  switch (kind) {
+    case 'reply':
+      return `${mine} AND EXISTS (SELECT 1 FROM case_attention a WHERE a.case_id = c.id AND a.reply_unread_since IS NOT NULL)`;
+    case 'expired':
+      return `${mine} AND EXISTS (SELECT 1 FROM case_event e WHERE e.case_id = c.id AND e.kind = 'reply-overdue' AND e.at > ${seen})`;
+    case 'deadline':
+      return `${mine} AND c.assess_by <= ${p(addDays(todayIso, NEEDS_DEADLINE_DAYS))}::date`;
+    case 'handed':
+      return `${mine} AND EXISTS (SELECT 1 FROM case_event e WHERE e.case_id = c.id AND e.kind = ANY(${p(HANDED_KINDS)}::text[])
+                 AND e.detail->>'to' = c.assignee_id::text AND e.actor_id IS DISTINCT FROM c.assignee_id AND e.at > ${seen})`;
+  }
+}
 
 /**
  * WHERE clause on exam_case alone (alias c) and its parameters. Filters on the return or
@@ -83,6 +111,7 @@ function where(f: CaseFilter, params: unknown[]): string {
   else if (f.assignee) parts.push(`c.assignee_id = ${p(f.assignee)}`);
   if (f.batch) parts.push(`c.batch_id = ${p(f.batch)}`);
   if (f.assessByUpTo) parts.push(`c.assess_by <= ${p(f.assessByUpTo)}::date`);
+  if (f.needs) parts.push(needsCondition(f.needs.kind, p, f.needs.me, f.needs.today));
   if (f.taxYear !== undefined) parts.push(`EXISTS (SELECT 1 FROM tax_return r WHERE r.id = c.return_id AND r.tax_year = ${p(f.taxYear)})`);
   if (f.activity) parts.push(`EXISTS (SELECT 1 FROM taxpayer t WHERE t.id = c.taxpayer_id AND t.activity_code = ${p(f.activity)})`);
   if (f.q) {
@@ -91,8 +120,13 @@ function where(f: CaseFilter, params: unknown[]): string {
       // A full TIN: the taxpayer's unique index finds it; their cases follow.
       parts.push(`c.taxpayer_id IN (SELECT id FROM taxpayer WHERE tin = ${p(digits)})`);
     } else {
-      // A return reference, by prefix in any case (idx_tax_return_ref_upper), then the case by return.
-      parts.push(`c.return_id IN (SELECT id FROM tax_return WHERE upper(return_ref) LIKE ${p(escapeLike(f.q.toUpperCase()) + '%')})`);
+      // A return reference, by prefix in any case (idx_tax_return_ref_upper), then the case by
+      // return; or a part of the taxpayer's name in any case (issue 14). The name is matched
+      // anywhere in it (people search by surname), which reads the taxpayer table once.
+      parts.push(
+        `(c.return_id IN (SELECT id FROM tax_return WHERE upper(return_ref) LIKE ${p(escapeLike(f.q.toUpperCase()) + '%')})
+          OR c.taxpayer_id IN (SELECT id FROM taxpayer WHERE name ILIKE ${p('%' + escapeLike(f.q) + '%')}))`,
+      );
     }
   }
   return parts.length ? `WHERE ${parts.join(' AND ')}` : '';
@@ -110,12 +144,14 @@ export async function findCasePage(db: Db, f: CaseFilter, sort: CaseSort, page: 
   return db.query(
     `SELECT c.id, c.state, c.selection, c.risk_score AS "riskScore", c.priority, c.amount_at_stake AS "amountAtStake", c.assignee_id AS "assigneeId",
             u.display_name AS "assigneeName", c.opened_at AS "openedAt", to_char(c.due_date, 'YYYY-MM-DD') AS "dueDate", to_char(c.assess_by, 'YYYY-MM-DD') AS "assessBy", c.batch_id AS "batchId",
-            r.return_ref AS "returnRef", r.tax_year AS "taxYear", t.tin, t.id AS "taxpayerId", t.name AS "taxpayerName", t.activity_code AS "activityCode"
+            r.return_ref AS "returnRef", r.tax_year AS "taxYear", t.tin, t.id AS "taxpayerId", t.name AS "taxpayerName", t.activity_code AS "activityCode",
+            (a.reply_unread_since IS NOT NULL) AS "replyUnread"
        FROM (SELECT c.id FROM exam_case c ${w} ORDER BY ${ORDER[sort]} LIMIT $${params.length - 1} OFFSET $${params.length}) pg
        JOIN exam_case c ON c.id = pg.id
        JOIN tax_return r ON r.id = c.return_id
        JOIN taxpayer t ON t.id = c.taxpayer_id
        LEFT JOIN app_user u ON u.id = c.assignee_id
+       LEFT JOIN case_attention a ON a.case_id = c.id
       ORDER BY ${ORDER[sort]}`,
     params,
   );
@@ -135,4 +171,49 @@ export async function* iterateCases(db: Db, f: CaseFilter, sort: CaseSort, chunk
     if (rows.length) yield rows;
     if (rows.length < chunk) return;
   }
+}
+
+/** How many of one person's cases need them for each reason (issue 14), as of `todayIso`. */
+export async function countNeeds(db: Db, me: string, todayIso: string): Promise<NeedsMe> {
+  const params: unknown[] = [];
+  const p = (v: unknown) => {
+    params.push(v);
+    return `$${params.length}`;
+  };
+  const count = (kind: NeedsKind) => `(SELECT count(*)::int FROM exam_case c WHERE ${needsCondition(kind, p, me, todayIso)}) AS ${kind}`;
+  const [row] = await db.query(`SELECT ${count('reply')}, ${count('expired')}, ${count('deadline')}, ${count('handed')}`, params);
+  return { reply: row.reply, expired: row.expired, deadline: row.deadline, handed: row.handed };
+}
+
+/** Marks a case as having a taxpayer's reply its examiner has not opened (the reply link, in its transaction). */
+export async function markReplyUnread(db: Db, caseId: string): Promise<void> {
+  await db.query(
+    `INSERT INTO case_attention (case_id, reply_unread_since) VALUES ($1, now())
+     ON CONFLICT (case_id) DO UPDATE SET reply_unread_since = COALESCE(case_attention.reply_unread_since, EXCLUDED.reply_unread_since)`,
+    [caseId],
+  );
+}
+
+/**
+ * The case's examiner opened it: clears an unread reply and notes when. Returns when the
+ * cleared reply had arrived (null when there was none). Does nothing for anyone else.
+ */
+export async function markSeenByAssignee(db: Db, caseId: string, userId: string): Promise<Date | null> {
+  const rows: { was: Date | null }[] = await db.query(
+    `WITH held AS (SELECT id FROM exam_case WHERE id = $1 AND assignee_id = $2),
+          before AS (SELECT reply_unread_since AS was FROM case_attention WHERE case_id IN (SELECT id FROM held)),
+          up AS (
+            INSERT INTO case_attention (case_id, assignee_seen_at) SELECT id, now() FROM held
+            ON CONFLICT (case_id) DO UPDATE SET assignee_seen_at = now(), reply_unread_since = NULL
+            RETURNING case_id)
+     SELECT (SELECT was FROM before) AS was FROM up`,
+    [caseId, userId],
+  );
+  return rows[0]?.was ?? null;
+}
+
+/** When an unread reply arrived on a case, or null (for readers other than its examiner). */
+export async function findReplyUnreadSince(db: Db, caseId: string): Promise<Date | null> {
+  const rows: { since: Date | null }[] = await db.query(`SELECT reply_unread_since AS since FROM case_attention WHERE case_id = $1`, [caseId]);
+  return rows[0]?.since ?? null;
 }

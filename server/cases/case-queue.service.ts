@@ -12,14 +12,26 @@ import ExcelJS from 'exceljs';
 import type { Writable } from 'node:stream';
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
-import type { CaseList, CaseListItem, CaseListQuery } from '../../shared/case-api';
-import { CASE_STATE_LABELS } from '../../shared/cases';
+import type { CaseDetail, CaseList, CaseListItem, CaseListQuery, NeedsMe } from '../../shared/case-api';
+import { CASE_STATE_LABELS, isFinalState } from '../../shared/cases';
 import { SCREENING_CAUTION } from '../../shared/cautions';
 import { safeCellText } from '../../shared/spreadsheet-text';
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
-import { caseFilterOf, countCases, findCasePage, iterateCases, type CaseFilter, type QueueCase } from './case-queue.repository';
-import { now as officeNow } from '../clock';
+import type { SessionUser } from '../auth/access';
+import {
+  caseFilterOf,
+  countCases,
+  countNeeds,
+  findCasePage,
+  findReplyUnreadSince,
+  iterateCases,
+  markSeenByAssignee,
+  type CaseFilter,
+  type QueueCase,
+} from './case-queue.repository';
+import { getCaseDetail } from './case-detail.service';
+import { now as officeNow, today } from '../clock';
 
 function toItem(r: QueueCase): CaseListItem {
   return {
@@ -40,6 +52,8 @@ function toItem(r: QueueCase): CaseListItem {
     openedAt: r.openedAt.toISOString(),
     dueDate: r.dueDate,
     assessBy: r.assessBy,
+    finished: isFinalState(r.state),
+    replyUnread: r.replyUnread,
   };
 }
 
@@ -73,7 +87,7 @@ export function dropQueueTotals(ds: DataSource): void {
  * callers arriving while it runs wait for the same count instead of starting their own.
  */
 async function queueTotal(ds: DataSource, f: CaseFilter): Promise<number> {
-  if (f.assignee !== undefined || f.q) return countCases(ds, f);
+  if (f.assignee !== undefined || f.q || f.needs) return countCases(ds, f);
   const byFilter = totals.get(ds) ?? new Map<string, CachedTotal>();
   totals.set(ds, byFilter);
   const key = JSON.stringify([f.states, f.batch, f.taxYear, f.activity, f.assessByUpTo]);
@@ -109,6 +123,23 @@ export async function listCases(ds: DataSource, audit: StaffAudit, q: CaseListQu
   return { items: rows.map(toItem), total, page: q.page, pageSize: q.pageSize };
 }
 
+/** How many of the caller's own cases need them for each reason (the "Needs me" strip, issue 14). */
+export async function needsMe(ds: DataSource, actor: Pick<SessionUser, 'id'>): Promise<NeedsMe> {
+  return countNeeds(ds, actor.id, today());
+}
+
+/**
+ * One case as the case screen reads it, and, when the reader is the case's examiner, the
+ * case counted as opened by them: an unread reply is cleared (and reported once, in
+ * `replyUnreadSince`, so the screen can say what is new) and "handed to me" and "requests
+ * expired" stop counting what came before this moment.
+ */
+export async function openCase(ds: DataSource, audit: StaffAudit, caseId: string): Promise<CaseDetail> {
+  const detail = await getCaseDetail(ds, audit, caseId);
+  const since = detail.assignee?.id === audit.actor.id ? await markSeenByAssignee(ds, caseId, audit.actor.id) : await findReplyUnreadSince(ds, caseId);
+  return { ...detail, replyUnreadSince: since ? since.toISOString() : null };
+}
+
 /** Words for the filters of an export (its access-log line and its About sheet). */
 function describeFilter(f: CaseFilter, q: CaseListQuery): string {
   const parts = [
@@ -118,6 +149,7 @@ function describeFilter(f: CaseFilter, q: CaseListQuery): string {
     f.taxYear ? `tax year ${f.taxYear}` : null,
     f.activity ? `activity ${f.activity}` : null,
     f.assessByUpTo ? `assessment deadline by ${f.assessByUpTo}` : null,
+    f.needs ? `needing the caller: ${f.needs.kind}` : null,
     // A full TIN in a log line would show the administrator taxpayer data: mask it.
     f.q ? `search "${/^\d{9}$/.test(f.q) ? maskTin(f.q) : f.q}"` : null,
     `sorted by ${q.sort}`,

@@ -5,8 +5,8 @@ import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
 import { addNote, assign, bulkReassign, claim, reopen, revealTin, transition } from './case-actions.service';
-import { getCaseDetail, listExaminers } from './case-detail.service';
-import { exportCases, listCases } from './case-queue.service';
+import { listExaminers } from './case-detail.service';
+import { exportCases, listCases, openCase } from './case-queue.service';
 import { today as officeToday } from '../clock';
 
 /**
@@ -50,7 +50,7 @@ export function caseRoutes(deps: Pick<AppDeps, 'dataSource'>) {
 
   r.get('/cases/:id', allow('readCases'), async (req, res) => {
     res.setHeader('Cache-Control', 'no-store');
-    res.json(await getCaseDetail(ds, staffAuditOf(req), String(req.params.id)));
+    res.json(await openCase(ds, staffAuditOf(req), String(req.params.id)));
   });
 
   r.post('/cases/:id/claim', allow('workCases'), async (req, res) => {

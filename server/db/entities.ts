@@ -16,6 +16,8 @@ import { User } from '../users/user.entity';
 import { DocumentRequest } from '../letters/document-request.entity';
 import { Letter } from '../letters/letter.entity';
 import { ReplyUpload } from '../letters/reply-upload.entity';
+import { CaseAttention } from '../cases/case-attention.entity';
+import { SavedViewRecord } from '../saved-views/saved-view.entity';
 
 export const entities = [
   User,
@@ -35,4 +37,6 @@ export const entities = [
   Letter,
   DocumentRequest,
   ReplyUpload,
+  CaseAttention,
+  SavedViewRecord,
 ];

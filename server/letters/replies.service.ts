@@ -21,6 +21,7 @@ import { recordAccess } from '../access-log/access-log.service';
 import type { AuditContext } from '../access-log/audit-context';
 import { today } from '../clock';
 import { endReplyWait } from '../cases/case-workflow';
+import { markReplyUnread } from '../cases/case-queue.repository';
 import { HttpError } from '../http/errors';
 import { findRequestByTokenHash, hasNewerWaitingRequest, markExpired, storeReply, type RequestByToken } from './letters.repository';
 import { hashReplyToken } from './letters.service';
@@ -99,6 +100,7 @@ export async function receiveReply(ds: DataSource, audit: AuditContext, token: s
     // does not end the wait for a later one.
     const detail = { documentRequestId: r.id, letterId: r.letterId, files: checked.length };
     await endReplyWait(m, r.caseId, 'reply-received', detail, !(await hasNewerWaitingRequest(m, r.caseId, r.id)));
+    await markReplyUnread(m, r.caseId); // the examiner's flag until they open the case (issue 14)
     await recordAccess(m, audit, {
       action: 'change',
       recordType: 'document_request',

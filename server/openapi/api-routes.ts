@@ -20,6 +20,7 @@ import {
   CaseListSchema,
   CaseNoteSchema,
   ExaminerListSchema,
+  NeedsMeSchema,
   RevealedTinSchema,
   WorkloadSchema,
 } from '../../shared/case-api';
@@ -28,6 +29,7 @@ import { digitProfileSchema } from '../../shared/digits/schema';
 import { ControlsQuerySchema, ControlsSchema, OutcomesQuerySchema, OutcomesSchema } from '../../shared/programme/api';
 import { HealthResponseSchema } from '../../shared/health';
 import { HousekeepingResultSchema } from '../../shared/housekeeping';
+import { SavedViewCreateSchema, SavedViewListSchema, SavedViewSchema } from '../../shared/saved-views';
 import {
   DocumentRequestInputSchema,
   LetterCreatedSchema,
@@ -92,6 +94,9 @@ export const COMPONENTS = {
   BulkReassignResult: BulkReassignResultSchema,
   ExaminerList: ExaminerListSchema,
   Workload: WorkloadSchema,
+  NeedsMe: NeedsMeSchema,
+  SavedView: SavedViewSchema,
+  SavedViewList: SavedViewListSchema,
   HousekeepingResult: HousekeepingResultSchema,
   ProgrammeOutcomes: OutcomesSchema,
   RandomReviewCases: ControlsSchema,
@@ -465,6 +470,46 @@ export const API_ROUTES: readonly ApiRoute[] = [
     tag: 'cases',
     summary: 'The full TIN of the case’s taxpayer (written to the access log)',
     responses: { 200: json(RevealedTinSchema, 'The TIN.'), 404: noCase },
+  },
+
+  // server/cases/case-queue.routes.ts
+  {
+    method: 'get',
+    path: '/api/needs-me',
+    operationId: 'getNeedsMe',
+    tag: 'cases',
+    summary: 'How many of the caller’s own cases need them: replies received, requests expired, deadlines near, handed to them',
+    responses: { 200: json(NeedsMeSchema, 'The counts by reason.') },
+  },
+
+  // server/saved-views/saved-views.routes.ts
+  {
+    method: 'get',
+    path: '/api/saved-views',
+    operationId: 'listSavedViews',
+    tag: 'cases',
+    summary: 'The caller’s saved views of the queue, oldest first',
+    responses: { 200: json(SavedViewListSchema, 'The views.') },
+  },
+  {
+    method: 'post',
+    path: '/api/saved-views',
+    operationId: 'createSavedView',
+    tag: 'cases',
+    summary: 'Keep the queue’s filters and order under a name',
+    body: SavedViewCreateSchema,
+    responses: {
+      201: json(SavedViewSchema, 'The view as kept.'),
+      409: error('The caller already has a view of that name.'),
+    },
+  },
+  {
+    method: 'delete',
+    path: '/api/saved-views/:id',
+    operationId: 'deleteSavedView',
+    tag: 'cases',
+    summary: 'Delete one of the caller’s saved views',
+    responses: { 204: empty('Deleted.'), 404: error('The caller has no view with this id.') },
   },
 
   // server/cases/workload.routes.ts

@@ -2,7 +2,17 @@ import { Link, useLocalSearchParams, useRouter } from 'expo-router';
 import { useEffect, useState } from 'react';
 import { Linking, Platform, Pressable, View } from 'react-native';
 import { DeadlineLabel } from './deadline-bits';
-import { CASE_SORT_LABELS, CASE_SORTS, type CaseListItem, type CaseListParams, type CaseSort } from '../../../shared/case-api';
+import {
+  CASE_SORT_LABELS,
+  CASE_SORTS,
+  NEEDS_KINDS,
+  NEEDS_LABELS,
+  type CaseListItem,
+  type CaseListParams,
+  type CaseSort,
+  type NeedsKind,
+} from '../../../shared/case-api';
+import { SavedViewFiltersSchema, type SavedViewFilters } from '../../../shared/saved-views';
 import { CASE_STATE_LABELS } from '../../../shared/cases';
 import { SCREENING_CAUTION } from '../../../shared/cautions';
 import { ACTIVITY_CODES } from '../../../shared/returns/line-codes';
@@ -17,6 +27,9 @@ import { HeaderLabel, TableHeaderRow } from '../../ui/table-header-row';
 import { Txt } from '../../ui/text';
 import { age, amount, ScoreMeter, StateBadge, whole } from './case-bits';
 import { exportUrl, useCaseList, useExaminers } from './use-cases';
+import { NeedsMeStrip } from './needs-me-strip';
+import { SavedViewsBar } from './saved-views-bar';
+import { useNeedsMe } from './use-my-cases';
 
 const PAGE_SIZE = 25;
 
@@ -32,7 +45,26 @@ const STATE_CHOICES: { value: string; label: string }[] = [
 
 const SORT_CHOICES = CASE_SORTS.map((s) => ({ value: s, label: CASE_SORT_LABELS[s] }));
 
-type Params = { state?: string; sort?: string; page?: string; q?: string; taxYear?: string; activity?: string; assignee?: string; batch?: string };
+/** The assessment-deadline filter (issue 13's `deadlineWithin`): any, or within so many days. */
+const WITHIN_CHOICES = [
+  { value: 'any', label: 'Any' },
+  { value: '30', label: 'Within 30 days' },
+  { value: '90', label: 'Within 90 days' },
+  { value: '365', label: 'Within a year' },
+];
+
+type Params = {
+  state?: string;
+  sort?: string;
+  page?: string;
+  q?: string;
+  taxYear?: string;
+  activity?: string;
+  assignee?: string;
+  batch?: string;
+  deadlineWithin?: string;
+  needs?: string;
+};
 
 /** The filters live in the address, so Back from a case returns to the same page of the queue. */
 function useQueueParams() {
@@ -54,6 +86,8 @@ function useQueueParams() {
           activity: undefined,
           assignee: undefined,
           batch: undefined,
+          deadlineWithin: undefined,
+          needs: undefined,
           ...merged,
         }).map(([k, v]) => [k, v ?? '']),
       ),
@@ -142,7 +176,10 @@ function TableRow({ c }: { c: CaseListItem }) {
           </Txt>
         </Cell>
         <Cell w={COLS.state}>
-          <StateBadge state={c.state} />
+          <View style={{ gap: 4 }}>
+            <StateBadge state={c.state} />
+            <CaseFlags c={c} />
+          </View>
         </Cell>
         <Cell w={COLS.who}>
           <Txt variant="small" tone={c.assigneeName ? 'ink' : 'faint'} numberOfLines={1}>
@@ -172,6 +209,7 @@ function CaseCard({ c }: { c: CaseListItem }) {
             </Txt>
             <StateBadge state={c.state} />
           </View>
+          <CaseFlags c={c} />
           <View>
             <Txt bold numberOfLines={1}>
               {c.taxpayerName}
@@ -208,29 +246,73 @@ function CaseCard({ c }: { c: CaseListItem }) {
   );
 }
 
-/** Examiner's and supervisor's ranked queue: filters, sort, search, paging, export. */
+/** A taxpayer's reply the examiner has not opened, and a finished case found by a search. */
+function CaseFlags({ c }: { c: CaseListItem }) {
+  if (!c.replyUnread && !c.finished) return null;
+  return (
+    <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.xs }}>
+      {c.replyUnread && (
+        <View style={{ backgroundColor: colours.alertSoft, borderRadius: radius.sm, paddingHorizontal: space.sm, paddingVertical: 1 }}>
+          <Txt variant="caption" bold tone="alert" testID={`reply-flag-${c.returnRef}`}>
+            ● New reply
+          </Txt>
+        </View>
+      )}
+      {c.finished && (
+        <View style={{ backgroundColor: colours.neutralSoft, borderRadius: radius.sm, paddingHorizontal: space.sm, paddingVertical: 1 }}>
+          <Txt variant="caption" bold testID={`finished-${c.returnRef}`}>
+            Finished
+          </Txt>
+        </View>
+      )}
+    </View>
+  );
+}
+
+/** Keeps only the filters that are set (a view keeps no empty keys). */
+function compact(f: SavedViewFilters): SavedViewFilters {
+  return Object.fromEntries(Object.entries(f).filter(([, v]) => v !== undefined && v !== '')) as SavedViewFilters;
+}
+
+/**
+ * Examiner's and supervisor's ranked queue: saved views, the examiner's "Needs me", filters,
+ * sort, search, paging, export. An examiner starts on their own cases ("My cases"); a search
+ * reaches every case in every state unless a filter was chosen, and marks finished cases.
+ */
 export function QueueScreen() {
   const wide = useIsWide();
   const session = useSession();
   const role = session.data?.user.role;
+  const isExaminer = role === 'examiner';
   const examiners = useExaminers();
   const { p, set } = useQueueParams();
   const [search, setSearch] = useState(p.q ?? '');
-  const [more, setMore] = useState(!!(p.taxYear || p.activity || p.batch));
+  const [more, setMore] = useState(!!(p.taxYear || p.activity || p.batch || p.deadlineWithin));
   // On a phone the filters fold away so the first cases show without scrolling.
   const [showFilters, setShowFilters] = useState(false);
   const [year, setYear] = useState(p.taxYear ?? '');
   useEffect(() => setSearch(p.q ?? ''), [p.q]);
 
+  const searching = !!p.q;
+  // The defaults when the address names none: an examiner's own cases being worked; a search, everyone's in every state.
+  const assignee = p.assignee ?? (isExaminer && !searching ? 'me' : 'any');
+  const state = p.state ?? (searching ? 'all' : 'active');
+  const needs = (NEEDS_KINDS as readonly string[]).includes(p.needs ?? '') ? (p.needs as NeedsKind) : undefined;
+  const within = p.deadlineWithin && /^\d{1,4}$/.test(p.deadlineWithin) ? Number(p.deadlineWithin) : undefined;
+  const mine = assignee === 'me' && !searching;
+  const needsCounts = useNeedsMe(isExaminer);
+
   const page = Math.max(1, Number(p.page) || 1);
   const query: Partial<CaseListParams> = {
-    state: p.state ?? 'active',
+    state,
     sort: (CASE_SORTS as readonly string[]).includes(p.sort ?? '') ? (p.sort as CaseSort) : 'priority',
     q: p.q,
     taxYear: p.taxYear,
     activity: p.activity as CaseListParams['activity'],
-    assignee: p.assignee,
+    assignee: assignee === 'any' ? undefined : assignee,
     batch: p.batch,
+    deadlineWithin: within,
+    needs,
     page,
     pageSize: PAGE_SIZE,
   };
@@ -238,9 +320,35 @@ export function QueueScreen() {
   const total = list.data?.total ?? 0;
   const pages = Math.max(1, Math.ceil(total / PAGE_SIZE));
 
+  // What a saved view keeps: the filters and order in effect now.
+  const current = compact({
+    state: state as SavedViewFilters['state'],
+    sort: query.sort as CaseSort,
+    assignee: assignee as SavedViewFilters['assignee'],
+    taxYear: p.taxYear ? Number(p.taxYear) : undefined,
+    activity: query.activity,
+    deadlineWithin: within,
+    needs,
+    q: p.q,
+  });
+  const applyView = (f: SavedViewFilters) => {
+    const v = SavedViewFiltersSchema.parse(f);
+    set({
+      state: v.state,
+      sort: v.sort,
+      assignee: v.assignee,
+      taxYear: v.taxYear === undefined ? undefined : String(v.taxYear),
+      activity: v.activity,
+      deadlineWithin: v.deadlineWithin === undefined ? undefined : String(v.deadlineWithin),
+      needs: v.needs,
+      q: v.q,
+      batch: undefined,
+    });
+  };
+
   const whoChoices = [
+    ...(isExaminer ? [{ value: 'me', label: 'Mine' }] : []),
     { value: 'any', label: 'Anyone' },
-    ...(role === 'examiner' ? [{ value: 'me', label: 'Mine' }] : []),
     { value: 'none', label: 'Nobody yet' },
     ...(role === 'supervisor' ? (examiners.data?.items ?? []).map((e) => ({ value: e.id, label: e.displayName })) : []),
   ];
@@ -250,15 +358,24 @@ export function QueueScreen() {
     if (Platform.OS === 'web' && typeof window !== 'undefined') window.location.assign(url);
     else void Linking.openURL(url);
   };
+  const summary = [
+    STATE_CHOICES.find((c) => c.value === state)?.label ?? state,
+    CASE_SORT_LABELS[query.sort as CaseSort],
+    whoChoices.find((c) => c.value === assignee)?.label ?? 'One examiner',
+    within !== undefined ? `deadline within ${within} days` : null,
+    needs ? NEEDS_LABELS[needs].toLowerCase() : null,
+  ]
+    .filter(Boolean)
+    .join(' · ');
 
   return (
     <View style={{ gap: space.lg }}>
       <View style={{ flexDirection: wide ? 'row' : 'column', justifyContent: 'space-between', alignItems: wide ? 'flex-end' : 'stretch', gap: space.sm }}>
         <View style={{ gap: space.xs, flexShrink: 1 }}>
           <Txt variant="display" bold accessibilityRole="header">
-            Examination queue
+            {mine ? 'My cases' : 'Examination queue'}
           </Txt>
-          <Txt tone="soft">Returns selected by scoring for a human look, highest first.</Txt>
+          <Txt tone="soft">{mine ? 'Cases you hold, highest priority first.' : 'Returns selected by scoring for a human look, highest first.'}</Txt>
           <Txt variant="small" tone="soft" testID="screening-caution">
             {SCREENING_CAUTION}
           </Txt>
@@ -268,14 +385,20 @@ export function QueueScreen() {
         )}
       </View>
 
+      <SavedViewsBar current={current} onApply={applyView} />
+
+      {isExaminer && !searching && (
+        <NeedsMeStrip counts={needsCounts.data} active={needs} wide={wide} onChoose={(k) => set({ needs: k, assignee: k ? 'me' : p.assignee })} />
+      )}
+
       <Card style={{ gap: space.md }}>
         <View style={{ flexDirection: 'row', gap: space.sm, alignItems: 'flex-end' }}>
           <View style={{ flex: 1 }}>
             <Field
               testID="queue-search"
-              label="Find a return"
-              placeholder="Return reference or 9-digit TIN"
-              autoCapitalize="characters"
+              label="Find a case"
+              placeholder="Reference, 9-digit TIN or taxpayer name"
+              autoCapitalize="none"
               value={search}
               onChangeText={setSearch}
               onSubmitEditing={() => set({ q: search.trim() || undefined })}
@@ -287,7 +410,7 @@ export function QueueScreen() {
         {p.q && (
           <Pressable accessibilityRole="button" onPress={() => set({ q: undefined })} testID="queue-search-clear">
             <Txt variant="small" tone="brass" bold>
-              Showing matches for “{p.q}” · clear ✕
+              Showing matches for “{p.q}”{p.state ? '' : ' in every state, finished ones marked'} · clear ✕
             </Txt>
           </Pressable>
         )}
@@ -298,9 +421,8 @@ export function QueueScreen() {
             testID="queue-filters-toggle"
             style={{ flexDirection: 'row', justifyContent: 'space-between', gap: space.sm }}
           >
-            <Txt variant="small" tone="soft" style={{ flex: 1 }} numberOfLines={1}>
-              {STATE_CHOICES.find((c) => c.value === (p.state ?? 'active'))?.label ?? p.state} · {CASE_SORT_LABELS[query.sort as CaseSort]} ·{' '}
-              {whoChoices.find((c) => c.value === (p.assignee ?? 'any'))?.label ?? 'One examiner'}
+            <Txt variant="small" tone="soft" style={{ flex: 1 }} numberOfLines={2}>
+              {summary}
             </Txt>
             <Txt variant="small" bold tone="brass">
               {showFilters ? 'Hide filters ▴' : 'Filters ▾'}
@@ -310,13 +432,7 @@ export function QueueScreen() {
         {(wide || showFilters) && (
           <>
             <View style={{ flexDirection: wide ? 'row' : 'column', gap: space.md, flexWrap: 'wrap' }}>
-              <ChoiceRow
-                testID="queue-state"
-                label="State"
-                options={STATE_CHOICES}
-                value={p.state ?? 'active'}
-                onChange={(v) => set({ state: v === 'active' ? undefined : v })}
-              />
+              <ChoiceRow testID="queue-state" label="State" options={STATE_CHOICES} value={state} onChange={(v) => set({ state: v })} />
               <ChoiceRow
                 testID="queue-sort"
                 label="Order"
@@ -329,8 +445,15 @@ export function QueueScreen() {
               testID="queue-who"
               label="Held by"
               options={whoChoices}
-              value={p.assignee ?? 'any'}
-              onChange={(v) => set({ assignee: v === 'any' ? undefined : v })}
+              value={assignee}
+              onChange={(v) => set({ assignee: !isExaminer && v === 'any' ? undefined : v, needs: v === 'me' ? p.needs : undefined })}
+            />
+            <ChoiceRow
+              testID="queue-within"
+              label="Assessment deadline"
+              options={WITHIN_CHOICES}
+              value={within === undefined ? 'any' : String(within)}
+              onChange={(v) => set({ deadlineWithin: v === 'any' ? undefined : v })}
             />
             <Pressable accessibilityRole="button" onPress={() => setMore(!more)} testID="queue-more">
               <Txt variant="small" bold tone="brass">
@@ -383,7 +506,9 @@ export function QueueScreen() {
         <>
           <Txt variant="small" tone="soft" testID="queue-total">
             {total === 0
-              ? 'No cases match these filters.'
+              ? mine && !needs && state === 'active'
+                ? 'You hold no cases being worked. Choose “Anyone” under Held by to find one to claim.'
+                : 'No cases match these filters.'
               : `${whole((page - 1) * PAGE_SIZE + 1)}–${whole(Math.min(total, page * PAGE_SIZE))} of ${whole(total)} case${total === 1 ? '' : 's'}`}
             {query.state === 'active' ? ' being worked' : ''}
             {` · by ${CASE_SORT_LABELS[query.sort as CaseSort].toLowerCase()}`}

@@ -11,6 +11,7 @@ import { Letters1764900000000 } from './1764900000000-letters';
 import { ScoringVersionTwo1764960000000 } from './1764960000000-scoring-v2';
 import { Programme1765000000000 } from './1765000000000-programme';
 import { CaseCalendar1765100000000 } from './1765100000000-case-calendar';
+import { MyCases1766040000000 } from './1766040000000-my-cases';
 
 export const migrations = [
   Foundation1764600000000,
@@ -22,4 +23,5 @@ export const migrations = [
   ScoringVersionTwo1764960000000,
   Programme1765000000000,
   CaseCalendar1765100000000,
+  MyCases1766040000000,
 ];
