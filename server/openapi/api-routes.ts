@@ -26,7 +26,7 @@ import {
 } from '../../shared/case-api';
 import { AssignRequestSchema, NoteRequestSchema, ReopenRequestSchema, TransitionRequestSchema } from '../../shared/cases';
 import { digitProfileSchema } from '../../shared/digits/schema';
-import { ControlsQuerySchema, ControlsSchema, OutcomesQuerySchema, OutcomesSchema } from '../../shared/programme/api';
+import { ControlsQuerySchema, ControlsSchema, OutcomesQuerySchema, OutcomesSchema, PreviewRequestSchema, PreviewSchema } from '../../shared/programme/api';
 import { HealthResponseSchema } from '../../shared/health';
 import { HousekeepingResultSchema } from '../../shared/housekeeping';
 import { SavedViewCreateSchema, SavedViewListSchema, SavedViewSchema } from '../../shared/saved-views';
@@ -319,6 +319,15 @@ export const API_ROUTES: readonly ApiRoute[] = [
     tag: 'scoring',
     summary: 'How often each factor’s closed cases were adjusted, with suggested weights',
     responses: { 200: json(PerformanceSchema, 'The performance of the active version.') },
+  },
+  {
+    method: 'post',
+    path: '/api/scoring/preview',
+    operationId: 'previewScoringProfile',
+    tag: 'scoring',
+    summary: 'What a profile would select in a scored batch (stay, leave, join, expected yield); saves nothing',
+    body: PreviewRequestSchema,
+    responses: { 200: json(PreviewSchema, 'The preview.'), 404: error('No such batch.'), 409: error('The batch has no finished scoring.') },
   },
   {
     method: 'post',

@@ -112,3 +112,107 @@ export async function randomCasesOf(db: Db, batchId: string): Promise<{ caseId: 
     [batchId],
   );
 }
+
+/** A scored return of a run, as the capacity selection takes it. */
+export interface RankedScore {
+  returnId: string;
+  taxpayerId: string;
+  scoreId: string;
+  riskScore: number;
+  stakeCents: number;
+  priority: number;
+}
+
+/** The run's scored returns with a score above 0 (candidates of a capacity selection). */
+export async function positiveScores(db: Db, batchId: string, version: number): Promise<RankedScore[]> {
+  const rows: { returnId: string; taxpayerId: string; scoreId: string; riskScore: string; stakeCents: string; priority: string }[] = await db.query(
+    `SELECT s.return_id AS "returnId", r.taxpayer_id AS "taxpayerId", s.id::text AS "scoreId", s.risk_score::text AS "riskScore",
+            round(s.amount_at_stake * 100)::bigint::text AS "stakeCents", s.priority::text AS priority
+       FROM return_score s JOIN tax_return r ON r.id = s.return_id
+      WHERE s.batch_id = $1 AND s.profile_version = $2 AND s.status = 'scored' AND s.risk_score > 0`,
+    [batchId, version],
+  );
+  return rows.map((r) => ({ ...r, riskScore: Number(r.riskScore), stakeCents: Number(r.stakeCents), priority: Number(r.priority) }));
+}
+
+/** Records in the chosen scores' breakdowns that they were selected, and the cut that filled the capacity. */
+export async function markSelected(db: Db, scoreIds: string[], cut: number): Promise<void> {
+  if (!scoreIds.length) return;
+  await db.query(
+    `UPDATE return_score SET breakdown = jsonb_set(jsonb_set(breakdown, '{selected}', 'true'), '{selectionCut}', to_jsonb($2::numeric))
+      WHERE id = ANY($1::bigint[])`,
+    [scoreIds, cut],
+  );
+}
+
+/** The batch's latest finished scoring run: its profile version. */
+export async function latestFinishedRun(db: Db, batchId: string): Promise<{ version: number } | null> {
+  const r = await db.query(
+    `SELECT profile_version AS version FROM scoring_run WHERE batch_id = $1 AND finished_at IS NOT NULL ORDER BY finished_at DESC, profile_version DESC LIMIT 1`,
+    [batchId],
+  );
+  return r[0] ? { version: Number(r[0].version) } : null;
+}
+
+/** A scored return with its stored components, for the preview. */
+export interface StoredScore {
+  returnId: string;
+  riskScore: number;
+  priority: number;
+  stakeCents: number;
+  selected: boolean;
+  components: { key: string; weight: number; strength: number; points: number }[];
+}
+
+/** Every scored return of a run with its components (weights, strengths, points) as stored. */
+export async function storedScores(db: Db, batchId: string, version: number): Promise<StoredScore[]> {
+  const rows: { returnId: string; riskScore: string; priority: string; stakeCents: string; selected: boolean; components: StoredScore['components'] }[] =
+    await db.query(
+      `SELECT s.return_id AS "returnId", s.risk_score::text AS "riskScore", s.priority::text AS priority,
+              round(s.amount_at_stake * 100)::bigint::text AS "stakeCents",
+              coalesce((s.breakdown->>'selected')::boolean, false) AS selected,
+              (SELECT jsonb_agg(jsonb_build_object('key', x->>'key', 'weight', (x->>'weight')::numeric, 'strength', (x->>'strength')::numeric, 'points', (x->>'points')::numeric))
+                 FROM jsonb_array_elements(s.breakdown->'components') x) AS components
+         FROM return_score s
+        WHERE s.batch_id = $1 AND s.profile_version = $2 AND s.status = 'scored'`,
+      [batchId, version],
+    );
+  return rows.map((r) => ({
+    returnId: r.returnId,
+    riskScore: Number(r.riskScore),
+    priority: Number(r.priority),
+    stakeCents: Number(r.stakeCents),
+    selected: r.selected,
+    components: (r.components ?? []).map((c) => ({ key: c.key, weight: Number(c.weight), strength: Number(c.strength), points: Number(c.points) })),
+  }));
+}
+
+/** A closed case (adjusted or no change) with its score's components and the chance it had of being examined. */
+export interface ClosedForFit {
+  id: string;
+  selection: 'score' | 'random';
+  adjusted: boolean;
+  adjustedCents: string | null;
+  /** The sampling rate of its run's random review sample (random cases only). */
+  rate: number | null;
+  components: { key: string; strength: number }[];
+}
+
+/** Every case closed adjusted or with no change, with what the outcome model needs. */
+export async function closedCasesForFit(db: Db): Promise<ClosedForFit[]> {
+  const rows: (Omit<ClosedForFit, 'rate'> & { rate: string | null })[] = await db.query(
+    `SELECT c.id, c.selection, c.state = 'closed_adjusted' AS adjusted, round(c.adjusted_amount * 100)::bigint::text AS "adjustedCents",
+            run.random_sample->>'rate' AS rate,
+            (SELECT jsonb_agg(jsonb_build_object('key', x->>'key', 'strength', (x->>'strength')::numeric)) FROM jsonb_array_elements(s.breakdown->'components') x) AS components
+       FROM exam_case c
+       JOIN return_score s ON s.id = c.score_id
+       LEFT JOIN scoring_run run ON run.batch_id = s.batch_id AND run.profile_version = s.profile_version
+      WHERE c.state IN ('closed_adjusted', 'closed_no_change')
+      ORDER BY c.id`,
+  );
+  return rows.map((r) => ({
+    ...r,
+    rate: r.rate === null ? null : Number(r.rate),
+    components: (r.components ?? []).map((c) => ({ key: c.key, strength: Number(c.strength) })),
+  }));
+}

@@ -3,11 +3,9 @@
  * cases. Versions are never edited, so old scores always name the weights they were made
  * with.
  *
- * Suggested re-weighting (product rule, no published source): a factor's weight is scaled by
- * how much more (or less) often the closed cases it flagged ended adjusted than closed cases
- * overall, w' = w × (rate_factor / rate_all), kept within ½× … 2× and 0 … 100, and left as it
- * is until the factor has flagged at least {@link MIN_EVIDENCE} closed cases. A suggestion
- * for a person to accept or not; nothing changes by itself.
+ * Suggested weights come from the Programme's outcome model, fitted without the selection's
+ * bias (server/programme/programme.service.ts learnWeights); a suggestion for a person to
+ * accept or not: nothing changes until a supervisor saves a new version.
  */
 import type PgBoss from 'pg-boss';
 import type { DataSource } from 'typeorm';
@@ -18,6 +16,8 @@ import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
 import { QUEUES } from '../queue/queues';
 import { isUuid } from '../../shared/ids';
+import type { Preview, PreviewRequest } from '../../shared/programme/api';
+import { learnWeights, previewSelection } from '../programme/programme.service';
 import {
   activeProfileVersion,
   batchState,
@@ -32,9 +32,6 @@ import {
   runExists,
   setActiveProfile,
 } from './scoring-profile.repository';
-
-/** Fewest flagged closed cases before a weight is suggested to move. */
-export const MIN_EVIDENCE = 10;
 
 export async function listProfiles(ds: DataSource): Promise<ProfileVersion[]> {
   return (await findProfiles(ds)).map((p) => ({
@@ -87,32 +84,30 @@ export async function rescoreBatch(ds: DataSource, boss: PgBoss | null, audit: S
 
 /**
  * How each factor did on closed cases: of the closed cases it added points to (under the
- * score that opened or last updated the case), how many ended adjusted.
+ * score that opened or last updated the case), how many ended adjusted; and the weights the
+ * outcome model suggests.
  */
 export async function factorPerformance(ds: DataSource): Promise<Performance> {
   const active = await findActiveProfile(ds);
   const settings = ScoringSettingsSchema.parse(active.settings);
-  const [{ closed, adjusted }, rows] = await Promise.all([finishedCaseCounts(ds), flaggedFinishedCases(ds)]);
+  const [{ closed, adjusted }, rows, learned] = await Promise.all([finishedCaseCounts(ds), flaggedFinishedCases(ds), learnWeights(ds, settings.weights)]);
   const byKey = new Map(rows.map((r) => [r.key, r]));
-  const baseRate = closed > 0 ? adjusted / closed : null;
   return {
     version: active.version,
     closedCases: closed,
     adjustedCases: adjusted,
-    baseRate,
-    minEvidence: MIN_EVIDENCE,
+    baseRate: closed > 0 ? adjusted / closed : null,
     factors: COMPONENTS.map((key) => {
       const r = byKey.get(key);
       const flagged = r?.flagged ?? 0;
       const adj = r?.adjusted ?? 0;
-      const rate = flagged > 0 ? adj / flagged : null;
-      const weight = settings.weights[key];
-      let suggested = weight;
-      if (rate !== null && baseRate && flagged >= MIN_EVIDENCE) {
-        const factor = Math.min(2, Math.max(0.5, rate / baseRate));
-        suggested = Math.round(Math.min(100, weight * factor) * 10) / 10;
-      }
-      return { key, label: COMPONENT_LABELS[key], flagged, adjusted: adj, adjustedRate: rate, weight, suggestedWeight: suggested };
+      return { key, label: COMPONENT_LABELS[key], flagged, adjusted: adj, adjustedRate: flagged > 0 ? adj / flagged : null, weight: settings.weights[key] };
     }),
+    learned,
   };
+}
+
+/** What a profile's settings would select in a scored batch, saving nothing (the Scoring screen's preview). */
+export async function previewProfile(ds: DataSource, req: PreviewRequest): Promise<Preview> {
+  return previewSelection(ds, req);
 }

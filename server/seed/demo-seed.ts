@@ -14,6 +14,7 @@ import { ingestUpload } from '../batches/batch.service';
 import { createBoss, ensureQueues } from '../queue/queues';
 import { insertUser, userNameTaken } from '../users/user.repository';
 import { writeAnswers, writeCsvBatch } from './batch-files';
+import { seedDemoHistory } from './demo-history';
 import { accountIdByUsername, anyBatchOnFile } from './demo-seed.repository';
 
 /** The demo password (README says: demo only, change before real use). */
@@ -54,10 +55,11 @@ export const DEMO_ANSWERS_DIR = path.resolve(__dirname, '..', '..', '.data', 'de
  * On first run (no batch on file yet), generates the Aldermere demo batch as CSV files and
  * loads it through the same intake service as an upload, as the demo clerk, then sends
  * its scoring job so the queue is not empty. Writes the answer file to {@link DEMO_ANSWERS_DIR}.
+ * @param evenIfBatches load it even though batches are on file (the invented demo history, seeded just before)
  * @returns a line for the start command, or null when a batch was already there
  */
-export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO_BATCH): Promise<string | null> {
-  if (await anyBatchOnFile(ds)) return null;
+export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO_BATCH, evenIfBatches = false): Promise<string | null> {
+  if (!evenIfBatches && (await anyBatchOnFile(ds))) return null;
   const clerkId = await accountIdByUsername(ds, 'clerk');
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-demo-'));
   const url = (ds.options as { url?: string }).url;
@@ -92,6 +94,9 @@ export async function seedDemoBatch(ds: DataSource, opts: GenerateOptions = DEMO
 /** Everything the demo needs. Returns a line for the start command to print. */
 export async function seedDemo(ds: DataSource): Promise<string> {
   const accounts = await seedDemoAccounts(ds);
-  const batch = await seedDemoBatch(ds);
-  return [accounts ? `created ${accounts} demo accounts` : 'demo accounts present', batch ?? 'demo batch present'].join('; ');
+  // An empty office gets the invented past period first, so the current demo batch is the newest.
+  const fresh = !(await anyBatchOnFile(ds));
+  const history = fresh ? await seedDemoHistory(ds) : null;
+  const batch = fresh ? await seedDemoBatch(ds, DEMO_BATCH, true) : null;
+  return [accounts ? `created ${accounts} demo accounts` : 'demo accounts present', ...(history ? [history] : []), batch ?? 'demo batch present'].join('; ');
 }

@@ -5,6 +5,7 @@
  * cent, not stored money.
  */
 import { z } from 'zod';
+import { ScoringSettingsSchema } from '../scoring/settings';
 
 const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Give a date as YYYY-MM-DD, e.g. 2026-01-31');
 
@@ -76,3 +77,74 @@ export type Outcomes = z.infer<typeof OutcomesSchema>;
 /** Answer of `GET /api/programme/controls`: the batch's random review cases. */
 export const ControlsSchema = z.object({ items: z.array(z.object({ caseId: z.string(), returnRef: z.string() })) });
 export type Controls = z.infer<typeof ControlsSchema>;
+
+/** One suggested weight with its 95 % interval, in points on the current profile's scale. */
+export const WeightSuggestionSchema = z.object({
+  key: z.string(),
+  label: z.string(),
+  current: z.number(),
+  suggested: z.number(),
+  low: z.number(),
+  high: z.number(),
+});
+
+/** Precision at k and adjustment yield of one ranking on the held-back closed cases. */
+export const BackTestSchema = z.object({ k: z.number().int(), precisionAtK: z.number(), yieldCents: z.number() });
+
+/**
+ * Weights learned from closed cases without the selection's bias: a weighted, regularised
+ * logistic fit (random review cases weighted 1 / sampling rate) and its back-test on closed cases
+ * held back from the fit. Null fields when too few closed cases.
+ */
+export const WeightFitSchema = z.object({
+  /** Closed cases (adjusted or no change) on file, of them chosen at random. */
+  closed: z.number().int(),
+  randomClosed: z.number().int(),
+  /** Fewest closed cases (and adjusted among them) before a fit is shown. */
+  minClosed: z.number().int(),
+  fit: z
+    .object({
+      suggestions: z.array(WeightSuggestionSchema),
+      fitted: z.number().int(),
+      heldBack: z.number().int(),
+      backTest: z.object({ current: BackTestSchema, suggested: BackTestSchema }),
+      method: z.string(),
+    })
+    .nullable(),
+});
+export type WeightFitDto = z.infer<typeof WeightFitSchema>;
+
+/** Body of `POST /api/scoring/preview`: a profile's settings tried on one scored batch, nothing saved. */
+export const PreviewRequestSchema = z.object({
+  batchId: z.uuid('Give the id of a scored batch'),
+  settings: ScoringSettingsSchema,
+});
+export type PreviewRequest = z.infer<typeof PreviewRequestSchema>;
+
+/** Answer of `POST /api/scoring/preview`. */
+export const PreviewSchema = z.object({
+  batchId: z.string(),
+  /** The run the preview reads: the batch's latest scoring, and its profile version. */
+  version: z.number().int(),
+  scored: z.number().int(),
+  selected: z.number().int(),
+  stay: z.number().int(),
+  leave: z.number().int(),
+  join: z.number().int(),
+  /** The score at which selection stops (the capacity's cut, or the fixed one); null when nothing is selected. */
+  cut: z.number().nullable(),
+  /** False when the factor parameters differ from the run's: the preview then uses the run's strengths. */
+  exact: z.boolean(),
+  note: z.string(),
+  /** Expected adjustments and amount among the selection, from the outcomes so far; null when too few. */
+  expected: z
+    .object({
+      adjusted: z.number(),
+      rate: z.number(),
+      amountCents: z.number(),
+      closedCases: z.number().int(),
+      method: z.string(),
+    })
+    .nullable(),
+});
+export type Preview = z.infer<typeof PreviewSchema>;

@@ -9,18 +9,10 @@
  * return, so a small sample still spreads across activities and incomes. Pure and seeded: the
  * same candidates and seed give the same draw on every machine, whatever their input order.
  */
-import { z } from 'zod';
 import { createRng } from '../demo/prng';
 
-/** The default share of a batch drawn for random review (1 %); at least one return is drawn. */
+/** The default share of a batch drawn for random review (1 %; a profile's `randomShare`, shared/scoring/settings.ts); at least one return is drawn. */
 export const DEFAULT_RANDOM_SHARE = 0.01;
-
-/** The programme's own settings (until they join the scoring profile). */
-export const ProgrammeSettingsSchema = z.object({
-  /** Share of the batch's returns drawn from below the cut, 0 to 0.2. */
-  randomShare: z.number().min(0).max(0.2).default(DEFAULT_RANDOM_SHARE),
-});
-export type ProgrammeSettings = z.infer<typeof ProgrammeSettingsSchema>;
 
 /** A return below the cut that may be drawn. */
 export interface SampleCandidate {

@@ -2,10 +2,10 @@
  * Weights learned without the selection bias (issue 17, docs/methods.md#programme-outcomes):
  * a weighted, L2-regularised logistic regression of "closed adjusted" on the components'
  * strengths, random review cases weighted 1 / sampling rate, and a back-test on closed cases
- * held back from the fit. Pure; not yet wired into the Scoring screen's performance answer.
+ * held back from the fit. Pure; the Scoring screen shows it (GET /api/scoring/performance).
  */
 import { createRng } from '../demo/prng';
-import { fitLogistic } from '../stats/logistic';
+import { fitLogistic, type LogisticFit } from '../stats/logistic';
 
 /** One closed case: its components' strengths (0–1, in the order of `keys`), outcome and weight. */
 export interface FitCase {
@@ -43,6 +43,22 @@ export interface WeightFit {
   method: string;
 }
 
+/**
+ * The outcome model: P(closed adjusted | strengths), a logistic fit with each case's weight
+ * (1 selected, 1 / sampling rate random), weights scaled to sum to the number of cases so the
+ * ridge penalty λ on the slopes means the same whatever the sampling rate.
+ */
+export function fitOutcomeModel(cases: readonly FitCase[], lambda = 1): LogisticFit {
+  const total = cases.reduce((t, c) => t + c.weight, 0);
+  const scale = total > 0 ? cases.length / total : 1;
+  return fitLogistic({
+    x: cases.map((c) => c.strengths),
+    y: cases.map((c) => (c.adjusted ? 1 : 0)),
+    weights: cases.map((c) => c.weight * scale),
+    lambda,
+  });
+}
+
 function rank(cases: readonly FitCase[], weights: readonly number[], k: number): BackTestFigures {
   const scored = cases.map((c) => ({ c, s: c.strengths.reduce((t, v, j) => t + v * weights[j], 0) })).sort((a, b) => b.s - a.s || (a.c.id < b.c.id ? -1 : 1));
   const top = scored.slice(0, k);
@@ -65,19 +81,14 @@ export function suggestWeights(
   const isHeld = cases.map((c) => createRng(`${seed}:${c.id}`).next() < hold);
   const held = cases.filter((_, i) => isHeld[i]);
   const fit = cases.filter((_, i) => !isHeld[i]);
-  const model = fitLogistic({
-    x: fit.map((c) => c.strengths),
-    y: fit.map((c) => (c.adjusted ? 1 : 0)),
-    weights: fit.map((c) => c.weight),
-    lambda: opts.lambda ?? 1,
-  });
+  const model = fitOutcomeModel(fit, opts.lambda ?? 1);
   const slopes = model.coefficients.slice(1);
   const positive = slopes.reduce((t, c) => t + Math.max(0, c.estimate), 0);
   const scale = positive > 0 ? current.reduce((t, w) => t + w, 0) / positive : 0;
   const suggestions = keys.map((key, j) => ({
     key,
     current: current[j],
-    suggested: Math.round(Math.max(0, slopes[j].estimate) * scale * 10) / 10,
+    suggested: Math.min(100, Math.round(Math.max(0, slopes[j].estimate) * scale * 10) / 10),
     low: Math.round(slopes[j].low * scale * 10) / 10,
     high: Math.round(slopes[j].high * scale * 10) / 10,
   }));

@@ -1,8 +1,9 @@
 /**
  * Scoring profiles over the API: versions, a new version, the factor performance read from
- * closed cases, and its suggested re-weighting (docs/design.md#scoring-runs).
+ * closed cases, and the weights learned from them (docs/design.md#scoring-runs).
  */
 import { z } from 'zod';
+import { WeightFitSchema } from '../programme/api';
 import { noControlChars } from '../text';
 import { COMPONENTS, ScoringSettingsSchema } from './settings';
 
@@ -44,7 +45,6 @@ export const FactorPerformanceSchema = z.object({
   /** adjusted / flagged, null when nothing was flagged. */
   adjustedRate: z.number().nullable(),
   weight: z.number(),
-  suggestedWeight: z.number(),
 });
 export type FactorPerformance = z.infer<typeof FactorPerformanceSchema>;
 
@@ -53,8 +53,8 @@ export const PerformanceSchema = z.object({
   closedCases: z.number().int(),
   adjustedCases: z.number().int(),
   baseRate: z.number().nullable(),
-  /** Fewest flagged closed cases before a factor's weight is suggested to move. */
-  minEvidence: z.number().int(),
   factors: z.array(FactorPerformanceSchema),
+  /** Suggested weights from the outcome model fitted without the selection's bias (issue 17). */
+  learned: WeightFitSchema,
 });
 export type Performance = z.infer<typeof PerformanceSchema>;

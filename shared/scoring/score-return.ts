@@ -371,7 +371,8 @@ export function scoreReturn(facts: ReturnFacts, ctx: ScoreContext): ReturnScore 
       refundCents: totals.reported.refund ?? totals.refund,
     },
     selectionCut: settings.selectionCut,
-    selected: riskScore >= settings.selectionCut,
+    // Under a capacity the run's finishing step selects, once every score is known (shared/programme/selection.ts).
+    selected: !settings.capacity && riskScore >= settings.selectionCut,
     // q is 1 until the run's finishing step has every p-value of the batch (server/scoring).
     pattern: { p: patternP, q: 1 },
   };

@@ -9,6 +9,7 @@
  */
 import { z } from 'zod';
 import { MIN_N_FOR_CONFORMITY } from '../digits/tests';
+import { DEFAULT_RANDOM_SHARE } from '../programme/sample';
 import { FACTORS } from './registry';
 import { ACTIVITY_CODES, ALDERMERE_THRESHOLDS, DEFAULT_CASH_HEAVY_ACTIVITIES } from '../returns/line-codes';
 
@@ -41,8 +42,21 @@ const cents = z.number().int().min(0);
 export const ScoringSettingsSchema = z.object({
   /** Points each component adds at full strength; the score is their sum, capped at 100. */
   weights: z.object(Object.fromEntries(COMPONENTS.map((c) => [c, points])) as Record<ComponentKey, typeof points>),
-  /** A case is opened for every return scoring at or above this. */
+  /** A case is opened for every return scoring at or above this (unless `capacity` is set). */
   selectionCut: z.number().min(0).max(100),
+  /**
+   * Share of the batch drawn for random review from below the cut (docs/methods.md#programme-outcomes);
+   * at least one return whenever the share is above 0. Absent on profiles saved before it: the default.
+   */
+  randomShare: z.number().min(0).max(0.2).default(DEFAULT_RANDOM_SHARE),
+  /**
+   * Selection by capacity: when set, a run opens cases for the batch's top casesPerMonth × months
+   * returns (by score, ties by priority, never a score of 0) and `selectionCut` is not used.
+   */
+  capacity: z
+    .object({ casesPerMonth: z.number().int().min(1).max(100_000), months: z.number().min(0.25).max(36) })
+    .nullable()
+    .default(null),
   params: z.object({
     /** Totals may differ from the recomputed ones by this much (docs/methods.md#risk-factors: more than 1 unit). */
     totalsToleranceCents: cents,
@@ -115,6 +129,8 @@ export const DEFAULT_SCORING_SETTINGS: ScoringSettings = {
   weights: Object.fromEntries(COMPONENTS.map((c) => [c, FACTORS[c].defaultWeight])) as Record<ComponentKey, number>,
   // Tuned on the labelled Aldermere batches (npm run bench:ranking): about 1 % of typical returns reach 22.
   selectionCut: 22,
+  randomShare: DEFAULT_RANDOM_SHARE,
+  capacity: null,
   params: {
     totalsToleranceCents: 100,
     statementShortfallMinCents: 10_000,

@@ -51,6 +51,7 @@ const EXPECTED: Record<string, typeof PUBLIC | readonly Role[]> = {
   'POST /api/scoring/profiles': SUPERVISOR,
   'POST /api/scoring/profiles/:version/activate': SUPERVISOR,
   'GET /api/scoring/performance': SUPERVISOR,
+  'POST /api/scoring/preview': SUPERVISOR,
 
   'GET /api/cases': CASE_WORK,
   'GET /api/cases/export.xlsx': SUPERVISOR,

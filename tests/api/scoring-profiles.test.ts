@@ -53,7 +53,7 @@ describe('scoring profiles', () => {
     expect((await ctx.dataSource.query(`SELECT version FROM scoring_profile WHERE active`))[0].version).toBe(1);
   });
 
-  it('learns from closed cases: rates per factor and a bounded suggested weight', async () => {
+  it('learns from closed cases: rates per factor and weights from the outcome model, each with its interval and a back-test', async () => {
     const b = await loadScoredBatch(ctx.dataSource, { seed: 'perf', returns: 600, plantShare: 0.15 });
     // Close every case: adjusted when its score flagged totals that do not add up, else no change.
     await ctx.dataSource.query(
@@ -68,15 +68,22 @@ describe('scoring profiles', () => {
     expect(perf.closedCases).toBeGreaterThan(0);
     const totals = perf.factors.find((f) => f.key === 'totalsMismatch')!;
     expect(totals.adjustedRate).toBe(1);
-    if (totals.flagged >= perf.minEvidence) {
-      expect(totals.suggestedWeight).toBeGreaterThan(totals.weight);
-      expect(totals.suggestedWeight).toBeLessThanOrEqual(Math.min(100, 2 * totals.weight));
+    // The random review cases (6 of 600) are closed too and counted apart.
+    expect(perf.learned.closed).toBe(perf.closedCases);
+    expect(perf.learned.randomClosed).toBe(6);
+    const fit = perf.learned.fit!;
+    expect(fit).not.toBeNull();
+    expect(fit.fitted + fit.heldBack).toBe(perf.learned.closed);
+    for (const s of fit.suggestions) {
+      expect(s.low).toBeLessThanOrEqual(s.high);
+      expect(s.suggested).toBeGreaterThanOrEqual(0);
+      expect(s.suggested).toBeLessThanOrEqual(100);
     }
-    for (const f of perf.factors) {
-      expect(f.suggestedWeight).toBeGreaterThanOrEqual(f.weight / 2 - 1e-9);
-      expect(f.suggestedWeight).toBeLessThanOrEqual(Math.min(100, f.weight * 2) + 1e-9);
-      if (f.flagged < perf.minEvidence) expect(f.suggestedWeight).toBe(f.weight);
-    }
+    // The only factor that decides the outcome here gets the largest suggested weight.
+    const top = [...fit.suggestions].sort((x, y) => y.suggested - x.suggested)[0];
+    expect(top.key).toBe('totalsMismatch');
+    expect(fit.backTest.suggested.k).toBe(fit.backTest.current.k);
+    expect(fit.backTest.suggested.precisionAtK).toBeGreaterThanOrEqual(fit.backTest.current.precisionAtK);
   });
 
   it('queues a re-score of a scored batch under another version, once', async () => {
