@@ -93,6 +93,15 @@ export interface CurrentReturn {
   batchId: string;
 }
 
+/** A return on file found by its reference. */
+export interface RefOnFile {
+  refKey: string;
+  tin: string;
+  taxYear: number;
+  batchNo: number;
+  sourceRow: number;
+}
+
 /** Per-return totals computed at intake, in canonical decimal text. */
 export interface TotalsRow {
   id: string;
@@ -150,6 +159,21 @@ export class IntakeTransaction {
       [tins, years],
     );
     return r.rows;
+  }
+
+  /**
+   * Returns on file (current or superseded) whose reference is one of `refKeys` (upper case),
+   * with their taxpayer's TIN and where they came from. Uses idx_tax_return_ref_upper.
+   */
+  async findReturnsByRef(refKeys: string[]): Promise<RefOnFile[]> {
+    if (!refKeys.length) return [];
+    const r = await this.client.query(
+      `SELECT upper(r.return_ref) AS "refKey", t.tin, r.tax_year AS "taxYear", b.batch_no AS "batchNo", r.source_row AS "sourceRow"
+         FROM tax_return r JOIN taxpayer t ON t.id = r.taxpayer_id JOIN filing_batch b ON b.id = r.batch_id
+        WHERE upper(r.return_ref) = ANY($1::text[])`,
+      [refKeys],
+    );
+    return r.rows.map((x: RefOnFile) => ({ ...x, tin: String(x.tin) }));
   }
 
   /**
@@ -236,14 +260,19 @@ export class IntakeTransaction {
       FROM intake_totals t WHERE r.id = t.id`);
   }
 
-  /** Moves the batch to `queued` with its counts and notices. */
-  async finishBatch(id: string, f: { returns: number; lineItems: number; statements: number; amended: number; notices: BatchIssue[] }): Promise<void> {
-    await this.client.query(
+  /**
+   * Moves the batch to `queued` with its counts and notices.
+   * @returns false when the batch is no longer being checked (a clerk ended it as stalled
+   *   meanwhile): the caller must roll back
+   */
+  async finishBatch(id: string, f: { returns: number; lineItems: number; statements: number; amended: number; notices: BatchIssue[] }): Promise<boolean> {
+    const r = await this.client.query(
       `UPDATE filing_batch SET state = 'queued', return_count = $2, line_item_count = $3, statement_count = $4,
          amended_count = $5, notices = $6::jsonb, errors = '[]', error_count = 0, updated_at = now()
-       WHERE id = $1`,
+       WHERE id = $1 AND state IN ('received', 'validating')`,
       [id, f.returns, f.lineItems, f.statements, f.amended, JSON.stringify(f.notices)],
     );
+    return (r.rowCount ?? 0) > 0;
   }
 
   async commit(): Promise<void> {

@@ -145,7 +145,8 @@ export function batchRoutes(deps: Pick<AppDeps, 'config' | 'dataSource' | 'boss'
     const id = String(req.params.id);
     if (!isUuid(id)) throw new HttpError(404, `There is no batch ${id}.`);
     const { batch, ended } = await endStalledIntake(deps.dataSource, id);
-    if (ended) await recordAccess(deps.dataSource, staffAuditOf(req), { action: 'change', recordType: 'filing_batch', recordId: id, detail: 'stalled check ended' });
+    if (ended)
+      await recordAccess(deps.dataSource, staffAuditOf(req), { action: 'change', recordType: 'filing_batch', recordId: id, detail: 'stalled check ended' });
     res.json(batch);
   });
 

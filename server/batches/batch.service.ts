@@ -19,13 +19,27 @@ import {
   type BatchTable,
   type IntakeLimits,
   maskIssueForListing,
+  defaultBatchLabel,
+  INTAKE_STALLED_AFTER_SECONDS,
+  SCORE_BAND_WIDTH,
+  type BatchOutcome,
 } from '../../shared/returns/batch-rows';
 import { safeCellText } from '../../shared/spreadsheet-text';
-import { now as officeNow } from '../clock';
+import { officeDate, now as officeNow } from '../clock';
+import { HttpError } from '../http/errors';
 import { QUEUES } from '../queue/queues';
-import { deleteBatchRecord, findBatchByHash, insertBatchRecord, markRejected, recoverInterruptedBatches, takeOverStaleBatch } from './batch-intake.repository';
-import { findBatch, findBatches, type BatchRecord } from './batch-read.repository';
-import { IssueList, runIntake } from './intake/ingest';
+import {
+  deleteBatchRecord,
+  endStalledBatch,
+  findBatchByHash,
+  insertBatchRecord,
+  markRejected,
+  recoverInterruptedBatches,
+  reportProgress,
+  takeOverStaleBatch,
+} from './batch-intake.repository';
+import { findBatch, findBatchOutcome, findBatches, type BatchRecord } from './batch-read.repository';
+import { IntakeEndedError, IssueList, runIntake } from './intake/ingest';
 import { checkUploadFiles, csvTables, uploadFileNames, uploadHash, xlsxTables, type BatchUpload, type TableSource, type UploadedFile } from './intake/sources';
 
 /** What the intake needs. */
@@ -44,8 +58,8 @@ export interface IntakeDeps {
 export type IngestOutcome =
   { kind: 'accepted'; batch: BatchCreated } | { kind: 'rejected'; body: BatchRejected } | { kind: 'duplicate'; body: { error: string; batchId: string } };
 
-/** A batch left in `validating` this long is taken to be from a server that stopped mid-way. */
-const STALE_MINUTES = 30;
+/** The intake writes its progress at most this often (one UPDATE beside a stream of rows). */
+const PROGRESS_EVERY_MS = 1000;
 
 /**
  * Makes a {@link BatchUpload} from the multipart parts: either `file` (one XLSX workbook) or
@@ -84,7 +98,8 @@ function rejectedBody(batchId: string | null, errors: IssueList): BatchRejected 
  *
  * @param user who uploads (recorded as `loaded_by`)
  */
-export async function ingestUpload(deps: IntakeDeps, upload: BatchUpload, user: { id: string } | null): Promise<IngestOutcome> {
+export async function ingestUpload(deps: IntakeDeps, upload: BatchUpload, user: { id: string } | null, label: string | null = null): Promise<IngestOutcome> {
+  const clock = deps.now ?? officeNow;
   const fileIssues = await checkUploadFiles(upload, deps.limits);
   if (fileIssues.length) {
     const list = new IssueList();
@@ -95,10 +110,18 @@ export async function ingestUpload(deps: IntakeDeps, upload: BatchUpload, user: 
   const th = performance.now();
   const fileHash = await uploadHash(upload);
   deps.trace?.('file checks and SHA-256', performance.now() - th);
-  let batchId = await insertBatchRecord(deps.dataSource, { fileHash, format: upload.format, fileNames: uploadFileNames(upload), loadedBy: user?.id ?? null });
+  let batchId = await insertBatchRecord(deps.dataSource, {
+    fileHash,
+    format: upload.format,
+    fileNames: uploadFileNames(upload),
+    loadedBy: user?.id ?? null,
+    label,
+    at: clock(),
+  });
   if (!batchId) {
     const earlier = await findBatchByHash(deps.dataSource, fileHash);
-    if (earlier && (await takeOverStaleBatch(deps.dataSource, earlier.id, user?.id ?? null, STALE_MINUTES))) {
+    const take = { loadedBy: user?.id ?? null, label, at: clock(), stalledAfterSeconds: INTAKE_STALLED_AFTER_SECONDS };
+    if (earlier && (await takeOverStaleBatch(deps.dataSource, earlier.id, take))) {
       batchId = earlier.id;
     } else if (earlier) {
       return { kind: 'duplicate', body: { error: duplicateMessage(earlier.state, earlier.createdAt), batchId: earlier.id } };
@@ -119,18 +142,23 @@ export async function ingestUpload(deps: IntakeDeps, upload: BatchUpload, user: 
         }
       : { file: '', row: null, column: null, message: `The ${table} CSV file is missing.` };
 
+  const progress = progressWriter(deps.dataSource, batchId, clock);
   let result;
   try {
     result = await runIntake(
-      { dataSource: deps.dataSource, batchId, limits: deps.limits, years: officeTaxYears(deps.now?.() ?? officeNow()), trace: deps.trace },
+      { dataSource: deps.dataSource, batchId, limits: deps.limits, years: officeTaxYears(clock()), trace: deps.trace, onRows: progress.report },
       sources,
       describeMissing,
     );
   } catch (e) {
+    await progress.settle();
+    if (e instanceof IntakeEndedError)
+      throw new HttpError(409, 'This batch was ended as stalled while it was still being checked, so nothing of it was stored. Upload the file again.');
     // A server-side failure is not the file's fault: forget the attempt so it can be sent again.
     await deleteBatchRecord(deps.dataSource, batchId).catch(() => undefined);
     throw e;
   }
+  await progress.settle();
 
   if (!result.accepted) {
     await markRejected(deps.dataSource, batchId, result.errors.report(), result.errors.count);
@@ -139,6 +167,28 @@ export async function ingestUpload(deps: IntakeDeps, upload: BatchUpload, user: 
 
   await queueScoring(deps.boss, batchId);
   return { kind: 'accepted', batch: { id: batchId, state: 'queued', counts: result.counts, amendedReturns: result.amended } };
+}
+
+/**
+ * Writes the rows read so far at most once a {@link PROGRESS_EVERY_MS}, never two writes at
+ * once, and never failing the intake (progress is a courtesy to the screen).
+ */
+function progressWriter(ds: DataSource, batchId: string, clock: () => Date) {
+  let last = 0;
+  let pending: Promise<void> | null = null;
+  return {
+    report: (rows: number) => {
+      const t = Date.now();
+      if (pending || t - last < PROGRESS_EVERY_MS) return;
+      last = t;
+      pending = reportProgress(ds, batchId, rows, clock())
+        .catch((e) => console.warn(`[intake] could not record progress of batch ${batchId}:`, e))
+        .finally(() => (pending = null));
+    },
+    settle: async () => {
+      await pending;
+    },
+  };
 }
 
 function duplicateMessage(state: string, createdAt: Date): string {
@@ -179,8 +229,16 @@ async function queueScoring(boss: PgBoss | null, batchId: string): Promise<void>
   }
 }
 
-function summary(r: BatchRecord): BatchSummary {
+function summary(r: BatchRecord, at: Date = officeNow()): BatchSummary {
+  const checking = r.state === 'received' || r.state === 'validating';
+  const lastSign = new Date(r.progressAt ?? r.updatedAt).getTime();
   return {
+    batchNo: r.batchNo,
+    label: r.label ?? defaultBatchLabel(r.batchNo, officeDate(new Date(r.createdAt)), r.format),
+    rowsChecked: r.rowsChecked,
+    // While checking: so far, by the office clock; after: how long the check took (stable).
+    elapsedSeconds: Math.max(0, Math.round(((checking ? at : new Date(r.updatedAt)).getTime() - new Date(r.createdAt).getTime()) / 1000)),
+    stalled: checking && at.getTime() - lastSign > INTAKE_STALLED_AFTER_SECONDS * 1000,
     id: r.id,
     state: r.state,
     format: r.format,
@@ -197,7 +255,7 @@ function summary(r: BatchRecord): BatchSummary {
 /** A page of batches, newest first. */
 export async function listBatches(ds: DataSource, q: { page: number; pageSize: number }): Promise<BatchList> {
   const { rows, total } = await findBatches(ds, q.page, q.pageSize);
-  return { items: rows.map(summary), total, page: q.page, pageSize: q.pageSize };
+  return { items: rows.map((r) => summary(r)), total, page: q.page, pageSize: q.pageSize };
 }
 
 /** One batch with its report; null when there is none with that id. */
@@ -205,7 +263,56 @@ export async function getBatch(ds: DataSource, id: string): Promise<BatchDetail 
   const r = await findBatch(ds, id);
   if (!r) return null;
   // Rejected values can be TINs: listed masked (the report workbook shows the same).
-  return { ...summary(r), errors: r.errors.map(maskIssueForListing), notices: r.notices.map(maskIssueForListing) };
+  const scored = r.state === 'scoring' || r.state === 'scored';
+  const outcome = scored ? await batchOutcome(ds, id) : null;
+  return { ...summary(r), errors: r.errors.map(maskIssueForListing), notices: r.notices.map(maskIssueForListing), outcome };
+}
+
+/** Cases opened and the score distribution in bands of {@link SCORE_BAND_WIDTH} (every band listed, empty ones at 0). */
+async function batchOutcome(ds: DataSource, id: string): Promise<BatchOutcome | null> {
+  const o = await findBatchOutcome(ds, id, SCORE_BAND_WIDTH);
+  if (!o) return null;
+  const bands = Array.from({ length: Math.ceil(100 / SCORE_BAND_WIDTH) }, (_, i) => {
+    const b = o.bands.find((x) => x.band === i);
+    return { from: i * SCORE_BAND_WIDTH, returns: b?.returns ?? 0, cases: b?.cases ?? 0 };
+  });
+  return {
+    profileVersion: o.profileVersion,
+    casesOpened: o.casesOpened,
+    failed: o.failed,
+    bands,
+    median: o.median === null ? null : Math.round(o.median * 10) / 10,
+  };
+}
+
+/**
+ * Ends a batch whose check has stalled (no progress for {@link INTAKE_STALLED_AFTER_SECONDS}
+ * by the office clock), so its file can be uploaded again at once: the uploaded files are not
+ * kept after the request, so a retry is a new upload of the same file. Idempotent: a batch
+ * already ended so is answered as it stands.
+ * @returns the batch as it now stands, and whether this call ended it
+ */
+export async function endStalledIntake(ds: DataSource, id: string, at: Date = officeNow()): Promise<{ batch: BatchDetail; ended: boolean }> {
+  const stalledBefore = new Date(at.getTime() - INTAKE_STALLED_AFTER_SECONDS * 1000);
+  const when = at.toISOString().slice(0, 16).replace('T', ' ');
+  const outcome = await endStalledBatch(ds, id, stalledBefore, {
+    file: '',
+    row: null,
+    column: null,
+    message: `This batch stopped being checked: no row was read for over ${INTAKE_STALLED_AFTER_SECONDS / 60} minutes, so it was ended (${when} UTC). Nothing of it was stored. Upload the same file again.`,
+  });
+  if (outcome === null) throw new HttpError(404, `There is no batch ${id}.`);
+  const batch = (await getBatch(ds, id))!;
+  if (outcome === 'moving') {
+    const checking = batch.state === 'received' || batch.state === 'validating';
+    throw new HttpError(
+      409,
+      checking
+        ? 'This batch is still being checked (its rows are still being read), so it is not stalled. Wait for it to finish.'
+        : `This batch is not being checked any more (${batch.state}); there is nothing to retry.`,
+    );
+  }
+  return { batch, ended: outcome === 'ended' };
 }
 
 /**
@@ -251,7 +358,9 @@ export async function writeBatchReport(ds: DataSource, id: string, out: Writable
     { header: 'Value', key: 'v', width: 60 },
   ];
   const facts: [string, string | number][] = [
-    ['Batch', batch.id],
+    ['Batch', batch.label],
+    ['Batch number', batch.batchNo],
+    ['Batch id', batch.id],
     ['State', batch.state],
     ['Files', batch.fileNames.join(', ')],
     ['Uploaded', batch.createdAt],
@@ -262,6 +371,12 @@ export async function writeBatchReport(ds: DataSource, id: string, out: Writable
     ['Amended returns', batch.amendedReturns],
     ['Errors found', batch.errorCount],
   ];
+  if (batch.outcome) {
+    const o = batch.outcome;
+    facts.push(['Scoring profile version', o.profileVersion], ['Cases opened', o.casesOpened], ['Scores not computed', o.failed]);
+    if (o.median !== null) facts.push(['Median score', o.median]);
+    for (const b of o.bands) facts.push([`Scores ${b.from}–${b.from + SCORE_BAND_WIDTH}`, `${b.returns} returns, ${b.cases} cases opened`]);
+  }
   for (const [k, v] of facts) info.addRow({ k, v: typeof v === 'number' ? v : safeCellText(v) }).commit();
   info.commit();
   await wb.commit();

@@ -60,6 +60,22 @@ export class FilingBatch {
   @Column({ type: 'jsonb', default: () => `'[]'` })
   notices: BatchIssue[];
 
+  /** The office's running number of the batch (the database numbers it). */
+  @Column({ name: 'batch_no', type: 'integer', insert: false, update: false })
+  batchNo: number;
+
+  /** The name given at upload; null: the default label (shared/returns/batch-rows.ts). */
+  @Column({ type: 'text', nullable: true })
+  label: string | null;
+
+  /** Data rows read so far while the batch is checked. */
+  @Column({ name: 'rows_checked', type: 'integer', default: 0 })
+  rowsChecked: number;
+
+  /** When the intake last reported progress, by the office clock (stall detection). */
+  @Column({ name: 'progress_at', type: 'timestamptz', nullable: true })
+  progressAt: Date | null;
+
   @Column({ name: 'loaded_by', type: 'uuid', nullable: true })
   loadedById: string | null;
 

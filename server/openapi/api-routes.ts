@@ -358,6 +358,7 @@ export const API_ROUTES: readonly ApiRoute[] = [
         returns: { kind: 'file', description: 'returns.csv', mediaTypes: ['text/csv'] },
         line_items: { kind: 'file', description: 'line_items.csv', mediaTypes: ['text/csv'] },
         statements: { kind: 'file', description: 'statements.csv (optional)', mediaTypes: ['text/csv'] },
+        label: { kind: 'text', description: 'What people call the batch (optional, up to 80 characters); blank: "Batch N · date · source".' },
       },
     },
     responses: {
@@ -389,8 +390,21 @@ export const API_ROUTES: readonly ApiRoute[] = [
     path: '/api/batches/:id/report.xlsx',
     operationId: 'getBatchReport',
     tag: 'batches',
-    summary: 'The validation report as a workbook',
+    summary: "The batch's report as a workbook (errors, notices, and what scoring made of it)",
     responses: { 200: file([XLSX], 'The workbook.'), 404: error('No such batch.') },
+  },
+  {
+    method: 'post',
+    path: '/api/batches/:id/retry',
+    operationId: 'endStalledBatch',
+    tag: 'batches',
+    summary: 'End a batch whose check has stalled, so its file can be uploaded again',
+    description: 'Idempotent: a batch already ended so is answered as it stands. Nothing of the batch is stored.',
+    responses: {
+      200: json(BatchDetailSchema, 'The batch, ended (rejected with the reason); upload the same file again.'),
+      404: error('No such batch.'),
+      409: error('The batch is still making progress, or is not being checked.'),
+    },
   },
 
   // server/cases/case.routes.ts

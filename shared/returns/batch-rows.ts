@@ -11,7 +11,7 @@
 import { z } from 'zod';
 import { ACTIVITY_CODES, LINE_CODE_DEFS, LINE_CODES, STATEMENT_KINDS, type ActivityCode, type LineCode, type StatementKind } from './line-codes';
 import { centsFromDecimal, DECIMAL_PROBLEM_TEXT, decimalProblem } from './money';
-import { findControlChar } from '../text';
+import { findControlChar, noControlChars } from '../text';
 
 // ---------------------------------------------------------------------------------------
 // Files and columns
@@ -487,8 +487,72 @@ export const BatchSummarySchema = z.object({
   errorCount: z.number().int(),
   loadedBy: z.object({ id: z.string(), displayName: z.string() }).nullable(),
   createdAt: z.string(),
+  /** The office's running number of the batch (1, 2, 3…), in upload order. */
+  batchNo: z.number().int(),
+  /** What people call the batch: the label given at upload, or {@link defaultBatchLabel}. */
+  label: z.string(),
+  /** While it is being checked: data rows read so far, over every table. */
+  rowsChecked: z.number().int(),
+  /** Seconds since the upload began, by the office clock (while it is being checked). */
+  elapsedSeconds: z.number().int(),
+  /** Checking has shown no progress for {@link INTAKE_STALLED_AFTER_SECONDS}: it will not finish by itself. */
+  stalled: z.boolean(),
 });
 export type BatchSummary = z.infer<typeof BatchSummarySchema>;
+
+/** A check that runs longer than this shows its elapsed time and rows checked (common practice, no source). */
+export const INTAKE_SLOW_AFTER_SECONDS = 30;
+/**
+ * With no row read for this long, a batch's check is taken as stalled: the intake reports its
+ * progress about every second while it reads, so five minutes of silence means it stopped.
+ */
+export const INTAKE_STALLED_AFTER_SECONDS = 300;
+
+/** Longest label a batch may be given. */
+export const BATCH_LABEL_MAX = 80;
+
+/** The label asked at upload; blank means "use the default". */
+export const BatchLabelSchema = z
+  .string()
+  .trim()
+  .max(BATCH_LABEL_MAX, `Keep the label to ${BATCH_LABEL_MAX} characters, e.g. "Post room, March returns"`)
+  .check(noControlChars());
+
+/**
+ * A batch's name when none was given at upload: the office's batch number, the office day it
+ * came in (YYYY-MM-DD) and its source (a workbook or CSV files), e.g.
+ * "Batch 12 · 2 Dec 2026 · workbook".
+ */
+export function defaultBatchLabel(batchNo: number, officeDay: string, format: 'xlsx' | 'csv'): string {
+  const date = new Date(`${officeDay}T00:00:00Z`).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' });
+  return `Batch ${batchNo} · ${date} · ${format === 'xlsx' ? 'workbook' : 'CSV files'}`;
+}
+
+/** Score bands of the batch's distribution: 0–10, 10–20, … 90–100 (the last includes 100). */
+export const SCORE_BAND_WIDTH = 10;
+
+/** One band of a scored batch's score distribution. */
+export const ScoreBandSchema = z.object({
+  /** Lower edge (included); the upper edge is `from + SCORE_BAND_WIDTH` (excluded, but 100 is in the last band). */
+  from: z.number(),
+  /** Returns scored in the band. */
+  returns: z.number().int(),
+  /** Of those, returns whose case was opened. */
+  cases: z.number().int(),
+});
+export type ScoreBand = z.infer<typeof ScoreBandSchema>;
+
+/** What scoring made of a batch: the cases opened and how the scores spread. */
+export const BatchOutcomeSchema = z.object({
+  /** The profile version the figures are under (the batch's latest run). */
+  profileVersion: z.number().int(),
+  casesOpened: z.number().int(),
+  /** Scores that could not be computed (each has its reason on the return). */
+  failed: z.number().int(),
+  bands: z.array(ScoreBandSchema),
+  median: z.number().nullable(),
+});
+export type BatchOutcome = z.infer<typeof BatchOutcomeSchema>;
 
 /** `GET /api/batches/:id`: the summary with its validation report. */
 export const BatchDetailSchema = BatchSummarySchema.extend({
@@ -496,6 +560,8 @@ export const BatchDetailSchema = BatchSummarySchema.extend({
   errors: z.array(BatchIssueSchema),
   /** Things the clerk should know that do not reject the batch (amended returns). */
   notices: z.array(BatchIssueSchema),
+  /** Once a scoring run has stored scores: cases opened and the score distribution; else null. */
+  outcome: BatchOutcomeSchema.nullable(),
 });
 export type BatchDetail = z.infer<typeof BatchDetailSchema>;
 

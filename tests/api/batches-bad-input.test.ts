@@ -124,7 +124,8 @@ describe('batches API: bad input is rejected whole', () => {
   it('rejects a batch whose only problem is found in the last line item (the rows already sent are rolled back)', async () => {
     const b = await csvBatch({ seed: 'bad-last-line', returns: 40 });
     const fs = await import('node:fs');
-    const lines = fs.readFileSync(b.files.line_items!, 'utf8') + 'ALD-2022-000001,inc.wages,12.3.4\r\n';
+    const original = fs.readFileSync(b.files.line_items!, 'utf8');
+    const lines = original + `${original.split(/\r?\n/)[1].split(',')[0]},inc.wages,12.3.4\r\n`;
     const body = await rejected({ returns: b.files.returns!, line_items: text('line_items.csv', lines), statements: b.files.statements! });
     expect(body.errors).toEqual([expect.objectContaining({ file: 'line_items.csv', row: b.counts.lineItems + 2, column: 'amount' })]);
   });

@@ -44,6 +44,7 @@ const EXPECTED: Record<string, typeof PUBLIC | readonly Role[]> = {
   'GET /api/batches': BATCH_READERS,
   'GET /api/batches/:id': BATCH_READERS,
   'GET /api/batches/:id/report.xlsx': BATCH_READERS,
+  'POST /api/batches/:id/retry': ['clerk'],
   'POST /api/batches/:id/rescore': SUPERVISOR,
 
   'POST /api/analyses/digits': CASE_WORK,

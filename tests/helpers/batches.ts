@@ -2,6 +2,7 @@
  * Helpers for batch tests: small generated batches on disk, hand-made files, uploading
  * through the real route, and counting what the intake tables hold.
  */
+import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -26,20 +27,29 @@ export async function countIntakeRows(ds: DataSource): Promise<Record<string, nu
   return r[0];
 }
 
+/**
+ * Return references of a generated test batch start with a prefix made from its seed: a
+ * reference names one return in the office (issue 14), so two generated batches loaded into
+ * one database must not share references for different taxpayers.
+ */
+export function refPrefixOf(seed: string | number): string {
+  return `T${createHash('sha256').update(String(seed)).digest('hex').slice(0, 6).toUpperCase()}`;
+}
+
 /** A generated batch as CSV files in a new folder. */
 export async function csvBatch(
   opts: Partial<GenerateOptions> & { seed: string | number },
   format?: { crlf?: boolean; bom?: boolean },
 ): Promise<WrittenBatch & { dir: string }> {
   const dir = tmpDir();
-  const w = await writeCsvBatch(dir, { returns: 40, plantShare: 0.1, ...opts }, format);
+  const w = await writeCsvBatch(dir, { returns: 40, plantShare: 0.1, refPrefix: refPrefixOf(opts.seed), ...opts }, format);
   return { ...w, dir };
 }
 
 /** A generated batch as one XLSX workbook. */
 export async function xlsxBatch(opts: Partial<GenerateOptions> & { seed: string | number }): Promise<WrittenBatch & { file: string }> {
   const file = path.join(tmpDir(), 'aldermere-batch.xlsx');
-  const w = await writeXlsxBatch(file, { returns: 40, plantShare: 0.1, ...opts });
+  const w = await writeXlsxBatch(file, { returns: 40, plantShare: 0.1, refPrefix: refPrefixOf(opts.seed), ...opts });
   return { ...w, file };
 }
 

@@ -66,6 +66,13 @@ export class IssueList {
   }
 }
 
+/** The batch was ended as stalled while this intake still ran: nothing of it is stored. */
+export class IntakeEndedError extends Error {
+  constructor(readonly batchId: string) {
+    super(`batch ${batchId} was ended as stalled before its check finished`);
+  }
+}
+
 /** What the intake found and did. */
 export interface IntakeResult {
   accepted: boolean;
@@ -103,6 +110,8 @@ export interface IntakeOptions {
   tmpDir?: string;
   /** Told how long each phase took (the ingest benchmark prints them). */
   trace?: (phase: string, ms: number) => void;
+  /** Told the rows read so far (all tables, header rows included) after each block of rows. */
+  onRows?: (rowsRead: number) => void;
 }
 
 /**
@@ -193,13 +202,14 @@ class Intake {
       await this.tx.writeTotals(this.totalsRows());
       this.opts.trace?.('totals', performance.now() - t0);
       const t1 = performance.now();
-      await this.tx.finishBatch(this.opts.batchId, {
+      const finished = await this.tx.finishBatch(this.opts.batchId, {
         returns: this.returns.length,
         lineItems: this.lineItemCount,
         statements: this.statementCount,
         amended: this.amended,
         notices: this.notices,
       });
+      if (!finished) throw new IntakeEndedError(this.opts.batchId);
       await this.tx.commit();
       this.opts.trace?.('finish and commit', performance.now() - t1);
       this.tx = null;
@@ -228,8 +238,20 @@ class Intake {
   // -------------------------------------------------------------------------------------
   // Reading one table
 
+  private rowsRead = 0;
+
+  /** Passes the blocks of rows on and tells {@link IntakeOptions.onRows} how far reading has got. */
+  private async *counted(rows: AsyncIterable<RawRow[]>): AsyncIterable<RawRow[]> {
+    for await (const block of rows) {
+      yield block;
+      this.rowsRead += block.length;
+      this.opts.onRows?.(this.rowsRead);
+    }
+  }
+
   private async readTable(src: TableSource): Promise<void> {
     const t0 = performance.now();
+    if (this.opts.onRows) src = { ...src, rows: this.counted(src.rows) };
     try {
       if (src.table === 'returns') await this.readReturns(src);
       else if (src.table === 'line_items') await this.readLineItems(src);
@@ -467,6 +489,12 @@ class Intake {
 
     this.tx = await IntakeTransaction.begin(this.opts.dataSource);
     const tx = this.tx;
+    if (await this.refuseRefsOfOthers(tx)) {
+      // Nothing will be stored: give the intake lock back at once rather than after the line items.
+      await tx.rollback();
+      this.tx = null;
+      return;
+    }
     const on = await tx.findCurrentReturns(
       this.returns.map((r) => r.tin),
       this.returns.map((r) => r.taxYear),
@@ -504,6 +532,40 @@ class Intake {
       if (w.add(line)) await w.flush();
     }
     await w.end();
+  }
+
+  /**
+   * A return reference names one return in the office (issue 14): a reference already on file
+   * for another taxpayer, or for another tax year of the same taxpayer, is an error on its row
+   * and column. The same reference for the same taxpayer and year is an amendment (below).
+   * References compare without regard to case, as the queue's search does.
+   * @returns true when any was refused
+   */
+  private async refuseRefsOfOthers(tx: IntakeTransaction): Promise<boolean> {
+    const onFile = await tx.findReturnsByRef(this.returns.map((r) => r.returnRef.toUpperCase()));
+    if (!onFile.length) return false;
+    const byRef = new Map<string, typeof onFile>();
+    for (const o of onFile) byRef.set(o.refKey, [...(byRef.get(o.refKey) ?? []), o]);
+    let refused = false;
+    for (const r of this.returns) {
+      const found = byRef.get(r.returnRef.toUpperCase());
+      if (!found) continue;
+      const other = found.find((o) => o.tin !== r.tin) ?? found.find((o) => o.taxYear !== r.taxYear);
+      if (!other) continue;
+      refused = true;
+      const where = `batch ${other.batchNo}, row ${other.sourceRow}`;
+      this.errors.add({
+        file: this.returnsLabel,
+        row: r.row,
+        column: 'return_ref',
+        value: r.returnRef,
+        message:
+          other.tin !== r.tin
+            ? `return_ref ${r.returnRef} is already on file for another taxpayer (a ${other.taxYear} return, ${where}). A reference names one return in the office: give this return its own reference, or correct the TIN if it is the same taxpayer.`
+            : `return_ref ${r.returnRef} is already on file for this taxpayer's ${other.taxYear} return (${where}). Only an amendment of the same tax year keeps its reference: give this ${r.taxYear} return its own reference.`,
+      });
+    }
+    return refused;
   }
 
   // -------------------------------------------------------------------------------------
