@@ -31,13 +31,24 @@ export async function mailTo(to: string): Promise<MailMessage[]> {
   return all.filter((m) => m.to.some((a) => a.address.toLowerCase() === to.toLowerCase()));
 }
 
-/** Waits until a message to `to` has arrived (MailDev stores it a moment after SMTP accepts it). */
-export async function waitForMail(to: string, timeoutMs = 10_000): Promise<MailMessage> {
+/**
+ * Waits until a message to `to` has arrived (MailDev stores it a moment after SMTP accepts it).
+ * The default wait is sized for a busy two-core machine, where MailDev (one node process shared
+ * by every test file) can take many seconds to store and list a message; a list request that
+ * fails meanwhile counts as "not yet".
+ */
+export async function waitForMail(to: string, timeoutMs = 60_000): Promise<MailMessage> {
   const until = Date.now() + timeoutMs;
+  let lastError = '';
   for (;;) {
-    const found = await mailTo(to);
-    if (found.length) return found[found.length - 1];
-    if (Date.now() > until) throw new Error(`no mail to ${to} within ${timeoutMs} ms`);
+    try {
+      const found = await mailTo(to);
+      if (found.length) return found[found.length - 1];
+      lastError = '';
+    } catch (e) {
+      lastError = e instanceof Error ? e.message : String(e);
+    }
+    if (Date.now() > until) throw new Error(`no mail to ${to} within ${timeoutMs} ms${lastError ? ` (last MailDev request failed: ${lastError})` : ''}`);
     await new Promise((r) => setTimeout(r, 150));
   }
 }

@@ -35,8 +35,12 @@ export function freePort(): Promise<number> {
   });
 }
 
-/** Starts `tsx <entry>` with the given environment and waits for a line matching `ready`. */
-export async function startTsx(entry: string, env: Record<string, string>, ready: RegExp, timeoutMs = 60_000): Promise<RunningProcess> {
+/**
+ * Starts `tsx <entry>` with the given environment and waits for a line matching `ready`. The
+ * default wait is generous: tsx compiles the whole server or worker at start, which on a busy
+ * two-core machine has taken well over a minute.
+ */
+export async function startTsx(entry: string, env: Record<string, string>, ready: RegExp, timeoutMs = 180_000): Promise<RunningProcess> {
   // `node --import tsx` keeps it one process: the tsx wrapper would put a second node
   // under it, which a SIGKILL of the wrapper leaves running.
   const child = spawn(process.execPath, ['--import', 'tsx', entry], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });

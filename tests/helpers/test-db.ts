@@ -61,14 +61,16 @@ export async function createTestDatabase(): Promise<TestDatabase> {
   const template = process.env.PLUMBLINE_TEST_TEMPLATE ?? 'plumbline_template';
   const name = `t_${process.env.JEST_WORKER_ID ?? '0'}_${randomBytes(5).toString('hex')}`;
   // CREATE DATABASE … TEMPLATE fails if another session is cloning the same template at
-  // that instant; retry briefly.
-  for (let attempt = 0; ; attempt++) {
+  // that instant; retry until a deadline rather than a count, since one clone can take many
+  // seconds on a busy machine and the other jest worker may be cloning several in a row.
+  const until = Date.now() + 120_000;
+  for (;;) {
     try {
       // Owned by the owner as the template is; the grants inside come along with the copy.
       await admin(c, (cl) => cl.query(`CREATE DATABASE "${name}" TEMPLATE "${template}" OWNER "${c.owner.user}"`));
       break;
     } catch (e) {
-      if (attempt > 20 || !String(e).includes('being accessed by other users')) throw e;
+      if (Date.now() > until || !String(e).includes('being accessed by other users')) throw e;
       await new Promise((r) => setTimeout(r, 100 + Math.random() * 200));
     }
   }
