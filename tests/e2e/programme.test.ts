@@ -2,7 +2,8 @@
  * The Programme screen in a browser (issue 17), on a scored batch whose cases were closed with
  * invented outcomes for this test: selected cases mostly from planted returns end adjusted,
  * ordinary ones mostly not, and 40 returns below the cut were opened as random review cases.
- * Screenshots at 390×844 and 1280×800 (tests/e2e/screenshots/programme-*.png).
+ * Screenshots at 390×844 and 1280×800 (tests/e2e/screenshots/programme-*.png), and of the Scoring
+ * screen's suggested weights, capacity preview and save confirmation (scoring-*.png).
  */
 import fs from 'node:fs';
 import path from 'node:path';
@@ -81,8 +82,38 @@ describe('programme screen (supervisor, browser)', () => {
         await el.screenshot({ path: file });
         files.push(file);
       }
-      fs.mkdirSync('/tmp/shots', { recursive: true });
-      for (const f of files) fs.copyFileSync(f, path.join('/tmp/shots', path.basename(f)));
+      fs.mkdirSync('/tmp/shots-programme', { recursive: true });
+      for (const f of files) fs.copyFileSync(f, path.join('/tmp/shots-programme', path.basename(f)));
+      await page.close();
+    });
+  }
+
+  for (const [name, viewport] of Object.entries(VIEWPORTS)) {
+    it(`Scoring screen: the weights the outcomes suggest, a capacity preview and the confirmation in words (${name})`, async () => {
+      const page = await browser.newPage({ viewport });
+      await signInThroughUi(page, s.server.baseUrl, 'supervisor', DEMO_PASSWORD);
+      await page.goto(s.server.baseUrl + '/scoring', { waitUntil: 'networkidle' });
+      await waitForText(page.getByTestId('back-test'), 'held back from the fit');
+      await page.getByTestId('selection-mode-capacity').click();
+      await page.getByTestId('capacity-per-month').fill('12');
+      await page.getByTestId('capacity-months').fill('2');
+      await page.getByTestId('run-preview').click();
+      // 12 a month for 2 months: the preview selects 24 of the batch.
+      await waitForText(page.getByTestId('profile-preview'), 'Would select 24 of 800 returns');
+      await waitForText(page.getByTestId('preview-counts'), /\d+ stay · \d+ leave · \d+ join/);
+      await page.getByTestId('profile-note').fill('Capacity of the team for the spring');
+      await page.getByTestId('save-profile').click();
+      await waitForText(page.getByTestId('confirm-save'), 'the 24 highest-scoring returns of each batch');
+      const files = [await screenshot(page, `scoring-${name}`)];
+      for (const id of ['weight-suggestion', 'profile-preview', 'confirm-save']) {
+        const el = page.getByTestId(id);
+        await el.scrollIntoViewIfNeeded();
+        const file = path.join(path.dirname(files[0]), `scoring-${name}-${id}.png`);
+        await el.screenshot({ path: file });
+        files.push(file);
+      }
+      fs.mkdirSync('/tmp/shots-programme', { recursive: true });
+      for (const f of files) fs.copyFileSync(f, path.join('/tmp/shots-programme', path.basename(f)));
       await page.close();
     });
   }
