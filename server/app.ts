@@ -70,14 +70,14 @@ export function createApp(deps: AppDeps): Express {
   api.use(analysesRoutes());
   api.use(scoringProfileRoutes({ dataSource, boss }));
   api.use(batchRoutes({ config, dataSource, boss }));
-  api.use(caseRoutes({ dataSource }));
+  api.use(caseRoutes({ dataSource, letters: { dataSource, mailer, publicUrl: config.publicUrl } }));
   api.use(caseQueueRoutes({ dataSource }));
   api.use(savedViewRoutes({ dataSource }));
   api.use(workloadRoutes({ dataSource }));
   api.use(housekeepingRoutes({ dataSource, mailer, publicUrl: config.publicUrl }));
   api.use(programmeRoutes({ dataSource }));
   api.use(letterRoutes({ dataSource, mailer, publicUrl: config.publicUrl }));
-  api.use(replyRoutes({ dataSource }));
+  api.use(replyRoutes({ dataSource, mailer, publicUrl: config.publicUrl }));
   api.use(openapiRoutes());
   app.use('/api', api);
   app.use('/api', apiNotFound);

@@ -2,6 +2,7 @@ import { Redirect, Slot } from 'expo-router';
 import { ActivityIndicator, View } from 'react-native';
 import { navFor } from '../../components/features/nav/nav-items';
 import { UserBadge } from '../../components/features/auth/user-badge';
+import { ROLE_LABELS } from '../../shared/roles';
 import { colours } from '../../components/theme';
 import { AppShell } from '../../components/ui/app-shell';
 import { useSession } from '../../hooks/use-session';
@@ -19,7 +20,7 @@ export default function OfficeLayout() {
   if (!session.data) return <Redirect href="/sign-in" />;
   const { user } = session.data;
   return (
-    <AppShell nav={navFor(user.role)} accessory={<UserBadge user={user} />}>
+    <AppShell nav={navFor(user.role)} accessory={<UserBadge user={user} />} who={{ name: user.displayName, role: ROLE_LABELS[user.role] }}>
       <Slot />
     </AppShell>
   );

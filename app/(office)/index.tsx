@@ -1,1 +1,1 @@
-export { StatusScreen as default } from '../../components/features/status/status-screen';
+export { StartRedirect as default } from '../../components/features/nav/start-redirect';

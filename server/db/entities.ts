@@ -14,6 +14,7 @@ import { ScoringProfile } from '../scoring/scoring-profile.entity';
 import { ScoringRun } from '../scoring/scoring-run.entity';
 import { User } from '../users/user.entity';
 import { DocumentRequest } from '../letters/document-request.entity';
+import { CaseCorrection } from '../letters/case-correction.entity';
 import { Letter } from '../letters/letter.entity';
 import { ReplyUpload } from '../letters/reply-upload.entity';
 import { CaseAttention } from '../cases/case-attention.entity';
@@ -35,6 +36,7 @@ export const entities = [
   CaseEvent,
   CaseNote,
   Letter,
+  CaseCorrection,
   DocumentRequest,
   ReplyUpload,
   CaseAttention,

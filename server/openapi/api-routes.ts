@@ -32,6 +32,8 @@ import { HousekeepingResultSchema } from '../../shared/housekeeping';
 import { SavedViewCreateSchema, SavedViewListSchema, SavedViewSchema } from '../../shared/saved-views';
 import {
   DocumentRequestInputSchema,
+  LetterContextSchema,
+  LetterPreviewSchema,
   LetterCreatedSchema,
   LetterListSchema,
   REPLY_FILE_TYPES,
@@ -600,6 +602,42 @@ export const API_ROUTES: readonly ApiRoute[] = [
     },
   },
   {
+    method: 'get',
+    path: '/api/cases/:id/letter-context',
+    operationId: 'getLetterContext',
+    tag: 'letters',
+    summary: 'What the request form needs: the office’s today, the due-date window and the e-mail address on file',
+    responses: { 200: json(LetterContextSchema, 'The context.'), 404: noCase },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/document-requests/preview',
+    operationId: 'previewDocumentRequest',
+    tag: 'letters',
+    summary: 'The document request as it would be sent (nothing stored or sent)',
+    body: DocumentRequestInputSchema,
+    responses: {
+      200: json(LetterPreviewSchema, 'The letter’s address, subject and text.'),
+      404: noCase,
+      409: error('The case is not in review.'),
+      422: error('Invalid input or no usable address.'),
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/closing-letter/preview',
+    operationId: 'previewClosingLetter',
+    tag: 'letters',
+    summary: 'The no-change letter or adjustment proposal a closing would send (nothing stored or sent)',
+    body: TransitionRequestSchema,
+    responses: {
+      200: json(LetterPreviewSchema, 'The letter’s address (null: kept for post), subject and text.'),
+      404: noCase,
+      409: error('The case cannot close from its state.'),
+      422: error('Invalid input, or corrections that change no tax.'),
+    },
+  },
+  {
     method: 'post',
     path: '/api/cases/:id/referral',
     operationId: 'referCase',
@@ -654,9 +692,12 @@ export const API_ROUTES: readonly ApiRoute[] = [
     operationId: 'sendReply',
     tag: 'replies',
     public: true,
-    summary: 'Send the records asked for (uses the link up)',
+    summary: 'Send records asked for: in one go or in parts until the due date or "complete"',
     multipart: {
-      parts: { files: { kind: 'files', required: true, description: `Up to ${REPLY_MAX_FILES} PDF, JPEG or PNG files.`, mediaTypes: REPLY_FILE_TYPES } },
+      parts: {
+        files: { kind: 'files', description: `Up to ${REPLY_MAX_FILES} PDF, JPEG or PNG files (none only with complete=true after an earlier send).`, mediaTypes: REPLY_FILE_TYPES },
+        complete: { kind: 'text', description: '"true" when this is everything: the link closes and the case goes back to review.' },
+      },
     },
     responses: {
       201: json(ReplyReceiptSchema, 'Received.'),

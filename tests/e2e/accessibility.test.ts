@@ -90,7 +90,7 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       await page.locator('[data-testid^="pick-"]').first().waitFor();
       await expectNoSeriousAxeViolations(page, `workload with the reassignment panel ${size}`);
 
-      await page.goto(base + '/', { waitUntil: 'networkidle' });
+      await page.goto(base + '/status', { waitUntil: 'networkidle' });
       await waitForText(page.getByTestId('health-database-state'), 'Up', { exact: true });
       await expectNoSeriousAxeViolations(page, `status ${size}`);
 
@@ -156,6 +156,10 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       page.on('pageerror', (e) => errors.push(e.message));
       await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
       await page.waitForURL((u) => u.pathname === '/queue', { timeout: WAIT_MS });
+      await page.getByTestId('needs-me').waitFor();
+      await expectNoSeriousAxeViolations(page, `my cases (examiner) ${size}`);
+      // Examiners start on their own cases (issue 14); everyone's, for cases to look at.
+      await page.goto(`${s.server.baseUrl}/queue?assignee=any`, { waitUntil: 'networkidle' });
       await page
         .locator(`[data-testid^="${wide ? 'queue-row-' : 'queue-card-'}"]`)
         .first()
@@ -221,7 +225,7 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       await page.keyboard.type(DEMO_PASSWORD);
       await page.keyboard.press('Enter');
       await page.waitForURL((u) => u.pathname === '/queue', { timeout: WAIT_MS });
-      await page.getByRole('heading', { name: 'Examination queue' }).waitFor();
+      await page.getByRole('heading', { name: 'My cases' }).waitFor();
       // Space on the sign-out button works as a click does.
       await tabTo(page, 'sign-out');
       await page.keyboard.press('Space');
@@ -235,6 +239,8 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       const page = await browser.newPage({ viewport });
       await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
       await page.waitForURL((u) => u.pathname === '/queue', { timeout: WAIT_MS });
+      // Everyone's cases (examiners start on their own, issue 14, which are none yet here).
+      await page.goto(`${s.server.baseUrl}/queue?assignee=any`, { waitUntil: 'networkidle' });
 
       // From the queue: Tab reaches the first case (after the search, filters and nav), Enter opens it.
       const firstCase = page.locator(`[data-testid^="${name === 'wide' ? 'queue-row-' : 'queue-card-'}"]`).first();

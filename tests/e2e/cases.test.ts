@@ -65,6 +65,10 @@ describe('case work (browser)', () => {
       page.on('pageerror', (e) => errors.push(e.message));
       await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
       await page.waitForURL((u) => u.pathname === '/queue');
+      // Examiners start on their own cases (issue 14); this walk works from everyone's.
+      await page.getByRole('heading', { name: 'My cases' }).waitFor();
+      await page.getByTestId('needs-me').waitFor();
+      await page.goto(s.server.baseUrl + '/queue?assignee=any', { waitUntil: 'networkidle' });
       await page.getByRole('heading', { name: 'Examination queue' }).waitFor();
       await page.getByTestId(wide ? 'queue-table' : 'queue-cards').waitFor();
       // The short caution, in full, above the queue as on the case screen (docs/design.md#cautions).

@@ -24,7 +24,7 @@ describe('status screen in the browser (built web app served by the real server)
       const errors: string[] = [];
       page.on('pageerror', (e) => errors.push(e.message));
       await signInThroughUi(page, s.server.baseUrl, 'supervisor', DEMO_PASSWORD);
-      await page.goto(s.server.baseUrl + '/', { waitUntil: 'networkidle' });
+      await page.goto(s.server.baseUrl + '/status', { waitUntil: 'networkidle' });
       await waitForText(page.getByTestId('health-database-state'), 'Up', { exact: true });
       await waitForText(page.getByTestId('health-overall'), 'All services are up.', { exact: true });
 

@@ -1,10 +1,11 @@
+import { Link } from 'expo-router';
 import { View } from 'react-native';
 import { CAUTIONS } from '../../../shared/cautions';
 import { colours, space } from '../../theme';
 import { Card } from '../../ui/card';
 import { Txt } from '../../ui/text';
 
-/** What Plumbline does, and what it must never be taken to do. */
+/** What Plumbline does, what it must never be taken to do, and the way to the system status (issue 14: no longer a menu entry). */
 export function AboutScreen() {
   return (
     <View style={{ gap: space.lg, maxWidth: 760 }}>
@@ -29,6 +30,11 @@ export function AboutScreen() {
           </View>
         ))}
       </Card>
+      <Link href="/status" testID="about-status-link">
+        <Txt tone="brass" bold>
+          System status: database, scoring queue and outgoing mail →
+        </Txt>
+      </Link>
       <Txt variant="small" tone="soft">
         Methods: Benford (1938); Hill (1995, Statistical Science); Nigrini (2012, Benford's Law, Wiley); Barney & Schulzke (2016, Journal of Forensic Accounting
         Research). The demo county of Aldermere, its people and figures are invented.

@@ -285,7 +285,7 @@ export function QueueScreen() {
   const role = session.data?.user.role;
   const isExaminer = role === 'examiner';
   const examiners = useExaminers();
-  const { p, set } = useQueueParams();
+  const { p, set: setParams } = useQueueParams();
   const [search, setSearch] = useState(p.q ?? '');
   const [more, setMore] = useState(!!(p.taxYear || p.activity || p.batch || p.deadlineWithin));
   // On a phone the filters fold away so the first cases show without scrolling.
@@ -294,12 +294,17 @@ export function QueueScreen() {
   useEffect(() => setSearch(p.q ?? ''), [p.q]);
 
   const searching = !!p.q;
-  // The defaults when the address names none: an examiner's own cases being worked; a search, everyone's in every state.
-  const assignee = p.assignee ?? (isExaminer && !searching ? 'me' : 'any');
+  // The address with no filters at all is an examiner's start: their own cases ("My cases").
+  // An address with filters but no holder (a link from a batch, a search) means anyone's, and
+  // a search reaches every state unless one was chosen.
+  const bare = Object.values(p).every((v) => v === undefined);
+  const assignee = p.assignee ?? (isExaminer && bare ? 'me' : 'any');
   const state = p.state ?? (searching ? 'all' : 'active');
   const needs = (NEEDS_KINDS as readonly string[]).includes(p.needs ?? '') ? (p.needs as NeedsKind) : undefined;
   const within = p.deadlineWithin && /^\d{1,4}$/.test(p.deadlineWithin) ? Number(p.deadlineWithin) : undefined;
   const mine = assignee === 'me' && !searching;
+  // Changing a filter on "My cases" stays on my cases: the implicit holder is written into the address.
+  const set: typeof setParams = (next, keepPage) => setParams({ assignee: p.assignee ?? (bare && assignee === 'me' ? 'me' : undefined), ...next }, keepPage);
   const needsCounts = useNeedsMe(isExaminer);
 
   const page = Math.max(1, Number(p.page) || 1);
@@ -401,11 +406,11 @@ export function QueueScreen() {
               autoCapitalize="none"
               value={search}
               onChangeText={setSearch}
-              onSubmitEditing={() => set({ q: search.trim() || undefined })}
+              onSubmitEditing={() => setParams({ q: search.trim() || undefined, assignee: p.assignee })}
               returnKeyType="search"
             />
           </View>
-          <Button label="Find" testID="queue-search-go" onPress={() => set({ q: search.trim() || undefined })} />
+          <Button label="Find" testID="queue-search-go" onPress={() => setParams({ q: search.trim() || undefined, assignee: p.assignee })} />
         </View>
         {p.q && (
           <Pressable accessibilityRole="button" onPress={() => set({ q: undefined })} testID="queue-search-clear">

@@ -13,6 +13,7 @@ import { Programme1765000000000 } from './1765000000000-programme';
 import { CaseCalendar1765100000000 } from './1765100000000-case-calendar';
 import { BatchLabel1766050000000 } from './1766050000000-batch-label';
 import { MyCases1766040000000 } from './1766040000000-my-cases';
+import { ClosingLetters1766020000000 } from './1766020000000-closing-letters';
 
 export const migrations = [
   Foundation1764600000000,
@@ -26,4 +27,5 @@ export const migrations = [
   CaseCalendar1765100000000,
   MyCases1766040000000,
   BatchLabel1766050000000,
+  ClosingLetters1766020000000,
 ];

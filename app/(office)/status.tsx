@@ -1,0 +1,1 @@
+export { StatusScreen as default } from '../../components/features/status/status-screen';
