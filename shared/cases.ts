@@ -3,6 +3,7 @@
  * open → assigned → in_review → awaiting_reply → (referred | closed_no_change | closed_adjusted)
  */
 import { z } from 'zod';
+import { CorrectionListSchema } from './returns/corrections';
 import { noControlChars } from './text';
 
 export const CASE_STATES = ['open', 'assigned', 'in_review', 'awaiting_reply', 'referred', 'closed_no_change', 'closed_adjusted'] as const;
@@ -64,7 +65,11 @@ export function canTransition(from: CaseState, to: CaseState): boolean {
   return CASE_TRANSITIONS[from].includes(to);
 }
 
-/** Body of `POST /api/cases/:id/transition`. */
+/**
+ * Body of `POST /api/cases/:id/transition`. Closing as adjusted takes the corrected figures
+ * by line code (shared/returns/corrections.ts); the adjusted amount is worked out from them
+ * (the difference in tax), never typed.
+ */
 export const TransitionRequestSchema = z
   .object({
     to: CaseStateSchema,
@@ -74,32 +79,27 @@ export const TransitionRequestSchema = z
       .max(2000)
       .check(noControlChars({ lines: true }))
       .optional(),
-    /** Adjusted amount of tax, decimal text with at most 2 decimals (required for closed_adjusted). */
-    adjustedAmount: z
-      .string()
-      .regex(/^\d{1,12}(\.\d{1,2})?$/, 'Give the adjusted amount as a number with at most 2 decimals, e.g. 1250.00')
-      .optional(),
+    /** Corrected figures by line code (required for closed_adjusted, refused otherwise). */
+    corrections: CorrectionListSchema.optional(),
+    /** No longer accepted: named here so a client that still sends it is told what to do instead. */
+    adjustedAmount: z.unknown().optional(),
   })
   .superRefine((v, ctx) => {
-    if (v.to === 'closed_adjusted' && !v.adjustedAmount)
-      ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Closing as adjusted needs the adjusted amount' });
-    if (v.to === 'closed_adjusted' && v.adjustedAmount && Number(v.adjustedAmount) <= 0)
-      ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'The adjusted amount must be more than 0' });
-    if (v.to !== 'closed_adjusted' && v.adjustedAmount)
-      ctx.addIssue({ code: 'custom', path: ['adjustedAmount'], message: 'Only a case closed as adjusted has an adjusted amount' });
+    if (v.adjustedAmount !== undefined)
+      ctx.addIssue({
+        code: 'custom',
+        path: ['adjustedAmount'],
+        message: 'The adjusted amount is worked out from the corrected figures: send corrections [{lineCode, amount}] instead',
+      });
+    if (v.to === 'closed_adjusted' && !v.corrections)
+      ctx.addIssue({ code: 'custom', path: ['corrections'], message: 'Closing as adjusted needs the corrected figures: [{lineCode, amount}]' });
+    if (v.to !== 'closed_adjusted' && v.corrections)
+      ctx.addIssue({ code: 'custom', path: ['corrections'], message: 'Only a case closed as adjusted has corrected figures' });
     if (isFinalState(v.to) && !v.outcome)
       ctx.addIssue({ code: 'custom', path: ['outcome'], message: 'Say in a sentence what was found or why the case moves on' });
   });
 export type TransitionRequest = z.infer<typeof TransitionRequestSchema>;
 
-/** Body of `POST /api/cases/:id/assign`. */
-export const AssignRequestSchema = z.object({ assigneeId: z.uuid('Choose an examiner') });
-export type AssignRequest = z.infer<typeof AssignRequestSchema>;
-
-/** Body of `POST /api/cases/:id/notes`. */
-export const NoteRequestSchema = z.object({
-  text: z
-    .string()
 /**
  * Where a finished case goes when a supervisor reopens it (issue 14): back in review, with
  * the same examiner, so the work goes on from the records already gathered. A reopen is its
@@ -119,6 +119,14 @@ export const ReopenRequestSchema = z.object({
 });
 export type ReopenRequest = z.infer<typeof ReopenRequestSchema>;
 
+/** Body of `POST /api/cases/:id/assign`. */
+export const AssignRequestSchema = z.object({ assigneeId: z.uuid('Choose an examiner') });
+export type AssignRequest = z.infer<typeof AssignRequestSchema>;
+
+/** Body of `POST /api/cases/:id/notes`. */
+export const NoteRequestSchema = z.object({
+  text: z
+    .string()
     .trim()
     .min(1, 'Write the note first')
     .max(10_000, 'Keep a note under 10,000 characters')

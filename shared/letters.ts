@@ -74,36 +74,53 @@ export function longDate(iso: string): string {
 }
 
 /**
- * Body of `POST /api/cases/:id/document-requests`. `email` may be left empty: the letter
- * then goes to the address on file. The due date must fall DUE_DATE_MIN_DAYS to
- * DUE_DATE_MAX_DAYS days from today (checked at parse time, so the form and server agree).
+ * Body of `POST /api/cases/:id/document-requests`, checked against a given today. `email`
+ * may be left empty: the letter then goes to the address on file (`emailRequired`: there is
+ * none, so the form asks for one). The due date must fall
+ * DUE_DATE_MIN_DAYS to DUE_DATE_MAX_DAYS days from today. The server passes the office
+ * clock's today (server/clock.ts) and the app the office's today from
+ * `GET /api/cases/:id/letter-context`, so the form and the server agree whatever the
+ * browser's own date is.
  */
-export const DocumentRequestInputSchema = z
-  .object({
-    items: z
-      .array(z.string().trim().min(3, 'Describe the record in a few words').max(300, 'Keep each item under 300 characters').check(noControlChars()))
-      .min(1, 'Ask for at least one record')
-      .max(12, 'Ask for at most 12 records in one letter'),
-    dueDate: CalendarDateSchema,
-    email: z.union([z.literal(''), z.email('Enter a full e-mail address, e.g. name@example.org').max(254)]).optional(),
-  })
-  .superRefine((v, ctx) => {
-    // A date that is not a real calendar date already has its issue.
-    if (!CalendarDateSchema.safeParse(v.dueDate).success) return;
-    const days = daysBetween(isoToday(), v.dueDate);
-    if (days < DUE_DATE_MIN_DAYS)
-      ctx.addIssue({
-        code: 'custom',
-        path: ['dueDate'],
-        message: `Give the taxpayer at least ${DUE_DATE_MIN_DAYS} days: choose ${longDate(addDays(isoToday(), DUE_DATE_MIN_DAYS))} or later`,
-      });
-    if (days > DUE_DATE_MAX_DAYS)
-      ctx.addIssue({
-        code: 'custom',
-        path: ['dueDate'],
-        message: `Choose a due date within ${DUE_DATE_MAX_DAYS} days, by ${longDate(addDays(isoToday(), DUE_DATE_MAX_DAYS))}`,
-      });
-  });
+export function documentRequestInputSchema(today: () => string, opts: { emailRequired?: boolean } = {}) {
+  return z
+    .object({
+      items: z
+        .array(z.string().trim().min(3, 'Describe the record in a few words').max(300, 'Keep each item under 300 characters').check(noControlChars()))
+        .min(1, 'Ask for at least one record')
+        .max(12, 'Ask for at most 12 records in one letter'),
+      dueDate: CalendarDateSchema,
+      email: z.union([z.literal(''), z.email('Enter a full e-mail address, e.g. name@example.org').max(254)]).optional(),
+    })
+    .superRefine((v, ctx) => {
+      // The form knows when no address is on file and asks for one before Send (issue 14).
+      if (opts.emailRequired && !v.email)
+        ctx.addIssue({
+          code: 'custom',
+          path: ['email'],
+          message: 'No e-mail address is on file for this taxpayer: enter the address the request should go to',
+        });
+      // A date that is not a real calendar date already has its issue.
+      if (!CalendarDateSchema.safeParse(v.dueDate).success) return;
+      const t = today();
+      const days = daysBetween(t, v.dueDate);
+      if (days < DUE_DATE_MIN_DAYS)
+        ctx.addIssue({
+          code: 'custom',
+          path: ['dueDate'],
+          message: `Give the taxpayer at least ${DUE_DATE_MIN_DAYS} days: choose ${longDate(addDays(t, DUE_DATE_MIN_DAYS))} or later`,
+        });
+      if (days > DUE_DATE_MAX_DAYS)
+        ctx.addIssue({
+          code: 'custom',
+          path: ['dueDate'],
+          message: `Choose a due date within ${DUE_DATE_MAX_DAYS} days, by ${longDate(addDays(t, DUE_DATE_MAX_DAYS))}`,
+        });
+    });
+}
+
+/** {@link documentRequestInputSchema} against the date where this code runs (for documentation and old callers). */
+export const DocumentRequestInputSchema = documentRequestInputSchema(() => isoToday());
 export type DocumentRequestInput = z.infer<typeof DocumentRequestInputSchema>;
 
 /**
@@ -210,6 +227,8 @@ export const ReplyUploadSchema = z.object({
   contentType: z.enum(REPLY_FILE_TYPES),
   size: z.number().int(),
   sha256: z.string(),
+  /** Which send through the link brought it (1 for the first). */
+  part: z.number().int(),
   createdAt: z.string(),
 });
 export type ReplyUploadDto = z.infer<typeof ReplyUploadSchema>;
@@ -232,6 +251,10 @@ export const LetterSchema = z.object({
       dueDate: z.string(),
       state: DocumentRequestStateSchema,
       answeredAt: z.string().nullable(),
+      /** How many sends came through the link (records may come in parts). */
+      sends: z.number().int(),
+      /** Who ended the sends: the taxpayer said that is everything, or the due date passed; null while open. */
+      completedBy: z.enum(['taxpayer', 'due-date']).nullable(),
       uploads: z.array(ReplyUploadSchema),
     })
     .nullable(),
@@ -262,6 +285,8 @@ export const ReplyRequestSchema = z.object({
   taxpayerName: z.string(),
   items: z.array(z.string()),
   dueDate: z.string(),
+  /** What already came through this link, send by send (records may come in parts). */
+  received: z.array(z.object({ part: z.number().int(), at: z.string(), files: z.array(z.object({ fileName: z.string(), size: z.number().int() })) })),
   office: z.object({ name: z.string(), unit: z.string(), address: z.array(z.string()), phone: z.string(), email: z.string(), hours: z.string() }),
   limits: z.object({ maxFiles: z.number().int(), maxFileBytes: z.number().int(), maxTotalBytes: z.number().int(), types: z.array(z.string()) }),
 });
@@ -271,10 +296,19 @@ export type ReplyRequestDto = z.infer<typeof ReplyRequestSchema>;
 export const ReplyClosedSchema = z.object({ error: z.string(), state: z.enum(['answered', 'expired']) });
 export type ReplyClosed = z.infer<typeof ReplyClosedSchema>;
 
-/** `POST /api/replies/:token` answer. */
+/**
+ * `POST /api/replies/:token` answer. A link takes several sends until the due date or until
+ * the taxpayer says that is everything (`complete`); each send is acknowledged by e-mail
+ * (`acknowledgement`: 'mailed', or 'not-mailed' when the mail server was not reachable: the
+ * records are kept all the same and this answer is the receipt).
+ */
 export const ReplyReceiptSchema = z.object({
   received: z.array(z.object({ fileName: z.string(), size: z.number().int(), sha256: z.string() })),
   receivedAt: z.string(),
+  part: z.number().int(),
+  complete: z.boolean(),
+  dueDate: z.string(),
+  acknowledgement: z.enum(['mailed', 'not-mailed']),
 });
 export type ReplyReceipt = z.infer<typeof ReplyReceiptSchema>;
 
@@ -285,3 +319,32 @@ export function replyFileProblem(file: { name: string; type: string; size: numbe
   if (file.size > REPLY_MAX_FILE_BYTES) return `${file.name} is larger than ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB.`;
   return null;
 }
+
+/** Days an adjustment proposal gives the taxpayer to answer. */
+export const PROPOSAL_ANSWER_DAYS = 30;
+
+/**
+ * `GET /api/cases/:id/letter-context`: what the request form needs before Send: the office's
+ * today (its due-date window is checked against it, not the browser's date) and the
+ * taxpayer's e-mail address on file (null when none is).
+ */
+export const LetterContextSchema = z.object({
+  today: z.string(),
+  emailOnFile: z.string().nullable(),
+  earliestDueDate: z.string(),
+  latestDueDate: z.string(),
+});
+export type LetterContext = z.infer<typeof LetterContextSchema>;
+
+/**
+ * `POST /api/cases/:id/document-requests/preview` and `POST /api/cases/:id/closing-letter/preview`:
+ * the letter as it would be sent, not sent. `to` is where it goes (null: no address on file;
+ * a closing letter is then kept for post), with its subject and plain text.
+ */
+export const LetterPreviewSchema = z.object({
+  kind: LetterKindSchema,
+  to: z.string().nullable(),
+  subject: z.string(),
+  text: z.string(),
+});
+export type LetterPreview = z.infer<typeof LetterPreviewSchema>;

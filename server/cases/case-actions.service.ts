@@ -11,6 +11,8 @@ import { CASE_TRANSITIONS, type TransitionRequest } from '../../shared/cases';
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
+import { closeWithLetter, isClosingMove } from '../letters/closing-letters.service';
+import type { LetterDeps } from '../letters/letters.service';
 import { findCaseTin, findExaminers, insertCaseNote } from './case.repository';
 import { dropQueueTotals } from './case-queue.service';
 import { assertMayAct, assignCase, claimCase, lockCase, moveCase, reopenCase, taxpayerLabelOf } from './case-workflow';
@@ -35,15 +37,18 @@ export async function assign(ds: DataSource, audit: StaffAudit, caseId: string, 
 /**
  * Moves a case. Moves that belong to another action (claiming, a document request, a
  * referral memo) are refused with 409 naming that action; the rest are checked by
- * moveCase against the workflow (409 naming the allowed moves).
+ * moveCase against the workflow (409 naming the allowed moves). A closing with no change or
+ * adjusted writes and mails its letter in the same transaction when `letters` is given
+ * (server/letters/closing-letters.service.ts; the adjusted amount comes from the corrections).
  */
-export async function transition(ds: DataSource, audit: StaffAudit, caseId: string, req: TransitionRequest): Promise<CaseChanged> {
+export async function transition(ds: DataSource, audit: StaffAudit, caseId: string, req: TransitionRequest, letters?: LetterDeps): Promise<CaseChanged> {
   const moved = await ds.transaction(async (m) => {
     const c = await lockCase(m, caseId);
     assertMayAct(audit.actor, c);
     const elsewhere = MOVES_ELSEWHERE[req.to];
     if (elsewhere && CASE_TRANSITIONS[c.state].includes(req.to)) throw new HttpError(409, elsewhere);
-    return moveCase(m, audit, c, req.to, { outcome: req.outcome, adjustedAmount: req.adjustedAmount });
+    if (letters && isClosingMove(req.to)) return closeWithLetter(m, letters, audit, c, req);
+    return moveCase(m, audit, c, req.to, { outcome: req.outcome });
   });
   dropQueueTotals(ds);
   return changed(moved);

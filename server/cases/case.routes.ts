@@ -4,6 +4,7 @@ import type { AppDeps } from '../app-deps';
 import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
+import type { LetterDeps } from '../letters/letters.service';
 import { addNote, assign, bulkReassign, claim, reopen, revealTin, transition } from './case-actions.service';
 import { listExaminers } from './case-detail.service';
 import { exportCases, listCases, openCase } from './case-queue.service';
@@ -14,7 +15,7 @@ import { today as officeToday } from '../clock';
  * own (the services check that per case); supervisors act on every case, assign and export.
  * Fixed paths (`/cases/export.xlsx`, `/cases/reassign`) come before `/cases/:id`.
  */
-export function caseRoutes(deps: Pick<AppDeps, 'dataSource'>) {
+export function caseRoutes(deps: Pick<AppDeps, 'dataSource'> & { letters: LetterDeps }) {
   const r = secureRouter();
   const ds = deps.dataSource;
 
@@ -62,7 +63,7 @@ export function caseRoutes(deps: Pick<AppDeps, 'dataSource'>) {
   });
 
   r.post('/cases/:id/transition', allow('workCases'), validate(TransitionRequestSchema), async (req, res) => {
-    res.json(await transition(ds, staffAuditOf(req), String(req.params.id), req.body));
+    res.json(await transition(ds, staffAuditOf(req), String(req.params.id), req.body, deps.letters));
   });
 
   r.post('/cases/:id/reopen', allow('reopenCases'), validate(ReopenRequestSchema), async (req, res) => {

@@ -51,6 +51,22 @@ export async function expireRequest(m: EntityManager, requestId: string): Promis
   return (Array.isArray(r[0]) ? r[0] : r).length > 0;
 }
 
+/**
+ * Ends the sends of a request past its due date that took at least one (records in parts,
+ * issue 13): answered, by the due date. Returns how many sends it took (0: none, nothing done).
+ */
+export async function completeByDueDate(m: EntityManager, requestId: string): Promise<number> {
+  const r = await m.query(
+    `UPDATE document_request d SET state = 'answered', completed_by = 'due-date',
+            answered_at = (SELECT max(u.created_at) FROM reply_upload u WHERE u.document_request_id = d.id)
+      WHERE d.id = $1 AND d.state = 'sent' AND EXISTS (SELECT 1 FROM reply_upload u WHERE u.document_request_id = d.id)
+      RETURNING (SELECT max(u.part) FROM reply_upload u WHERE u.document_request_id = d.id) AS sends`,
+    [requestId],
+  );
+  const rows = Array.isArray(r[0]) ? r[0] : r;
+  return rows.length ? Number(rows[0].sends) : 0;
+}
+
 /** True when another request of the case still waits for a reply that is not yet late. */
 export async function otherRequestWaiting(m: EntityManager, caseId: string, requestId: string, day: string): Promise<boolean> {
   const r = await m.query(`SELECT 1 FROM document_request WHERE case_id = $1 AND id <> $2 AND state = 'sent' AND due_date >= $3::date LIMIT 1`, [

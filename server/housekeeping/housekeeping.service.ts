@@ -32,6 +32,7 @@ import { insertLetter, setLetterMessageId } from '../letters/letters.repository'
 import { hashReplyToken, maskedReplyUrl, sha256 } from '../letters/letters.service';
 import { reminderMail, renderReminderPdf, type ReminderLetter } from '../letters/pdf/reminder-pdf';
 import {
+  completeByDueDate,
   expireRequest,
   findDigests,
   findRequestsPastDue,
@@ -82,20 +83,39 @@ const AUDIT: AuditContext = { actor: null, route: 'daily pass' };
 export async function runDailyPass(deps: HousekeepingDeps, settings: HousekeepingSettings = housekeepingSettings()): Promise<HousekeepingResult> {
   const day = today();
   const ds = deps.dataSource;
-  const requestsExpired = await expireOverdue(ds, day);
+  const { expired: requestsExpired, completed: completedByDate } = await expireOverdue(ds, day);
   const remindersSent = await sendReminders(deps, day, settings.reminderDaysBefore);
   const { digestsSent, deadlineWarnings } = await sendDigests(deps, day, settings.staffMailDomain);
   const result = { remindersSent, requestsExpired, digestsSent, deadlineWarnings };
   await recordRun(ds, day, result, now());
-  if (requestsExpired) dropQueueTotals(ds);
+  if (requestsExpired || completedByDate) dropQueueTotals(ds);
   return { day, ...result };
 }
 
-async function expireOverdue(ds: DataSource, day: string): Promise<number> {
+/** Expires overdue requests; ends by date those that took sends. Counts both. */
+async function expireOverdue(ds: DataSource, day: string): Promise<{ expired: number; completed: number }> {
   let n = 0;
+  let completed = 0;
   for (const r of await findRequestsPastDue(ds, day)) {
     const did = await ds.transaction(async (m) => {
       const c = await lockCase(m, r.caseId);
+      // Records that came in parts: the date ends the sends, and the case goes back to review
+      // as for a reply the taxpayer said was complete. Not an expiry.
+      const sends = await completeByDueDate(m, r.id);
+      if (sends > 0) {
+        const detail = { documentRequestId: r.id, letterId: r.letterId, dueDate: r.dueDate, sends, completedBy: 'due-date' };
+        await endReplyWait(m, c, 'reply-received', detail, !(await otherRequestWaiting(m, r.caseId, r.id, day)), now());
+        await recordAccess(m, AUDIT, {
+          action: 'change',
+          recordType: 'document_request',
+          recordId: r.id,
+          taxpayerId: r.taxpayerId,
+          taxpayerLabel: maskTin(String(r.tin)),
+          detail: `due date ${r.dueDate} passed after ${sends} send${sends === 1 ? '' : 's'}: reply complete`,
+        });
+        completed++;
+        return false;
+      }
       if (!(await expireRequest(m, r.id))) return false;
       const detail = { documentRequestId: r.id, letterId: r.letterId, dueDate: r.dueDate };
       await endReplyWait(m, c, 'reply-overdue', detail, !(await otherRequestWaiting(m, r.caseId, r.id, day)), now());
@@ -111,7 +131,7 @@ async function expireOverdue(ds: DataSource, day: string): Promise<number> {
     });
     if (did) n++;
   }
-  return n;
+  return { expired: n, completed };
 }
 
 async function sendReminders(deps: HousekeepingDeps, day: string, daysBefore: number): Promise<number> {

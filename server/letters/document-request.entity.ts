@@ -35,6 +35,10 @@ export class DocumentRequest {
   @Column({ name: 'created_at', type: 'timestamptz', default: () => 'now()' })
   createdAt: Date;
 
+  /** Who ended the sends: the taxpayer said that is everything, or the due date passed after a send. */
+  @Column({ name: 'completed_by', type: 'text', nullable: true })
+  completedBy: 'taxpayer' | 'due-date' | null;
+
   @Column({ name: 'answered_at', type: 'timestamptz', nullable: true })
   answeredAt: Date | null;
 }

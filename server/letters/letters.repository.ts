@@ -146,13 +146,14 @@ export interface LetterRow {
   dueDate: string | null;
   requestState: DocumentRequestState | null;
   answeredAt: Date | null;
+  completedBy: 'taxpayer' | 'due-date' | null;
 }
 
 /** A case's letters, newest first, with their document requests. */
 export async function findLetters(db: Db, caseId: string, letterId?: string): Promise<LetterRow[]> {
   const rows = await db.query(
     `SELECT l.id, l.case_id, l.kind, l.recipient, l.sha256, l.size, l.created_at, l.created_by, u.display_name,
-            d.id AS request_id, d.items, d.due_date::text AS due_date, d.state AS request_state, d.answered_at
+            d.id AS request_id, d.items, d.due_date::text AS due_date, d.state AS request_state, d.answered_at, d.completed_by
        FROM letter l
        LEFT JOIN app_user u ON u.id = l.created_by
        LEFT JOIN document_request d ON d.letter_id = l.id
@@ -175,6 +176,7 @@ export async function findLetters(db: Db, caseId: string, letterId?: string): Pr
     dueDate: (r.due_date as string | null) ?? null,
     requestState: (r.request_state as DocumentRequestState | null) ?? null,
     answeredAt: r.answered_at ? new Date(r.answered_at as string) : null,
+    completedBy: (r.completed_by as 'taxpayer' | 'due-date' | null) ?? null,
   }));
 }
 
@@ -186,6 +188,7 @@ export interface UploadRow {
   contentType: ReplyFileType;
   size: number;
   sha256: string;
+  part: number;
   createdAt: Date;
 }
 
@@ -193,7 +196,7 @@ export interface UploadRow {
 export async function findUploads(db: Db, requestIds: string[]): Promise<UploadRow[]> {
   if (!requestIds.length) return [];
   const rows = await db.query(
-    `SELECT id, document_request_id, file_name, content_type, size, sha256, created_at FROM reply_upload WHERE document_request_id = ANY($1::uuid[]) ORDER BY created_at, file_name`,
+    `SELECT id, document_request_id, file_name, content_type, size, sha256, part, created_at FROM reply_upload WHERE document_request_id = ANY($1::uuid[]) ORDER BY part, created_at, file_name`,
     [requestIds],
   );
   return rows.map((r: Record<string, unknown>) => ({
@@ -203,6 +206,7 @@ export async function findUploads(db: Db, requestIds: string[]): Promise<UploadR
     contentType: r.content_type as ReplyFileType,
     size: Number(r.size),
     sha256: String(r.sha256),
+    part: Number(r.part),
     createdAt: new Date(r.created_at as string),
   }));
 }
@@ -269,12 +273,16 @@ export interface RequestByToken {
   items: string[];
   dueDate: string;
   state: DocumentRequestState;
+  email: string;
+  /** How many sends came through the link so far. */
+  sends: number;
 }
 
 /** Finds a request by the hash of its token; `lock` takes the row for the reply's transaction. */
 export async function findRequestByTokenHash(db: Db, tokenHash: string, lock = false): Promise<RequestByToken | null> {
   const rows = await db.query(
-    `SELECT d.id, d.case_id, d.letter_id, c.taxpayer_id, t.name, t.tin, d.items, d.due_date::text AS due_date, d.state
+    `SELECT d.id, d.case_id, d.letter_id, c.taxpayer_id, t.name, t.tin, d.items, d.due_date::text AS due_date, d.state, d.email,
+            (SELECT coalesce(max(u.part), 0) FROM reply_upload u WHERE u.document_request_id = d.id) AS sends
        FROM document_request d
        JOIN exam_case c ON c.id = d.case_id
        JOIN taxpayer t ON t.id = c.taxpayer_id
@@ -294,6 +302,8 @@ export async function findRequestByTokenHash(db: Db, tokenHash: string, lock = f
     items: r.items,
     dueDate: r.due_date,
     state: r.state,
+    email: r.email,
+    sends: Number(r.sends),
   };
 }
 
@@ -302,25 +312,36 @@ export async function markExpired(db: Db, requestId: string): Promise<void> {
   await db.query(`UPDATE document_request SET state = 'expired' WHERE id = $1 AND state = 'sent'`, [requestId]);
 }
 
-/** Stores the reply's files and marks the request answered. */
-export async function storeReply(
+/**
+ * Stores one send's files as part `part` of the request's reply; when the taxpayer says that
+ * is everything (`complete`), marks the request answered. Returns the time of the send.
+ */
+export async function storeReplyPart(
   m: EntityManager,
   requestId: string,
+  part: number,
   files: { fileName: string; contentType: ReplyFileType; size: number; sha256: string; bytes: Buffer }[],
+  complete: boolean,
 ): Promise<Date> {
-  for (const f of files) {
-    await m.query(`INSERT INTO reply_upload (document_request_id, file_name, content_type, size, sha256, content) VALUES ($1, $2, $3, $4, $5, $6)`, [
-      requestId,
-      f.fileName,
-      f.contentType,
-      f.size,
-      f.sha256,
-      f.bytes,
-    ]);
-  }
   const at = officeNow();
-  await m.query(`UPDATE document_request SET state = 'answered', answered_at = $2 WHERE id = $1`, [requestId, at]);
+  for (const f of files) {
+    await m.query(
+      `INSERT INTO reply_upload (document_request_id, file_name, content_type, size, sha256, content, part, created_at) VALUES ($1, $2, $3, $4, $5, $6, $7, $8)`,
+      [requestId, f.fileName, f.contentType, f.size, f.sha256, f.bytes, part, at],
+    );
+  }
+  if (complete) await m.query(`UPDATE document_request SET state = 'answered', answered_at = $2, completed_by = 'taxpayer' WHERE id = $1`, [requestId, at]);
   return at;
+}
+
+/** The sends that came through a request's link, oldest first, with their files' names and sizes. */
+export async function findSends(db: Db, requestId: string): Promise<{ part: number; at: Date; files: { fileName: string; size: number }[] }[]> {
+  const rows: { part: number; at: Date; files: { fileName: string; size: number }[] }[] = await db.query(
+    `SELECT part, min(created_at) AS at, json_agg(json_build_object('fileName', file_name, 'size', size) ORDER BY created_at, file_name) AS files
+       FROM reply_upload WHERE document_request_id = $1 GROUP BY part ORDER BY part`,
+    [requestId],
+  );
+  return rows.map((r) => ({ part: Number(r.part), at: new Date(r.at), files: r.files }));
 }
 
 /**
@@ -334,4 +355,50 @@ export async function hasNewerWaitingRequest(db: Db, caseId: string, requestId: 
     [caseId, requestId],
   );
   return rows.length > 0;
+}
+
+/** The lines of a case's return as filed, in cents (the rules' input for corrected figures). */
+export async function findFiledLines(db: Db, caseId: string): Promise<{ code: string; cents: number }[]> {
+  const rows: { code: string; cents: string }[] = await db.query(
+    `SELECT li.line_code AS code, (li.amount * 100)::bigint::text AS cents
+       FROM exam_case c JOIN line_item li ON li.return_id = c.return_id
+      WHERE c.id = $1 ORDER BY li.line_no`,
+    [caseId],
+  );
+  return rows.map((r) => ({ code: r.code, cents: Number(r.cents) }));
+}
+
+/**
+ * Where a letter to the case's taxpayer goes: the address on file, else the address the
+ * newest document request of the case went to; null when there is neither.
+ */
+export async function findTaxpayerAddress(db: Db, caseId: string): Promise<string | null> {
+  const rows: { email: string | null }[] = await db.query(
+    `SELECT coalesce(nullif(t.email, ''),
+                     (SELECT d.email FROM document_request d WHERE d.case_id = c.id ORDER BY d.created_at DESC LIMIT 1)) AS email
+       FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id WHERE c.id = $1`,
+    [caseId],
+  );
+  return rows[0]?.email ?? null;
+}
+
+/** True when the taxpayer sent any file through a reply link of the case. */
+export async function caseHasReplyFiles(db: Db, caseId: string): Promise<boolean> {
+  const rows = await db.query(`SELECT 1 FROM reply_upload u JOIN document_request d ON d.id = u.document_request_id WHERE d.case_id = $1 LIMIT 1`, [caseId]);
+  return rows.length > 0;
+}
+
+/** Keeps the corrected figures of a case closed adjusted (amounts as decimal text). */
+export async function insertCorrections(
+  m: EntityManager,
+  caseId: string,
+  createdBy: string,
+  rows: { lineCode: string; filed: string; corrected: string }[],
+): Promise<void> {
+  if (!rows.length) return;
+  await m.query(
+    `INSERT INTO case_correction (case_id, line_code, filed_amount, corrected_amount, created_by)
+     SELECT $1, u.code, u.filed, u.corrected, $2 FROM unnest($3::text[], $4::numeric[], $5::numeric[]) AS u(code, filed, corrected)`,
+    [caseId, createdBy, rows.map((r) => r.lineCode), rows.map((r) => r.filed), rows.map((r) => r.corrected)],
+  );
 }

@@ -6,17 +6,34 @@
  *    422 invalid input or no e-mail address, 409 wrong state, 502 mail server refused;
  *  - `POST /api/cases/:id/referral` {unit?, summary} (workCases; in review or awaiting
  *    reply) → 201 {letter, caseState: 'referred'};
+ *  - `GET /api/cases/:id/letter-context` (workCases) → {today, emailOnFile, earliestDueDate,
+ *    latestDueDate}: what the request form shows before Send (issue 14);
+ *  - `POST /api/cases/:id/document-requests/preview` (same body as sending) and
+ *    `POST /api/cases/:id/closing-letter/preview` (a closing transition's body) → {kind, to,
+ *    subject, text}: the letter as it would go, nothing stored or sent;
  *  - `GET /api/cases/:id/letters` (readCases) → {items: [letter]};
  *  - `GET /api/cases/:id/letters/:letterId/pdf` (readCases) → the PDF (office copy);
  *  - `GET /api/cases/:id/reply-uploads/:uploadId` (readCases) → a file the taxpayer sent.
  * Every read is written to the access log as a view; every change by the case workflow.
  */
 import type { Response } from 'express';
-import { DocumentRequestInputSchema, letterItemWarnings, ReferralInputSchema } from '../../shared/letters';
+import { TransitionRequestSchema } from '../../shared/cases';
+import { documentRequestInputSchema, letterItemWarnings, ReferralInputSchema } from '../../shared/letters';
+import { today as officeToday } from '../clock';
+import { previewClosingLetter } from './closing-letters.service';
 import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
-import { letterPdf, listLetters, referCase, replyUploadFile, sendDocumentRequest, type LetterDeps } from './letters.service';
+import {
+  letterContext,
+  letterPdf,
+  listLetters,
+  previewDocumentRequest,
+  referCase,
+  replyUploadFile,
+  sendDocumentRequest,
+  type LetterDeps,
+} from './letters.service';
 
 /** Sends stored bytes with headers that keep them out of shared caches and unsniffed. */
 function sendFile(res: Response, contentType: string, fileName: string, bytes: Buffer, disposition: 'inline' | 'attachment'): void {
@@ -34,7 +51,25 @@ export function letterRoutes(deps: LetterDeps) {
   const r = secureRouter();
   const ld = deps;
 
-  r.post('/cases/:id/document-requests', allow('workCases'), validate(DocumentRequestInputSchema), async (req, res) => {
+  // The due-date window is checked against the office clock, as the form does (issue 14).
+  const requestSchema = documentRequestInputSchema(officeToday);
+
+  r.get('/cases/:id/letter-context', allow('workCases'), async (req, res) => {
+    res.setHeader('Cache-Control', 'private, no-store');
+    res.json(await letterContext(deps.dataSource, staffAuditOf(req), String(req.params.id)));
+  });
+
+  r.post('/cases/:id/document-requests/preview', allow('workCases'), validate(requestSchema), async (req, res) => {
+    res.setHeader('Cache-Control', 'private, no-store');
+    res.json(await previewDocumentRequest(ld, staffAuditOf(req), String(req.params.id), req.body));
+  });
+
+  r.post('/cases/:id/closing-letter/preview', allow('workCases'), validate(TransitionRequestSchema), async (req, res) => {
+    res.setHeader('Cache-Control', 'private, no-store');
+    res.json(await previewClosingLetter(deps.dataSource, staffAuditOf(req), String(req.params.id), req.body));
+  });
+
+  r.post('/cases/:id/document-requests', allow('workCases'), validate(requestSchema), async (req, res) => {
     const id = String(req.params.id);
     const created = await sendDocumentRequest(ld, staffAuditOf(req), id, req.body);
     // A soft check: the examiner's own words go out as typed; the answer names the flagged ones.

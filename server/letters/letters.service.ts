@@ -20,9 +20,14 @@ import {
   REFERRAL_UNIT_LABELS,
   type DocumentRequestInput,
   type DocumentRequestState,
+  addDays,
+  DUE_DATE_MAX_DAYS,
+  DUE_DATE_MIN_DAYS,
+  type LetterContext,
   type LetterCreated,
   type LetterDto,
   type LetterList,
+  type LetterPreview,
   type ReferralInput,
 } from '../../shared/letters';
 import { ACTIVITY_CODES } from '../../shared/returns/line-codes';
@@ -46,6 +51,7 @@ import {
   insertDocumentRequest,
   insertLetter,
   setLetterMessageId,
+  type CaseContext,
   type LetterRow,
 } from './letters.repository';
 import { renderDocumentRequestPdf, type DocumentRequestLetter } from './pdf/document-request-pdf';
@@ -86,12 +92,17 @@ const ACTIVITY_WORDS: Record<(typeof ACTIVITY_CODES)[number], string> = {
   other: 'Other',
 };
 
-/** The effective state: an unanswered request past its due date has expired. */
-export function effectiveRequestState(state: DocumentRequestState, dueDate: string, today = clockToday()): DocumentRequestState {
-  return state === 'sent' && dueDate < today ? 'expired' : state;
+/**
+ * The effective state: a request past its due date with no send has expired; one with sends
+ * is answered (the records came in parts, and the date ended them).
+ */
+export function effectiveRequestState(state: DocumentRequestState, dueDate: string, today = clockToday(), sends = 0): DocumentRequestState {
+  if (state === 'sent' && dueDate < today) return sends > 0 ? 'answered' : 'expired';
+  return state;
 }
 
 function toDtos(rows: LetterRow[], uploads: Awaited<ReturnType<typeof findUploads>>): LetterDto[] {
+  const sendsOf = (requestId: string) => uploads.reduce((n, u) => (u.documentRequestId === requestId ? Math.max(n, u.part) : n), 0);
   return rows.map((r) => ({
     id: r.id,
     caseId: r.caseId,
@@ -107,8 +118,10 @@ function toDtos(rows: LetterRow[], uploads: Awaited<ReturnType<typeof findUpload
             id: r.requestId,
             items: r.items,
             dueDate: r.dueDate,
-            state: effectiveRequestState(r.requestState, r.dueDate),
+            state: effectiveRequestState(r.requestState, r.dueDate, clockToday(), sendsOf(r.requestId)),
             answeredAt: r.answeredAt ? r.answeredAt.toISOString() : null,
+            sends: sendsOf(r.requestId),
+            completedBy: r.completedBy ?? (r.requestState === 'sent' && r.dueDate < clockToday() && sendsOf(r.requestId) > 0 ? 'due-date' : null),
             uploads: uploads
               .filter((u) => u.documentRequestId === r.requestId)
               .map((u) => ({
@@ -117,6 +130,7 @@ function toDtos(rows: LetterRow[], uploads: Awaited<ReturnType<typeof findUpload
                 contentType: u.contentType,
                 size: u.size,
                 sha256: u.sha256,
+                part: u.part,
                 createdAt: u.createdAt.toISOString(),
               })),
           }
@@ -134,6 +148,84 @@ async function letterDto(ds: DataSource, caseId: string, letterId: string): Prom
 }
 
 const EmailSchema = z.email();
+
+/** Where a document request goes: the address typed, else the one on file; 422 naming the field when neither is usable. */
+function requestAddress(ctx: Pick<CaseContext, 'email'>, input: Pick<DocumentRequestInput, 'email'>): string {
+  const to = input.email ? input.email : ctx.email;
+  if (!to)
+    throw new HttpError(422, 'This taxpayer has no e-mail address on file. Enter the address the request should go to.', {
+      issues: [{ path: 'email', message: 'No e-mail address on file: enter one' }],
+    });
+  if (!EmailSchema.safeParse(to).success) {
+    throw new HttpError(422, `The e-mail address on file (${to}) is not a usable address. Enter the address the request should go to.`, {
+      issues: [{ path: 'email', message: 'The address on file is not usable: enter one' }],
+    });
+  }
+  return to;
+}
+
+/**
+ * What the request form needs before Send (issue 14): the office's today and the due-date
+ * window by the office clock, and the taxpayer's e-mail address on file (logged as a view).
+ */
+export async function letterContext(ds: DataSource, audit: StaffAudit, caseId: string): Promise<LetterContext> {
+  const c = await caseForRead(ds, caseId);
+  const ctx = (await findCaseContext(ds, caseId))!;
+  await recordAccess(ds, audit, {
+    action: 'view',
+    recordType: 'case',
+    recordId: caseId,
+    taxpayerId: c.taxpayerId,
+    taxpayerLabel: c.label,
+    detail: 'e-mail address on file',
+  });
+  const t = clockToday();
+  return {
+    today: t,
+    emailOnFile: ctx.email && EmailSchema.safeParse(ctx.email).success ? ctx.email : null,
+    earliestDueDate: addDays(t, DUE_DATE_MIN_DAYS),
+    latestDueDate: addDays(t, DUE_DATE_MAX_DAYS),
+  };
+}
+
+/**
+ * The document request as it would be sent (issue 14: the examiner reads it before Send):
+ * the e-mail's text with the reply link masked; nothing stored or sent.
+ * @throws HttpError as {@link sendDocumentRequest}, except 502
+ */
+export async function previewDocumentRequest(deps: LetterDeps, audit: StaffAudit, caseId: string, input: DocumentRequestInput): Promise<LetterPreview> {
+  const c = await caseForRead(deps.dataSource, caseId);
+  const ctx = (await findCaseContext(deps.dataSource, caseId))!;
+  assertMayAct(audit.actor, { assigneeId: ctx.assigneeId });
+  if (ctx.state !== 'in_review')
+    throw new HttpError(
+      409,
+      `A document request can be sent only while the case is in review; this case is ${CASE_STATE_LABELS[ctx.state as CaseState]?.toLowerCase() ?? ctx.state}.`,
+    );
+  const to = requestAddress(ctx, input);
+  const letter: DocumentRequestLetter = {
+    reference: 'DR-(given on sending)',
+    date: clockToday(),
+    taxpayerName: ctx.taxpayerName,
+    postalAddress: ctx.postalAddress,
+    taxYear: ctx.taxYear,
+    returnRef: ctx.returnRef,
+    items: input.items,
+    dueDate: input.dueDate,
+    replyUrl: maskedReplyUrl(deps.publicUrl),
+    signedBy: audit.actor.displayName,
+  };
+  const mail = documentRequestMail(letter, to, Buffer.alloc(0), 'preview.pdf');
+  await recordAccess(deps.dataSource, audit, {
+    action: 'view',
+    recordType: 'case',
+    recordId: caseId,
+    taxpayerId: c.taxpayerId,
+    taxpayerLabel: c.label,
+    detail: 'document_request preview',
+  });
+  return { kind: 'document_request', to, subject: String(mail.subject), text: String(mail.text) };
+}
 
 /**
  * Sends a document request for a case in review: makes the letter, mails it with the PDF
@@ -154,16 +246,7 @@ export async function sendDocumentRequest(deps: LetterDeps, audit: StaffAudit, c
       );
     }
     const ctx = (await findCaseContext(m, caseId))!;
-    const to = input.email ? input.email : ctx.email;
-    if (!to)
-      throw new HttpError(422, 'This taxpayer has no e-mail address on file. Enter the address the request should go to.', {
-        issues: [{ path: 'email', message: 'No e-mail address on file: enter one' }],
-      });
-    if (!EmailSchema.safeParse(to).success) {
-      throw new HttpError(422, `The e-mail address on file (${to}) is not a usable address. Enter the address the request should go to.`, {
-        issues: [{ path: 'email', message: 'The address on file is not usable: enter one' }],
-      });
-    }
+    const to = requestAddress(ctx, input);
 
     // 32 random bytes: the link cannot be guessed; only its hash is stored.
     const token = randomBytes(32).toString('base64url');

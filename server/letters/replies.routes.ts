@@ -4,7 +4,9 @@
  *    limits}; 404 unknown link; 410 {error, state: 'answered' | 'expired'};
  *  - `POST /api/replies/:token` multipart, files in the `files` field (PDF, JPEG or PNG;
  *    REPLY_MAX_FILES files of at most REPLY_MAX_FILE_BYTES, REPLY_MAX_TOTAL_BYTES together)
- *    → 201 {received, receivedAt}; then the link is used up.
+ *    and `complete` ("true" when that is everything; then no file is needed after an earlier
+ *    send) → 201 {received, receivedAt, part, complete, dueDate, acknowledgement}. The link
+ *    takes several sends until the due date or until one says that is everything.
  *
  * The link is checked before the body is read, so an unknown or used link costs no upload;
  * files are held in memory (bounded by the limits) and stored in the database with the case,
@@ -14,10 +16,10 @@ import type { IncomingHttpHeaders } from 'node:http';
 import type { Readable, Writable } from 'node:stream';
 import type { Request, RequestHandler } from 'express';
 import { REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES } from '../../shared/letters';
-import type { AppDeps } from '../app-deps';
 import { auditOf, type AuditContext } from '../access-log/audit-context';
 import { publicAccess, secureRouter } from '../auth/access';
 import { HttpError } from '../http/errors';
+import type { LetterDeps } from './letters.service';
 import { getReplyRequest, openRequest, receiveReply } from './replies.service';
 
 const MB = 1024 * 1024;
@@ -117,6 +119,7 @@ function receiveFiles(): RequestHandler {
       stream.on('end', () => (files[slot] = { originalName: info.filename ?? '', declaredType: info.mimeType, bytes: Buffer.concat(chunks) }));
     });
     parser.on('field', (field, value, info) => {
+      if (field === 'complete') return void (replyParts(req).replyComplete = value === 'true');
       // An empty "files" value is a file input left empty (what a browser sends): no file.
       if (field !== 'files' || value === '') return;
       if (info.valueTruncated) return fail(fileTooBig());
@@ -140,8 +143,8 @@ function receiveFiles(): RequestHandler {
 }
 
 /** Where the received parts wait for the handler. */
-function replyParts(req: Request): { replyFiles?: ReceivedPart[] } {
-  return req as unknown as { replyFiles?: ReceivedPart[] };
+function replyParts(req: Request): { replyFiles?: ReceivedPart[]; replyComplete?: boolean } {
+  return req as unknown as { replyFiles?: ReceivedPart[]; replyComplete?: boolean };
 }
 
 /** A reply link acts for the taxpayer, whoever's browser opens it: no staff actor. */
@@ -150,7 +153,7 @@ function taxpayerAudit(req: Request): AuditContext {
 }
 
 /** The public reply routes. */
-export function replyRoutes(deps: Pick<AppDeps, 'dataSource'>) {
+export function replyRoutes(deps: LetterDeps) {
   const r = secureRouter();
   const ds = deps.dataSource;
 
@@ -171,7 +174,7 @@ export function replyRoutes(deps: Pick<AppDeps, 'dataSource'>) {
     async (req, res) => {
       const files = replyParts(req).replyFiles ?? [];
       res.setHeader('Cache-Control', 'no-store');
-      res.status(201).json(await receiveReply(ds, taxpayerAudit(req), String(req.params.token), files));
+      res.status(201).json(await receiveReply(deps, taxpayerAudit(req), String(req.params.token), files, replyParts(req).replyComplete === true));
     },
   );
 

@@ -24,6 +24,10 @@ export class ReplyUpload {
   @Column({ type: 'char', length: 64 })
   sha256: string;
 
+  /** Which send through the link brought the file (1 for the first). */
+  @Column({ type: 'integer', default: 1 })
+  part: number;
+
   @Column({ type: 'bytea', select: false })
   content: Buffer;
 

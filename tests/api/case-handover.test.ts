@@ -73,7 +73,10 @@ describe('handing a case over', () => {
 
     // The taxpayer's link still works, and the reply lands with Nell.
     expect((await request(ctx.app).get(`/api/replies/${token}`)).status).toBe(200);
-    const reply = await request(ctx.app).post(`/api/replies/${token}`).attach('files', PDF, { filename: 'statements.pdf', contentType: 'application/pdf' });
+    const reply = await request(ctx.app)
+      .post(`/api/replies/${token}`)
+      .field('complete', 'true')
+      .attach('files', PDF, { filename: 'statements.pdf', contentType: 'application/pdf' });
     expect(reply.status).toBe(201);
     const mine = CaseListSchema.parse((await nell.agent.get('/api/cases?assignee=me&state=in_review')).body);
     expect(mine.items.map((i) => i.id)).toContain(caseId);

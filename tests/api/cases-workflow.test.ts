@@ -38,11 +38,12 @@ describe('case workflow through the API', () => {
   const post = (who: SignedIn, path: string, body: object = {}) => who.agent.post(path).set('X-CSRF-Token', who.csrf).send(body);
   const detail = async (who: SignedIn, id: string) => CaseDetailSchema.parse((await who.agent.get(`/api/cases/${id}`)).body);
   const stateOf = async (id: string): Promise<CaseState> => (await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [id]))[0].state;
-  /** A valid body for a move to `to` (closing needs an outcome, adjusted an amount). */
+  /** A valid body for a move to `to` (closing needs an outcome, adjusted its corrected figures). */
   const bodyFor = (to: CaseState) => ({
     to,
     ...(['referred', 'closed_no_change', 'closed_adjusted'].includes(to) ? { outcome: 'Records seen; see notes' } : {}),
-    ...(to === 'closed_adjusted' ? { adjustedAmount: '980.50' } : {}),
+    // Wages far above any fixture return's: the tax surely changes.
+    ...(to === 'closed_adjusted' ? { corrections: [{ lineCode: 'inc.wages', amount: '9999999.00' }] } : {}),
   });
 
   it('has enough open cases for every state and move', () => {
@@ -137,19 +138,30 @@ describe('case workflow through the API', () => {
       );
     });
 
-    it('closes as adjusted with the adjusted amount (numeric, exact)', async () => {
+    it('closes as adjusted with corrected figures; the adjusted amount is the difference in tax (numeric, exact)', async () => {
       const id = await caseInState(ctx.dataSource, take(), 'awaiting_reply', examiner);
+      // Wages set 100,000.00 above the filed sum: the tax rises by at most 30 % of that (the top
+      // rate, shared/returns/line-codes.ts), and by more than 0 for any fixture return.
+      const [{ wages }] = await ctx.dataSource.query(
+        `SELECT coalesce(sum(li.amount), 0)::text AS wages FROM exam_case c JOIN line_item li ON li.return_id = c.return_id AND li.line_code = 'inc.wages' WHERE c.id = $1`,
+        [id],
+      );
+      const corrected = (Number(wages) + 100000).toFixed(2);
       const res = await post(examiner, `/api/cases/${id}/transition`, {
         to: 'closed_adjusted',
         outcome: 'Vehicle costs were private use.',
-        adjustedAmount: '1234.05',
+        corrections: [{ lineCode: 'inc.wages', amount: corrected }],
       });
       expect(res.status).toBe(200);
       const row = (await ctx.dataSource.query(`SELECT adjusted_amount, outcome, closed_at IS NOT NULL AS closed FROM exam_case WHERE id = $1`, [id]))[0];
-      expect(row).toEqual({ adjusted_amount: '1234.05', outcome: 'Vehicle costs were private use.', closed: true });
+      expect(row).toMatchObject({ outcome: 'Vehicle costs were private use.', closed: true });
+      expect(Number(row.adjusted_amount)).toBeGreaterThan(0);
+      expect(Number(row.adjusted_amount)).toBeLessThanOrEqual(30000);
+      const kept = await ctx.dataSource.query(`SELECT line_code, filed_amount, corrected_amount FROM case_correction WHERE case_id = $1`, [id]);
+      expect(kept).toEqual([{ line_code: 'inc.wages', filed_amount: Number(wages).toFixed(2), corrected_amount: corrected }]);
       const d = await detail(examiner, id);
       expect(d.history[d.history.length - 1].summary).toBe(
-        'Test examiner moved the case from awaiting reply to closed, adjusted, adjusted amount 1234.05: Vehicle costs were private use.',
+        `Test examiner moved the case from awaiting reply to closed, adjusted, adjusted amount ${row.adjusted_amount}: Vehicle costs were private use.`,
       );
     });
 
@@ -158,13 +170,36 @@ describe('case workflow through the API', () => {
       const noOutcome = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_no_change' });
       expect(noOutcome.status).toBe(422);
       expect(noOutcome.body.issues).toEqual([{ path: 'outcome', message: 'Say in a sentence what was found or why the case moves on' }]);
-      const noAmount = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_adjusted', outcome: 'Adjusted' });
-      expect(noAmount.body.issues).toEqual([{ path: 'adjustedAmount', message: 'Closing as adjusted needs the adjusted amount' }]);
-      const badAmount = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_adjusted', outcome: 'Adjusted', adjustedAmount: '12,50' });
+      const noFigures = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_adjusted', outcome: 'Adjusted' });
+      expect(noFigures.body.issues).toEqual([{ path: 'corrections', message: 'Closing as adjusted needs the corrected figures: [{lineCode, amount}]' }]);
+      const badAmount = await post(examiner, `/api/cases/${id}/transition`, {
+        to: 'closed_adjusted',
+        outcome: 'Adjusted',
+        corrections: [{ lineCode: 'inc.wages', amount: '12,50' }],
+      });
       expect(badAmount.status).toBe(422);
-      expect(badAmount.body.issues[0].path).toBe('adjustedAmount');
-      const strayAmount = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_no_change', outcome: 'Fine', adjustedAmount: '10.00' });
-      expect(strayAmount.body.issues).toEqual([{ path: 'adjustedAmount', message: 'Only a case closed as adjusted has an adjusted amount' }]);
+      expect(badAmount.body.issues[0].path).toBe('corrections.0.amount');
+      const total = await post(examiner, `/api/cases/${id}/transition`, {
+        to: 'closed_adjusted',
+        outcome: 'Adjusted',
+        corrections: [{ lineCode: 'tot.income', amount: '10.00' }],
+      });
+      expect(total.body.issues[0]).toMatchObject({ path: 'corrections.0.lineCode', message: expect.stringMatching(/totals and the refund are worked out/) });
+      const typed = await post(examiner, `/api/cases/${id}/transition`, {
+        to: 'closed_adjusted',
+        outcome: 'Fine',
+        adjustedAmount: '10.00',
+        corrections: [{ lineCode: 'inc.wages', amount: '1.00' }],
+      });
+      expect(typed.body.issues).toEqual([
+        { path: 'adjustedAmount', message: 'The adjusted amount is worked out from the corrected figures: send corrections [{lineCode, amount}] instead' },
+      ]);
+      const stray = await post(examiner, `/api/cases/${id}/transition`, {
+        to: 'closed_no_change',
+        outcome: 'Fine',
+        corrections: [{ lineCode: 'inc.wages', amount: '1.00' }],
+      });
+      expect(stray.body.issues).toEqual([{ path: 'corrections', message: 'Only a case closed as adjusted has corrected figures' }]);
       expect((await post(examiner, `/api/cases/${id}/transition`, { to: 'shelved' })).status).toBe(422);
       expect(await stateOf(id)).toBe('in_review');
     });

@@ -92,7 +92,10 @@ describe('the daily pass', () => {
     expect(await mailTo(to)).toHaveLength(2);
 
     // The taxpayer replies through the reminder's link; the case is back in review.
-    const reply = await request(ctx.app).post(`/api/replies/${fresh}`).attach('files', PDF, { filename: 'invoices.pdf', contentType: 'application/pdf' });
+    const reply = await request(ctx.app)
+      .post(`/api/replies/${fresh}`)
+      .field('complete', 'true')
+      .attach('files', PDF, { filename: 'invoices.pdf', contentType: 'application/pdf' });
     expect(reply.status).toBe(201);
     const d = CaseDetailSchema.parse((await examiner.agent.get(`/api/cases/${caseId}`)).body);
     expect(d.state).toBe('in_review');

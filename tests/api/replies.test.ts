@@ -1,7 +1,9 @@
 /**
- * The taxpayer's one-time reply link (issue 7): what the page may show, the upload with its
- * limits and file types, the link used up after one reply or gone after its due date,
- * unknown links 404, and the case back in review with an actor-less 'reply-received' event.
+ * The taxpayer's reply link (issue 7; records in parts, issue 13): what the page may show, the
+ * upload with its limits and file types, several sends until the due date or until the
+ * taxpayer says that is everything, each acknowledged by e-mail (text read back with
+ * pdftotext), the link closed after "everything" or gone after its due date, unknown links
+ * 404, and the case back in review with an actor-less 'reply-received' event.
  */
 import { randomBytes } from 'node:crypto';
 import { Client } from 'pg';
@@ -9,7 +11,7 @@ import request from 'supertest';
 import { REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../shared/letters';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { caseInReview, dueIn, uniqueAddress } from '../helpers/letter-cases';
-import { waitForMail } from '../helpers/maildev';
+import { attachment, mailTo, pdfText, waitForMail } from '../helpers/maildev';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
 
@@ -36,7 +38,7 @@ describe('reply links', () => {
   });
 
   /** Sends a request for a fresh case and returns the token from the e-mail. */
-  async function requestSent(dueDate = dueIn(21)): Promise<{ caseId: string; token: string; requestId: string; taxpayerId: string }> {
+  async function requestSent(dueDate = dueIn(21)): Promise<{ caseId: string; token: string; requestId: string; taxpayerId: string; to: string }> {
     const { caseId, taxpayerId } = await caseInReview(ctx.dataSource, examiner);
     const to = uniqueAddress();
     const res = await examiner.agent
@@ -46,11 +48,13 @@ describe('reply links', () => {
     expect(res.status).toBe(201);
     const mail = await waitForMail(to);
     const token = /\/reply\/([A-Za-z0-9_-]{43})/.exec(mail.text ?? '')![1];
-    return { caseId, token, requestId: res.body.letter.documentRequest.id, taxpayerId };
+    return { caseId, token, requestId: res.body.letter.documentRequest.id, taxpayerId, to };
   }
 
-  const upload = (token: string, files: { name: string; bytes: Buffer; type: string }[]) => {
+  /** One send through the link; `complete` says that is everything. */
+  const upload = (token: string, files: { name: string; bytes: Buffer; type: string }[], complete = false) => {
     let r = request(ctx.app).post(`/api/replies/${token}`);
+    if (complete) r = r.field('complete', 'true');
     for (const f of files) r = r.attach('files', f.bytes, { filename: f.name, contentType: f.type });
     return r;
   };
@@ -72,6 +76,7 @@ describe('reply links', () => {
       taxpayerName: facts.name,
       items: ITEMS,
       dueDate: due,
+      received: [],
       office: expect.objectContaining({ name: 'Aldermere Revenue Office', phone: expect.any(String), email: expect.any(String) }),
       limits: {
         maxFiles: REPLY_MAX_FILES,
@@ -100,13 +105,17 @@ describe('reply links', () => {
     expect((await upload(unknown, [{ name: 'a.pdf', bytes: PDF, type: 'application/pdf' }])).status).toBe(404);
   });
 
-  it('stores the files, uses the link up and brings the case back to review', async () => {
+  it('stores the files and, when the taxpayer says that is everything, closes the link and brings the case back to review', async () => {
     const { token, caseId, requestId, taxpayerId } = await requestSent();
-    const res = await upload(token, [
-      { name: 'receipts 2024.pdf', bytes: PDF, type: 'application/pdf' },
-      { name: 'C:\\Users\\me\\Pictures\\wage-statement.png', bytes: PNG, type: 'image/png' },
-      { name: 'fuel.jpeg', bytes: JPEG, type: 'image/jpeg' },
-    ]);
+    const res = await upload(
+      token,
+      [
+        { name: 'receipts 2024.pdf', bytes: PDF, type: 'application/pdf' },
+        { name: 'C:\\Users\\me\\Pictures\\wage-statement.png', bytes: PNG, type: 'image/png' },
+        { name: 'fuel.jpeg', bytes: JPEG, type: 'image/jpeg' },
+      ],
+      true,
+    );
     expect(res.status).toBe(201);
     expect(res.body.received.map((f: { fileName: string }) => f.fileName)).toEqual(['receipts 2024.pdf', 'wage-statement.png', 'fuel.jpeg']);
 
@@ -130,17 +139,24 @@ describe('reply links', () => {
       caseId,
     ]);
     expect(ev).toEqual([
-      { actor_id: null, from_state: 'awaiting_reply', to_state: 'in_review', detail: expect.objectContaining({ documentRequestId: requestId, files: 3 }) },
+      {
+        actor_id: null,
+        from_state: 'awaiting_reply',
+        to_state: 'in_review',
+        detail: expect.objectContaining({ documentRequestId: requestId, files: 3, part: 1, complete: true }),
+      },
     ]);
     const log = await ctx.dataSource.query(`SELECT user_id, action, route, taxpayer_id, detail FROM access_log WHERE action = 'change' AND record_id = $1`, [
       requestId,
     ]);
-    expect(log).toEqual([{ user_id: null, action: 'change', route: 'POST /api/replies/:token', taxpayer_id: taxpayerId, detail: 'reply received: 3 files' }]);
+    expect(log).toEqual([
+      { user_id: null, action: 'change', route: 'POST /api/replies/:token', taxpayer_id: taxpayerId, detail: 'reply received: 3 files, everything sent' },
+    ]);
 
-    // Used up: the page and a second upload say so.
+    // Closed: the page and a further send say so.
     const page = await request(ctx.app).get(`/api/replies/${token}`);
     expect(page.status).toBe(410);
-    expect(page.body).toEqual({ error: expect.stringMatching(/already been used/), state: 'answered' });
+    expect(page.body).toEqual({ error: expect.stringMatching(/you told us you had sent everything/), state: 'answered' });
     const second = await upload(token, [{ name: 'more.pdf', bytes: PDF, type: 'application/pdf' }]);
     expect(second.status).toBe(410);
     expect(second.body.state).toBe('answered');
@@ -148,7 +164,9 @@ describe('reply links', () => {
 
     // Staff see the reply with the letter and can download each file (logged).
     const list = await examiner.agent.get(`/api/cases/${caseId}/letters`);
-    const req = list.body.items[0].documentRequest;
+    // Newest first: the acknowledgement of the send, then the request with the reply.
+    expect(list.body.items.map((l: { kind: string }) => l.kind)).toEqual(['acknowledgement', 'document_request']);
+    const req = list.body.items[1].documentRequest;
     expect(req.state).toBe('answered');
     expect(req.uploads).toHaveLength(3);
     const png = req.uploads.find((u: { contentType: string }) => u.contentType === 'image/png');
@@ -339,7 +357,8 @@ describe('reply links', () => {
     ]);
     expect(ok.status).toBe(201);
     expect(await count()).toBe(2);
-    expect(await state()).toBe('answered');
+    // A part: the link stays open for more until the taxpayer says that is everything.
+    expect(await state()).toBe('sent');
   });
 
   it('answers a broken multipart body with 400 and writes no token to the log (issue 12)', async () => {
@@ -364,11 +383,11 @@ describe('reply links', () => {
     expect((await request(ctx.app).get(`/api/replies/${token}`)).status).toBe(200);
   });
 
-  it('accepts exactly one of two replies racing on the same link', async () => {
+  it('accepts exactly one of two final sends racing on the same link', async () => {
     const { token, requestId } = await requestSent();
     const [a, b] = await Promise.all([
-      upload(token, [{ name: 'a.pdf', bytes: PDF, type: 'application/pdf' }]),
-      upload(token, [{ name: 'b.pdf', bytes: PDF, type: 'application/pdf' }]),
+      upload(token, [{ name: 'a.pdf', bytes: PDF, type: 'application/pdf' }], true),
+      upload(token, [{ name: 'b.pdf', bytes: PDF, type: 'application/pdf' }], true),
     ]);
     expect([a.status, b.status].sort()).toEqual([201, 410]);
     expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM reply_upload WHERE document_request_id = $1`, [requestId]))[0].n).toBe(1);
@@ -400,9 +419,105 @@ describe('reply links', () => {
     const token2 = /\/reply\/([A-Za-z0-9_-]{43})/.exec((await waitForMail(to)).text ?? '')![1];
     const state = async () => (await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [first.caseId]))[0].state;
 
-    expect((await upload(first.token, [{ name: 'old-request.pdf', bytes: PDF, type: 'application/pdf' }])).status).toBe(201);
+    expect((await upload(first.token, [{ name: 'old-request.pdf', bytes: PDF, type: 'application/pdf' }], true)).status).toBe(201);
     expect(await state()).toBe('awaiting_reply');
-    expect((await upload(token2, [{ name: 'march.pdf', bytes: PDF, type: 'application/pdf' }])).status).toBe(201);
+    expect((await upload(token2, [{ name: 'march.pdf', bytes: PDF, type: 'application/pdf' }], true)).status).toBe(201);
     expect(await state()).toBe('in_review');
+  });
+
+  /** Mail to `to` whose subject matches, waiting until `n` have arrived. */
+  async function mailsTo(to: string, subject: RegExp, n: number) {
+    const until = Date.now() + 30_000;
+    for (;;) {
+      const found = (await mailTo(to)).filter((m) => subject.test(m.subject));
+      if (found.length >= n || Date.now() > until) return found;
+      await new Promise((r) => setTimeout(r, 200));
+    }
+  }
+
+  it('takes records in parts: each send is acknowledged and lands on the case; "that is everything" ends the wait', async () => {
+    const { token, caseId, requestId, to } = await requestSent();
+    const caseState = async () => (await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [caseId]))[0].state;
+
+    const first = await upload(token, [{ name: 'bank-march.pdf', bytes: PDF, type: 'application/pdf' }]);
+    expect(first.status).toBe(201);
+    expect(first.body).toMatchObject({ part: 1, complete: false, acknowledgement: 'mailed' });
+    expect(await caseState()).toBe('awaiting_reply');
+    const second = await upload(token, [
+      { name: 'fuel.jpeg', bytes: JPEG, type: 'image/jpeg' },
+      { name: 'payslip.png', bytes: PNG, type: 'image/png' },
+    ]);
+    expect(second.body).toMatchObject({ part: 2, complete: false });
+    expect(await caseState()).toBe('awaiting_reply');
+
+    // The page lists what came so far, send by send.
+    const page = await request(ctx.app).get(`/api/replies/${token}`);
+    expect(page.status).toBe(200);
+    expect(page.body.received.map((x: { part: number; files: { fileName: string }[] }) => [x.part, x.files.map((f) => f.fileName)])).toEqual([
+      [1, ['bank-march.pdf']],
+      [2, ['fuel.jpeg', 'payslip.png']],
+    ]);
+
+    // Staff see both sends on the case; the request still waits.
+    const list = await examiner.agent.get(`/api/cases/${caseId}/letters`);
+    const dr = list.body.items.find((l: { kind: string }) => l.kind === 'document_request').documentRequest;
+    expect(dr).toMatchObject({ state: 'sent', sends: 2, completedBy: null });
+    expect(dr.uploads.map((u: { part: number }) => u.part)).toEqual([1, 2, 2]);
+
+    // "That is everything", with nothing more attached.
+    const done = await upload(token, [], true);
+    expect(done.status).toBe(201);
+    expect(done.body).toMatchObject({ part: 2, complete: true, received: [] });
+    expect(await caseState()).toBe('in_review');
+    expect((await ctx.dataSource.query(`SELECT state, completed_by FROM document_request WHERE id = $1`, [requestId]))[0]).toEqual({
+      state: 'answered',
+      completed_by: 'taxpayer',
+    });
+    expect((await request(ctx.app).get(`/api/replies/${token}`)).status).toBe(410);
+
+    // Three acknowledgements, each kept with the case and mailed with its PDF.
+    const acks = await mailsTo(to, /^Records received/, 3);
+    expect(acks).toHaveLength(3);
+    const letters = (await examiner.agent.get(`/api/cases/${caseId}/letters`)).body.items.filter((l: { kind: string }) => l.kind === 'acknowledgement');
+    expect(letters).toHaveLength(3);
+    expect(letters.every((l: { recipient: string }) => l.recipient === to)).toBe(true);
+    const texts = await Promise.all(
+      acks.map(async (m) => pdfText(await attachment(m, m.attachments!.find((a) => a.contentType === 'application/pdf')!.generatedFileName))),
+    );
+    // Source for the expected words: the letter's own wording (server/letters/pdf/closing-letters-pdf.ts).
+    expect(texts.find((t) => t.includes('bank-march.pdf'))).toMatch(/You can send more records through the same link until the end of/);
+    expect(texts.find((t) => t.includes('payslip.png'))).toMatch(/your send number 2/);
+    expect(texts.some((t) => /You told us that you have now sent everything/.test(t))).toBe(true);
+    for (const t of texts) expect(t).toContain('It is not a decision about your return.');
+  });
+
+  it('ends the sends when the due date passes: the daily pass brings the case back to review, not as "no reply"', async () => {
+    const { token, caseId, requestId } = await requestSent();
+    expect((await upload(token, [{ name: 'part-one.pdf', bytes: PDF, type: 'application/pdf' }])).status).toBe(201);
+    await ctx.dataSource.query(`UPDATE document_request SET due_date = current_date - 1 WHERE id = $1`, [requestId]);
+    const page = await request(ctx.app).get(`/api/replies/${token}`);
+    expect(page.status).toBe(410);
+    expect(page.body).toEqual({ error: expect.stringMatching(/has passed\. We received what you sent \(one send\)/), state: 'answered' });
+    // Staff already see it as answered by date.
+    const before = (await examiner.agent.get(`/api/cases/${caseId}/letters`)).body.items.find((l: { kind: string }) => l.kind === 'document_request');
+    expect(before.documentRequest).toMatchObject({ state: 'answered', completedBy: 'due-date', sends: 1 });
+
+    const supervisor = await signIn(ctx, 'supervisor');
+    const run = await supervisor.agent.post('/api/housekeeping/run').set('X-CSRF-Token', supervisor.csrf);
+    expect(run.status).toBe(200);
+    expect((await ctx.dataSource.query(`SELECT state, completed_by FROM document_request WHERE id = $1`, [requestId]))[0]).toEqual({
+      state: 'answered',
+      completed_by: 'due-date',
+    });
+    expect((await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [caseId]))[0].state).toBe('in_review');
+    const ev = await ctx.dataSource.query(
+      `SELECT kind, to_state, detail FROM case_event WHERE case_id = $1 AND kind IN ('reply-received', 'reply-overdue') ORDER BY at`,
+      [caseId],
+    );
+    expect(ev.map((e: { kind: string; to_state: string | null }) => [e.kind, e.to_state])).toEqual([
+      ['reply-received', null],
+      ['reply-received', 'in_review'],
+    ]);
+    expect(ev[1].detail).toMatchObject({ completedBy: 'due-date', sends: 1 });
   });
 });

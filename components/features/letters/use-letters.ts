@@ -6,7 +6,15 @@
  */
 import { useMutation, useQuery, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { API_BASE, apiGet, apiSend } from '../../../hooks/api-client';
-import { LetterCreatedSchema, LetterListSchema, type DocumentRequestInput, type ReferralInput } from '../../../shared/letters';
+import type { TransitionRequest } from '../../../shared/cases';
+import {
+  LetterContextSchema,
+  LetterCreatedSchema,
+  LetterListSchema,
+  LetterPreviewSchema,
+  type DocumentRequestInput,
+  type ReferralInput,
+} from '../../../shared/letters';
 
 /** Query key of a case's letters: under the case's own key so one invalidation refreshes both. */
 export const lettersKey = (caseId: string) => ['case', caseId, 'letters'] as const;
@@ -52,4 +60,28 @@ export function letterPdfUrl(caseId: string, letterId: string): string {
 /** Address of a file a taxpayer sent back. */
 export function replyUploadUrl(caseId: string, uploadId: string): string {
   return `${API_BASE}/api/cases/${caseId}/reply-uploads/${uploadId}`;
+}
+
+/** What the request form needs before Send: the office's today and the address on file (issue 14). */
+export function useLetterContext(caseId: string, enabled = true) {
+  return useQuery({
+    queryKey: ['case', caseId, 'letter-context'],
+    queryFn: () => apiGet(`/api/cases/${caseId}/letter-context`, LetterContextSchema),
+    enabled,
+  });
+}
+
+/** The document request as it would be sent; nothing is stored or sent. */
+export function usePreviewDocumentRequest(caseId: string) {
+  return useMutation({
+    mutationFn: (input: DocumentRequestInput) =>
+      apiSend('POST', `/api/cases/${caseId}/document-requests/preview`, { ...input, email: input.email ? input.email : undefined }, LetterPreviewSchema),
+  });
+}
+
+/** The closing letter (no change or adjustment proposal) a closing would send; nothing is stored or sent. */
+export function usePreviewClosingLetter(caseId: string) {
+  return useMutation({
+    mutationFn: (input: TransitionRequest) => apiSend('POST', `/api/cases/${caseId}/closing-letter/preview`, input, LetterPreviewSchema),
+  });
 }
