@@ -145,6 +145,15 @@ export async function markSelected(db: Db, scoreIds: string[], cut: number): Pro
   );
 }
 
+/** Writes the cut in force into the breakdowns of the run's scores that have a case (selected or drawn at random). */
+export async function writeCutOnCases(db: Db, batchId: string, version: number, cut: number): Promise<void> {
+  await db.query(
+    `UPDATE return_score s SET breakdown = jsonb_set(s.breakdown, '{selectionCut}', to_jsonb($3::numeric))
+      WHERE s.batch_id = $1 AND s.profile_version = $2 AND EXISTS (SELECT 1 FROM exam_case c WHERE c.score_id = s.id)`,
+    [batchId, version, cut],
+  );
+}
+
 /** The batch's latest finished scoring run: its profile version. */
 export async function latestFinishedRun(db: Db, batchId: string): Promise<{ version: number } | null> {
   const r = await db.query(

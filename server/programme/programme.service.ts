@@ -26,6 +26,7 @@ import {
   findRun,
   latestFinishedRun,
   markSelected,
+  writeCutOnCases,
   positiveScores,
   randomCasesOf,
   sampleCandidates,
@@ -41,15 +42,17 @@ import {
 export async function finishSelection(m: EntityManager, batchId: string, version: number, seed?: string): Promise<void> {
   const stored = await profileSettings(m, version);
   const settings = ScoringSettingsSchema.parse(stored);
-  if (settings.capacity) await selectByCapacity(m, batchId, version, settings);
+  const cut = settings.capacity ? await selectByCapacity(m, batchId, version, settings) : null;
   await drawRandomSample(m, batchId, version, seed, settings.randomShare);
+  // A random case's screen says at which score cases opened: under a capacity, the cut that filled it.
+  if (cut !== null) await writeCutOnCases(m, batchId, version, cut);
 }
 
 /** Opens cases for the batch's top returns under the profile's capacity (shared/programme/selection.ts). */
-async function selectByCapacity(m: EntityManager, batchId: string, version: number, settings: ScoringSettings): Promise<void> {
+async function selectByCapacity(m: EntityManager, batchId: string, version: number, settings: ScoringSettings): Promise<number | null> {
   const rows = await positiveScores(m, batchId, version);
   const { ids, cut } = chooseSelection(rows, settings);
-  if (!ids.length || cut === null) return;
+  if (!ids.length || cut === null) return null;
   const chosen = new Set(ids);
   const picked = rows.filter((r) => chosen.has(r.returnId));
   await markSelected(
@@ -58,6 +61,7 @@ async function selectByCapacity(m: EntityManager, batchId: string, version: numb
     cut,
   );
   await openCasesForScores(m, batchId, version, picked);
+  return cut;
 }
 
 /**

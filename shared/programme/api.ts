@@ -86,6 +86,8 @@ export const WeightSuggestionSchema = z.object({
   suggested: z.number(),
   low: z.number(),
   high: z.number(),
+  /** False when the interval is too wide to say anything: the current weight is kept. */
+  enoughData: z.boolean(),
 });
 
 /** Precision at k and adjustment yield of one ranking on the held-back closed cases. */

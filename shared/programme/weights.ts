@@ -18,13 +18,19 @@ export interface FitCase {
   weight: number;
 }
 
+/** Widest 95 % interval (in points) a suggestion may have; wider, the current weight is kept (a rule of this project). */
+export const MAX_INTERVAL_POINTS = 100;
+
 /** A suggested weight with its 95 % interval (points at full strength, on the current profile's scale). */
 export interface WeightSuggestion {
   key: string;
   current: number;
+  /** The fitted weight, or the current one when the interval is too wide to say anything. */
   suggested: number;
   low: number;
   high: number;
+  /** False when the interval is wider than {@link MAX_INTERVAL_POINTS}: too few cases where the factor counted. */
+  enoughData: boolean;
 }
 
 /** Precision at k and yield of one ranking on the held-back cases. */
@@ -85,13 +91,14 @@ export function suggestWeights(
   const slopes = model.coefficients.slice(1);
   const positive = slopes.reduce((t, c) => t + Math.max(0, c.estimate), 0);
   const scale = positive > 0 ? current.reduce((t, w) => t + w, 0) / positive : 0;
-  const suggestions = keys.map((key, j) => ({
-    key,
-    current: current[j],
-    suggested: Math.min(100, Math.round(Math.max(0, slopes[j].estimate) * scale * 10) / 10),
-    low: Math.round(slopes[j].low * scale * 10) / 10,
-    high: Math.round(slopes[j].high * scale * 10) / 10,
-  }));
+  const suggestions = keys.map((key, j) => {
+    const low = Math.round(slopes[j].low * scale * 10) / 10;
+    const high = Math.round(slopes[j].high * scale * 10) / 10;
+    // An interval wider than the whole 0–100 scale says nothing: the weight stays as it is.
+    const enoughData = high - low <= MAX_INTERVAL_POINTS;
+    const fitted = Math.min(100, Math.round(Math.max(0, slopes[j].estimate) * scale * 10) / 10);
+    return { key, current: current[j], suggested: enoughData ? fitted : current[j], low, high, enoughData };
+  });
   const k = Math.max(1, Math.ceil(held.length / 3));
   return {
     suggestions,

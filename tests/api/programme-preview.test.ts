@@ -5,7 +5,8 @@
  */
 import { scoreBatchNow } from '../../server/scoring/scoring.service';
 import { PreviewSchema, type Preview } from '../../shared/programme/api';
-import { DEFAULT_SCORING_SETTINGS, type ScoringSettings } from '../../shared/scoring/settings';
+import { ProfileListSchema } from '../../shared/scoring/profile-api';
+import type { ScoringSettings } from '../../shared/scoring/settings';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { loadScoredBatch, type LoadedBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
@@ -16,11 +17,15 @@ describe('selection by capacity and the preview', () => {
   let ctx: TestContext;
   let sup: SignedIn;
   let b: LoadedBatch;
+  /** The active version the batch is scored under, and its settings. */
+  let active: { version: number; settings: ScoringSettings };
 
   beforeAll(async () => {
     ctx = await createTestContext();
     b = await loadScoredBatch(ctx.dataSource, { seed: 'preview', returns: 400, plantShare: 0.1 });
     sup = await signIn(ctx, 'supervisor');
+    const list = ProfileListSchema.parse((await sup.agent.get('/api/scoring/profiles')).body);
+    active = list.items.find((p) => p.active)!;
   });
   afterAll(async () => {
     await ctx?.close();
@@ -67,30 +72,29 @@ describe('selection by capacity and the preview', () => {
     const res = await sup.agent
       .post('/api/scoring/preview')
       .set('X-CSRF-Token', sup.csrf)
-      .send({ batchId: '01890000-0000-7000-8000-000000000000', settings: DEFAULT_SCORING_SETTINGS });
+      .send({ batchId: '01890000-0000-7000-8000-000000000000', settings: active.settings });
     expect(res.status).toBe(404);
     const ex = await signIn(ctx, 'examiner');
-    expect(
-      (await ex.agent.post('/api/scoring/preview').set('X-CSRF-Token', ex.csrf).send({ batchId: b.batchId, settings: DEFAULT_SCORING_SETTINGS })).status,
-    ).toBe(403);
+    expect((await ex.agent.post('/api/scoring/preview').set('X-CSRF-Token', ex.csrf).send({ batchId: b.batchId, settings: active.settings })).status).toBe(403);
     expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM scoring_run`))[0].n).toBe(runs);
   });
 
   it('the same profile previews today’s selection exactly: all stay', async () => {
-    const res = await sup.agent.post('/api/scoring/preview').set('X-CSRF-Token', sup.csrf).send({ batchId: b.batchId, settings: DEFAULT_SCORING_SETTINGS });
+    const res = await sup.agent.post('/api/scoring/preview').set('X-CSRF-Token', sup.csrf).send({ batchId: b.batchId, settings: active.settings });
     const p = PreviewSchema.parse(res.body);
-    const today = await selectedUnder(2);
-    expect(p).toMatchObject({ selected: today.size, stay: today.size, leave: 0, join: 0, exact: true, cut: DEFAULT_SCORING_SETTINGS.selectionCut });
+    const today = await selectedUnder(active.version);
+    expect(today.size).toBeGreaterThan(0);
+    expect(p).toMatchObject({ selected: today.size, stay: today.size, leave: 0, join: 0, exact: true, cut: active.settings.selectionCut });
   });
 
   it('by capacity (7 cases a month for 3 months) with other weights and a 2 % random share: the preview equals the re-score', async () => {
     const settings: ScoringSettings = {
-      ...DEFAULT_SCORING_SETTINGS,
-      weights: { ...DEFAULT_SCORING_SETTINGS.weights, digits: 20, cashHeavy: 15, refundLarge: 30 },
+      ...active.settings,
+      weights: { ...active.settings.weights, digits: 20, cashHeavy: 15, refundLarge: 30 },
       capacity: { casesPerMonth: 7, months: 3 },
       randomShare: 0.02,
     };
-    const { preview, version, chosen } = await previewThenRescore(settings, 2);
+    const { preview, version, chosen } = await previewThenRescore(settings, active.version);
     expect(preview.selected).toBe(21);
     // The cut is the lowest selected score, and every unselected return scores at most that.
     const scores: { return_id: string; risk_score: string }[] = await ctx.dataSource.query(
@@ -106,6 +110,12 @@ describe('selection by capacity and the preview', () => {
       [b.batchId, version],
     );
     expect(n).toBe(21);
+    // Every case under the new version (selected or drawn at random) says the cut that filled the capacity.
+    const cuts: { cut: string }[] = await ctx.dataSource.query(
+      `SELECT DISTINCT s.breakdown->>'selectionCut' AS cut FROM exam_case c JOIN return_score s ON s.id = c.score_id WHERE s.batch_id = $1 AND s.profile_version = $2`,
+      [b.batchId, version],
+    );
+    expect(cuts.map((c) => Number(c.cut))).toEqual([preview.cut]);
     // The profile's random share is what the run drew (2 % of 400), with the seed kept.
     const run = (await ctx.dataSource.query(`SELECT random_sample FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [b.batchId, version]))[0]
       .random_sample;
@@ -116,8 +126,8 @@ describe('selection by capacity and the preview', () => {
   it('by a fixed cut with other weights: the preview equals the re-score', async () => {
     const last = Number((await ctx.dataSource.query(`SELECT max(version) AS v FROM scoring_profile`))[0].v);
     const settings: ScoringSettings = {
-      ...DEFAULT_SCORING_SETTINGS,
-      weights: { ...DEFAULT_SCORING_SETTINGS.weights, totalsMismatch: 60, roundAmounts: 25 },
+      ...active.settings,
+      weights: { ...active.settings.weights, totalsMismatch: 60, roundAmounts: 25 },
       selectionCut: 18,
     };
     const { preview } = await previewThenRescore(settings, last);
@@ -129,7 +139,7 @@ describe('selection by capacity and the preview', () => {
     const res = await sup.agent
       .post('/api/scoring/preview')
       .set('X-CSRF-Token', sup.csrf)
-      .send({ batchId: b.batchId, settings: { ...DEFAULT_SCORING_SETTINGS, capacity: { casesPerMonth: 0, months: 3 } } });
+      .send({ batchId: b.batchId, settings: { ...active.settings, capacity: { casesPerMonth: 0, months: 3 } } });
     expect(res.status).toBe(422);
     expect(res.body.issues.map((i: { path: string }) => i.path)).toEqual(['settings.capacity.casesPerMonth']);
   });

@@ -105,7 +105,7 @@ describe('programme screen (supervisor, browser)', () => {
       await page.getByTestId('save-profile').click();
       await waitForText(page.getByTestId('confirm-save'), 'the 24 highest-scoring returns of each batch');
       const files = [await screenshot(page, `scoring-${name}`)];
-      for (const id of ['weight-suggestion', 'profile-preview', 'confirm-save']) {
+      for (const id of ['weight-suggestion', 'back-test', 'profile-preview', 'confirm-save']) {
         const el = page.getByTestId(id);
         await el.scrollIntoViewIfNeeded();
         const file = path.join(path.dirname(files[0]), `scoring-${name}-${id}.png`);

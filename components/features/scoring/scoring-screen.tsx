@@ -4,6 +4,7 @@ import { Controller, useForm, useWatch } from 'react-hook-form';
 import { View } from 'react-native';
 import type { z } from 'zod';
 import type { Preview, WeightFitDto } from '../../../shared/programme/api';
+import { MAX_INTERVAL_POINTS } from '../../../shared/programme/weights';
 import { capacityTarget } from '../../../shared/programme/selection';
 import { money } from '../../../shared/scoring/format';
 import { NewProfileSchema, type NewProfileInput, type Performance, type ProfileVersion } from '../../../shared/scoring/profile-api';
@@ -241,8 +242,9 @@ function SuggestionCard({ learned }: { learned: WeightFitDto }) {
         <>
           <Txt variant="small" tone="soft">
             Fitted on {fit.fitted} of {learned.closed} closed cases; {learned.randomClosed} of them were chosen at random and each stands for the returns below
-            the cut it was drawn from, so the fit describes every return, not only those the score picked. Each weight is shown with its 95 % interval. Method:{' '}
-            {fit.method}. Nothing changes until you save a new version.
+            the cut it was drawn from, so the fit describes every return, not only those the score picked. Each weight is shown with its 95 % interval; where
+            that interval is wider than {MAX_INTERVAL_POINTS} points the weight is kept as it is. Method: {fit.method}. Nothing changes until you save a new
+            version.
           </Txt>
           {fit.suggestions.map((s) => (
             <View
@@ -265,8 +267,8 @@ function SuggestionCard({ learned }: { learned: WeightFitDto }) {
               >
                 {s.current} → {s.suggested} points
               </Txt>
-              <Txt variant="small" figures tone="soft" style={{ width: 170 }}>
-                95 %: {s.low} to {s.high}
+              <Txt variant="small" figures={s.enoughData} tone="soft" style={{ width: 190 }}>
+                {s.enoughData ? `95 %: ${s.low} to ${s.high}` : 'kept: too few cases with this factor to say'}
               </Txt>
             </View>
           ))}
