@@ -24,13 +24,13 @@ import {
   AmountParseError,
   DIGIT_LABELS,
   MIN_N_FOR_CONFORMITY,
-  profileCents,
+  profileColumn,
   type DigitProfile,
   type DigitTestName,
   type DigitTestResult,
   type SizeAwareResult,
 } from '../shared/digits';
-import { AmountFileError, readAmountsFile } from '../server/analyses/amount-file';
+import { AmountFileError, readAmountsFile, type AmountFileResult } from '../server/analyses/amount-file';
 
 /** A problem to report as one line on stderr, exit code 2. */
 class UsageError extends Error {}
@@ -196,18 +196,17 @@ async function main(): Promise<void> {
   if (column !== null && !['.csv', '.xlsx'].includes(path.extname(file).toLowerCase())) {
     throw new UsageError('--column applies to CSV and XLSX files; a text file has one amount a line');
   }
-  let cents: Float64Array;
-  let what: string;
+  let read: AmountFileResult;
   try {
-    ({ cents, what } = await readAmountsFile(file, column));
+    read = await readAmountsFile(file, column);
   } catch (e) {
     if (e instanceof AmountParseError) throw new UsageError(`${path.basename(file)}: ${e.message}`);
     if (e instanceof AmountFileError) throw new UsageError(e.message);
     throw new UsageError(`${path.basename(file)}: cannot be read: ${e instanceof Error ? e.message : String(e)}`);
   }
-  const profile = profileCents(cents);
+  const profile = profileColumn(read);
   if (json) process.stdout.write(`${JSON.stringify(profile)}\n`);
-  else process.stdout.write(renderTable(profile, `${path.basename(file)} (${what})`));
+  else process.stdout.write(renderTable(profile, `${path.basename(file)} (${read.what})`));
 }
 
 main().catch((e: unknown) => {

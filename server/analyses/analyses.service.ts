@@ -4,7 +4,7 @@
  */
 import fs from 'node:fs';
 import path from 'node:path';
-import { findAmountErrors, profileAmounts, profileCents, type DigitProfile } from '../../shared/digits';
+import { AMOUNT_FORMS, findAmountErrors, profileAmounts, profileColumn, type DigitProfile } from '../../shared/digits';
 import { HttpError } from '../http/errors';
 import { CapError, DEFAULT_READ_CAPS, EXCEL_MAX_ROWS, type ReadCaps } from '../batches/intake/caps';
 import { sniff } from '../batches/intake/sources';
@@ -22,7 +22,7 @@ export function analyseAmounts(amounts: (number | string)[]): DigitProfile {
   if (problems.length) {
     throw new HttpError(
       422,
-      `${problems.length === 100 ? 'At least 100' : problems.length} value${problems.length === 1 ? ' is' : 's are'} not amounts. Use digits with an optional minus sign and at most 2 decimals, e.g. -1234.50.`,
+      `${problems.length === 100 ? 'At least 100' : problems.length} value${problems.length === 1 ? ' is' : 's are'} not amounts: ${AMOUNT_FORMS}.`,
       {
         errors: problems.map((p) => ({ index: p.index, message: p.message })),
       },
@@ -74,8 +74,8 @@ export async function analyseFile(storedPath: string, originalName: string, colu
     return m.startsWith(originalName) ? m : `${originalName}: ${m}`;
   };
   try {
-    const { cents } = await readAmountsInThread(storedPath, column, kind, caps);
-    return profileCents(cents);
+    const { cents, wide } = await readAmountsInThread(storedPath, column, kind, caps);
+    return profileColumn({ cents, wide });
   } catch (e) {
     if (e instanceof CapError) throw new HttpError(413, named(e.message), { limit: e.cap });
     if (e instanceof ReaderDiedError) throw new HttpError(e.reason === 'memory' ? 413 : 422, named(e.message));

@@ -100,6 +100,15 @@ export class DigitCounter {
   readonly lengths = new Float64Array(34);
   /** Zero amounts. */
   private zeroCount = 0;
+  /** Amounts beyond the cents path (wide.ts), by sign. */
+  readonly wideCount = new Float64Array(2);
+  /**
+   * Exact sums of |cents| of the wide amounts by first two digits, index sign * 100 + (10..99),
+   * created on the first wide amount (summation test).
+   */
+  wideSums: bigint[] | null = null;
+  /** Sum of the first 16 digits of each wide amount's cents, by sign (distortion factor). */
+  readonly wideCollapsed: bigint[] = [0n, 0n];
   /** Scratch for {@link add}, so one amount is counted without allocating. */
   private readonly one = new Float64Array(1);
 
@@ -113,6 +122,33 @@ export class DigitCounter {
     this.byLength.fill(0);
     this.lengths.fill(0);
     this.zeroCount = 0;
+    this.wideCount.fill(0);
+    this.wideSums = null;
+    this.wideCollapsed[0] = 0n;
+    this.wideCollapsed[1] = 0n;
+  }
+
+  /**
+   * Count one amount too large for the cents path, from the digits of its cents (wide.ts):
+   * the same rules as the fast loop, read off the string. Every wide amount is at least
+   * 10^13 currency units, so it takes all four tests.
+   *
+   * @param negative the amount's sign
+   * @param digits decimal digits of |cents|, no leading zero, 16 or more of them
+   */
+  addWide(negative: boolean, digits: string): void {
+    const s = negative ? 1 : 0;
+    const nd = digits.length;
+    const f2 = (digits.charCodeAt(0) - 48) * 10 + (digits.charCodeAt(1) - 48);
+    this.wideCount[s]++;
+    this.first[s * 10 + FIRST_OF[f2]]++;
+    this.second[s * 10 + SECOND_OF[f2]]++;
+    this.firstTwo[s * 100 + f2]++;
+    // last two digits of the whole-unit part: the two digits before the two cents digits
+    this.lastTwo[s * 100 + (digits.charCodeAt(nd - 4) - 48) * 10 + (digits.charCodeAt(nd - 3) - 48)]++;
+    const sums = (this.wideSums ??= new Array<bigint>(200).fill(0n));
+    sums[s * 100 + f2] += BigInt(digits);
+    this.wideCollapsed[s] += BigInt(digits.slice(0, 16));
   }
 
   /**
@@ -167,6 +203,13 @@ export class DigitCounter {
     addInto(this.byLength, other.byLength);
     addInto(this.lengths, other.lengths);
     this.zeroCount += other.zeroCount;
+    addInto(this.wideCount, other.wideCount);
+    if (other.wideSums !== null) {
+      const sums = (this.wideSums ??= new Array<bigint>(200).fill(0n));
+      for (let i = 0; i < 200; i++) sums[i] += other.wideSums[i];
+    }
+    this.wideCollapsed[0] += other.wideCollapsed[0];
+    this.wideCollapsed[1] += other.wideCollapsed[1];
   }
 
   /**
@@ -179,6 +222,10 @@ export class DigitCounter {
   collapsedSum(sign: SignSelection = 'all'): number {
     let sum = 0;
     for (let nd = 4; nd <= 16; nd++) sum += pick2(this.byLength, nd, 17 + nd, sign) / POW10[nd - 2];
+    // Wide amounts: their first 16 digits of cents over 10^14 (later digits move the sum by
+    // less than 10^-14 an amount).
+    if (sign !== 'negative') sum += Number(this.wideCollapsed[0]) / 1e14;
+    if (sign !== 'positive') sum += Number(this.wideCollapsed[1]) / 1e14;
     return sum;
   }
 
@@ -193,7 +240,16 @@ export class DigitCounter {
    * @param sign which amounts (default both signs)
    */
   nonZero(sign: SignSelection = 'all'): number {
-    return this.lengthsBelow(17, sign);
+    return this.lengthsBelow(17, sign) + pick2(this.wideCount, 0, 1, sign);
+  }
+
+  /**
+   * Amounts counted from their text (too large for cents).
+   *
+   * @param sign which amounts (default both signs)
+   */
+  wide(sign: SignSelection = 'all'): number {
+    return pick2(this.wideCount, 0, 1, sign);
   }
 
   /**

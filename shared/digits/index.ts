@@ -14,12 +14,10 @@ export {
   MAX_ABS_CENTS,
   centsFromNumber,
   centsFromString,
-  findAmountErrors,
   formatCents,
   parseAmount,
   parseAmounts,
   parseCents,
-  type AmountProblem,
   type AmountUnit,
   type ParseAmountsOptions,
 } from './parse';
@@ -63,6 +61,7 @@ export {
 export {
   profileAmounts,
   profileCents,
+  profileColumn,
   summarizeCounter,
   type DigitProfile,
   type DigitSummary,
@@ -77,6 +76,20 @@ export {
   type SideProfile,
   type Summation,
 } from './profile';
+export {
+  AMOUNT_FORMS,
+  AmountColumnBuilder,
+  findAmountErrors,
+  type AmountProblem,
+  MAX_WIDE_DIGITS,
+  amountFromText,
+  amountFromValue,
+  formatWide,
+  parseAmountColumn,
+  type AmountColumn,
+  type ParseColumnOptions,
+  type WideAmount,
+} from './wide';
 export { digitProfileSchema, type DigitProfileJson } from './schema';
 export { chiSquareCritical, chiSquareSurvival, binomialUpperTail } from './stats';
 export { mulberry32 } from './random';

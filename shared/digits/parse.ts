@@ -13,6 +13,8 @@
  *  - with `unit: 'cents'`: integer cents as a safe-integer number, a bigint or a string of
  *    digits with an optional minus sign.
  * Anything else throws an {@link AmountParseError} naming the value and its position.
+ * These are the integer-cents fast path; amounts of any size and scientific notation are
+ * read by wide.ts, which falls back from here.
  */
 
 import { centsFromDecimal } from '../returns/money';
@@ -239,36 +241,6 @@ export function parseAmounts(values: ArrayLike<unknown>, options: ParseAmountsOp
     out[i] = parseAmount(v, positionOf(i));
   }
   return out;
-}
-
-/** One problem found by {@link findAmountErrors}. */
-export interface AmountProblem {
-  /** 0-based index of the value. */
-  index: number;
-  /** The full message, naming the value and its position. */
-  message: string;
-}
-
-/**
- * Check every value and list the problems (for a 422 answer that names them all).
- *
- * @param values the amounts
- * @param options unit, and `max`: stop after this many problems (default 100)
- * @returns the problems found, in input order; empty when all values are amounts
- */
-export function findAmountErrors(values: ArrayLike<unknown>, options: { unit?: AmountUnit; max?: number } = {}): AmountProblem[] {
-  const max = options.max ?? 100;
-  const problems: AmountProblem[] = [];
-  for (let i = 0; i < values.length && problems.length < max; i++) {
-    try {
-      if (options.unit === 'cents') parseCents(values[i], `index ${i}`);
-      else parseAmount(values[i], `index ${i}`);
-    } catch (e) {
-      if (!(e instanceof AmountParseError)) throw e;
-      problems.push({ index: i, message: e.message });
-    }
-  }
-  return problems;
 }
 
 /** Signed integer cents as decimal text with 2 decimals ("-1234.50"): the intake's own formatter. */

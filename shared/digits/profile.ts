@@ -12,6 +12,7 @@
 import { DigitCounter, POW10, decimalDigitCount, type SignSelection } from './counter';
 import { DIGIT_TESTS, EXPECTED, type DigitTestName } from './expected';
 import { formatCents, parseAmounts, type AmountUnit } from './parse';
+import { formatWide, parseAmountColumn, type AmountColumn, type WideAmount } from './wide';
 import { sizeAwareFigure, type SizeAwareResult } from './size-aware';
 import { sortIntegerKeys } from './sort';
 import { binomialUpperTail } from './stats';
@@ -62,10 +63,10 @@ export interface DuplicateAmount {
 export interface Summation {
   /** Amounts >= 10 (those with two significant digits before the point). */
   n: number;
-  /** Sum of their absolute values, currency units. */
-  total: number;
-  /** Sum per first-two group 10..99, currency units. */
-  sums: number[];
+  /** Sum of their absolute values, currency units (null beyond the range of a double, about 1.8e308). */
+  total: number | null;
+  /** Sum per first-two group 10..99, currency units (null beyond the range of a double). */
+  sums: (number | null)[];
   /** Each group's share of the total, 10..99 (null entries when total is 0). */
   proportions: (number | null)[];
   /** Expected share of each group: 1/90. */
@@ -154,6 +155,8 @@ export interface DigitProfile {
 export interface ProfileOptions {
   /** How many repeated amounts to list (default 10). */
   top?: number;
+  /** Amounts too large for cents, counted from their digits (wide.ts). */
+  wide?: readonly WideAmount[];
 }
 
 /** Options of {@link profileAmounts}. */
@@ -165,15 +168,28 @@ export interface ProfileAmountsOptions extends ProfileOptions {
 }
 
 /**
- * Profile a list of amounts.
+ * Profile a list of amounts of any size.
  *
- * @param amounts numbers or decimal strings (at most 2 decimals), or integer cents with unit 'cents'
+ * @param amounts numbers or decimal strings (at most 2 decimals; any size; scientific notation
+ *   such as 1.2E+15 accepted), or integer cents with unit 'cents'
  * @param options unit, duplicates to list, position names for errors
  * @returns the digit profile
  * @throws AmountParseError naming the first value that is not an amount and its position
  */
 export function profileAmounts(amounts: ArrayLike<unknown>, options: ProfileAmountsOptions = {}): DigitProfile {
-  return profileCents(parseAmounts(amounts, options), options);
+  if (options.unit === 'cents') return profileCents(parseAmounts(amounts, options), options);
+  return profileColumn(parseAmountColumn(amounts, options), options);
+}
+
+/**
+ * Profile a column read by wide.ts (ordinary amounts as cents, the rest as digits).
+ *
+ * @param column the amounts
+ * @param options duplicates to list
+ * @returns the digit profile
+ */
+export function profileColumn(column: AmountColumn, options: ProfileOptions = {}): DigitProfile {
+  return profileCents(column.cents, { ...options, wide: column.wide });
 }
 
 /**
@@ -187,7 +203,9 @@ export function profileCents(cents: ArrayLike<number>, options: ProfileOptions =
   const counter = new DigitCounter();
   const keys = new Float64Array(cents.length);
   const maxKey = counter.addAllWithKeys(cents, keys);
-  const ordered = orderedScan(keys.subarray(0, counter.nonZero()), maxKey, options.top ?? 10);
+  const wide = options.wide ?? [];
+  for (const w of wide) counter.addWide(w.negative, w.digits);
+  const ordered = orderedScan(keys.subarray(0, counter.nonZero() - wide.length), maxKey, options.top ?? 10, wide);
 
   const tests = {} as Record<DigitTestName, DigitTestResult>;
   const sizeAwareByTest = {} as Record<DigitTestName, SizeAwareResult>;
@@ -198,7 +216,7 @@ export function profileCents(cents: ArrayLike<number>, options: ProfileOptions =
   const lastN = tests.lastTwo.n;
   const roundCount = tests.lastTwo.counts[0];
   return {
-    count: cents.length,
+    count: cents.length + wide.length,
     excluded: exclusions(counter),
     firstDigit: tests.firstDigit,
     secondDigit: tests.secondDigit,
@@ -295,6 +313,7 @@ function sideProfile(counter: DigitCounter, sign: SignSelection): SideProfile {
  * (Nigrini 2011, Forensic Analytics; docs/methods.md#other-digit-figures).
  */
 function summation(counter: DigitCounter): Summation {
+  if (counter.wideSums !== null) return wideSummation(counter, counter.wideSums);
   const sums: number[] = [];
   let totalCents = 0;
   for (let d = 10; d <= 99; d++) {
@@ -319,6 +338,35 @@ function summation(counter: DigitCounter): Summation {
 }
 
 /**
+ * Summation test with amounts too large for cents: the group sums in exact integers (bigint),
+ * shares from their quotient, so a 10^300 amount neither overflows nor swamps the rounding.
+ */
+function wideSummation(counter: DigitCounter, wideSums: bigint[]): Summation {
+  const groups: bigint[] = [];
+  let total = 0n;
+  for (let d = 10; d <= 99; d++) {
+    const g = BigInt(counter.sums[d]) + BigInt(counter.sums[100 + d]) + wideSums[d] + wideSums[100 + d];
+    groups.push(g);
+    total += g;
+  }
+  const units = (c: bigint): number | null => {
+    const x = Number(c) / 100;
+    return Number.isFinite(x) ? x : null;
+  };
+  const SCALE = 10n ** 18n;
+  const proportions = groups.map((g) => Number((g * SCALE) / total) / 1e18);
+  const expected = 1 / 90;
+  let mad = 0;
+  for (const p of proportions) mad += abs(p - expected);
+  const largest = proportions
+    .map((share, i) => ({ digits: i + 10, share }))
+    .filter((g) => g.share > 0)
+    .sort((a, b) => b.share - a.share || a.digits - b.digits)
+    .slice(0, 5);
+  return { n: counter.n('firstTwo'), total: units(total), sums: groups.map(units), proportions, expected, mad: mad / 90, largest };
+}
+
+/**
  * Distortion factor (Nigrini 1996, JATA; formula from memory, docs/methods.md#other-digit-figures): amounts >= 10
  * collapsed into [10, 100) by moving the point; DF = (mean - EM) / EM with
  * EM = 90 / (n (10^(1/n) - 1)), which tends to 90 / ln 10 = 39.09 for large n.
@@ -338,7 +386,12 @@ function distortionFactor(counter: DigitCounter): DistortionFactor {
  * and list absolute values in ascending order (second-order test, Nigrini & Miller 2009).
  * Zeros have no key and are left out of both.
  */
-function orderedScan(keys: Float64Array, maxKey: number, top: number): { duplicates: DuplicateAmount[]; secondOrder: SecondOrder } {
+function orderedScan(
+  keys: Float64Array,
+  maxKey: number,
+  top: number,
+  wide: readonly WideAmount[],
+): { duplicates: DuplicateAmount[]; secondOrder: SecondOrder } {
   const sorted = sortIntegerKeys(keys, maxKey);
   // Imported bindings as locals: module loaders (tsx, jest) compile them to getter calls.
   const digitCount = decimalDigitCount;
@@ -381,15 +434,24 @@ function orderedScan(keys: Float64Array, maxKey: number, top: number): { duplica
     const size = floor(key / 2);
     duplicates.push({ amount: formatCents(key % 2 === 1 ? -size : size), count: topCount[i] });
   }
+  let all = n;
+  let dups = duplicates;
+  if (wide.length > 0) {
+    // Every wide amount is larger than every ordinary one, so they follow in sorted order.
+    const w = wideScan(wide, n > 0 ? floor(sorted[n - 1] / 2) : null, soCounts, top);
+    zeroDiffs += w.zeroDifferences;
+    all += wide.length;
+    dups = mergeDuplicates(duplicates, w.runs, top);
+  }
   const counts = Array.from(soCounts.subarray(10, 100));
-  const soN = n > 0 ? n - 1 - zeroDiffs : 0;
+  const soN = all > 0 ? all - 1 - zeroDiffs : 0;
   let mad: number | null = null;
   if (soN > 0) {
     let s = 0;
     for (let d = 0; d < 90; d++) s += abs(counts[d] / soN - EXPECTED.firstTwo[d]);
     mad = s / 90;
   }
-  return { duplicates, secondOrder: { n: soN, zeroDifferences: zeroDiffs, counts, mad } };
+  return { duplicates: dups, secondOrder: { n: soN, zeroDifferences: zeroDiffs, counts, mad } };
 
   /** Keep the `top` most repeated: count desc, then larger absolute amount, then positive first. */
   function offer(key: number, count: number): void {
@@ -410,4 +472,65 @@ function orderedScan(keys: Float64Array, maxKey: number, top: number): { duplica
     topKey[at] = key;
     if (topLen < top) topLen++;
   }
+}
+
+/** A repeated wide amount. */
+interface WideRun {
+  amount: WideAmount;
+  count: number;
+}
+
+/**
+ * The second-order differences and repeated amounts among the wide amounts, in exact
+ * integers: sorted by size (digit count, then digits), positives before negatives of equal size.
+ */
+function wideScan(wide: readonly WideAmount[], lastOrdinary: number | null, soCounts: Float64Array, top: number): { zeroDifferences: number; runs: WideRun[] } {
+  const sorted = wide
+    .slice()
+    .sort((a, b) => a.digits.length - b.digits.length || (a.digits < b.digits ? -1 : a.digits > b.digits ? 1 : 0) || Number(a.negative) - Number(b.negative));
+  let prev: bigint | null = lastOrdinary === null ? null : BigInt(lastOrdinary);
+  let zeroDifferences = 0;
+  const runs: WideRun[] = [];
+  let run: WideRun | null = null;
+  for (const w of sorted) {
+    const size = BigInt(w.digits);
+    if (prev !== null) {
+      const d = size - prev;
+      if (d === 0n) zeroDifferences++;
+      else {
+        const text = d.toString();
+        soCounts[text.length === 1 ? Number(text) * 10 : Number(text.slice(0, 2))]++;
+      }
+    }
+    prev = size;
+    if (run !== null && run.amount.digits === w.digits && run.amount.negative === w.negative) run.count++;
+    else {
+      if (run !== null && run.count >= 2) runs.push(run);
+      run = { amount: w, count: 1 };
+    }
+  }
+  if (run !== null && run.count >= 2) runs.push(run);
+  // Most repeated first, then larger, then positive first (the order of the ordinary list).
+  runs.sort(
+    (a, b) =>
+      b.count - a.count ||
+      b.amount.digits.length - a.amount.digits.length ||
+      (a.amount.digits < b.amount.digits ? 1 : a.amount.digits > b.amount.digits ? -1 : 0) ||
+      Number(a.amount.negative) - Number(b.amount.negative),
+  );
+  return { zeroDifferences, runs: runs.slice(0, top) };
+}
+
+/** The ordinary and wide repeated amounts in one list: count, then size (wide ones are larger). */
+function mergeDuplicates(ordinary: DuplicateAmount[], wide: WideRun[], top: number): DuplicateAmount[] {
+  const out: DuplicateAmount[] = [];
+  let i = 0;
+  let j = 0;
+  while (out.length < top && (i < ordinary.length || j < wide.length)) {
+    if (j < wide.length && (i >= ordinary.length || wide[j].count >= ordinary[i].count)) {
+      out.push({ amount: formatWide(wide[j].amount), count: wide[j].count });
+      j++;
+    } else out.push(ordinary[i++]);
+  }
+  return out;
 }

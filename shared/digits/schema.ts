@@ -93,8 +93,8 @@ export const digitProfileSchema = z.strictObject({
   ),
   summation: z.strictObject({
     n: z.number().int().nonnegative(),
-    total: num,
-    sums: z.array(num).length(90),
+    total: nullableNum,
+    sums: z.array(nullableNum).length(90),
     proportions: z.array(nullableNum).length(90),
     expected: num,
     mad: nullableNum,

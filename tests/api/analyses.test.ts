@@ -44,7 +44,7 @@ describe('POST /api/analyses/digits', () => {
     const res = await examiner.agent
       .post('/api/analyses/digits')
       .set('X-CSRF-Token', examiner.csrf)
-      .send({ amounts: ['12.50', '12,5', 7, '1e21', 'abc'] });
+      .send({ amounts: ['12.50', '12,5', 7, '1.5e-3', 'abc', '1e21'] });
     expect(res.status).toBe(422);
     expect(res.body.errors.map((e: { index: number }) => e.index)).toEqual([1, 3, 4]);
     expect(res.body.errors[0].message).toMatch(/12,5/);

@@ -141,7 +141,7 @@ describe('npm run digits -- FILE (readable table)', () => {
 describe('errors: one clear line on stderr, exit code 2', () => {
   it.each([
     ['a comma decimal, naming the line', 'bad.txt', '1.00\n2.00\n12,5\n', [], /^digits: bad\.txt: Amount at line 3 \("12,5"\) contains a comma/],
-    ['an exponent', 'exp.txt', '1e21\n', [], /^digits: exp\.txt: Amount at line 1 \("1e21"\) is in exponent notation/],
+    ['text that is no amount', 'exp.txt', '1e21\nabc\n', [], /^digits: exp\.txt: Amount at line 2 \("abc"\) is not a valid amount/],
     [
       '3 decimals in a CSV cell, naming line and column',
       'bad.csv',

@@ -9,6 +9,7 @@ import { Worker } from 'node:worker_threads';
 import type { BatchIssue, BatchTable } from '../../../shared/returns/batch-rows';
 import { CapError, type CapName, type ReadCaps } from './caps';
 import { SourceError, type BatchUpload, type RawRow, type TableSource } from './source-types';
+import type { AmountFileResult } from '../../analyses/amount-file';
 
 /** Memory of the reading thread's JavaScript heap (the caps keep a file's needs well below). */
 export const UPLOAD_THREAD_HEAP_MB = 256;
@@ -16,7 +17,7 @@ export const UPLOAD_THREAD_HEAP_MB = 256;
 /** What the thread is asked to do. */
 export type UploadJob =
   | { job: 'tables'; upload: BatchUpload; caps: ReadCaps }
-  | { job: 'amounts'; file: string; column: string | null; kind: 'csv' | 'xlsx' | 'text'; caps: ReadCaps };
+  | { job: 'amounts'; file: string; column: string | null; kind: 'csv' | 'xlsx' | 'text'; caps: ReadCaps; by?: string | null };
 
 /** An error as it crosses from the thread. */
 export type ThreadError =
@@ -32,7 +33,7 @@ type FromThread =
   | { type: 'table'; seq: number; table: BatchTable; label: string }
   | { type: 'rows'; seq: number; rows: RawRow[] }
   | { type: 'table-end'; seq: number; error?: ThreadError }
-  | { type: 'amounts'; cents: Float64Array; what: string }
+  | ({ type: 'amounts' } & AmountFileResult)
   | { type: 'done'; error?: ThreadError }
   | { type: 'ready' }
   | { type: 'died'; reason: 'memory' | 'crash'; message: string };
@@ -244,15 +245,16 @@ export async function readAmountsInThread(
   column: string | null,
   kind: 'csv' | 'xlsx' | 'text',
   caps: ReadCaps,
-): Promise<{ cents: Float64Array; what: string }> {
-  const inbox = new Inbox({ job: 'amounts', file, column, kind, caps });
+  by: string | null = null,
+): Promise<AmountFileResult> {
+  const inbox = new Inbox({ job: 'amounts', file, column, kind, caps, by });
   let clean = false;
   try {
     for (;;) {
       const m = await inbox.next();
       if (m.type === 'amounts') {
         clean = true;
-        return { cents: m.cents, what: m.what };
+        return { cents: m.cents, wide: m.wide, what: m.what, groups: m.groups };
       }
       if (m.type === 'done') {
         clean = true;

@@ -125,7 +125,8 @@ describe('parseAmount: rejected inputs name the value and its position', () => {
   });
 
   it('lists every problem for a 422 answer', () => {
-    const problems = findAmountErrors([1, 'x', 2, 1e21, '12,5']);
+    // 1e21 is an amount of any size (wide.ts, issue 15); 1e-7 has more than 2 decimals.
+    const problems = findAmountErrors([1, 'x', 2, 1e-7, '12,5', 1e21]);
     expect(problems.map((p) => p.index)).toEqual([1, 3, 4]);
     expect(problems[2].message).toMatch(/index 4 \("12,5"\)/);
   });
