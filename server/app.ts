@@ -65,7 +65,7 @@ export function createApp(deps: AppDeps): Express {
   const { config, dataSource, boss, mailer } = deps;
   api.use(healthRoutes({ dataSource, boss, mailer }));
   api.use(authRoutes({ dataSource, throttle, passport }));
-  api.use(userRoutes({ dataSource }));
+  api.use(userRoutes({ dataSource, throttle }));
   api.use(accessLogRoutes({ dataSource }));
   api.use(analysesRoutes());
   api.use(scoringProfileRoutes({ dataSource, boss }));

@@ -1,11 +1,13 @@
 /**
  * Queries on the access log. Inserts only: the table refuses updates and deletes.
  */
-import type { DataSource } from 'typeorm';
 import type { Db } from '../db/db';
-import type { AccessLogQuery } from '../../shared/access-log';
-import { AccessLog } from './access-log.entity';
+import type { AccessLogExportQuery } from '../../shared/access-log';
+import type { AccessLog } from './access-log.entity';
 import { isUuid } from '../../shared/ids';
+
+/** The filters of the log (a page's or an export's). */
+export type AccessLogFilter = AccessLogExportQuery;
 
 /** Fields of a new access-log line. */
 export type NewAccessLog = Omit<AccessLog, 'id' | 'at'>;
@@ -35,21 +37,124 @@ export async function insertAccessLogs(db: Db, rows: NewAccessLog[]): Promise<vo
   );
 }
 
-/** One filtered page, newest first. */
-export async function findAccessLogs(ds: DataSource, q: AccessLogQuery): Promise<{ items: AccessLog[]; total: number }> {
-  const qb = ds.getRepository(AccessLog).createQueryBuilder('l');
-  if (q.user) qb.andWhere('(l.username ILIKE :user OR l.user_id::text = :userExact)', { user: `%${q.user}%`, userExact: q.user });
+/** One group of lines: one thing a person did (see {@link findAccessGroups}). */
+export interface AccessGroupRow {
+  lastId: string;
+  firstAt: Date;
+  lastAt: Date;
+  lines: number;
+  userId: string | null;
+  username: string | null;
+  role: string | null;
+  action: string;
+  route: string;
+  recordType: string | null;
+  recordId: string | null;
+  taxpayerId: string | null;
+  taxpayerLabel: string | null;
+  detail: string | null;
+  /** The group's routes with ids written ":id". */
+  routes: string[];
+  cases: number;
+  /** The return reference when the group touched exactly one case. */
+  returnRef: string | null;
+}
+
+/** Views by one person of one thing closer together than this are one visit (common practice, no source). */
+const VISIT_GAP = `interval '2 minutes'`;
+const UUID_RE = `'[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}'`;
+
+/** WHERE clause and parameters of the filters (shared by the page and the export). */
+function filterSql(q: AccessLogFilter): { where: string; params: unknown[] } {
+  const conds: string[] = [];
+  const params: unknown[] = [];
+  const p = (v: unknown) => {
+    params.push(v);
+    return `$${params.length}`;
+  };
+  if (q.user) conds.push(`(l.username ILIKE ${p(`%${q.user.replace(/[\\%_]/g, (c) => `\\${c}`)}%`)} OR l.user_id::text = ${p(q.user)})`);
   if (q.taxpayer) {
     // A taxpayer is named by its id, or by the last digits of its TIN as shown masked.
-    const digits = q.taxpayer.replace(/\D/g, '');
-    if (isUuid(q.taxpayer)) qb.andWhere('l.taxpayer_id = :tp', { tp: q.taxpayer });
-    else qb.andWhere('l.taxpayer_label LIKE :tl', { tl: `%${digits.slice(-3)}` });
+    if (isUuid(q.taxpayer)) conds.push(`l.taxpayer_id = ${p(q.taxpayer)}::uuid`);
+    else conds.push(`l.taxpayer_label LIKE ${p(`%${q.taxpayer.replace(/\D/g, '').slice(-3)}`)}`);
   }
-  if (q.from) qb.andWhere('l.at >= :from::date', { from: q.from });
-  if (q.to) qb.andWhere(`l.at < (:to::date + interval '1 day')`, { to: q.to });
-  if (q.action) qb.andWhere('l.action = :action', { action: q.action });
-  qb.orderBy('l.at', 'DESC').addOrderBy('l.id', 'DESC');
-  qb.skip((q.page - 1) * q.pageSize).take(q.pageSize);
-  const [items, total] = await qb.getManyAndCount();
-  return { items, total };
+  if (q.from) conds.push(`l.at >= ${p(q.from)}::date`);
+  if (q.to) conds.push(`l.at < (${p(q.to)}::date + interval '1 day')`);
+  if (q.action) conds.push(`l.action = ${p(q.action)}`);
+  return { where: conds.length ? `WHERE ${conds.join(' AND ')}` : '', params };
+}
+
+/**
+ * The filtered log as groups, newest first: a person's consecutive lines about the same
+ * thing (one case, one list, one record) form one group, views while they are less than
+ * {@link VISIT_GAP} apart, other actions when written by the same request (same instant and
+ * route). The case of a line comes from its route (/api/cases/:id…) or its record (a case, a
+ * letter, a document request), and with it the return reference.
+ */
+export async function findAccessGroups(db: Db, q: AccessLogFilter, limit: number, offset: number): Promise<{ rows: AccessGroupRow[]; total: number }> {
+  const { where, params } = filterSql(q);
+  const rows: (AccessGroupRow & { total: number })[] = await db.query(
+    `WITH base AS (
+       SELECT l.*,
+              COALESCE(l.user_id::text, 'name:' || l.username, 'anonymous') AS who,
+              substring(l.route FROM '^[A-Z]+ /api/cases/(' || ${UUID_RE} || ')')::uuid AS route_case
+         FROM access_log l ${where}
+     ), cased AS (
+       SELECT b.*,
+              COALESCE(
+                b.route_case,
+                CASE WHEN b.record_type = 'case' AND b.record_id ~ ${UUID_RE} THEN b.record_id::uuid END,
+                CASE WHEN b.record_type = 'document_request' AND b.record_id ~ ${UUID_RE}
+                     THEN (SELECT dr.case_id FROM document_request dr WHERE dr.id = b.record_id::uuid) END,
+                CASE WHEN b.record_type = 'letter' AND b.record_id ~ ${UUID_RE}
+                     THEN (SELECT lt.case_id FROM letter lt WHERE lt.id = b.record_id::uuid) END
+              ) AS case_id
+         FROM base b
+     ), keyed AS (
+       SELECT c.*,
+              CASE
+                WHEN c.route_case IS NOT NULL THEN 'case:' || c.route_case
+                WHEN c.action = 'view' AND c.record_type = 'case' THEN 'list:' || c.route
+                WHEN c.case_id IS NOT NULL THEN 'case:' || c.case_id
+                ELSE COALESCE(c.record_type, '') || ':' || COALESCE(c.record_id, '') || ':' || c.route
+              END AS subject
+         FROM cased c
+     ), marked AS (
+       SELECT k.*,
+              CASE WHEN lag(k.id) OVER w IS NULL
+                     OR lag(k.subject) OVER w <> k.subject
+                     OR lag(k.action) OVER w <> k.action
+                     OR (k.action = 'view' AND k.at - lag(k.at) OVER w > ${VISIT_GAP})
+                     OR (k.action <> 'view' AND (k.at <> lag(k.at) OVER w OR k.route <> lag(k.route) OVER w))
+                   THEN 1 ELSE 0 END AS starts
+         FROM keyed k
+       WINDOW w AS (PARTITION BY k.who ORDER BY k.at, k.id)
+     ), grouped AS (
+       SELECT m.*, sum(m.starts) OVER (PARTITION BY m.who ORDER BY m.at, m.id) AS g FROM marked m
+     ), groups AS (
+       SELECT max(id) AS "lastId", min(at) AS "firstAt", max(at) AS "lastAt", count(*)::int AS lines,
+              (array_agg(user_id ORDER BY at, id))[1] AS "userId",
+              (array_agg(username ORDER BY at, id))[1] AS username,
+              (array_agg(role ORDER BY at, id))[1] AS role,
+              (array_agg(action ORDER BY at, id))[1] AS action,
+              (array_agg(route ORDER BY at, id))[1] AS route,
+              (array_agg(record_type ORDER BY at, id))[1] AS "recordType",
+              (array_agg(record_id ORDER BY at, id))[1] AS "recordId",
+              (array_agg(taxpayer_id ORDER BY at, id) FILTER (WHERE taxpayer_id IS NOT NULL))[1] AS "taxpayerId",
+              (array_agg(taxpayer_label ORDER BY at, id) FILTER (WHERE taxpayer_label IS NOT NULL))[1] AS "taxpayerLabel",
+              (array_agg(detail ORDER BY at, id))[1] AS detail,
+              array_agg(DISTINCT regexp_replace(route, ${UUID_RE}, ':id', 'g')) AS routes,
+              count(DISTINCT case_id)::int AS cases,
+              CASE WHEN count(DISTINCT case_id) = 1 THEN min(case_id::text)::uuid END AS one_case
+         FROM grouped GROUP BY who, g
+     )
+     SELECT gr.*, r.return_ref AS "returnRef", count(*) OVER ()::int AS total
+       FROM groups gr
+       LEFT JOIN exam_case ec ON ec.id = gr.one_case
+       LEFT JOIN tax_return r ON r.id = ec.return_id
+      ORDER BY gr."lastAt" DESC, gr."lastId" DESC
+      LIMIT ${limit} OFFSET ${offset}`,
+    params,
+  );
+  return { rows, total: rows[0]?.total ?? (offset > 0 ? (await findAccessGroups(db, q, 1, 0)).total : 0) };
 }

@@ -61,6 +61,26 @@ export class LoginThrottle {
     return { at: t };
   }
 
+  /**
+   * Seconds until an account may sign in again, or null when it is not locked: for the
+   * administrator's list of users (issue 14). Address locks are not an account's.
+   */
+  accountLockedFor(username: string): number | null {
+    const acc = this.recent(`u:${username.toLowerCase()}`);
+    return acc.length >= this.limits.perAccount ? this.wait(acc) : null;
+  }
+
+  /**
+   * Clears an account's failed attempts (an administrator unlocks it). Its address count stays:
+   * that limit is against guessing across many accounts from one place.
+   * @returns true when the account was locked
+   */
+  unlockAccount(username: string): boolean {
+    const locked = this.accountLockedFor(username) !== null;
+    this.failures.delete(`u:${username.toLowerCase()}`);
+    return locked;
+  }
+
   /** A successful sign-in clears the account's count and takes back this attempt from the address's. */
   succeed(username: string, address: string, at: number): void {
     this.failures.delete(`u:${username.toLowerCase()}`);

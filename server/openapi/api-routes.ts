@@ -9,7 +9,7 @@
  */
 import { z } from 'zod';
 import { DigitAnalysisRequestSchema } from '../../shared/analyses';
-import { AccessLogPageSchema, AccessLogQuerySchema } from '../../shared/access-log';
+import { AccessLogExportQuerySchema, AccessLogPageSchema, AccessLogQuerySchema } from '../../shared/access-log';
 import { LoginRequestSchema, SessionResponseSchema } from '../../shared/auth';
 import {
   BulkReassignResultSchema,
@@ -258,6 +258,15 @@ export const API_ROUTES: readonly ApiRoute[] = [
     body: ResetPasswordSchema,
     responses: { 204: empty('Changed.'), 404: error('No such user.') },
   },
+  {
+    method: 'post',
+    path: '/api/users/:id/unlock',
+    operationId: 'unlockUser',
+    tag: 'users',
+    summary: 'Let an account locked by failed sign-ins sign in again at once',
+    description: 'Idempotent: an account that is not locked is answered as it is, and nothing is logged.',
+    responses: { 200: json(UserSchema, 'The account afterwards.'), 404: error('No such user.') },
+  },
 
   // server/access-log/access-log.routes.ts
   {
@@ -267,7 +276,16 @@ export const API_ROUTES: readonly ApiRoute[] = [
     tag: 'access log',
     summary: 'Who viewed or changed which taxpayer’s data, newest first',
     query: AccessLogQuerySchema,
-    responses: { 200: json(AccessLogPageSchema, 'One page of the log.') },
+    responses: { 200: json(AccessLogPageSchema, 'One page of the log: one row per thing a person did, in plain words.') },
+  },
+  {
+    method: 'get',
+    path: '/api/access-log/export.xlsx',
+    operationId: 'exportAccessLog',
+    tag: 'access log',
+    summary: 'The filtered log as a workbook (the export is itself logged)',
+    query: AccessLogExportQuerySchema,
+    responses: { 200: file([XLSX], 'The workbook: one row per thing a person did, newest first.') },
   },
 
   // server/analyses/analyses.routes.ts

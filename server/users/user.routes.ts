@@ -3,14 +3,18 @@ import type { AppDeps } from '../app-deps';
 import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
-import { createUser, getUsers, resetPassword, updateUser } from './user.service';
+import type { LoginThrottle } from '../auth/throttle';
+import { createUser, getUsers, resetPassword, unlockUser, updateUser } from './user.service';
 
-/** User administration (admin only). */
-export function userRoutes(deps: Pick<AppDeps, 'dataSource'>) {
+/** User administration (admin only); the throttle tells which accounts are locked and unlocks them. */
+export function userRoutes(deps: Pick<AppDeps, 'dataSource'> & { throttle: LoginThrottle }) {
   const r = secureRouter();
   const ds = deps.dataSource;
   r.get('/users', allow('manageUsers'), async (_req, res) => {
-    res.json({ items: await getUsers(ds) });
+    res.json({ items: await getUsers(ds, deps.throttle) });
+  });
+  r.post('/users/:id/unlock', allow('manageUsers'), async (req, res) => {
+    res.json(await unlockUser(ds, staffAuditOf(req), deps.throttle, String(req.params.id)));
   });
   r.post('/users', allow('manageUsers'), validate(CreateUserSchema), async (req, res) => {
     res.status(201).json(await createUser(ds, staffAuditOf(req), req.body));

@@ -8,18 +8,43 @@ import type { CreateUserInput, UpdateUserInput, UserDto } from '../../shared/use
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
+import type { LoginThrottle } from '../auth/throttle';
 import type { User } from './user.entity';
 import { deleteSessionsOf, findUserById, insertUser, listUsers, setPasswordHash, updateUserFields, userNameTaken } from './user.repository';
 
 /** bcrypt cost: ~60 ms a hash on this class of machine (common practice, no source). */
 export const BCRYPT_ROUNDS = 10;
 
-export function toUserDto(u: User): UserDto {
-  return { id: u.id, username: u.username, displayName: u.displayName, role: u.role, active: u.active, createdAt: u.createdAt.toISOString() };
+/** How locks are read: the sign-in throttle, or none (then no account shows as locked). */
+export type LockSource = Pick<LoginThrottle, 'accountLockedFor'> | null;
+
+export function toUserDto(u: User, locks: LockSource = null): UserDto {
+  return {
+    id: u.id,
+    username: u.username,
+    displayName: u.displayName,
+    role: u.role,
+    active: u.active,
+    createdAt: u.createdAt.toISOString(),
+    lockedForSeconds: locks?.accountLockedFor(u.username) ?? null,
+  };
 }
 
-export async function getUsers(ds: DataSource): Promise<UserDto[]> {
-  return (await listUsers(ds)).map(toUserDto);
+export async function getUsers(ds: DataSource, locks: LockSource = null): Promise<UserDto[]> {
+  return (await listUsers(ds)).map((u) => toUserDto(u, locks));
+}
+
+/**
+ * Lets a locked account sign in again at once (the sign-in throttle forgets its failed
+ * attempts), logged as a change. Unlocking an account that is not locked changes nothing and
+ * is not logged, so a second click does no harm.
+ */
+export async function unlockUser(ds: DataSource, audit: StaffAudit, throttle: LoginThrottle, id: string): Promise<UserDto> {
+  const user = await findUserById(ds, id);
+  if (!user) throw new HttpError(404, 'No such user.');
+  if (throttle.unlockAccount(user.username))
+    await recordAccess(ds, audit, { action: 'change', recordType: 'user', recordId: id, detail: `${user.username}: unlocked after failed sign-ins` });
+  return toUserDto(user, throttle);
 }
 
 export async function createUser(ds: DataSource, audit: StaffAudit, input: CreateUserInput): Promise<UserDto> {

@@ -128,7 +128,7 @@ describe('a scored batch: cases opened, score bands and a report', () => {
       });
     expect(report.status).toBe(200);
     const wb = new ExcelJS.Workbook();
-    await wb.xlsx.load(report.body as Buffer);
+    await wb.xlsx.load(report.body as never);
     const facts = new Map<string, unknown>();
     wb.getWorksheet('batch')!.eachRow((row, n) => n > 1 && facts.set(String(row.getCell(1).value), row.getCell(2).value));
     expect(facts.get('Cases opened')).toBe(cases);

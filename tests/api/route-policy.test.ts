@@ -38,7 +38,9 @@ const EXPECTED: Record<string, typeof PUBLIC | readonly Role[]> = {
   'POST /api/users': ADMIN,
   'PATCH /api/users/:id': ADMIN,
   'POST /api/users/:id/password': ADMIN,
+  'POST /api/users/:id/unlock': ADMIN,
   'GET /api/access-log': ADMIN,
+  'GET /api/access-log/export.xlsx': ADMIN,
 
   'POST /api/batches': ['clerk'],
   'GET /api/batches': BATCH_READERS,
