@@ -1,7 +1,7 @@
 /**
  * `npm run bench:ranking [-- --returns 4000 --tuning-seeds rank-a,rank-b --held-out-seeds rank-c,rank-d
  *                          --habits both|on|off --habit-share whole-units=0.25,... --typical-seed rank-typical
- *                          --typical-returns 4000 --typical on|off --json]`
+ *                          --typical-returns 4000 --typical on|off --json --dump rows.jsonl]`
  *
  * Ranking quality on labelled Aldermere batches: each batch is generated with its answer
  * list kept apart, loaded through the intake service into a fresh database, scored by the
@@ -79,6 +79,10 @@ interface Row {
   selected: boolean;
   /** breakdown.pattern.q, or null when the profile does not store it. */
   q: number | null;
+  /** The return's preparer (null: self-prepared), for `--dump`. */
+  preparer: string | null;
+  /** Points and strength of every component, for `--dump`. */
+  parts: Record<string, [number, number]>;
 }
 
 /** Precision at k, recall in the top 10 %, ROC AUC for one score. */
@@ -137,8 +141,9 @@ async function runBatch(seed: string, returns: number, plantShare: number, habit
       selected: boolean | null;
       cut: string | null;
       q: string | null;
+      preparer_id: string | null;
     }[] = await db.ds.query(
-      `SELECT r.return_ref, s.risk_score, s.breakdown->'components' AS components, (s.breakdown->>'selected')::boolean AS selected,
+      `SELECT r.return_ref, r.preparer_id, s.risk_score, s.breakdown->'components' AS components, (s.breakdown->>'selected')::boolean AS selected,
               s.breakdown->>'selectionCut' AS cut, s.breakdown->'pattern'->>'q' AS q
          FROM return_score s JOIN tax_return r ON r.id = s.return_id WHERE s.batch_id = $1`,
       [batchId],
@@ -159,6 +164,8 @@ async function runBatch(seed: string, returns: number, plantShare: number, habit
         rules: all - digits,
         selected: r.selected ?? (r.cut !== null && total >= Number(r.cut)),
         q: r.q === null ? null : Number(r.q),
+        preparer: r.preparer_id,
+        parts: Object.fromEntries(comps.map((c) => [c.key, [c.points, c.strength]])),
       };
     });
   } finally {
@@ -219,6 +226,17 @@ function conditionFigures(rows: Row[]) {
 }
 type Figures = ReturnType<typeof conditionFigures>;
 
+/**
+ * `--dump <file>`: appends one JSON line per return (condition, planted kinds, habits,
+ * preparer, score, each component's points and strength), to read the false selections and
+ * the missed plants with their breakdowns.
+ */
+function dump(condition: string, rows: Row[]): void {
+  const file = arg('dump', '');
+  if (!file) return;
+  fs.appendFileSync(file, rows.map((r) => JSON.stringify({ condition, ...r })).join('\n') + '\n');
+}
+
 async function main() {
   const returns = Number(arg('returns', '4000'));
   const tuning = list(arg('tuning-seeds', arg('seeds', 'rank-a,rank-b')));
@@ -247,6 +265,7 @@ async function main() {
     for (const seed of c.seeds)
       rows.push(...(await runBatch(seed, returns, plantShare, c.habits === 'on' ? shares : NO_HABITS, c.habits === 'on' ? 'habits' : 'no-habits')));
     results.push({ ...c, figures: conditionFigures(rows) });
+    dump(c.key, rows);
   }
   let typical: {
     seed: string;
@@ -270,6 +289,7 @@ async function main() {
       selected: rate(rows),
       perHabit: Object.fromEntries(HABITS.map((h) => [h, rate(rows.filter((r) => r.habits.includes(h)))])) as Record<HabitKind, RateFigure>,
     };
+    dump('typical', rows);
   }
   const seconds = (performance.now() - t0) / 1000;
 

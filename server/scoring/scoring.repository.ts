@@ -244,6 +244,43 @@ export async function slotDigitCounts(m: EntityManager): Promise<{ lineCodes: Re
   return { lineCodes, preparers };
 }
 
+/** First-digit counts per taxpayer and line code over the batch's slots (the clients a preparer's null pools are drawn from). */
+export async function slotTaxpayerDigitCounts(m: EntityManager): Promise<Record<string, number[]>[]> {
+  const rows: { taxpayer_id: string; line_code: string; d: number; n: string }[] = await m.query(
+    `SELECT taxpayer_id, line_code, d, count(*) AS n FROM batch_slot WHERE d BETWEEN 1 AND 9 GROUP BY 1, 2, 3`,
+  );
+  const out = new Map<string, Record<string, number[]>>();
+  for (const r of rows) {
+    const t = out.get(r.taxpayer_id) ?? {};
+    (t[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += Number(r.n);
+    out.set(r.taxpayer_id, t);
+  }
+  return [...out.values()];
+}
+
+/**
+ * First-digit counts per line code of the given taxpayers' returns in one batch, per
+ * preparer (key `taxpayerId|preparerId`), counted as the batch's slots are (one per return,
+ * line code and amount): what leaves a whole client out of their preparer's pool.
+ */
+export async function taxpayerPreparerDigitCounts(db: Db, batchId: string, taxpayerIds: string[]): Promise<Map<string, Record<string, number[]>>> {
+  const rows: { taxpayer_id: string; preparer_id: string; line_code: string; d: number; n: string }[] = await db.query(
+    `WITH s AS (SELECT DISTINCT r.taxpayer_id, r.preparer_id, r.id, li.line_code, abs(li.amount) AS a, ${FIRST_DIGIT_SQL} AS d
+                  FROM tax_return r JOIN line_item li ON li.return_id = r.id
+                 WHERE r.batch_id = $1 AND r.taxpayer_id = ANY($2::uuid[]) AND r.preparer_id IS NOT NULL AND NOT r.superseded AND ${ITEMISED_SQL})
+     SELECT taxpayer_id, preparer_id, line_code, d, count(*) AS n FROM s WHERE d BETWEEN 1 AND 9 GROUP BY 1, 2, 3, 4`,
+    [batchId, taxpayerIds],
+  );
+  const out = new Map<string, Record<string, number[]>>();
+  for (const r of rows) {
+    const key = `${r.taxpayer_id}|${r.preparer_id}`;
+    const t = out.get(key) ?? {};
+    (t[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += Number(r.n);
+    out.set(key, t);
+  }
+  return out;
+}
+
 /** Per preparer: distinct taxpayers in the batch, and amounts (>= min) carried by two or more of them; and all taxpayers. */
 export async function slotPreparerSharing(
   m: EntityManager,

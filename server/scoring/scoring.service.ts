@@ -13,7 +13,16 @@ import type { ScoreBreakdown } from '../../shared/scoring/breakdown';
 import { benjaminiHochberg, formatP } from '../../shared/scoring/calibration';
 import { buildPeerBands, incomeBand, type PeerBands, type ReturnFacts } from '../../shared/scoring/factors';
 import { thousands } from '../../shared/scoring/format';
-import { combineCodeCounts, estimateConcentration, expectedForPool, judgePool, pearson, totalCounts, type CodeDigitCounts } from '../../shared/scoring/pools';
+import {
+  clientPoolNull,
+  combineCodeCounts,
+  estimateConcentration,
+  expectedForPool,
+  judgePool,
+  pearson,
+  totalCounts,
+  type CodeDigitCounts,
+} from '../../shared/scoring/pools';
 import { PERIODIC_COUNTS, PERIODIC_LINE_CODES, type RecurrenceRates } from '../../shared/scoring/recurring';
 import { PENDING_Q_TEXT, scoreReturn, type BatchNulls, type ScoreContext } from '../../shared/scoring/score-return';
 import { COMPONENTS, ScoringSettingsSchema, type ScoringSettings } from '../../shared/scoring/settings';
@@ -42,8 +51,10 @@ import {
   slotRecurrence,
   slotRecurringTotals,
   slotRoundRates,
+  slotTaxpayerDigitCounts,
   statementsOf,
   taxpayerCodeDigitCounts,
+  taxpayerPreparerDigitCounts,
   unscoredReturns,
   writePatternQs,
 } from './scoring.repository';
@@ -80,6 +91,12 @@ export interface RunContext {
   shared: Record<string, number[]>;
   alphaPreparer: number | null;
   alphaHistory: number | null;
+  /**
+   * Profile version 3 on: the chance spread of a preparer's pool of k clients (the key),
+   * [scale, degrees of freedom] of the scaled chi-square fitted to random sets of k of the
+   * batch's taxpayers (shared/scoring/pools.ts clientPoolNull); absent on earlier runs.
+   */
+  preparerNull?: Record<string, [number, number]>;
   nulls: {
     recurrence: RecurrenceRates;
     round: Record<string, [number, number, number, number]>;
@@ -129,7 +146,8 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
         return !!r && r.returns > 0 && r.recurring / r.returns >= p.recurrenceMinRate;
       });
       const recurringTotals = await slotRecurringTotals(m, periodic);
-      return { recurrence, round, popularity, digits, sharing, recurringTotals };
+      const taxpayerDigits = p.preparerNull === 'clients' ? await slotTaxpayerDigitCounts(m) : [];
+      return { recurrence, round, popularity, digits, sharing, recurringTotals, taxpayerDigits };
     }),
   ]);
   const {
@@ -148,6 +166,15 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
     );
     return Number.isFinite(a) ? a : null;
   };
+  // A pool leaves the client being scored out, so a preparer of c clients is judged on c − 1.
+  let preparerNull: RunContext['preparerNull'];
+  if (p.preparerNull === 'clients') {
+    preparerNull = {};
+    for (const c of new Set(Object.values(slots.sharing.clients).map((n) => n - 1))) {
+      const fit = clientPoolNull(slots.taxpayerDigits, c, lineCodes);
+      if (fit) preparerNull[String(c)] = [fit.scale, fit.df];
+    }
+  }
   const sampleOf = Math.max(1, Math.ceil(slots.sharing.taxpayers / HISTORY_SAMPLE));
   const histories = await taxpayerCodeDigitCounts(ds, { batchId, sampleOf });
   return {
@@ -162,6 +189,7 @@ export async function computeRunContext(ds: DataSource, batchId: string, setting
     shared: slots.sharing.shared,
     alphaPreparer: spread(Object.values(preparers)),
     alphaHistory: spread([...histories.values()]),
+    ...(preparerNull ? { preparerNull } : {}),
     nulls: { recurrence: slots.recurrence, round: slots.round, popular: slots.popularity.popular, slots: slots.popularity.slots },
   };
 }
@@ -335,11 +363,13 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
   let t = performance.now();
   const ids = todo.map((r) => r.id);
   const taxpayerIds = [...new Set(todo.map((r) => r.taxpayerId))];
-  const [lines, statements, history, tpCounts] = await Promise.all([
+  const byClients = settings.params.preparerNull === 'clients' && !!context.preparerNull;
+  const [lines, statements, history, tpCounts, clientCounts] = await Promise.all([
     linesOf(ds, ids),
     statementsOf(ds, [...new Set(todo.map((r) => r.tin))]),
     historyOf(ds, taxpayerIds),
     taxpayerCodeDigitCounts(ds, { taxpayerIds }),
+    byClients ? taxpayerPreparerDigitCounts(ds, batchId, taxpayerIds) : Promise.resolve(null),
   ]);
   trace('load', t);
   t = performance.now();
@@ -384,19 +414,23 @@ export async function scoreChunk(ds: DataSource, job: ChunkJob): Promise<{ score
       const tp = others.length ? tpCounts.get(r.taxpayerId) : undefined;
       const prep = r.preparerId ? context.preparers[r.preparerId] : undefined;
       const clients = r.preparerId ? (context.preparerClients[r.preparerId] ?? 1) : 0;
+      // Version 3 on: the whole client leaves their preparer's pool (their other years are the
+      // history pool's evidence, so they count once), judged against random sets of as many clients.
+      const clientFit = byClients && clients > 1 ? context.preparerNull![String(clients - 1)] : undefined;
       const ctx: ScoreContext = {
         settings,
         peers,
-        preparer: prep
-          ? judgePool(
-              combineCodeCounts(prep, ownCounts, -1),
-              context.lineCodes,
-              alpha(context.alphaPreparer),
-              pp.pooledFixedThresholdMinN,
-              pp.patternPStart,
-              pp.patternPFull,
-            )
-          : null,
+        preparer:
+          prep && (!byClients || clientFit)
+            ? judgePool(
+                combineCodeCounts(prep, clientFit ? (clientCounts?.get(`${r.taxpayerId}|${r.preparerId}`) ?? ownCounts) : ownCounts, -1),
+                context.lineCodes,
+                clientFit ? { scale: clientFit[0], df: clientFit[1] } : alpha(context.alphaPreparer),
+                pp.pooledFixedThresholdMinN,
+                pp.patternPStart,
+                pp.patternPFull,
+              )
+            : null,
         history: tp
           ? judgePool(
               combineCodeCounts(tp, ownCounts, -1),

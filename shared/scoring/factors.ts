@@ -299,6 +299,17 @@ export function deductionsLarge(
       deductionStake += amount - Math.round(limit * base);
     }
   }
+  // Version 3 on: a recurring deduction (a standing monthly gift, a care plan) is a deduction like
+  // any other, so its size against the recurring bills on its line is weighed against the filer's
+  // own other years below, as the peers' check is; a business bill answers to the peers alone.
+  const recurringDeductions = p.recurringOwnLevel ? recurring.filter((b) => b.code.startsWith('ded.')) : [];
+  for (const b of recurringDeductions) {
+    const r = recurringAgainstPeers(b, t, peers, p);
+    if (!r) continue;
+    deductionFound.push(r.text);
+    deductionStrength = Math.max(deductionStrength, r.strength);
+    deductionStake += r.stake;
+  }
   // Large against peers may still be the filer's usual level (a standing gift, a long illness):
   // the deductions also have to be large against the filer's own other years on file, beyond
   // the rise that ordinary filers in the batch show from year to year.
@@ -346,19 +357,12 @@ export function deductionsLarge(
   }
   // A recurring bill counts once in the pattern tests; its size still answers to the other recurring bills on that line.
   for (const b of recurring) {
-    const rl = peers.recurringLimits?.[b.code];
-    const base = recurringBase(b.code, t);
-    if (!rl || rl.limit === null || base <= 0) continue;
-    const yearly = b.cents * b.count;
-    const share = yearly / base;
-    if (share <= rl.limit) continue;
-    found.push(
-      `${b.count} equal payments of ${money(b.cents)} on ${LINE_CODE_DEFS[b.code].label.toLowerCase()} come to ${money(yearly)}, ${pct(share, 1)} of ${b.code.startsWith('exp.') ? 'receipts' : 'income'}; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${rl.n} recurring bills on that line in the batch is ${pct(rl.limit, 1)}`,
-    );
-    // Steeper than the other peer checks (full at 2.5 × the percentile): a bill is one decision,
-    // and a made-up monthly figure is usually well above what ordinary bills on that line come to.
-    strength = Math.max(strength, clamp01(Math.log(share / Math.max(rl.limit, 0.0001)) / Math.log(2.5)));
-    stake += yearly - Math.round(rl.limit * base);
+    if (recurringDeductions.includes(b)) continue;
+    const r = recurringAgainstPeers(b, t, peers, p);
+    if (!r) continue;
+    found.push(r.text);
+    strength = Math.max(strength, r.strength);
+    stake += r.stake;
   }
   if (!found.length)
     return none(
@@ -367,6 +371,23 @@ export function deductionsLarge(
         : 'No deductions claimed.',
     );
   return { strength, evidence: `${found.join('; ')}.`, stakeIncomeCents: stake, stakeTaxCents: 0 };
+}
+
+/** A recurring bill's yearly total against the batch's recurring bills on its line (null: within them, or nothing to compare). */
+function recurringAgainstPeers(b: RecurringBill, t: ReturnTotals, peers: PeerBands, p: Params): { text: string; strength: number; stake: number } | null {
+  const rl = peers.recurringLimits?.[b.code];
+  const base = recurringBase(b.code, t);
+  if (!rl || rl.limit === null || base <= 0) return null;
+  const yearly = b.cents * b.count;
+  const share = yearly / base;
+  if (share <= rl.limit) return null;
+  return {
+    text: `${b.count} equal payments of ${money(b.cents)} on ${LINE_CODE_DEFS[b.code].label.toLowerCase()} come to ${money(yearly)}, ${pct(share, 1)} of ${b.code.startsWith('exp.') ? 'receipts' : 'income'}; the ${Math.round(p.deductionPercentile * 100)}th percentile of ${rl.n} recurring bills on that line in the batch is ${pct(rl.limit, 1)}`,
+    // Steeper than the other peer checks (full at 2.5 × the percentile): a bill is one decision,
+    // and a made-up monthly figure is usually well above what ordinary bills on that line come to.
+    strength: clamp01(Math.log(share / Math.max(rl.limit, 0.0001)) / Math.log(2.5)),
+    stake: yearly - Math.round(rl.limit * base),
+  };
 }
 
 /** Business expenses near or above receipts. */

@@ -149,7 +149,10 @@ function poolEvidence(what: string, pool: PooledDigits | null): FactorResult {
   const fixed = pool.judgedBy === 'fixed' ? `; MAD ${pool.mad?.toFixed(4)}, ${pool.conformity} by the published thresholds (Nigrini 2012)` : '';
   return {
     strength: pool.strength,
-    evidence: `First digits of ${pool.n} amounts ${what}, against the batch's own digits on the same lines, allowing for the ordinary spread between pools: ${formatP(pool.p)}${fixed}.`,
+    evidence:
+      pool.basis === 'clients'
+        ? `First digits of ${pool.n} amounts ${what} (this client's own returns left out), against the batch's own digits on the same lines, allowing for the ordinary spread of as many clients drawn at random from the batch: ${formatP(pool.p)}${fixed}.`
+        : `First digits of ${pool.n} amounts ${what}, against the batch's own digits on the same lines, allowing for the ordinary spread between pools: ${formatP(pool.p)}${fixed}.`,
     ...zero,
   };
 }

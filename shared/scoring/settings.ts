@@ -116,6 +116,20 @@ export const ScoringSettingsSchema = z.object({
     recurrenceMinRate: share.default(0.01),
     /** Strength (in amounts) of the batch prior that a line code's round-amount rate is shrunk toward. */
     roundPriorStrength: z.number().min(0).default(200),
+    /**
+     * Version 3 on: how a preparer's pool is referred to chance. `clients` (the default from
+     * version 3): the whole client is left out of the pool and the pool is compared with
+     * random sets of as many of the batch's clients (docs/methods.md "Scoring"); `amounts`
+     * (version 2, and what stored version-2 settings read): the return is left out and the
+     * spread is a Dirichlet-multinomial over amounts.
+     */
+    preparerNull: z.enum(['amounts', 'clients']).default('amounts'),
+    /**
+     * Version 3 on: a recurring deduction (a standing gift, a care plan) large against the
+     * batch's recurring bills on its line is also weighed against the filer's own other years,
+     * as other deductions are (docs/methods.md "Scoring"); false in stored version-2 settings.
+     */
+    recurringOwnLevel: z.boolean().default(false),
   }),
 });
 export type ScoringSettings = z.infer<typeof ScoringSettingsSchema>;
@@ -157,5 +171,7 @@ export const DEFAULT_SCORING_SETTINGS: ScoringSettings = {
     patternPFull: 1e-5,
     recurrenceMinRate: 0.01,
     roundPriorStrength: 200,
+    preparerNull: 'clients',
+    recurringOwnLevel: true,
   },
 };

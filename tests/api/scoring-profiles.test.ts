@@ -21,11 +21,12 @@ describe('scoring profiles', () => {
     await ctx.close();
   });
 
-  it('starts with versions 1 and 2 from the migrations, 2 (the default profile) active, readable by examiners', async () => {
+  it('starts with versions 1, 2 and 3 from the migrations, 3 (the default profile) active, readable by examiners', async () => {
     const res = await ex.agent.get('/api/scoring/profiles');
     const list = ProfileListSchema.parse(res.body);
     expect(list.items.map((p) => [p.version, p.active])).toEqual([
-      [2, true],
+      [3, true],
+      [2, false],
       [1, false],
     ]);
     expect(list.items[0].settings).toEqual(DEFAULT_SCORING_SETTINGS);
@@ -35,10 +36,11 @@ describe('scoring profiles', () => {
     const settings = { ...DEFAULT_SCORING_SETTINGS, weights: { ...DEFAULT_SCORING_SETTINGS.weights, cashHeavy: 0 } };
     const res = await sup.agent.post('/api/scoring/profiles').set('X-CSRF-Token', sup.csrf).send({ settings, note: 'cash-heavy off for the pilot' });
     expect(res.status).toBe(201);
-    expect(res.body).toMatchObject({ version: 3, active: true, note: 'cash-heavy off for the pilot' });
+    expect(res.body).toMatchObject({ version: 4, active: true, note: 'cash-heavy off for the pilot' });
     const list = ProfileListSchema.parse((await sup.agent.get('/api/scoring/profiles')).body);
     expect(list.items.map((p) => [p.version, p.active])).toEqual([
-      [3, true],
+      [4, true],
+      [3, false],
       [2, false],
       [1, false],
     ]);

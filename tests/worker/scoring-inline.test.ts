@@ -78,8 +78,8 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
   it('re-scoring under a new profile version keeps the old scores', async () => {
     const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-3', returns: 80, plantShare: 0.1 });
     await scoreBatchNow(ctx.dataSource, b.batchId);
-    // The active (default) profile is version 2 (server/db/migrations/1764960000000-scoring-v2.ts).
-    const before = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 2 ORDER BY return_id`, [
+    // The active (default) profile is version 3 (server/db/migrations/1766000000000-scoring-v3.ts).
+    const before = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 3 ORDER BY return_id`, [
       b.batchId,
     ]);
     // One case is closed before the re-score: it must keep the score it was decided on.
@@ -90,16 +90,16 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
       )
     )[0][0];
     await ctx.dataSource.query(
-      `INSERT INTO scoring_profile (version, settings, note) SELECT 3, jsonb_set(settings, '{weights,cashHeavy}', '40'), 'test' FROM scoring_profile WHERE version = 2`,
+      `INSERT INTO scoring_profile (version, settings, note) SELECT 4, jsonb_set(settings, '{weights,cashHeavy}', '40'), 'test' FROM scoring_profile WHERE version = 3`,
     );
-    await scoreBatchNow(ctx.dataSource, b.batchId, 3);
+    await scoreBatchNow(ctx.dataSource, b.batchId, 4);
     const kept = (await ctx.dataSource.query(`SELECT score_id FROM exam_case WHERE id = $1`, [closed.id]))[0];
     expect(kept.score_id).toBe(closed.score_id);
-    const after = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 2 ORDER BY return_id`, [
+    const after = await ctx.dataSource.query(`SELECT return_id, risk_score FROM return_score WHERE batch_id = $1 AND profile_version = 3 ORDER BY return_id`, [
       b.batchId,
     ]);
     expect(after).toEqual(before);
-    const v3 = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM return_score WHERE batch_id = $1 AND profile_version = 3`, [b.batchId]);
-    expect(v3[0].n).toBe(80);
+    const v4 = await ctx.dataSource.query(`SELECT count(*)::int AS n FROM return_score WHERE batch_id = $1 AND profile_version = 4`, [b.batchId]);
+    expect(v4[0].n).toBe(80);
   });
 });

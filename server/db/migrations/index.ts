@@ -11,6 +11,7 @@ import { Letters1764900000000 } from './1764900000000-letters';
 import { ScoringVersionTwo1764960000000 } from './1764960000000-scoring-v2';
 import { Programme1765000000000 } from './1765000000000-programme';
 import { CaseCalendar1765100000000 } from './1765100000000-case-calendar';
+import { ScoringVersionThree1766000000000 } from './1766000000000-scoring-v3';
 import { BatchLabel1766050000000 } from './1766050000000-batch-label';
 import { MyCases1766040000000 } from './1766040000000-my-cases';
 import { ClosingLetters1766020000000 } from './1766020000000-closing-letters';
@@ -25,6 +26,7 @@ export const migrations = [
   ScoringVersionTwo1764960000000,
   Programme1765000000000,
   CaseCalendar1765100000000,
+  ScoringVersionThree1766000000000,
   MyCases1766040000000,
   BatchLabel1766050000000,
   ClosingLetters1766020000000,
