@@ -8,6 +8,7 @@ import type PgBoss from 'pg-boss';
 import type { DataSource } from 'typeorm';
 import { ConfigError, loadConfig } from '../server/config';
 import { createDataSource } from '../server/db/data-source';
+import { surviveConnectionLoss } from '../server/queue/connection-loss';
 import { createBoss, ensureQueues } from '../server/queue/queues';
 import { registerDailyPass } from './daily-pass';
 import { registerJobs } from './jobs';
@@ -27,6 +28,8 @@ async function stop(signal: string) {
 // Registered before anything else, so a signal during start-up also ends the process cleanly.
 process.on('SIGINT', () => void stop('SIGINT'));
 process.on('SIGTERM', () => void stop('SIGTERM'));
+// A PostgreSQL outage must not end the worker (server/queue/connection-loss.ts).
+surviveConnectionLoss('worker');
 
 async function main() {
   const config = loadConfig();
