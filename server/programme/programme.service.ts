@@ -127,7 +127,7 @@ export async function listControls(ds: DataSource, audit: StaffAudit, batchId: s
 export const MIN_CLOSED_FOR_FIT = 30;
 
 /** The closed cases as the outcome model takes them: strengths in COMPONENTS order, weight 1 or 1 / sampling rate. */
-async function fitCases(ds: DataSource): Promise<FitCase[]> {
+async function fitCases(ds: DataSource): Promise<(FitCase & { random: boolean })[]> {
   const rows = await closedCasesForFit(ds);
   return rows.map((r) => {
     const by = new Map(r.components.map((c) => [c.key, c.strength]));
@@ -138,6 +138,7 @@ async function fitCases(ds: DataSource): Promise<FitCase[]> {
       adjustedCents: r.adjustedCents === null ? 0 : Number(r.adjustedCents),
       // A random case stands for 1 / rate returns below the cut; a rate missing or 0 (never for a drawn case) counts it once.
       weight: r.selection === 'random' && r.rate && r.rate > 0 ? 1 / r.rate : 1,
+      random: r.selection === 'random',
     };
   });
 }
@@ -151,7 +152,7 @@ const enough = (cases: readonly FitCase[]) =>
  */
 export async function learnWeights(ds: DataSource, current: Record<ComponentKey, number>): Promise<WeightFitDto> {
   const cases = await fitCases(ds);
-  const base = { closed: cases.length, randomClosed: cases.filter((c) => c.weight !== 1).length, minClosed: MIN_CLOSED_FOR_FIT };
+  const base = { closed: cases.length, randomClosed: cases.filter((c) => c.random).length, minClosed: MIN_CLOSED_FOR_FIT };
   if (!enough(cases)) return { ...base, fit: null };
   const fit = suggestWeights(
     COMPONENTS,

@@ -2,7 +2,7 @@
  * Invented demo history for `npm start` (issue 17): so the Programme screen has something to
  * show on first start, the demo adds a past period before the current demo batch. Two earlier
  * Aldermere batches (invented like the rest, labelled "Invented demo history") are loaded through
- * the intake, scored in-process under a pilot profile version that drew 6 % at random for review,
+ * the intake, scored in-process under a pilot profile version that drew 8 % at random for review,
  * moved back 20 and 12 weeks, and every case is closed with an outcome drawn from what was planted
  * in its return: a planted return is mostly adjusted (80 %), a typical one mostly closed with no
  * change (adjusted 10 %, ordinary small corrections), amounts with noise. Nothing here is a
@@ -15,10 +15,10 @@ import type { DataSource } from 'typeorm';
 import { DEFAULT_HABIT_SHARES, DEMO_YEARS, type GenerateOptions } from '../../shared/demo/aldermere';
 import { createRng } from '../../shared/demo/prng';
 import { DEFAULT_INTAKE_LIMITS } from '../../shared/returns/batch-rows';
-import { DEFAULT_SCORING_SETTINGS } from '../../shared/scoring/settings';
+import { ScoringSettingsSchema } from '../../shared/scoring/settings';
 import { ingestUpload } from '../batches/batch.service';
 import { now } from '../clock';
-import { insertProfile, lockProfiles, nextProfileVersion } from '../scoring/scoring-profile.repository';
+import { findActiveProfile, insertProfile, lockProfiles, nextProfileVersion } from '../scoring/scoring-profile.repository';
 import { scoreBatchNow } from '../scoring/scoring.service';
 import { accountIdByUsername } from './demo-seed.repository';
 import { writeCsvBatch } from './batch-files';
@@ -28,20 +28,20 @@ import { backdateBatch, closeHistoryCases, historyCases, type HistoryOutcome } f
 export const DEMO_HISTORY: { label: string; options: GenerateOptions; weeksAgo: number; closedOverWeeks: number }[] = [
   {
     label: 'Invented demo history: spring batch',
-    options: { seed: 'aldermere-history-1', returns: 800, plantShare: 0.08, years: DEMO_YEARS, habits: DEFAULT_HABIT_SHARES, refPrefix: 'ALH' },
+    options: { seed: 'aldermere-history-1', returns: 600, plantShare: 0.1, years: DEMO_YEARS, habits: DEFAULT_HABIT_SHARES, refPrefix: 'ALH' },
     weeksAgo: 20,
     closedOverWeeks: 11,
   },
   {
     label: 'Invented demo history: summer batch',
-    options: { seed: 'aldermere-history-2', returns: 800, plantShare: 0.08, years: DEMO_YEARS, habits: DEFAULT_HABIT_SHARES, refPrefix: 'ALJ' },
+    options: { seed: 'aldermere-history-2', returns: 600, plantShare: 0.1, years: DEMO_YEARS, habits: DEFAULT_HABIT_SHARES, refPrefix: 'ALJ' },
     weeksAgo: 12,
     closedOverWeeks: 10,
   },
 ];
 
-/** The pilot profile the history was scored under: the default weights, 6 % drawn at random. */
-const PILOT_RANDOM_SHARE = 0.06;
+/** The pilot profile the history was scored under: the active profile's settings, 8 % drawn at random. */
+const PILOT_RANDOM_SHARE = 0.08;
 const WEEK_MS = 7 * 24 * 3600 * 1000;
 
 /**
@@ -58,10 +58,11 @@ export async function seedDemoHistory(ds: DataSource): Promise<string> {
   const version = await ds.transaction(async (m) => {
     await lockProfiles(m);
     const v = await nextProfileVersion(m);
+    const active = ScoringSettingsSchema.parse((await findActiveProfile(m)).settings);
     await insertProfile(m, {
       version: v,
-      settings: { ...DEFAULT_SCORING_SETTINGS, randomShare: PILOT_RANDOM_SHARE },
-      note: 'Invented demo history: the pilot period, 6 % of each batch chosen at random for review',
+      settings: { ...active, randomShare: PILOT_RANDOM_SHARE },
+      note: 'Invented demo history: the pilot period, 8 % of each batch chosen at random for review',
       authorId: supervisorId,
       active: false,
     });

@@ -112,6 +112,14 @@ describe('programme screen (supervisor, browser)', () => {
         await el.screenshot({ path: file });
         files.push(file);
       }
+      // Activating an older version asks first, with what it changes in words (issue 14).
+      await page.getByTestId('activate-1').click();
+      await waitForText(page.getByTestId('confirm-activate-1'), 'Make version 1 the active one? Every batch loaded from now on is scored with it');
+      const confirm = page.getByTestId('confirm-activate-1');
+      await confirm.scrollIntoViewIfNeeded();
+      const file = path.join(path.dirname(files[0]), `scoring-${name}-confirm-activate.png`);
+      await confirm.screenshot({ path: file });
+      files.push(file);
       fs.mkdirSync('/tmp/shots-programme', { recursive: true });
       for (const f of files) fs.copyFileSync(f, path.join('/tmp/shots-programme', path.basename(f)));
       await page.close();
