@@ -75,6 +75,28 @@ describe('scoring a batch (in-process, the code the worker runs)', () => {
     expect((await ctx.dataSource.query(`SELECT state FROM filing_batch WHERE id = $1`, [b.batchId]))[0].state).toBe('scored');
   });
 
+  it("version 3: a preparer's pool leaves the whole client out and is judged against random sets of as many clients (docs/methods.md#calibrated-pattern-evidence)", async () => {
+    const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-v3', returns: 400, plantShare: 0.05 });
+    await scoreBatchNow(ctx.dataSource, b.batchId);
+    const run = (await ctx.dataSource.query(`SELECT profile_version, context FROM scoring_run WHERE batch_id = $1`, [b.batchId]))[0];
+    expect(run.profile_version).toBe(3);
+    // One fitted null per pool size (clients − 1): [scale, df] of the scaled chi-square (Satterthwaite), both positive.
+    const fits = Object.entries(run.context.preparerNull as Record<string, [number, number]>);
+    expect(fits.length).toBeGreaterThan(0);
+    for (const [k, [scale, df]] of fits) {
+      expect(Number(k)).toBeGreaterThan(0);
+      expect(scale).toBeGreaterThan(0);
+      expect(df).toBeGreaterThan(0);
+    }
+    const evidence: { e: string }[] = await ctx.dataSource.query(
+      `SELECT c->>'evidence' AS e FROM return_score s, jsonb_array_elements(s.breakdown->'components') c
+        WHERE s.batch_id = $1 AND c->>'key' = 'preparerDigits' AND c->>'evidence' LIKE 'First digits%'`,
+      [b.batchId],
+    );
+    expect(evidence.length).toBeGreaterThan(0);
+    for (const { e } of evidence) expect(e).toContain("(this client's own returns left out)");
+  });
+
   it('re-scoring under a new profile version keeps the old scores', async () => {
     const b = await loadGeneratedBatch(ctx.dataSource, { seed: 'inline-3', returns: 80, plantShare: 0.1 });
     await scoreBatchNow(ctx.dataSource, b.batchId);
