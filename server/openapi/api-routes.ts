@@ -102,6 +102,7 @@ export const COMPONENTS = {
   HousekeepingResult: HousekeepingResultSchema,
   ProgrammeOutcomes: OutcomesSchema,
   RandomReviewCases: ControlsSchema,
+  ScoringPreview: PreviewSchema,
   LetterCreated: LetterCreatedSchema,
   LetterList: LetterListSchema,
   ReplyRequest: ReplyRequestSchema,
