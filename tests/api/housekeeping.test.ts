@@ -101,7 +101,8 @@ describe('the daily pass', () => {
     expect(d.state).toBe('in_review');
     expect(d.history.map((h) => h.summary)).toContain(`Plumbline sent the taxpayer a reminder before the due date, ${longDate(due)}, with a new reply link`);
     const letters = LetterListSchema.parse((await examiner.agent.get(`/api/cases/${caseId}/letters`)).body);
-    expect(letters.items.map((l) => l.kind).sort()).toEqual(['document_request', 'reminder']);
+    // The reply's acknowledgement is kept too (issue 13, records in parts).
+    expect(letters.items.map((l) => l.kind).sort()).toEqual(['acknowledgement', 'document_request', 'reminder']);
     // The office copy keeps the link masked.
     const reminderLetter = letters.items.find((l) => l.kind === 'reminder')!;
     const office = await examiner.agent

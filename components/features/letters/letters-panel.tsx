@@ -5,13 +5,13 @@
  * components/features/cases/case-screen.tsx.
  */
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useState } from 'react';
+import { useMemo, useState } from 'react';
 import { Controller, useForm } from 'react-hook-form';
-import { Linking, Pressable, View } from 'react-native';
+import { Linking, Pressable, ScrollView, View } from 'react-native';
 import type { CaseState } from '../../../shared/cases';
 import {
   addDays,
-  DocumentRequestInputSchema,
+  documentRequestInputSchema,
   DUE_DATE_MAX_DAYS,
   DUE_DATE_MIN_DAYS,
   flaggedLetterWarning,
@@ -23,7 +23,9 @@ import {
   ReferralInputSchema,
   type DocumentRequestInput,
   type DocumentRequestState,
+  type LetterContext,
   type LetterDto,
+  type LetterPreview,
   type ReferralInput,
 } from '../../../shared/letters';
 import { colours, radius, space } from '../../theme';
@@ -33,7 +35,7 @@ import { ChoiceRow } from '../../ui/choice-row';
 import { Field } from '../../ui/field';
 import { FormField } from '../../ui/form-field';
 import { Txt } from '../../ui/text';
-import { letterPdfUrl, replyUploadUrl, useLetters, useSendDocumentRequest, useSendReferral } from './use-letters';
+import { letterPdfUrl, replyUploadUrl, useLetterContext, useLetters, usePreviewDocumentRequest, useSendDocumentRequest, useSendReferral } from './use-letters';
 
 /** Props for {@link LettersPanel}. */
 export interface LettersPanelProps {
@@ -84,7 +86,7 @@ function LetterRow({ caseId, letter }: { caseId: string; letter: LetterDto }) {
         )}
       </View>
       <Txt variant="small" tone="soft">
-        {letter.kind === 'document_request' ? `Sent to ${letter.recipient}` : `For the ${letter.recipient}`}
+        {letter.kind === 'referral_memo' ? `For the ${letter.recipient}` : letter.recipient.includes('@') ? `Sent to ${letter.recipient}` : letter.recipient}
         {req ? ` · due ${longDate(req.dueDate)}` : ''}
       </Txt>
       {req && (
@@ -99,11 +101,16 @@ function LetterRow({ caseId, letter }: { caseId: string; letter: LetterDto }) {
       <FileLink href={letterPdfUrl(caseId, letter.id)} label={`Open the PDF (${kb(letter.size)})`} testID={`letter-${letter.id}-pdf`} />
       {req && req.uploads.length > 0 && (
         <View style={{ gap: space.xs, marginTop: space.xs, padding: space.sm, backgroundColor: colours.okSoft, borderRadius: radius.sm }}>
-          <Txt variant="small" bold>
-            {`Reply received ${req.answeredAt ? when(req.answeredAt) : ''}: ${req.uploads.length} file${req.uploads.length === 1 ? '' : 's'}`}
+          <Txt variant="small" bold testID={`letter-${letter.id}-reply`}>
+            {`${req.uploads.length} file${req.uploads.length === 1 ? '' : 's'} in ${req.sends === 1 ? 'one send' : `${req.sends} sends`}` +
+              (req.completedBy === 'taxpayer'
+                ? `; the taxpayer said that is everything${req.answeredAt ? ` (${when(req.answeredAt)})` : ''}`
+                : req.completedBy === 'due-date'
+                  ? '; the due date ended the sends'
+                  : '; more may come until the due date')}
           </Txt>
           {req.uploads.map((u) => (
-            <FileLink key={u.id} href={replyUploadUrl(caseId, u.id)} label={`${u.fileName} (${kb(u.size)})`} />
+            <FileLink key={u.id} href={replyUploadUrl(caseId, u.id)} label={`${req.sends > 1 ? `Send ${u.part}: ` : ''}${u.fileName} (${kb(u.size)})`} />
           ))}
         </View>
       )}
@@ -118,25 +125,58 @@ interface FormProps<T> {
   error: Error | null;
 }
 
-function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentRequestInput>) {
+/** The letter as it will go: where, the subject and the text, read before it is sent (issue 14). */
+function LetterPreviewBox({ preview, testID }: { preview: LetterPreview; testID: string }) {
+  return (
+    <View style={{ gap: space.xs, padding: space.md, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID={testID}>
+      <Txt variant="small" bold>
+        The letter as it will be sent
+      </Txt>
+      <Txt variant="small" tone="soft" testID={`${testID}-to`}>
+        {preview.to ? `By e-mail to ${preview.to}, with the PDF attached` : 'No e-mail address: kept with the case for post'}
+      </Txt>
+      <Txt variant="small" bold>
+        {preview.subject}
+      </Txt>
+      <ScrollView style={{ maxHeight: 320 }} nestedScrollEnabled>
+        <Txt variant="small" style={{ whiteSpace: 'pre-wrap' } as object} testID={`${testID}-text`}>
+          {preview.text}
+        </Txt>
+      </ScrollView>
+    </View>
+  );
+}
+
+function DocumentRequestForm({ caseId, context, onSubmit, busy, error }: FormProps<DocumentRequestInput> & { caseId: string; context: LetterContext }) {
+  // The due-date window by the office's clock, not the browser's (issue 14); with no address
+  // on file the form asks for one before Send.
+  const schema = useMemo(() => documentRequestInputSchema(() => context.today, { emailRequired: !context.emailOnFile }), [context.today, context.emailOnFile]);
   const form = useForm<DocumentRequestInput>({
-    resolver: zodResolver(DocumentRequestInputSchema),
-    defaultValues: { items: [''], dueDate: addDays(isoToday(), 21), email: '' },
+    resolver: zodResolver(schema),
+    mode: 'onChange',
+    defaultValues: { items: [''], dueDate: addDays(context.today, 21), email: '' },
   });
+  const preview = usePreviewDocumentRequest(caseId);
+  const [previewed, setPreviewed] = useState<string | null>(null);
   // Items are plain strings (the API's shape), so add and remove work on the array itself
   // instead of useFieldArray, which needs objects.
   const items = form.watch('items');
-  const setItems = (next: string[]) => form.setValue('items', next, { shouldDirty: true });
+  const key = JSON.stringify(form.watch());
+  const ready = previewed === key && !!preview.data;
+  const setItems = (next: string[]) => form.setValue('items', next, { shouldDirty: true, shouldValidate: true });
   const itemsError = form.formState.errors.items;
-  const submit = form.handleSubmit(onSubmit);
+  const submit = form.handleSubmit((v) => {
+    if (ready) return onSubmit(v);
+    preview.mutate(v, { onSuccess: () => setPreviewed(key) });
+  });
   return (
     <View style={{ gap: space.md }} testID="document-request-form">
       <Txt variant="lead" bold>
         Ask the taxpayer for records
       </Txt>
       <Txt variant="small" tone="soft">
-        The letter asks politely for the records below and gives the taxpayer a one-time link to upload them. It names no score, test or suspicion. Sending it
-        moves the case to awaiting reply.
+        The letter asks politely for the records below and gives the taxpayer a personal link to upload them, in one go or in parts until the due date. It names
+        no score, test or suspicion. You read the letter before it is sent; sending it moves the case to awaiting reply.
       </Txt>
       <View style={{ gap: space.sm }}>
         {items.map((item, i) => {
@@ -197,25 +237,50 @@ function DocumentRequestForm({ onSubmit, busy, error }: FormProps<DocumentReques
             onChangeText={field.onChange}
             onBlur={field.onBlur}
             error={fieldState.error?.message}
-            hint={`Between ${DUE_DATE_MIN_DAYS} and ${DUE_DATE_MAX_DAYS} days from today.${field.value && /^\d{4}-\d{2}-\d{2}$/.test(field.value) ? ` The letter will say ${longDate(field.value)}.` : ''}`}
+            hint={`Between ${longDate(context.earliestDueDate)} and ${longDate(context.latestDueDate)} (${DUE_DATE_MIN_DAYS} to ${DUE_DATE_MAX_DAYS} days from today, ${longDate(context.today)}, by the office’s clock).${field.value && /^\d{4}-\d{2}-\d{2}$/.test(field.value) ? ` The letter will say ${longDate(field.value)}.` : ''}`}
           />
         )}
       />
-      <FormField
-        control={form.control}
-        name="email"
-        testID="request-email"
-        label="Send to (optional)"
-        autoCapitalize="none"
-        keyboardType="email-address"
-        placeholder="Leave empty to use the address on file"
-      />
+      <View style={{ gap: space.xs }}>
+        {context.emailOnFile ? (
+          <Txt variant="small" testID="request-email-on-file">
+            {`Address on file: ${context.emailOnFile}. The letter goes there unless you enter another address below.`}
+          </Txt>
+        ) : (
+          <Txt variant="small" tone="warn" testID="request-email-none">
+            No e-mail address is on file for this taxpayer. Enter the address the request should go to.
+          </Txt>
+        )}
+        <FormField
+          control={form.control}
+          name="email"
+          testID="request-email"
+          label={context.emailOnFile ? 'Send to another address (optional)' : 'Send to'}
+          autoCapitalize="none"
+          keyboardType="email-address"
+          placeholder={context.emailOnFile ? `Leave empty to use ${context.emailOnFile}` : 'name@example.org'}
+        />
+      </View>
+      {preview.error && (
+        <Txt tone="alert" accessibilityRole="alert">
+          {preview.error.message}
+        </Txt>
+      )}
+      {ready && preview.data && <LetterPreviewBox preview={preview.data} testID="request-preview" />}
       {error && (
         <Txt tone="alert" accessibilityRole="alert">
           {error.message}
         </Txt>
       )}
-      <Button testID="request-send" label="Send the request" onPress={submit} busy={busy} style={{ alignSelf: 'flex-start' }} />
+      <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm }}>
+        <Button
+          testID={ready ? 'request-send' : 'request-preview-button'}
+          label={ready ? 'Send the request' : 'Preview the letter'}
+          onPress={submit}
+          busy={busy || preview.isPending}
+        />
+        {ready && <Button kind="quiet" label="Change it" testID="request-edit" onPress={() => setPreviewed(null)} />}
+      </View>
     </View>
   );
 }
@@ -265,6 +330,7 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
   const sendRequest = useSendDocumentRequest(caseId);
   const refer = useSendReferral(caseId);
   const [open, setOpen] = useState<'request' | 'referral' | null>(null);
+  const context = useLetterContext(caseId, open === 'request');
   const [notice, setNotice] = useState<string | null>(null);
   const mayRequest = canAct && state === 'in_review';
   const mayRefer = canAct && (state === 'in_review' || state === 'awaiting_reply');
@@ -309,8 +375,12 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
           )}
         </View>
       )}
-      {open === 'request' && mayRequest && (
+      {open === 'request' && mayRequest && context.isPending && <Txt tone="soft">Loading the address on file…</Txt>}
+      {open === 'request' && mayRequest && context.error && <Txt tone="alert">{context.error.message}</Txt>}
+      {open === 'request' && mayRequest && context.data && (
         <DocumentRequestForm
+          caseId={caseId}
+          context={context.data}
           onSubmit={(v) => sendRequest.mutate(v, { onSuccess: done('The request was sent and is kept with the case.') })}
           busy={sendRequest.isPending}
           error={sendRequest.error}

@@ -160,17 +160,22 @@ function RequestForm({
     // Adding never drops what was chosen before; the same file twice is kept once.
     setFiles((prev) => [...prev, ...more.filter((m) => !prev.some((p) => p.name === m.name && p.size === m.size))]);
   };
-  const send = () => {
+  const [complete, setComplete] = useState(false);
+  const sentBefore = request.received.length > 0;
+  const send = (finishOnly = false) => {
     setProgress(0);
-    upload.mutate(files, {
-      onSuccess: onDone,
-      onError: (e) => {
-        if (e instanceof ApiError && e.status === 410) {
-          const state = (e.body as { state?: string } | null)?.state;
-          onClosed(state === 'answered' ? 'answered' : 'expired');
-        }
+    upload.mutate(
+      { files: finishOnly ? [] : files, complete: finishOnly || complete },
+      {
+        onSuccess: onDone,
+        onError: (e) => {
+          if (e instanceof ApiError && e.status === 410) {
+            const state = (e.body as { state?: string } | null)?.state;
+            onClosed(state === 'answered' ? 'answered' : 'expired');
+          }
+        },
       },
-    });
+    );
   };
 
   return (
@@ -206,12 +211,31 @@ function RequestForm({
         </Txt>
       </Card>
 
+      {sentBefore && (
+        <Card style={{ gap: space.sm }} testID="reply-received">
+          <Txt variant="title" bold>
+            Already received
+          </Txt>
+          {request.received.map((r) => (
+            <View key={r.part} style={{ gap: 2 }}>
+              <Txt variant="small" bold>{`Send ${r.part}, ${receivedWhen(r.at)}`}</Txt>
+              {r.files.map((f, i) => (
+                <Txt key={i} variant="small" figures>{`• ${f.fileName} (${size(f.size)})`}</Txt>
+              ))}
+            </View>
+          ))}
+          <Txt variant="small" tone="soft">
+            {`You can send more until the end of ${longDate(request.dueDate)}. When you have sent everything, tell us below, so we can start looking at your records.`}
+          </Txt>
+        </Card>
+      )}
+
       <Card style={{ gap: space.md }} testID="reply-upload">
         <Txt variant="title" bold>
-          Send your files
+          {sentBefore ? 'Send more files' : 'Send your files'}
         </Txt>
         <Txt variant="small" tone="soft">
-          {`PDF, JPEG or PNG; up to ${REPLY_MAX_FILES} files of ${REPLY_MAX_FILE_BYTES / MB} MB each. You can send once, so please choose all the files before sending. If a record does not exist, a short note (as a PDF or a photo) explaining why is welcome.`}
+          {`PDF, JPEG or PNG; up to ${REPLY_MAX_FILES} files of ${REPLY_MAX_FILE_BYTES / MB} MB at a time. You can send everything at once or in parts until the due date; we confirm each send by e-mail. If a record does not exist, a short note (as a PDF or a photo) explaining why is welcome.`}
         </Txt>
         <FilePicker onPick={pick} disabled={upload.isPending} />
         {files.length > 0 && (
@@ -263,14 +287,47 @@ function RequestForm({
             {upload.error.message}
           </Txt>
         )}
-        <Button
-          testID="reply-send"
-          label={files.length ? `Send ${files.length} file${files.length === 1 ? '' : 's'}` : 'Send files'}
-          disabled={files.length === 0 || problems.length > 0}
-          busy={upload.isPending}
-          onPress={send}
-          style={{ alignSelf: 'flex-start' }}
-        />
+        <Pressable
+          role="checkbox"
+          aria-checked={complete}
+          accessibilityLabel="This is everything I have to send"
+          onPress={() => setComplete(!complete)}
+          disabled={upload.isPending}
+          testID="reply-complete"
+          style={{ flexDirection: 'row', alignItems: 'center', gap: space.sm, paddingVertical: space.xs }}
+        >
+          <View
+            style={{
+              width: 22,
+              height: 22,
+              borderRadius: radius.sm,
+              borderWidth: 2,
+              borderColor: colours.control,
+              backgroundColor: complete ? colours.ink : colours.white,
+              alignItems: 'center',
+              justifyContent: 'center',
+            }}
+          >
+            {complete && (
+              <Txt tone="white" bold variant="small">
+                ✓
+              </Txt>
+            )}
+          </View>
+          <Txt style={{ flex: 1 }}>This is everything I have to send (the link then closes)</Txt>
+        </Pressable>
+        <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm }}>
+          <Button
+            testID="reply-send"
+            label={files.length ? `Send ${files.length} file${files.length === 1 ? '' : 's'}` : 'Send files'}
+            disabled={files.length === 0 || problems.length > 0}
+            busy={upload.isPending}
+            onPress={() => send()}
+          />
+          {sentBefore && files.length === 0 && (
+            <Button kind="secondary" testID="reply-finish" label="I have sent everything" busy={upload.isPending} onPress={() => send(true)} />
+          )}
+        </View>
       </Card>
       <Contact lead="Questions, or need more time? Contact us before the due date." />
     </>
@@ -286,21 +343,38 @@ export function ReplyScreen() {
   const [closedNow, setClosedNow] = useState<'answered' | 'expired' | null>(null);
 
   if (receipt) {
+    const more = () => {
+      setReceipt(null);
+      void link.refetch();
+    };
     return (
       <Frame>
-        <Notice testID="reply-thanks" title="Thank you, we have your files" tone="ok">
-          <Txt>{`We received ${receipt.received.length} file${receipt.received.length === 1 ? '' : 's'} on ${receivedWhen(receipt.receivedAt)}:`}</Txt>
+        <Notice testID="reply-thanks" title={receipt.complete ? 'Thank you, we have everything' : 'Thank you, we have these files'} tone="ok">
+          {receipt.received.length > 0 ? (
+            <Txt>{`We received ${receipt.received.length} file${receipt.received.length === 1 ? '' : 's'} on ${receivedWhen(receipt.receivedAt)}:`}</Txt>
+          ) : (
+            <Txt>{`We noted on ${receivedWhen(receipt.receivedAt)} that you have sent everything.`}</Txt>
+          )}
           <View style={{ gap: 2 }}>
             {receipt.received.map((f, i) => (
               <Txt key={i} figures variant="small">{`• ${f.fileName} (${size(f.size)})`}</Txt>
             ))}
           </View>
           <Txt>
-            There is nothing more you need to do. The person looking at your return will contact you if anything else is needed. This link has now been used and
-            will not accept more files.
+            {receipt.acknowledgement === 'mailed'
+              ? 'We have sent you an e-mail confirming this send.'
+              : 'We could not e-mail you a confirmation just now; this page is your receipt, and your files are safely with us.'}
           </Txt>
+          <Txt>
+            {receipt.complete
+              ? 'There is nothing more you need to do. The person looking at your return will contact you if anything else is needed. This link is now closed.'
+              : `You can send more files through this link until the end of ${longDate(receipt.dueDate)}. When you have sent everything, please tell us on this page.`}
+          </Txt>
+          {!receipt.complete && (
+            <Button testID="reply-more" label="Send more, or tell us that is everything" onPress={more} style={{ alignSelf: 'flex-start' }} />
+          )}
         </Notice>
-        <Contact lead="If you have more to send, or a question:" />
+        <Contact lead="If you have a question:" />
       </Frame>
     );
   }
@@ -309,8 +383,8 @@ export function ReplyScreen() {
   if (state === 'answered') {
     return (
       <Frame>
-        <Notice testID="reply-used" title="This link has been used" tone="warn">
-          <Txt>We have already received a reply through this link, so it no longer accepts files. Thank you for sending it.</Txt>
+        <Notice testID="reply-used" title="This link is closed" tone="warn">
+          <Txt>We have received your reply through this link, and it no longer accepts files. Thank you for sending it.</Txt>
           <Txt>If you have more to send, please contact us and we will tell you how.</Txt>
         </Notice>
         <Contact lead="Contact us:" />

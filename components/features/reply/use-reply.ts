@@ -31,12 +31,15 @@ export function useReplyLink(token: string) {
 }
 
 /**
- * Sends the files as multipart `files` with XMLHttpRequest, because fetch cannot report
- * upload progress; `onProgress` gets the share sent, 0–1.
+ * Sends one part of the reply: the files as multipart `files` and `complete` ("true" when the
+ * taxpayer says that is everything), with XMLHttpRequest, because fetch cannot report upload
+ * progress; `onProgress` gets the share sent, 0–1.
  */
-export function uploadReply(token: string, files: readonly File[], onProgress: (share: number) => void): Promise<ReplyReceipt> {
+export function uploadReply(token: string, files: readonly File[], complete: boolean, onProgress: (share: number) => void): Promise<ReplyReceipt> {
   return new Promise((resolve, reject) => {
     const form = new FormData();
+    // First, so the server knows before the files arrive (it reads the fields in order).
+    form.append('complete', complete ? 'true' : 'false');
     for (const f of files) form.append('files', f, f.name);
     const xhr = new XMLHttpRequest();
     xhr.open('POST', `${API_BASE}/api/replies/${encodeURIComponent(token)}`);
@@ -70,7 +73,7 @@ export function uploadReply(token: string, files: readonly File[], onProgress: (
   });
 }
 
-/** The upload as a mutation, with progress kept by the caller. */
+/** One send as a mutation, with progress kept by the caller. */
 export function useUploadReply(token: string, onProgress: (share: number) => void) {
-  return useMutation({ mutationFn: (files: readonly File[]) => uploadReply(token, files, onProgress) });
+  return useMutation({ mutationFn: (v: { files: readonly File[]; complete: boolean }) => uploadReply(token, v.files, v.complete, onProgress) });
 }
