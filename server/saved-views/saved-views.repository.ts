@@ -7,6 +7,14 @@ import type { SavedViewRecord } from './saved-view.entity';
 type Row = Pick<SavedViewRecord, 'id' | 'name' | 'filters' | 'createdAt'>;
 const COLUMNS = `id, name, filters, created_at AS "createdAt"`;
 
+/**
+ * Locks the person's account row until the caller's transaction ends, so two saves by one
+ * person run one after the other and cannot both pass the count. Call inside a transaction.
+ */
+export async function lockViewsOf(db: Db, userId: string): Promise<void> {
+  await db.query(`SELECT id FROM app_user WHERE id = $1 FOR UPDATE`, [userId]);
+}
+
 /** A person's views, oldest first. */
 export async function findViews(db: Db, userId: string): Promise<Row[]> {
   return db.query(`SELECT ${COLUMNS} FROM saved_view WHERE user_id = $1 ORDER BY created_at, id`, [userId]);

@@ -9,7 +9,7 @@ import { MAX_SAVED_VIEWS, type SavedView, type SavedViewCreate } from '../../sha
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
-import { countViews, deleteView, findViews, insertView } from './saved-views.repository';
+import { countViews, deleteView, findViews, insertView, lockViewsOf } from './saved-views.repository';
 
 const toDto = (r: { id: string; name: string; filters: SavedView['filters']; createdAt: Date }): SavedView => ({
   id: r.id,
@@ -31,7 +31,7 @@ export async function saveView(ds: DataSource, audit: StaffAudit, input: SavedVi
   const me = audit.actor.id;
   return ds.transaction(async (m) => {
     // Serialise one person's saves, so two at once cannot both pass the count.
-    await m.query(`SELECT id FROM app_user WHERE id = $1 FOR UPDATE`, [me]);
+    await lockViewsOf(m, me);
     if ((await countViews(m, me)) >= MAX_SAVED_VIEWS) {
       throw new HttpError(
         422,
