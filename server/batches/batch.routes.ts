@@ -12,7 +12,7 @@
  */
 import type { RequestHandler } from 'express';
 import multer from 'multer';
-import { BatchLabelSchema, BatchListQuerySchema, sizeText, type BatchRejected, type BatchTable } from '../../shared/returns/batch-rows';
+import { checkBatchLabel, BatchListQuerySchema, sizeText, type BatchRejected, type BatchTable } from '../../shared/returns/batch-rows';
 import { recordAccess } from '../access-log/access-log.service';
 import { staffAuditOf } from '../access-log/audit-context';
 import type { AppDeps } from '../app-deps';
@@ -92,9 +92,9 @@ export function batchRoutes(deps: Pick<AppDeps, 'config' | 'dataSource' | 'boss'
         const f = files?.[p]?.[0];
         if (f) parts[p] = { originalName: f.originalname || `${p}${p === 'file' ? '.xlsx' : '.csv'}`, path: f.path, size: f.size };
       }
-      const labelIn = BatchLabelSchema.safeParse(typeof req.body?.label === 'string' ? req.body.label : '');
-      if (!labelIn.success) {
-        const message = `The batch label ${labelIn.error.issues[0].message}`.replace('The batch label Keep', 'Keep');
+      const labelIn = checkBatchLabel(typeof req.body?.label === 'string' ? req.body.label : '');
+      if ('problem' in labelIn) {
+        const message = labelIn.problem;
         const body: BatchRejected = { error: message, batchId: null, errorCount: 1, errors: [{ file: '', row: null, column: 'label', message }] };
         res.status(422).json(body);
         return;
@@ -105,7 +105,7 @@ export function batchRoutes(deps: Pick<AppDeps, 'config' | 'dataSource' | 'boss'
         res.status(422).json(body);
         return;
       }
-      const outcome = await ingestUpload(intake, made.upload, req.user!, labelIn.data || null);
+      const outcome = await ingestUpload(intake, made.upload, req.user!, labelIn.label || null);
       const batchId = outcome.kind === 'accepted' ? outcome.batch.id : outcome.body.batchId;
       if (outcome.kind !== 'duplicate' && batchId) {
         await recordAccess(deps.dataSource, staffAuditOf(req), {

@@ -518,6 +518,14 @@ export const BatchLabelSchema = z
   .max(BATCH_LABEL_MAX, `Keep the label to ${BATCH_LABEL_MAX} characters, e.g. "Post room, March returns"`)
   .check(noControlChars());
 
+/** The label as it will be stored (trimmed; "" for none), or what is wrong with it in a sentence. */
+export function checkBatchLabel(raw: string): { label: string } | { problem: string } {
+  const r = BatchLabelSchema.safeParse(raw);
+  if (r.success) return { label: r.data };
+  const m = r.error.issues[0].message;
+  return { problem: /^[A-Z]/.test(m) ? m : `The label ${m}` };
+}
+
 /**
  * A batch's name when none was given at upload: the office's batch number, the office day it
  * came in (YYYY-MM-DD) and its source (a workbook or CSV files), e.g.

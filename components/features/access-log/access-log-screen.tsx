@@ -1,53 +1,74 @@
 import { useState } from 'react';
-import { View } from 'react-native';
-import type { AccessLogEntry } from '../../../shared/access-log';
+import { Linking, Platform, View } from 'react-native';
+import { API_BASE, ApiError } from '../../../hooks/api-client';
+import { ACCESS_ACTION_WORDS, ACCESS_ACTIONS, AccessLogExportQuerySchema, type AccessLogEntry, type AccessLogExportQuery } from '../../../shared/access-log';
 import { colours, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
+import { ChoiceRow } from '../../ui/choice-row';
 import { Field } from '../../ui/field';
 import { useIsWide } from '../../ui/layout';
 import { TableHeader } from '../../ui/table-header-row';
 import { Txt } from '../../ui/text';
 import { useAccessLog } from './use-access-log';
 
-const ACTION_WORDS: Record<AccessLogEntry['action'], string> = {
-  view: 'viewed',
-  change: 'changed',
-  export: 'exported',
-  'sign-in': 'signed in',
-  'sign-out': 'signed out',
-  'sign-in-refused': 'sign-in refused',
-  'reveal-tin': 'revealed full TIN',
-};
-
+/** "2026-12-02 09:14:05" in the viewer's time zone. */
 function when(iso: string) {
   const d = new Date(iso);
-  return `${d.toISOString().slice(0, 10)} ${d.toTimeString().slice(0, 8)}`;
+  const p = (n: number) => String(n).padStart(2, '0');
+  return `${d.getFullYear()}-${p(d.getMonth() + 1)}-${p(d.getDate())} ${p(d.getHours())}:${p(d.getMinutes())}:${p(d.getSeconds())}`;
+}
+
+/** The time of a row: one instant, or from–to when the action spanned several reads. */
+function span(e: AccessLogEntry) {
+  if (e.firstAt === e.at) return when(e.at);
+  const a = when(e.firstAt);
+  const b = when(e.at);
+  return a.slice(0, 10) === b.slice(0, 10) ? `${a}–${b.slice(11)}` : `${a} – ${b}`;
 }
 
 /** The wide table's columns: heading and width (0: the rest of the row), in cell order. */
 const COLS = [
-  ['When', 150],
-  ['Who', 130],
-  ['What', 130],
-  ['Taxpayer', 120],
-  ['Where', 0],
+  ['When', 190],
+  ['Who', 140],
+  ['What was done', 0],
+  ['Return', 150],
+  ['Taxpayer', 110],
 ] as const;
 
 function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
   const at = (
     <Txt variant="small" figures>
-      {when(e.at)}
+      {span(e)}
     </Txt>
   );
   const who = (
-    <Txt variant="small" bold>
-      {e.username ?? '(not signed in)'}
-    </Txt>
+    <View>
+      <Txt variant="small" bold>
+        {e.username ?? (e.action === 'sign-in-refused' ? '(not signed in)' : '(taxpayer or system)')}
+      </Txt>
+      {e.role && (
+        <Txt variant="caption" tone="soft">
+          {e.role}
+        </Txt>
+      )}
+    </View>
   );
   const what = (
-    <Txt variant="small" tone={e.action === 'sign-in-refused' ? 'alert' : 'ink'}>
-      {ACTION_WORDS[e.action]}
+    <View>
+      <Txt variant="small" tone={e.action === 'sign-in-refused' ? 'alert' : 'ink'} testID="log-summary">
+        {e.summary}
+      </Txt>
+      {e.lines > 1 && (
+        <Txt variant="caption" tone="soft">
+          {e.lines} log lines
+        </Txt>
+      )}
+    </View>
+  );
+  const ref = (
+    <Txt variant="small" figures>
+      {e.returnRef ?? '—'}
     </Txt>
   );
   const taxpayer = (
@@ -55,28 +76,25 @@ function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
       {e.taxpayerLabel ?? '—'}
     </Txt>
   );
-  const where = (
-    <Txt variant="small" tone="soft">
-      {[e.route, e.detail].filter(Boolean).join(' · ')}
-    </Txt>
-  );
   if (!wide) {
     return (
-      <Card style={{ gap: 2, padding: space.md }}>
-        <View style={{ flexDirection: 'row', justifyContent: 'space-between' }}>
+      <Card style={{ gap: 4, padding: space.md }} testID="log-row">
+        <View style={{ flexDirection: 'row', justifyContent: 'space-between', gap: space.sm }}>
           {who}
           {at}
         </View>
-        <View style={{ flexDirection: 'row', gap: space.sm }}>
-          {what}
-          {taxpayer}
-        </View>
-        {where}
+        {what}
+        {(e.returnRef || e.taxpayerLabel) && (
+          <Txt variant="caption" figures tone="soft">
+            {[e.returnRef, e.taxpayerLabel].filter(Boolean).join(' · ')}
+          </Txt>
+        )}
       </Card>
     );
   }
   return (
     <View
+      testID="log-row"
       style={{
         flexDirection: 'row',
         gap: space.md,
@@ -86,7 +104,7 @@ function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
         borderBottomColor: colours.line,
       }}
     >
-      {[at, who, what, taxpayer, where].map((c, i) => (
+      {[at, who, what, ref, taxpayer].map((c, i) => (
         <View key={i} style={COLS[i][1] ? { width: COLS[i][1] } : { flex: 1 }}>
           {c}
         </View>
@@ -95,56 +113,142 @@ function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
   );
 }
 
-/** Administrator's view of who saw or changed what. */
+type Draft = { user: string; taxpayer: string; from: string; to: string; action: string };
+const EMPTY: Draft = { user: '', taxpayer: '', from: '', to: '', action: 'any' };
+
+/** The draft as the API's query (blank fields left out), or every field's problem. */
+function checkDraft(d: Draft): { query: AccessLogExportQuery } | { issues: Record<string, string> } {
+  const raw = Object.fromEntries(Object.entries(d).filter(([k, v]) => v.trim() !== '' && !(k === 'action' && v === 'any')));
+  const r = AccessLogExportQuerySchema.safeParse(raw);
+  if (r.success) return { query: r.data };
+  const issues: Record<string, string> = {};
+  for (const i of r.error.issues) issues[String(i.path[0])] ??= i.message;
+  return { issues };
+}
+
+/** The server's field errors (422), by field. */
+function serverIssues(error: unknown): Record<string, string> {
+  if (!(error instanceof ApiError) || error.status !== 422) return {};
+  const body = error.body as { issues?: { path: string; message: string }[] } | null;
+  return Object.fromEntries((body?.issues ?? []).map((i) => [i.path, i.message]));
+}
+
+function download(url: string) {
+  // The server sends the workbook as an attachment, so the page stays where it is.
+  if (Platform.OS === 'web') window.location.assign(API_BASE + url);
+  else void Linking.openURL(API_BASE + url);
+}
+
+/** The administrator's view of who saw or changed what: one row per thing a person did. */
 export function AccessLogScreen() {
   const wide = useIsWide();
-  const [draft, setDraft] = useState({ user: '', taxpayer: '', from: '', to: '' });
-  const [filters, setFilters] = useState(draft);
+  const [draft, setDraft] = useState<Draft>(EMPTY);
+  const [filters, setFilters] = useState<AccessLogExportQuery>({});
+  const [shownIssues, setShownIssues] = useState<Record<string, string>>({});
   const [page, setPage] = useState(1);
   const log = useAccessLog({ ...filters, page, pageSize: 50 });
   const pages = log.data ? Math.max(1, Math.ceil(log.data.total / log.data.pageSize)) : 1;
+  const fromServer = serverIssues(log.error);
+  const issues = { ...fromServer, ...shownIssues };
+  const apply = (next: Draft) => {
+    const checked = checkDraft(next);
+    if ('issues' in checked) {
+      setShownIssues(checked.issues);
+      return;
+    }
+    setShownIssues({});
+    setPage(1);
+    setFilters(checked.query);
+  };
+  const setField = (k: keyof Draft, v: string) => {
+    const next = { ...draft, [k]: v };
+    setDraft(next);
+    // An error shown goes away as soon as the field is right.
+    if (shownIssues[k]) {
+      const checked = checkDraft(next);
+      setShownIssues('issues' in checked ? checked.issues : {});
+    }
+  };
+  const exportQuery = new URLSearchParams(Object.entries(filters).filter(([, v]) => v) as [string, string][]).toString();
   return (
     <View style={{ gap: space.lg }}>
       <View>
         <Txt variant="display" bold accessibilityRole="header">
           Access log
         </Txt>
-        <Txt tone="soft">Every view and change of taxpayer data, every sign-in. Rows cannot be edited or removed.</Txt>
+        <Txt tone="soft">
+          Every view and change of taxpayer data and every sign-in, one row per thing a person did: the reads behind one screen are one row. Rows cannot be
+          edited or removed.
+        </Txt>
       </View>
-      <Card style={{ flexDirection: wide ? 'row' : 'column', gap: space.md, alignItems: wide ? 'flex-end' : 'stretch' }}>
-        {(
-          [
-            ['user', 'User', 'user name'],
-            ['taxpayer', 'Taxpayer', 'TIN or last 3 digits'],
-            ['from', 'From', 'YYYY-MM-DD'],
-            ['to', 'To', 'YYYY-MM-DD'],
-          ] as const
-        ).map(([k, label, ph]) => (
-          <View key={k} style={{ flex: wide ? 1 : undefined }}>
-            <Field
-              testID={`log-filter-${k}`}
-              label={label}
-              placeholder={ph}
-              autoCapitalize="none"
-              value={draft[k]}
-              onChangeText={(v) => setDraft({ ...draft, [k]: v })}
-            />
-          </View>
-        ))}
-        <Button
-          testID="log-filter-apply"
-          label="Filter"
-          onPress={() => {
-            setPage(1);
-            setFilters(draft);
+      <Card style={{ gap: space.md }}>
+        <View style={{ flexDirection: wide ? 'row' : 'column', gap: space.md, alignItems: wide ? 'flex-start' : 'stretch' }}>
+          {(
+            [
+              ['user', 'Person', 'user name'],
+              ['taxpayer', 'Taxpayer', 'last 3 digits of the TIN'],
+              ['from', 'From', 'YYYY-MM-DD'],
+              ['to', 'To', 'YYYY-MM-DD'],
+            ] as const
+          ).map(([k, label, ph]) => (
+            <View key={k} style={{ flex: wide ? 1 : undefined }}>
+              <Field
+                testID={`log-filter-${k}`}
+                label={label}
+                placeholder={ph}
+                autoCapitalize="none"
+                value={draft[k]}
+                error={issues[k]}
+                onChangeText={(v) => setField(k, v)}
+                onSubmitEditing={() => apply(draft)}
+              />
+            </View>
+          ))}
+        </View>
+        <ChoiceRow
+          testID="log-filter-action"
+          label="Action"
+          options={[{ value: 'any', label: 'Any' }, ...ACCESS_ACTIONS.map((a) => ({ value: a, label: ACCESS_ACTION_WORDS[a] }))]}
+          value={draft.action}
+          onChange={(v) => {
+            const next = { ...draft, action: v };
+            setDraft(next);
+            apply(next);
           }}
         />
+        {issues.action && (
+          <Txt variant="small" tone="alert">
+            {issues.action}
+          </Txt>
+        )}
+        <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm }}>
+          <Button testID="log-filter-apply" label="Filter" onPress={() => apply(draft)} />
+          <Button
+            testID="log-filter-clear"
+            kind="secondary"
+            label="Clear"
+            onPress={() => {
+              setDraft(EMPTY);
+              apply(EMPTY);
+            }}
+          />
+          <Button
+            testID="log-export"
+            kind="secondary"
+            label="Export these rows (.xlsx)"
+            disabled={Object.keys(issues).length > 0}
+            onPress={() => download(`/api/access-log/export.xlsx${exportQuery ? `?${exportQuery}` : ''}`)}
+          />
+        </View>
+        <Txt variant="caption" tone="soft">
+          The export holds the rows the filters select, newest first, and is itself recorded in this log.
+        </Txt>
       </Card>
-      {log.error && <Txt tone="alert">{log.error.message}</Txt>}
+      {log.error && Object.keys(fromServer).length === 0 && <Txt tone="alert">{log.error.message}</Txt>}
       {log.data && (
         <>
           <Txt variant="small" tone="soft" testID="log-total">
-            {log.data.total} entr{log.data.total === 1 ? 'y' : 'ies'}
+            {log.data.total.toLocaleString('en-GB')} row{log.data.total === 1 ? '' : 's'}
           </Txt>
           <View
             style={{

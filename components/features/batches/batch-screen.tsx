@@ -1,8 +1,10 @@
 import { Link, useLocalSearchParams } from 'expo-router';
 import { useMemo, useState } from 'react';
 import { Linking, Platform, View } from 'react-native';
-import type { BatchDetail, BatchIssue } from '../../../shared/returns/batch-rows';
+import { INTAKE_SLOW_AFTER_SECONDS, INTAKE_STALLED_AFTER_SECONDS, type BatchDetail, type BatchIssue } from '../../../shared/returns/batch-rows';
+import { can } from '../../../shared/permissions';
 import { API_BASE } from '../../../hooks/api-client';
+import { useSession } from '../../../hooks/use-session';
 import { colours, radius, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
@@ -11,8 +13,10 @@ import { Field } from '../../ui/field';
 import { HeaderLabel, TableHeader } from '../../ui/table-header-row';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
+import { ConfirmDialog } from '../../ui/confirm-dialog';
 import { num, ScoringProgress, StateChip, when } from './batch-parts';
-import { reportUrl, useBatch } from './use-batches';
+import { ScoreBandsChart } from './score-chart';
+import { reportUrl, useBatch, useRetryBatch } from './use-batches';
 
 function download(url: string) {
   // The server sends the workbook as an attachment, so the page stays where it is.
@@ -155,6 +159,90 @@ function Report({ batch, wide }: { batch: BatchDetail; wide: boolean }) {
   );
 }
 
+/** "3 min 20 s" */
+function duration(seconds: number): string {
+  if (seconds < 60) return `${seconds} s`;
+  const m = Math.floor(seconds / 60);
+  if (m < 60) return `${m} min ${seconds % 60} s`;
+  return `${Math.floor(m / 60)} h ${m % 60} min`;
+}
+
+/**
+ * A batch being checked: while it is quick, one line; once it runs longer than expected, how
+ * long and how many rows so far; once stalled, says so and offers to end it so the file can be
+ * uploaded again (the server keeps no copy of the files to run it again by itself).
+ */
+function Checking({ batch }: { batch: BatchDetail }) {
+  const retry = useRetryBatch(batch.id);
+  const [asking, setAsking] = useState(false);
+  if (batch.stalled) {
+    return (
+      <Card style={{ backgroundColor: colours.alertSoft, borderColor: colours.alert, gap: space.sm }} testID="batch-stalled">
+        <Txt bold tone="alert">
+          This check has stalled: no row has been read for over {INTAKE_STALLED_AFTER_SECONDS / 60} minutes ({num(batch.rowsChecked)} rows checked in{' '}
+          {duration(batch.elapsedSeconds)}). It will not finish by itself.
+        </Txt>
+        <Txt variant="small">Nothing of this batch has been stored. End this attempt, then upload the same file again.</Txt>
+        <View style={{ flexDirection: 'row' }}>
+          <Button testID="batch-retry" label="End it and upload again" onPress={() => setAsking(true)} />
+        </View>
+        {asking && (
+          <ConfirmDialog
+            title="End this stalled check?"
+            consequence="The batch is marked as not finished and nothing of it is stored. Its file is freed, so you can upload the same file again at once."
+            confirmLabel="End the check"
+            kind="danger"
+            busy={retry.isPending}
+            error={retry.error?.message ?? null}
+            onCancel={() => setAsking(false)}
+            onConfirm={() => retry.mutate(undefined, { onSuccess: () => setAsking(false) })}
+          />
+        )}
+      </Card>
+    );
+  }
+  const slow = batch.elapsedSeconds >= INTAKE_SLOW_AFTER_SECONDS;
+  return (
+    <Card style={{ gap: space.xs }} testID="batch-checking">
+      <Txt bold>Every row is being checked…</Txt>
+      <Txt variant="small" figures tone="soft" testID="batch-checking-progress">
+        {slow
+          ? `${num(batch.rowsChecked)} rows checked so far · ${duration(batch.elapsedSeconds)} since the upload. Large batches take a few minutes.`
+          : `${num(batch.rowsChecked)} rows checked so far.`}
+      </Txt>
+    </Card>
+  );
+}
+
+/** What scoring made of the batch: cases opened, the spread of scores, and a way to the cases. */
+function Outcome({ batch }: { batch: BatchDetail }) {
+  const session = useSession();
+  const mayOpenCases = session.data ? can(session.data.user.role, 'readCases') : false;
+  const o = batch.outcome;
+  if (!o) return null;
+  return (
+    <Card style={{ gap: space.md }} testID="batch-outcome">
+      <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.xl }}>
+        <Fact label="Cases opened" value={num(o.casesOpened)} testID="batch-cases-opened" />
+        <Fact label="Median score" value={o.median === null ? '—' : o.median.toFixed(1)} />
+        {o.failed > 0 && <Fact label="Scores not computed" value={num(o.failed)} />}
+      </View>
+      {mayOpenCases ? (
+        <Link href={{ pathname: '/queue', params: { batch: batch.id, state: 'all' } }} testID="batch-cases-link">
+          <Txt bold tone="brass">
+            Open its {num(o.casesOpened)} case{o.casesOpened === 1 ? '' : 's'} in the queue →
+          </Txt>
+        </Link>
+      ) : (
+        <Txt variant="small" tone="soft" testID="batch-cases-note">
+          Examiners and supervisors work these cases in the queue.
+        </Txt>
+      )}
+      <ScoreBandsChart outcome={o} testID="batch-score-chart" />
+    </Card>
+  );
+}
+
 /** One batch: its validation report when rejected, or its counts and scoring progress. */
 export function BatchScreen() {
   const { id } = useLocalSearchParams<{ id: string }>();
@@ -173,15 +261,18 @@ export function BatchScreen() {
       {b && (
         <>
           <View style={{ gap: space.xs }}>
-            <Txt variant="display" bold accessibilityRole="header" numberOfLines={2}>
-              {b.fileNames.join(', ')}
+            <Txt variant="display" bold accessibilityRole="header" numberOfLines={2} testID="batch-label">
+              {b.label}
             </Txt>
             <View style={{ flexDirection: 'row', gap: space.sm, alignItems: 'center', flexWrap: 'wrap' }}>
               <StateChip state={b.state} testID="batch-state" />
               <Txt variant="small" tone="soft">
-                {b.format.toUpperCase()} · uploaded {when(b.createdAt)} by {b.loadedBy?.displayName ?? '—'}
+                Batch {b.batchNo} · uploaded {when(b.createdAt)} by {b.loadedBy?.displayName ?? '—'}
               </Txt>
             </View>
+            <Txt variant="caption" tone="soft" numberOfLines={2}>
+              Files: {b.fileNames.join(', ')}
+            </Txt>
           </View>
           {b.state === 'rejected' ? (
             <Report batch={b} wide={wide} />
@@ -199,7 +290,13 @@ export function BatchScreen() {
                   <ScoringProgress batch={b} testID="batch-scoring" />
                 </Card>
               )}
-              {b.state === 'validating' && <Txt tone="soft">Every row is being checked…</Txt>}
+              {(b.state === 'validating' || b.state === 'received') && <Checking batch={b} />}
+              {b.state === 'scored' && <Outcome batch={b} />}
+              {b.state !== 'validating' && b.state !== 'received' && (
+                <View style={{ flexDirection: 'row' }}>
+                  <Button testID="batch-report-download" kind="secondary" label="Download the batch report (.xlsx)" onPress={() => download(reportUrl(b.id))} />
+                </View>
+              )}
               {b.notices.length > 0 && (
                 <View style={{ gap: space.sm }}>
                   <Txt variant="lead" bold>

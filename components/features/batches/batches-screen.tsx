@@ -3,10 +3,11 @@ import { useState } from 'react';
 import { Pressable, View } from 'react-native';
 import { useSession } from '../../../hooks/use-session';
 import { can } from '../../../shared/permissions';
-import { sizeText, type BatchSummary } from '../../../shared/returns/batch-rows';
+import { checkBatchLabel, sizeText, type BatchSummary } from '../../../shared/returns/batch-rows';
 import { colours, radius, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
+import { Field } from '../../ui/field';
 import { useIsWide } from '../../ui/layout';
 import { ProgressBar } from '../../ui/progress-bar';
 import { TableHeader } from '../../ui/table-header-row';
@@ -82,9 +83,13 @@ function UploadResult({ outcome }: { outcome: UploadOutcome }) {
 
 function UploadCard() {
   const [files, setFiles] = useState<PickedFile[]>([]);
+  const [label, setLabel] = useState('');
   const upload = useUploadBatch();
   const sorted = partsFromFiles(files);
   const sending = upload.isPending;
+  // Checked as typed with the server's own rule, so the error shows on the field before Upload.
+  const labelCheck = checkBatchLabel(label);
+  const labelError = 'problem' in labelCheck ? labelCheck.problem : undefined;
   return (
     <Card style={{ gap: space.md }}>
       <View style={{ gap: 2 }}>
@@ -95,6 +100,22 @@ function UploadCard() {
           One .xlsx workbook with the sheets returns and line_items (and statements), or the CSV files returns.csv and line_items.csv (and statements.csv).
           Every row is checked; a batch with any error is refused whole and nothing of it is stored.
         </Txt>
+      </View>
+      <View style={{ maxWidth: 520 }}>
+        <Field
+          testID="batch-label"
+          label="Label (optional)"
+          hint="What the office calls this batch, e.g. “Post room, March returns”. Left blank, it is named by its number, date and source, e.g. “Batch 12 · 2 Dec 2026 · workbook”."
+          placeholder="e.g. Post room, March returns"
+          value={label}
+          maxLength={120}
+          onChangeText={(t) => {
+            setLabel(t);
+            upload.reset();
+          }}
+          error={labelError}
+          editable={!sending}
+        />
       </View>
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, alignItems: 'center' }}>
         <FilePicker
@@ -109,8 +130,8 @@ function UploadCard() {
           testID="batch-upload"
           label={sending ? 'Uploading…' : 'Upload and check'}
           busy={sending}
-          disabled={!('parts' in sorted)}
-          onPress={() => 'parts' in sorted && upload.mutate(sorted.parts)}
+          disabled={!('parts' in sorted) || !!labelError}
+          onPress={() => 'parts' in sorted && !labelError && upload.mutate({ parts: sorted.parts, label })}
         />
       </View>
       {files.length > 0 && (
@@ -147,6 +168,12 @@ function BatchRow({ b, wide }: { b: BatchSummary; wide: boolean }) {
       : `${num(b.counts.returns)} returns · ${num(b.counts.lineItems)} lines`;
   const files = b.fileNames.join(', ');
   const who = b.loadedBy?.displayName ?? '—';
+  const checking = b.state === 'validating' || b.state === 'received';
+  const progress = checking ? (
+    <Txt variant="caption" figures tone={b.stalled ? 'alert' : 'soft'} testID={`batch-row-check-${b.id}`}>
+      {b.stalled ? 'stalled: open it to retry' : `${num(b.rowsChecked)} rows checked`}
+    </Txt>
+  ) : null;
   const inner = wide ? (
     <View style={{ flexDirection: 'row', gap: space.md, alignItems: 'center', paddingVertical: space.sm, paddingHorizontal: space.md }}>
       <View style={{ width: 160 }}>
@@ -154,10 +181,10 @@ function BatchRow({ b, wide }: { b: BatchSummary; wide: boolean }) {
       </View>
       <View style={{ flex: 1 }}>
         <Txt variant="small" bold numberOfLines={1}>
-          {files}
+          {b.label}
         </Txt>
-        <Txt variant="caption" tone="soft">
-          {when(b.createdAt)} · {who}
+        <Txt variant="caption" tone="soft" numberOfLines={1}>
+          {when(b.createdAt)} · {who} · {files}
         </Txt>
       </View>
       <View style={{ width: 200 }}>
@@ -165,7 +192,7 @@ function BatchRow({ b, wide }: { b: BatchSummary; wide: boolean }) {
           {counts}
         </Txt>
       </View>
-      <View style={{ width: 180 }}>{b.state !== 'rejected' && <ScoringProgress batch={b} />}</View>
+      <View style={{ width: 180 }}>{checking ? progress : b.state !== 'rejected' && <ScoringProgress batch={b} />}</View>
     </View>
   ) : (
     <Card style={{ gap: space.xs, padding: space.md }}>
@@ -175,16 +202,16 @@ function BatchRow({ b, wide }: { b: BatchSummary; wide: boolean }) {
           {when(b.createdAt)}
         </Txt>
       </View>
-      <Txt variant="small" bold numberOfLines={1}>
-        {files}
+      <Txt variant="small" bold numberOfLines={2}>
+        {b.label}
       </Txt>
       <Txt variant="small" figures tone={b.state === 'rejected' ? 'alert' : 'ink'}>
         {counts}
       </Txt>
-      <Txt variant="caption" tone="soft">
-        uploaded by {who}
+      <Txt variant="caption" tone="soft" numberOfLines={1}>
+        uploaded by {who} · {files}
       </Txt>
-      {b.state !== 'rejected' && <ScoringProgress batch={b} />}
+      {checking ? progress : b.state !== 'rejected' && <ScoringProgress batch={b} />}
     </Card>
   );
   return (
@@ -231,7 +258,7 @@ export function BatchesScreen() {
             <TableHeader
               columns={[
                 ['State', 160],
-                ['Files · uploaded by', 0],
+                ['Batch · uploaded by · files', 0],
                 ['Contents', 200],
                 ['Scoring', 180],
               ]}

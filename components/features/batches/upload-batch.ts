@@ -69,8 +69,10 @@ function append(form: FormData, field: string, f: PickedFile) {
  * Uploads, reporting progress from 0 to 1 as the bytes go out.
  * @param onProgress called with the share sent so far
  */
-export function uploadBatch(parts: UploadParts, onProgress: (share: number) => void): Promise<UploadOutcome> {
+export function uploadBatch(parts: UploadParts, onProgress: (share: number) => void, label = ''): Promise<UploadOutcome> {
   const form = new FormData();
+  // The label first: the server reads it before the files.
+  if (label.trim()) form.append('label', label.trim());
   for (const [field, f] of Object.entries(parts)) if (f) append(form, field, f as PickedFile);
   return new Promise((resolve) => {
     const xhr = new XMLHttpRequest();

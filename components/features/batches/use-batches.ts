@@ -1,6 +1,6 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
-import { apiGet } from '../../../hooks/api-client';
+import { apiGet, apiSend } from '../../../hooks/api-client';
 import { BatchDetailSchema, BatchListSchema, type BatchState } from '../../../shared/returns/batch-rows';
 import { uploadBatch, type UploadParts } from './upload-batch';
 
@@ -32,16 +32,26 @@ export function useUploadBatch() {
   const qc = useQueryClient();
   const [progress, setProgress] = useState(0);
   const mutation = useMutation({
-    mutationFn: (parts: UploadParts) => {
+    mutationFn: ({ parts, label }: { parts: UploadParts; label?: string }) => {
       setProgress(0);
-      return uploadBatch(parts, setProgress);
+      return uploadBatch(parts, setProgress, label);
     },
     onSettled: () => qc.invalidateQueries({ queryKey: KEY }),
   });
   return { ...mutation, progress };
 }
 
-/** Where the validation report downloads from. */
+/** Ends a batch whose check has stalled (the server checks that it has), so its file can be uploaded again. */
+export function useRetryBatch(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => apiSend('POST', `/api/batches/${encodeURIComponent(id)}/retry`, undefined, BatchDetailSchema),
+    onSuccess: (b) => qc.setQueryData([...KEY, 'one', id], b),
+    onSettled: () => qc.invalidateQueries({ queryKey: KEY }),
+  });
+}
+
+/** Where the batch's report downloads from. */
 export function reportUrl(id: string): string {
   return `/api/batches/${encodeURIComponent(id)}/report.xlsx`;
 }

@@ -7,7 +7,17 @@ const KEY = ['users'] as const;
 
 /** All staff accounts (admin). */
 export function useUsers() {
-  return useQuery({ queryKey: KEY, queryFn: () => apiGet('/api/users', UserListSchema) });
+  // Locks run out by themselves (15 minutes): the list looks again now and then.
+  return useQuery({ queryKey: KEY, queryFn: () => apiGet('/api/users', UserListSchema), refetchInterval: 30_000 });
+}
+
+/** Lets an account locked by failed sign-ins sign in again at once. */
+export function useUnlockUser() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (id: string) => apiSend('POST', `/api/users/${encodeURIComponent(id)}/unlock`, undefined, UserSchema),
+    onSettled: () => qc.invalidateQueries({ queryKey: KEY }),
+  });
 }
 
 export function useCreateUser() {
