@@ -1,7 +1,11 @@
 /**
  * Digit profile of one column of amounts (docs/design.md#command-line):
  *
- *   npm run --silent digits -- FILE [--column NAME] [--json]
+ *   npm run --silent digits -- FILE [--column NAME] [--by COLUMN] [--json] [--pdf OUT.pdf]
+ *
+ * --by COLUMN splits the amounts by that column's text (an account, a month): the output adds
+ * each group's first-digit figures (`split` in the JSON). --pdf writes the working paper
+ * (server/analyses/working-paper-pdf.ts) with the file's SHA-256, the user and the time.
  *
  * FILE is a text file with one amount a line (blank lines skipped), or a CSV or XLSX file
  * (by extension) whose column NAME holds the amounts. Without --column, a file with one
@@ -18,35 +22,47 @@
  * line; otherwise a readable table. Any problem: one line on stderr, exit code 2.
  */
 
+import crypto from 'node:crypto';
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import {
   AmountParseError,
   DIGIT_LABELS,
   MIN_N_FOR_CONFORMITY,
-  profileColumn,
+  digitResult,
+  type GroupFigures,
   type DigitProfile,
   type DigitTestName,
   type DigitTestResult,
   type SizeAwareResult,
 } from '../shared/digits';
 import { AmountFileError, readAmountsFile, type AmountFileResult } from '../server/analyses/amount-file';
+import { renderWorkingPaperPdf } from '../server/analyses/working-paper-pdf';
 
 /** A problem to report as one line on stderr, exit code 2. */
 class UsageError extends Error {}
 
-const USAGE = 'usage: npm run --silent digits -- FILE [--column NAME] [--json]';
+const USAGE = 'usage: npm run --silent digits -- FILE [--column NAME] [--by COLUMN] [--json] [--pdf OUT.pdf]';
 
 interface Options {
   file: string;
   column: string | null;
+  by: string | null;
+  pdf: string | null;
   json: boolean;
 }
 
 function parseArgs(argv: string[]): Options | 'help' {
   let file: string | null = null;
   let column: string | null = null;
+  let by: string | null = null;
+  let pdf: string | null = null;
   let json = false;
+  const valueOf = (name: string, v: string | undefined): string => {
+    if (v === undefined || v === '') throw new UsageError(`${name} needs a value; ${USAGE}`);
+    return v;
+  };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a === '--help' || a === '-h') return 'help';
@@ -58,12 +74,16 @@ function parseArgs(argv: string[]): Options | 'help' {
     } else if (a.startsWith('--column=')) {
       column = a.slice('--column='.length);
       if (column === '') throw new UsageError(`--column needs a column name; ${USAGE}`);
-    } else if (a.startsWith('-') && a !== '-') throw new UsageError(`unknown option ${a}; ${USAGE}`);
+    } else if (a === '--by') by = valueOf('--by', argv[++i]);
+    else if (a.startsWith('--by=')) by = valueOf('--by', a.slice('--by='.length));
+    else if (a === '--pdf') pdf = valueOf('--pdf', argv[++i]);
+    else if (a.startsWith('--pdf=')) pdf = valueOf('--pdf', a.slice('--pdf='.length));
+    else if (a.startsWith('-') && a !== '-') throw new UsageError(`unknown option ${a}; ${USAGE}`);
     else if (file === null) file = a;
     else throw new UsageError(`one FILE only (got ${file} and ${a}); ${USAGE}`);
   }
   if (file === null) throw new UsageError(`no FILE given; ${USAGE}`);
-  return { file, column, json };
+  return { file, column, by, pdf, json };
 }
 
 // ---------------------------------------------------------------------------------------
@@ -177,6 +197,18 @@ function renderTable(p: DigitProfile, source: string): string {
   return lines.join('\n');
 }
 
+/** The groups of a split, one line each, highest size-aware z first. */
+function renderGroups(split: { column: string; groups: GroupFigures[] }): string {
+  const rows = [...split.groups].sort((a, b) => (b.sizeAware.zScore ?? -Infinity) - (a.sizeAware.zScore ?? -Infinity));
+  const lines = [`By ${split.column} (${int(split.groups.length)} groups; first digit, highest size-aware z first):`];
+  for (const g of rows) {
+    lines.push(
+      `  ${(g.name || '(blank)').padEnd(24)} ${int(g.count).padStart(9)} amounts  MAD ${fixed(g.firstDigit.mad, 4)}  z ${fixed(g.sizeAware.zScore, 2).padStart(6)}  ${g.sizeAware.verdict}`,
+    );
+  }
+  return `${lines.join('\n')}\n`;
+}
+
 // ---------------------------------------------------------------------------------------
 
 async function main(): Promise<void> {
@@ -185,7 +217,7 @@ async function main(): Promise<void> {
     process.stdout.write(`${USAGE}\n`);
     return;
   }
-  const { file, column, json } = opts;
+  const { file, column, by, pdf, json } = opts;
   let stat: fs.Stats;
   try {
     stat = fs.statSync(file);
@@ -196,17 +228,38 @@ async function main(): Promise<void> {
   if (column !== null && !['.csv', '.xlsx'].includes(path.extname(file).toLowerCase())) {
     throw new UsageError('--column applies to CSV and XLSX files; a text file has one amount a line');
   }
+  if (by !== null && !['.csv', '.xlsx'].includes(path.extname(file).toLowerCase())) {
+    throw new UsageError('--by applies to CSV and XLSX files with a header row; a text file has one amount a line');
+  }
   let read: AmountFileResult;
   try {
-    read = await readAmountsFile(file, column);
+    read = await readAmountsFile(file, column, undefined, undefined, by);
   } catch (e) {
     if (e instanceof AmountParseError) throw new UsageError(`${path.basename(file)}: ${e.message}`);
     if (e instanceof AmountFileError) throw new UsageError(e.message);
     throw new UsageError(`${path.basename(file)}: cannot be read: ${e instanceof Error ? e.message : String(e)}`);
   }
-  const profile = profileColumn(read);
-  if (json) process.stdout.write(`${JSON.stringify(profile)}\n`);
-  else process.stdout.write(renderTable(profile, `${path.basename(file)} (${read.what})`));
+  const result = digitResult(read, read.groups);
+  if (pdf !== null) {
+    const bytes = await renderWorkingPaperPdf({
+      caseRef: null,
+      sourceLabel: `File ${path.basename(file)}`,
+      fileName: path.basename(file),
+      sha256: crypto.createHash('sha256').update(fs.readFileSync(file)).digest('hex'),
+      what: read.what,
+      ranBy: `${os.userInfo().username} (command line)`,
+      ranAt: new Date(),
+      profile: result,
+      split: result.split,
+    });
+    try {
+      fs.writeFileSync(pdf, bytes);
+    } catch (e) {
+      throw new UsageError(`cannot write ${pdf}: ${e instanceof Error ? e.message : String(e)}`);
+    }
+  }
+  if (json) process.stdout.write(`${JSON.stringify(result)}\n`);
+  else process.stdout.write(renderTable(result, `${path.basename(file)} (${read.what})`) + (result.split ? renderGroups(result.split) : ''));
 }
 
 main().catch((e: unknown) => {

@@ -90,6 +90,7 @@ export {
   type ParseColumnOptions,
   type WideAmount,
 } from './wide';
-export { digitProfileSchema, type DigitProfileJson } from './schema';
+export { digitProfileSchema, digitResultSchema, groupFiguresSchema, type DigitProfileJson, type DigitResultJson } from './schema';
+export { digitResult, profileGroups, type DigitResult, type GroupFigures } from './split';
 export { chiSquareCritical, chiSquareSurvival, binomialUpperTail } from './stats';
 export { mulberry32 } from './random';

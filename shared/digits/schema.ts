@@ -118,3 +118,22 @@ export const digitProfileSchema = z.strictObject({
 
 /** The digit profile as JSON (what the schema accepts). */
 export type DigitProfileJson = z.infer<typeof digitProfileSchema>;
+
+/** One group of a split column: its first-digit test and size-aware figure (split.ts). */
+export const groupFiguresSchema = z.strictObject({
+  name: z.string(),
+  count: z.number().int().nonnegative(),
+  firstDigit: digitTestSchema,
+  sizeAware: sizeAwareSchema,
+});
+
+/**
+ * What `npm run digits -- --json` prints and a saved analysis keeps as its result: the
+ * profile, and with a split column (`--by`) the split's name and each group's figures.
+ */
+export const digitResultSchema = digitProfileSchema.extend({
+  split: z.strictObject({ column: z.string(), groups: z.array(groupFiguresSchema) }).optional(),
+});
+
+/** The result JSON (what the schema accepts). */
+export type DigitResultJson = z.infer<typeof digitResultSchema>;
