@@ -135,9 +135,9 @@ export const ScoringSettingsSchema = z.object({
 export type ScoringSettings = z.infer<typeof ScoringSettingsSchema>;
 
 /**
- * The default profile: version 2 (server/db/migrations/1764950000000-scoring-v2.ts writes it,
- * frozen there). Weights come from the factor records; version 1 stays frozen in its own
- * migration.
+ * The default profile: version 3 (server/db/migrations/1766000000000-scoring-v3.ts writes it,
+ * frozen there). Weights come from the factor records; versions 1 and 2 stay frozen in their
+ * own migrations.
  */
 export const DEFAULT_SCORING_SETTINGS: ScoringSettings = {
   weights: Object.fromEntries(COMPONENTS.map((c) => [c, FACTORS[c].defaultWeight])) as Record<ComponentKey, number>,

@@ -201,7 +201,7 @@ describe('wording of the documents', () => {
       { lineCode: 'inc.wages' as const, amount: ((wages + 5_000_000) / 100).toFixed(2) },
       { lineCode: 'ded.charity' as const, amount: '0' },
     ];
-    // The expected figures by the shared rules (their worked examples: tests/unit/corrections.test.ts).
+    // The expected figures by the shared rules (their worked examples: tests/unit/returns/corrections.test.ts).
     const expected = applyCorrections(
       lines.map((l) => ({ code: l.code, cents: Number(l.cents) })),
       corrections,
