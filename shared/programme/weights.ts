@@ -50,17 +50,16 @@ export interface WeightFit {
 }
 
 /**
- * The outcome model: P(closed adjusted | strengths), a logistic fit with each case's weight
- * (1 selected, 1 / sampling rate random), weights scaled to sum to the number of cases so the
- * ridge penalty λ on the slopes means the same whatever the sampling rate.
+ * The outcome model: P(closed adjusted | strengths), a logistic fit with each case's weight as
+ * given (1 selected, 1 / sampling rate random: Horvitz–Thompson weights, not rescaled, so the
+ * cases the score picked keep their full say and the ridge penalty λ stays light against the
+ * weighted total).
  */
 export function fitOutcomeModel(cases: readonly FitCase[], lambda = 1): LogisticFit {
-  const total = cases.reduce((t, c) => t + c.weight, 0);
-  const scale = total > 0 ? cases.length / total : 1;
   return fitLogistic({
     x: cases.map((c) => c.strengths),
     y: cases.map((c) => (c.adjusted ? 1 : 0)),
-    weights: cases.map((c) => c.weight * scale),
+    weights: cases.map((c) => c.weight),
     lambda,
   });
 }

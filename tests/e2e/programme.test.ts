@@ -34,6 +34,11 @@ describe('programme screen (supervisor, browser)', () => {
           WHERE s.status = 'scored' AND NOT (s.breakdown->>'selected')::boolean AND NOT EXISTS (SELECT 1 FROM exam_case c WHERE c.return_id = s.return_id)
           ORDER BY s.id LIMIT 40`,
       );
+      // The run's record then holds 48 drawn, so each random case stands for candidates / 48 returns.
+      await ds.query(
+        `UPDATE scoring_run SET random_sample = random_sample || jsonb_build_object('drawn', (random_sample->>'drawn')::int + 40,
+            'rate', ((random_sample->>'drawn')::int + 40)::numeric / (random_sample->>'candidates')::numeric)`,
+      );
       const cases: { id: string; selection: string; ref: string }[] = await ds.query(
         `SELECT c.id, c.selection, r.return_ref AS ref FROM exam_case c JOIN tax_return r ON r.id = c.return_id ORDER BY c.id`,
       );
