@@ -187,8 +187,58 @@ export const CaseActionsSchema = z.object({
   transitions: z.array(CaseMoveSchema),
   note: z.boolean(),
   revealTin: z.boolean(),
+  /** Reopen the finished case with a reason (supervisor, issue 14). */
+  reopen: z.boolean(),
 });
 export type CaseActions = z.infer<typeof CaseActionsSchema>;
+
+/**
+ * One of the taxpayer's other returns on file (issue 14), with the case opened on it if any
+ * and how that case ended: a return with no case was not selected.
+ */
+export const RelatedReturnSchema = z.object({
+  returnId: z.string(),
+  returnRef: z.string(),
+  taxYear: z.number().int(),
+  /** A later amended return replaced this one. */
+  superseded: z.boolean(),
+  caseId: z.string().nullable(),
+  state: CaseStateSchema.nullable(),
+  outcome: z.string().nullable(),
+  adjustedAmount: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+});
+export type RelatedReturn = z.infer<typeof RelatedReturnSchema>;
+
+/** A case on another return the same preparer filed in the same batch (issue 14). */
+export const PreparerCaseSchema = z.object({
+  caseId: z.string(),
+  returnRef: z.string(),
+  taxYear: z.number().int(),
+  taxpayerName: z.string(),
+  state: CaseStateSchema,
+  riskScore: z.number(),
+});
+export type PreparerCase = z.infer<typeof PreparerCaseSchema>;
+
+/** How many of the preparer's other cases in the batch the case screen lists. */
+export const PREPARER_CASES_SHOWN = 20;
+
+/** Related cases on the case screen: the taxpayer's other returns, the preparer's other selected returns in the batch. */
+export const RelatedCasesSchema = z.object({
+  taxpayerReturns: z.array(RelatedReturnSchema),
+  /** Null for a self-prepared return. */
+  preparer: z
+    .object({
+      code: z.string(),
+      /** Highest priority first, at most {@link PREPARER_CASES_SHOWN}. */
+      cases: z.array(PreparerCaseSchema),
+      /** All of the preparer's other cases in the batch. */
+      total: z.number().int(),
+    })
+    .nullable(),
+});
+export type RelatedCases = z.infer<typeof RelatedCasesSchema>;
 
 /** Answer of `GET /api/cases/:id`. */
 export const CaseDetailSchema = z.object({
@@ -217,8 +267,6 @@ export const CaseDetailSchema = z.object({
   taxpayer: z.object({ id: z.string(), name: z.string(), maskedTin: z.string(), activityCode: z.enum(ACTIVITY_CODES) }),
   return: z.object({
     id: z.string(),
-  /** Reopen the finished case with a reason (supervisor, issue 14). */
-  reopen: z.boolean(),
     returnRef: z.string(),
     taxYear: z.number().int(),
     batchId: z.string(),
@@ -246,6 +294,8 @@ export const CaseDetailSchema = z.object({
   notes: z.array(CaseNoteSchema),
   letters: z.array(CaseLetterSummarySchema),
   actions: CaseActionsSchema,
+  /** The taxpayer's other returns and the preparer's other cases in the batch (issue 14). */
+  related: RelatedCasesSchema.optional(),
   /**
    * A taxpayer's reply the case's examiner had not opened before this read (issue 14): when it
    * arrived, or null. The examiner's own read clears it, so their next read says null.

@@ -5,7 +5,15 @@
  */
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
-import { MOVES_ELSEWHERE, moveLabel, type CaseActions, type CaseDetail, type CaseHistoryEntry, type Examiner } from '../../shared/case-api';
+import {
+  MOVES_ELSEWHERE,
+  moveLabel,
+  PREPARER_CASES_SHOWN,
+  type CaseActions,
+  type CaseDetail,
+  type CaseHistoryEntry,
+  type Examiner,
+} from '../../shared/case-api';
 import { CASE_STATE_LABELS, CASE_TRANSITIONS, isFinalState, type CaseState } from '../../shared/cases';
 import { isUuid } from '../../shared/ids';
 import { can } from '../../shared/permissions';
@@ -22,6 +30,8 @@ import {
   findCaseNotes,
   findExaminers,
   findLineItems,
+  findPreparerOtherCases,
+  findTaxpayerOtherReturns,
   userNames,
   type CaseEventRecord,
 } from './case.repository';
@@ -95,12 +105,14 @@ export async function getCaseDetail(ds: DataSource, audit: StaffAudit, caseId: s
   if (!isUuid(caseId)) throw new HttpError(404, 'No such case.');
   const c = await findCaseDetail(ds, caseId);
   if (!c) throw new HttpError(404, 'No such case.');
-  const [lines, events, notes, letters, deadline] = await Promise.all([
+  const [lines, events, notes, letters, deadline, otherReturns, preparerCases] = await Promise.all([
     findLineItems(ds, c.returnId),
     findCaseEvents(ds, caseId),
     findCaseNotes(ds, caseId),
     findCaseLetters(ds, caseId),
     caseDeadline(ds, caseId),
+    findTaxpayerOtherReturns(ds, c.taxpayerId, c.returnId),
+    findPreparerOtherCases(ds, c.returnId, PREPARER_CASES_SHOWN),
   ]);
   const mentioned = new Set<string>();
   for (const e of events) for (const k of ['from', 'to', 'assigneeId']) if (typeof e.detail?.[k] === 'string') mentioned.add(e.detail[k] as string);
@@ -164,6 +176,33 @@ export async function getCaseDetail(ds: DataSource, audit: StaffAudit, caseId: s
     notes: notes.map((n) => ({ id: n.id, at: n.at.toISOString(), authorId: n.authorId, authorName: n.authorName, text: n.text })),
     letters: letters.map((l) => ({ id: l.id, kind: l.kind, createdAt: l.createdAt.toISOString() })),
     actions: actionsFor(audit.actor, c.state, c.assigneeId),
+    related: {
+      taxpayerReturns: otherReturns.map((o) => ({
+        returnId: o.returnId,
+        returnRef: o.returnRef,
+        taxYear: Number(o.taxYear),
+        superseded: o.superseded,
+        caseId: o.caseId,
+        state: o.state,
+        outcome: o.outcome,
+        adjustedAmount: o.adjustedAmount,
+        finishedAt: o.closedAt ? o.closedAt.toISOString() : null,
+      })),
+      preparer: c.preparerCode
+        ? {
+            code: c.preparerCode,
+            cases: preparerCases.map((p) => ({
+              caseId: p.caseId,
+              returnRef: p.returnRef,
+              taxYear: Number(p.taxYear),
+              taxpayerName: p.taxpayerName,
+              state: p.state,
+              riskScore: Number(p.riskScore),
+            })),
+            total: preparerCases[0]?.total ?? 0,
+          }
+        : null,
+    },
   };
 }
 

@@ -196,3 +196,60 @@ export async function findAssignee(db: Db, userId: string): Promise<{ id: string
   );
   return r.length ? { id: r[0].id, role: r[0].role, active: r[0].active, displayName: r[0].display_name } : null;
 }
+
+/** One of the taxpayer's other returns with its case, if any (RelatedReturn in shared/case-api.ts). */
+export interface RelatedReturnRecord {
+  returnId: string;
+  returnRef: string;
+  taxYear: number;
+  superseded: boolean;
+  caseId: string | null;
+  state: CaseState | null;
+  outcome: string | null;
+  adjustedAmount: string | null;
+  closedAt: Date | null;
+}
+
+/** The taxpayer's returns on file other than `returnId`, newest year first, each with its case if one was opened. */
+export async function findTaxpayerOtherReturns(db: Db, taxpayerId: string, returnId: string): Promise<RelatedReturnRecord[]> {
+  return db.query(
+    `SELECT r.id AS "returnId", r.return_ref AS "returnRef", r.tax_year::int AS "taxYear", r.superseded,
+            c.id AS "caseId", c.state, c.outcome, c.adjusted_amount AS "adjustedAmount", c.closed_at AS "closedAt"
+       FROM tax_return r
+       LEFT JOIN exam_case c ON c.return_id = r.id
+      WHERE r.taxpayer_id = $1 AND r.id <> $2
+      ORDER BY r.tax_year DESC, r.return_ref`,
+    [taxpayerId, returnId],
+  );
+}
+
+/** A case on another return of the same preparer in the same batch. */
+export interface PreparerCaseRecord {
+  caseId: string;
+  returnRef: string;
+  taxYear: number;
+  taxpayerName: string;
+  state: CaseState;
+  riskScore: string;
+  total: number;
+}
+
+/**
+ * The other cases opened in `returnId`'s batch on returns the same preparer filed, highest
+ * priority first, at most `limit`; each row carries the count of all of them (`total`).
+ * Empty for a self-prepared return.
+ */
+export async function findPreparerOtherCases(db: Db, returnId: string, limit: number): Promise<PreparerCaseRecord[]> {
+  return db.query(
+    `SELECT c.id AS "caseId", r.return_ref AS "returnRef", r.tax_year::int AS "taxYear", t.name AS "taxpayerName", c.state,
+            c.risk_score AS "riskScore", count(*) OVER ()::int AS total
+       FROM tax_return me
+       JOIN tax_return r ON r.batch_id = me.batch_id AND r.preparer_id = me.preparer_id AND r.id <> me.id
+       JOIN exam_case c ON c.return_id = r.id
+       JOIN taxpayer t ON t.id = r.taxpayer_id
+      WHERE me.id = $1 AND me.preparer_id IS NOT NULL
+      ORDER BY c.priority DESC, c.id
+      LIMIT $2`,
+    [returnId, limit],
+  );
+}

@@ -100,3 +100,9 @@ export function useBulkReassign() {
     },
   });
 }
+
+/** Reopens a finished case with a reason (supervisor, issue 14). */
+export function useReopen(id: string) {
+  const refresh = useRefresh(id);
+  return useMutation({ mutationFn: (reason: string) => apiSend('POST', `/api/cases/${id}/reopen`, { reason }, CaseChangedSchema), onSuccess: refresh });
+}
