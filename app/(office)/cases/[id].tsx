@@ -1,1 +1,12 @@
-export { CaseScreen as default } from '../../../components/features/cases/case-screen';
+import { CaseScreen } from '../../../components/features/cases/case-screen';
+import { ReplyFlagBanner } from '../../../components/features/cases/reply-flag-banner';
+
+/** One case: the reply flag (issue 14) above the case screen. */
+export default function CasePage() {
+  return (
+    <>
+      <ReplyFlagBanner />
+      <CaseScreen />
+    </>
+  );
+}
