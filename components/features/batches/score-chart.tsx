@@ -21,7 +21,8 @@ export function ScoreBandsChart({ outcome, testID }: { outcome: BatchOutcome; te
   const total = bands.reduce((s, b) => s + b.returns, 0);
   const peak = Math.max(1, ...bands.map((b) => b.returns));
   const step = niceStep(peak);
-  const top = Math.ceil(peak / step) * step;
+  // Room above the tallest bar for its two count labels.
+  const top = Math.ceil((peak * 1.15) / step) * step;
   const ticks = Array.from({ length: top / step + 1 }, (_, i) => i * step);
   const summary =
     `Scores of ${total.toLocaleString('en-GB')} returns in bands of ${SCORE_BAND_WIDTH} points: ` +
@@ -33,7 +34,7 @@ export function ScoreBandsChart({ outcome, testID }: { outcome: BatchOutcome; te
   const legend = (
     <>
       <LegendItem swatch={{ backgroundColor: colours.line }}>Returns scored</LegendItem>
-      <LegendItem swatch={{ backgroundColor: colours.cord, opacity: 0.85 }}>Of them, cases opened</LegendItem>
+      <LegendItem swatch={{ backgroundColor: colours.cord, opacity: 0.85 }}>Of them, cases opened (count in bold)</LegendItem>
     </>
   );
   return (
@@ -58,11 +59,25 @@ export function ScoreBandsChart({ outcome, testID }: { outcome: BatchOutcome; te
             <ChartGrid ticks={ticks} y={y} left={left} width={plotW} label={(t) => t.toLocaleString('en-GB')} />
             {bands.map((b, i) => {
               const x = left + i * slot + (slot - bw) / 2;
+              // A band with a few returns is still seen: at least 3 px, and its counts written above it.
+              const h = (v: number) => (v > 0 ? Math.max(3, y(0) - y(v)) : 0);
+              const cx = left + i * slot + slot / 2;
+              const labelY = y(0) - h(b.returns) - 4;
               return (
                 <G key={b.from}>
-                  <Rect x={x} y={y(b.returns)} width={bw} height={Math.max(0, y(0) - y(b.returns))} fill={colours.line} rx={2} />
-                  <Rect x={x} y={y(b.cases)} width={bw} height={Math.max(0, y(0) - y(b.cases))} fill={colours.cord} opacity={0.85} rx={2} />
-                  <SvgText x={left + i * slot + slot / 2} y={height - 6} fontSize={10} fontFamily={fonts.figures} fill={colours.inkSoft} textAnchor="middle">
+                  <Rect x={x} y={y(0) - h(b.returns)} width={bw} height={h(b.returns)} fill={colours.line} rx={2} />
+                  <Rect x={x} y={y(0) - h(b.cases)} width={bw} height={h(b.cases)} fill={colours.cord} opacity={0.85} rx={2} />
+                  {b.returns > 0 && (
+                    <SvgText x={cx} y={b.cases > 0 ? labelY - 12 : labelY} fontSize={10} fontFamily={fonts.figures} fill={colours.inkSoft} textAnchor="middle">
+                      {b.returns.toLocaleString('en-GB')}
+                    </SvgText>
+                  )}
+                  {b.cases > 0 && (
+                    <SvgText x={cx} y={labelY} fontSize={10} fontFamily={fonts.figures} fill={colours.cord} fontWeight="bold" textAnchor="middle">
+                      {b.cases.toLocaleString('en-GB')}
+                    </SvgText>
+                  )}
+                  <SvgText x={cx} y={height - 6} fontSize={10} fontFamily={fonts.figures} fill={colours.inkSoft} textAnchor="middle">
                     {slot >= 34 || i % 2 === 0 ? String(b.from) : ''}
                   </SvgText>
                 </G>
