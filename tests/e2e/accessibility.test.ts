@@ -42,6 +42,19 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
     await ds.initialize();
     try {
       openCases = (await ds.query(`SELECT id FROM exam_case WHERE state = 'open' ORDER BY priority DESC, id LIMIT 8`)).map((r: { id: string }) => r.id);
+      // Every other case finished with an invented outcome, by one of the two examiners, over
+      // the last ten weeks, so the Programme screen draws its charts and tables with figures.
+      await ds.query(
+        `UPDATE exam_case c
+            SET state = CASE WHEN x.n % 3 = 0 THEN 'closed_adjusted' ELSE 'closed_no_change' END,
+                adjusted_amount = CASE WHEN x.n % 3 = 0 THEN 250 + x.n * 17 END,
+                outcome = 'Invented outcome for the accessibility test',
+                assignee_id = (SELECT id FROM app_user WHERE username = CASE WHEN x.n % 2 = 0 THEN 'examiner' ELSE 'examiner2' END),
+                closed_at = now() - make_interval(days => ((x.n % 10) * 7 + 1)::int)
+           FROM (SELECT id, row_number() OVER (ORDER BY id) AS n FROM exam_case WHERE NOT (id = ANY($1::uuid[]))) x
+          WHERE c.id = x.id`,
+        [openCases],
+      );
     } finally {
       await ds.destroy();
     }
@@ -67,7 +80,7 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
     const wide = name === 'wide';
     const size = `${viewport.width}×${viewport.height}`;
 
-    it(`sign-in, status, about, queue, case, workload, batches, batch and scoring (${name} ${size})`, async () => {
+    it(`sign-in, status, about, queue, case, workload, batches, batch, scoring and programme (${name} ${size})`, async () => {
       const page = await browser.newPage({ viewport });
       const errors: string[] = [];
       page.on('pageerror', (e) => errors.push(e.message));
@@ -124,6 +137,12 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       await page.goto(base + '/scoring', { waitUntil: 'networkidle' });
       await page.getByTestId('save-profile').waitFor();
       await expectNoSeriousAxeViolations(page, `scoring ${size}`);
+
+      await page.goto(base + '/programme', { waitUntil: 'networkidle' });
+      await waitForText(page.getByTestId('programme-methods'), 'Wilson score interval');
+      await page.getByTestId('programme-chart-deciles').waitFor();
+      await page.getByTestId('programme-by-examiner').waitFor();
+      await expectNoSeriousAxeViolations(page, `programme ${size}`);
       await signOut(page);
       expect(errors).toEqual([]);
       await page.close();
@@ -180,6 +199,9 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       const to = uniqueAddress('a11y-e2e');
       await page.getByTestId('request-email').fill(to);
       await expectNoSeriousAxeViolations(page, `case with the document request form ${size}`);
+      // The letter is read before it is sent (issue 14).
+      await page.getByTestId('request-preview-button').click();
+      await page.getByTestId('request-preview').waitFor();
       await page.getByTestId('request-send').click();
       await waitForText(page.getByTestId('case-state'), 'Awaiting reply', { exact: true });
       const mail = await waitForMail(to, WAIT_MS);
@@ -257,8 +279,9 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
       await page.goto(`${s.server.baseUrl}/cases/${nextCase()}`, { waitUntil: 'networkidle' });
       await page.getByTestId('case-claim').waitFor();
       const path = await tabTo(page, 'case-claim');
-      // Reading order: the navigation, then the case's own header, then its actions.
-      const navAt = path.findIndex((p) => p.startsWith('a:'));
+      // Reading order: the navigation (menu entries carry test ids nav-<route>), then the case's
+      // own header, then its actions.
+      const navAt = path.findIndex((p) => p.startsWith('nav-'));
       expect(navAt).toBeGreaterThanOrEqual(0);
       expect(path.indexOf('back-to-queue')).toBeGreaterThan(navAt);
       expect(path.indexOf('case-claim')).toBeGreaterThan(path.indexOf('back-to-queue'));
