@@ -115,6 +115,9 @@ describe('taxpayer reply page in the browser', () => {
       await waitForText(page.getByTestId('reply-files'), 'vehicle-receipts-2024.pdf');
       await waitForText(page.getByTestId('reply-send'), 'Send 2 files', { exact: true });
       await screenshot(page, `reply-chosen-${name}`);
+      // Everything in one send: the taxpayer says so, and the link closes after it.
+      await page.getByTestId('reply-complete').click();
+      await waitForAttribute(page.getByTestId('reply-complete'), 'aria-checked', 'true');
 
       // Hold the upload's answer a moment so the progress state can be seen.
       await page.route('**/api/replies/**', async (route) => {
@@ -134,7 +137,7 @@ describe('taxpayer reply page in the browser', () => {
         { file_name: 'wage-statement.png', content_type: 'image/png', size: PNG.length },
       ]);
 
-      // Coming back to the link: used up.
+      // Coming back to the link: closed.
       await page.unroute('**/api/replies/**');
       await page.goto(`${server.baseUrl}/reply/${r.token}`, { waitUntil: 'networkidle' });
       await page
@@ -144,7 +147,7 @@ describe('taxpayer reply page in the browser', () => {
           await screenshot(page, `debug-reply-used-${name}`);
           throw e;
         });
-      await waitForCount(page.getByRole('heading', { name: 'This link has been used' }), 1);
+      await waitForCount(page.getByRole('heading', { name: 'This link is closed' }), 1);
       await screenshot(page, `reply-used-${name}`);
       expect(errors).toEqual([]);
       await page.close();
@@ -191,11 +194,16 @@ describe('taxpayer reply page in the browser', () => {
       await page.getByTestId('request-item-0-warning').waitFor({ state: 'detached' });
       await page.getByTestId('request-item-add').click();
       await page.getByTestId('request-item-1').fill('Bank statements for the business account, 2024');
-      // The taxpayer has no address on file: the server says so, and the form shows it.
-      await page.getByTestId('request-send').click();
-      await page.getByText('This taxpayer has no e-mail address on file. Enter the address the request should go to.').waitFor();
+      // The taxpayer has no address on file: the form says so before Send and asks for one.
+      await waitForText(page.getByTestId('request-email-none'), 'No e-mail address is on file for this taxpayer.');
+      await page.getByTestId('request-preview-button').click();
+      await page.getByText('No e-mail address is on file for this taxpayer: enter the address the request should go to').waitFor();
       await page.getByTestId('request-email').fill(to);
       await screenshot(page, `letters-panel-form-${name}`);
+      // The letter is read before it goes (issue 14).
+      await page.getByTestId('request-preview-button').click();
+      await waitForText(page.getByTestId('request-preview-to'), `By e-mail to ${to}`);
+      await waitForText(page.getByTestId('request-preview-text'), 'Bank statements for the business account, 2024');
       await page.getByTestId('request-send').click();
       await page.getByTestId('letters-notice').waitFor();
       // Read the mail at once: a test file starting elsewhere may empty the shared inbox.
@@ -213,12 +221,18 @@ describe('taxpayer reply page in the browser', () => {
       await tp.goto(`${server.baseUrl}/reply/${token}`, { waitUntil: 'networkidle' });
       await tp.getByTestId('reply-file-input').setInputFiles([{ name: 'receipts.pdf', mimeType: 'application/pdf', buffer: PDF }]);
       await tp.getByTestId('reply-send').click();
-      await tp.getByTestId('reply-thanks').waitFor();
+      await waitForText(tp.getByTestId('reply-thanks'), 'You can send more files through this link');
+      // Records in parts (issue 13): a second look shows what came, and "everything" ends the wait.
+      await tp.getByTestId('reply-more').click();
+      await waitForText(tp.getByTestId('reply-received'), 'receipts.pdf');
+      await screenshot(tp, `reply-parts-${name}`);
+      await tp.getByTestId('reply-finish').click();
+      await waitForText(tp.getByTestId('reply-thanks'), 'This link is now closed.');
       await taxpayer.close();
 
       await page.reload({ waitUntil: 'networkidle' });
       await waitForText(page.getByTestId('case-state'), 'In review', { exact: true });
-      await waitForText(panel, /Reply received .*: 1 file/);
+      await waitForText(panel, /1 file in one send; the taxpayer said that is everything/);
       await waitForText(panel, 'receipts.pdf');
 
       await page.getByTestId('open-referral').click();

@@ -40,23 +40,27 @@ function useFiledLines(caseId: string): CentsLine[] {
   );
 }
 
-/** One row of the side-by-side. */
+/**
+ * One row of the side-by-side: the label on its own line above the three figures, so long
+ * amounts never run past the edge of the actions column (narrow on every screen).
+ */
 function FigureRow({ label, filed, corrected, bold, testID }: { label: string; filed: number; corrected: number; bold?: boolean; testID?: string }) {
   const d = corrected - filed;
+  const figure = (text: string, tone: 'ink' | 'soft' = 'ink') => (
+    <Txt variant="small" figures bold={bold} tone={tone} style={{ flex: 1, textAlign: 'right' }}>
+      {text}
+    </Txt>
+  );
   return (
-    <View style={{ flexDirection: 'row', gap: space.sm, paddingVertical: 3, borderTopWidth: 1, borderTopColor: colours.line }} testID={testID}>
-      <Txt variant="small" bold={bold} style={{ flex: 1.3 }}>
+    <View style={{ paddingVertical: 3, borderTopWidth: 1, borderTopColor: colours.line }} testID={testID}>
+      <Txt variant="small" bold={bold}>
         {label}
       </Txt>
-      <Txt variant="small" figures bold={bold} style={{ flex: 1, textAlign: 'right' }}>
-        {money(filed)}
-      </Txt>
-      <Txt variant="small" figures bold={bold} style={{ flex: 1, textAlign: 'right' }}>
-        {money(corrected)}
-      </Txt>
-      <Txt variant="small" figures bold={bold} tone={d === 0 ? 'soft' : 'ink'} style={{ flex: 1, textAlign: 'right' }}>
-        {signed(d)}
-      </Txt>
+      <View style={{ flexDirection: 'row', gap: space.xs }}>
+        {figure(money(filed))}
+        {figure(money(corrected))}
+        {figure(signed(d), d === 0 ? 'soft' : 'ink')}
+      </View>
     </View>
   );
 }
@@ -152,10 +156,7 @@ export function CloseForm({ caseId, to, onSubmit, onCancel }: CloseFormProps) {
             </Txt>
           )}
           <View style={{ gap: 0, padding: space.sm, backgroundColor: colours.paper, borderRadius: radius.sm }} testID="close-figures">
-            <View style={{ flexDirection: 'row', gap: space.sm, paddingBottom: 3 }}>
-              <Txt variant="caption" tone="soft" style={{ flex: 1.3 }}>
-                Figure
-              </Txt>
+            <View style={{ flexDirection: 'row', gap: space.xs, paddingBottom: 3 }}>
               {['As filed', 'As corrected', 'Difference'].map((h) => (
                 <Txt key={h} variant="caption" tone="soft" style={{ flex: 1, textAlign: 'right' }}>
                   {h}
@@ -168,7 +169,15 @@ export function CloseForm({ caseId, to, onSubmit, onCancel }: CloseFormProps) {
                 <FigureRow key={l.code} label={l.label} filed={l.filed} corrected={l.corrected} />
               ))}
             {figures.figures.map((f) => (
-              <FigureRow key={f.key} label={f.label} filed={f.filed} corrected={f.corrected} bold={f.key === 'tax'} testID={`close-figure-${f.key}`} />
+              <FigureRow
+                key={f.key}
+                label={f.label}
+                filed={f.filed}
+                corrected={f.corrected}
+                bold={f.key === 'tax'}
+
+                testID={`close-figure-${f.key}`}
+              />
             ))}
           </View>
           <Txt bold testID="close-tax-difference">
