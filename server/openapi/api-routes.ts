@@ -105,6 +105,8 @@ export const COMPONENTS = {
   ScoringPreview: PreviewSchema,
   LetterCreated: LetterCreatedSchema,
   LetterList: LetterListSchema,
+  LetterContext: LetterContextSchema,
+  LetterPreview: LetterPreviewSchema,
   ReplyRequest: ReplyRequestSchema,
   ReplyClosed: ReplyClosedSchema,
   ReplyReceipt: ReplyReceiptSchema,

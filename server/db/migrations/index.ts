@@ -27,7 +27,7 @@ export const migrations = [
   Programme1765000000000,
   CaseCalendar1765100000000,
   ScoringVersionThree1766000000000,
+  ClosingLetters1766020000000,
   MyCases1766040000000,
   BatchLabel1766050000000,
-  ClosingLetters1766020000000,
 ];
