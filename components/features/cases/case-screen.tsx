@@ -7,7 +7,7 @@ import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
 import { LettersPanel } from '../letters/letters-panel';
 import { isFinalState, type CaseState } from '../../../shared/cases';
-import { CaseActionBar, type CasePart } from './case-action-bar';
+import { CaseActionBar, jumpTo, type CasePart } from './case-action-bar';
 import { CaseActions, type ClosingMove } from './case-actions';
 import { CaseDigits, CaseFactors, CaseLines } from './case-evidence';
 import { CaseCaution, CaseHeader, CaseScoreSummary } from './case-header';
@@ -70,11 +70,14 @@ export function CaseScreen() {
     );
   }
   const d = c.data;
-  const next = finishedHere === d.id && isFinalState(d.state) ? <CaseNext caseId={d.id} state={d.state} trail={trail} /> : null;
+  const next =
+    finishedHere === d.id && isFinalState(d.state) ? (
+      <CaseNext caseId={d.id} state={d.state} trail={trail} onShown={() => requestAnimationFrame(() => jumpTo('actions'))} />
+    ) : null;
   const actions = (
     <Part name="actions">
-      <CaseCaution />
       {next}
+      <CaseCaution />
       {notice && !next && (
         <Txt tone="ok" accessibilityRole="alert" testID="case-notice">
           {notice}
