@@ -5,6 +5,7 @@ import { View } from 'react-native';
 import { space } from '../../theme';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
+import { CaseAnalyses } from '../analyses/case-analyses';
 import { LettersPanel } from '../letters/letters-panel';
 import { isFinalState, type CaseState } from '../../../shared/cases';
 import { CaseActionBar, jumpTo, type CasePart } from './case-action-bar';
@@ -90,6 +91,7 @@ export function CaseScreen() {
     <Part name="letters">
       {/* LettersPanel: mounted by the letters feature (components/features/letters/letters-panel.tsx) */}
       <LettersPanel caseId={d.id} state={d.state} canAct={d.actions.canAct} />
+      <CaseAnalyses caseId={d.id} canAct={d.actions.canAct} />
     </Part>
   );
   const why = (
