@@ -90,3 +90,12 @@ export async function findCaseReplyFile(
   );
   return rows.length ? { fileName: rows[0].file_name, contentType: rows[0].content_type, sha256: rows[0].sha256, content: rows[0].content } : null;
 }
+
+/** The case's return: amount per line code (repeatable lines summed), as exact decimal text. */
+export async function findReturnLineTotals(db: Db, caseId: string): Promise<Map<string, string>> {
+  const rows = await db.query(
+    `SELECT l.line_code, sum(l.amount)::text AS total FROM exam_case c JOIN line_item l ON l.return_id = c.return_id WHERE c.id = $1 GROUP BY l.line_code`,
+    [caseId],
+  );
+  return new Map(rows.map((r: { line_code: string; total: string }) => [r.line_code, r.total]));
+}

@@ -1,15 +1,16 @@
 import type { DataSource } from 'typeorm';
-import { SaveAnalysisRequestSchema } from '../../shared/analyses';
+import { ReconciliationRequestSchema, SaveAnalysisRequestSchema } from '../../shared/analyses';
 import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
-import { caseAnalysisPdf, listCaseAnalyses, saveCaseAnalysis } from './case-analyses.service';
+import { caseAnalysisPdf, listCaseAnalyses, reconcileLedger, saveCaseAnalysis } from './case-analyses.service';
 
 /**
  * Working papers kept with a case (issue 15):
  * `POST /api/cases/:id/analyses` runs and saves a digit analysis of a reply file's column;
  * `GET /api/cases/:id/analyses` lists them; `GET /api/cases/:id/analyses/:analysisId/pdf` is
- * the PDF working paper. Saved analyses are never changed.
+ * the PDF working paper. Saved analyses are never changed. `POST /api/cases/:id/reconciliation`
+ * sets a received ledger's totals per category (mapped to line codes) beside the return.
  */
 export function caseAnalysesRoutes({ dataSource: ds }: { dataSource: DataSource }) {
   const r = secureRouter();
@@ -26,6 +27,10 @@ export function caseAnalysesRoutes({ dataSource: ds }: { dataSource: DataSource 
     res.setHeader('Content-Type', 'application/pdf');
     res.setHeader('Content-Disposition', `attachment; filename="${fileName}"`);
     res.send(pdf);
+  });
+  r.post('/cases/:id/reconciliation', allow('analyse'), validate(ReconciliationRequestSchema), async (req, res) => {
+    res.setHeader('Cache-Control', 'no-store');
+    res.json(await reconcileLedger(ds, staffAuditOf(req), String(req.params.id), req.body));
   });
   return r;
 }

@@ -12,7 +12,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { Client } from 'pg';
 import request from 'supertest';
-import { SavedAnalysisListSchema, SavedAnalysisSchema } from '../../shared/analyses';
+import { ReconciliationSchema, SavedAnalysisListSchema, SavedAnalysisSchema } from '../../shared/analyses';
 import { digitResultSchema } from '../../shared/digits';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { caseInReview, dueIn, uniqueAddress } from '../helpers/letter-cases';
@@ -36,6 +36,7 @@ describe('case analyses (working papers)', () => {
   let caseId: string;
   let uploadId: string;
   let pdfUploadId: string;
+  let token: string;
 
   beforeAll(async () => {
     ctx = await createTestContext();
@@ -49,7 +50,7 @@ describe('case analyses (working papers)', () => {
       .send({ items: ['The ledger of 2025 as a spreadsheet'], dueDate: dueIn(21), email: to });
     expect(sent.status).toBe(201);
     const mail = await waitForMail(to);
-    const token = /\/reply\/([A-Za-z0-9_-]{43})/.exec(mail.text ?? '')![1];
+    token = /\/reply\/([A-Za-z0-9_-]{43})/.exec(mail.text ?? '')![1];
     // The taxpayer's reply through the public route: the ledger as CSV and a PDF beside it.
     const reply = await request(ctx.app)
       .post(`/api/replies/${token}`)
@@ -150,5 +151,57 @@ describe('case analyses (working papers)', () => {
     const col = await examiner.agent.post(`/api/cases/${caseId}/analyses`).set('X-CSRF-Token', examiner.csrf).send({ source: { uploadId }, column: 'total' });
     expect(col.status).toBe(422);
     expect(col.body.error).toMatch(/no column "total"/);
+  });
+
+  it('reconciles a ledger with the return: a known difference per mapped line code', async () => {
+    // The return's own amounts per line code, read from the database (the fixture's truth).
+    const lines: { line_code: string; total: string }[] = await ctx.dataSource.query(
+      `SELECT l.line_code, sum(l.amount)::text AS total FROM exam_case c JOIN line_item l ON l.return_id = c.return_id WHERE c.id = $1 GROUP BY l.line_code ORDER BY l.line_code`,
+      [caseId],
+    );
+    expect(lines.length).toBeGreaterThanOrEqual(2);
+    const [a, b] = lines;
+    const cents = (t: string) => Math.round(Number(t) * 100);
+    const money = (c: number) => (c / 100).toFixed(2);
+    // Line a: two categories that add up to the reported amount plus 123.45; line b: exactly
+    // the reported amount; one category left unmapped.
+    const aTotal = cents(a.total) + 12345;
+    const aFirst = Math.floor(aTotal / 3);
+    const csv = `category,amount\nsales-north,${money(aFirst)}\nsales-south,${money(aTotal - aFirst)}\nfuel,${b.total}\nsundry,40.00\n`;
+    const sent = await request(ctx.app)
+      .post(`/api/replies/${token}`)
+      .attach('files', Buffer.from(csv), { filename: 'ledger-by-category.csv', contentType: 'text/csv' });
+    expect(sent.status).toBeLessThan(300);
+    const rows = await ctx.dataSource.query(
+      `SELECT u.id FROM reply_upload u JOIN document_request d ON d.id = u.document_request_id WHERE d.case_id = $1 AND u.file_name = 'ledger-by-category.csv'`,
+      [caseId],
+    );
+    const res = await examiner.agent
+      .post(`/api/cases/${caseId}/reconciliation`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({
+        source: { uploadId: rows[0].id },
+        column: 'amount',
+        by: 'category',
+        mapping: { 'sales-north': a.line_code, 'sales-south': a.line_code, fuel: b.line_code },
+      });
+    expect(res.status).toBe(200);
+    const r = ReconciliationSchema.parse(res.body);
+    const byCode = Object.fromEntries(r.rows.map((x) => [x.lineCode, x]));
+    expect(byCode[a.line_code]).toMatchObject({
+      categories: ['sales-north', 'sales-south'],
+      ledgerTotal: money(aTotal),
+      reported: money(cents(a.total)),
+      difference: '123.45',
+    });
+    expect(byCode[b.line_code]).toMatchObject({ categories: ['fuel'], difference: '0.00' });
+    expect(r.unmapped).toEqual([{ category: 'sundry', total: '40.00' }]);
+
+    const bad = await examiner.agent
+      .post(`/api/cases/${caseId}/reconciliation`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ source: { uploadId: rows[0].id }, column: 'amount', by: 'category', mapping: { rent: a.line_code } });
+    expect(bad.status).toBe(422);
+    expect(bad.body.error).toMatch(/no category "rent"/);
   });
 });

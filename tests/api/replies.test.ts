@@ -82,7 +82,7 @@ describe('reply links', () => {
         maxFiles: REPLY_MAX_FILES,
         maxFileBytes: REPLY_MAX_FILE_BYTES,
         maxTotalBytes: expect.any(Number),
-        types: ['application/pdf', 'image/jpeg', 'image/png'],
+        types: ['application/pdf', 'image/jpeg', 'image/png', 'text/csv', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet'],
       },
     });
     const raw = JSON.stringify(res.body);
