@@ -327,7 +327,10 @@ export const API_ROUTES: readonly ApiRoute[] = [
     tag: 'analyses',
     summary: "Run a digit analysis of a reply file's column and keep it with the case (never changed afterwards)",
     body: SaveAnalysisRequestSchema,
-    responses: { 201: json(SavedAnalysisSchema, 'The saved working paper; result is the JSON of npm run digits -- --json.'), 404: error('No such case or reply file.') },
+    responses: {
+      201: json(SavedAnalysisSchema, 'The saved working paper; result is the JSON of npm run digits -- --json.'),
+      404: error('No such case or reply file.'),
+    },
   },
   {
     method: 'get',
@@ -352,7 +355,10 @@ export const API_ROUTES: readonly ApiRoute[] = [
     tag: 'analyses',
     summary: "A received ledger's totals per category, mapped to line codes, beside the amounts the return reports",
     body: ReconciliationRequestSchema,
-    responses: { 200: json(ReconciliationSchema, 'One row per mapped line code with the difference; unmapped categories apart.'), 404: error('No such case or reply file.') },
+    responses: {
+      200: json(ReconciliationSchema, 'One row per mapped line code with the difference; unmapped categories apart.'),
+      404: error('No such case or reply file.'),
+    },
   },
 
   // server/scoring/scoring-profile.routes.ts
