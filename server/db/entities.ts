@@ -19,7 +19,6 @@ import { Letter } from '../letters/letter.entity';
 import { ReplyUpload } from '../letters/reply-upload.entity';
 import { CaseAttention } from '../cases/case-attention.entity';
 import { SavedViewRecord } from '../saved-views/saved-view.entity';
-import { CaseAnalysis } from '../analyses/case-analysis.entity';
 
 export const entities = [
   User,
@@ -42,5 +41,4 @@ export const entities = [
   ReplyUpload,
   CaseAttention,
   SavedViewRecord,
-  CaseAnalysis,
 ];

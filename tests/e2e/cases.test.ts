@@ -131,11 +131,20 @@ describe('case work (browser)', () => {
       await page.getByTestId('close-preview').click();
       await page.getByText('Say in a sentence what was found or why the case moves on').waitFor();
       await page.getByTestId('close-outcome').fill('Business receipts understated against bank deposits.');
-      await page.getByTestId('close-line-inc.business.receipts').fill('1,250');
+      await page.getByTestId('close-line-inc.wages').fill('1,250');
       await page.getByText('Give the corrected amount as a number of 0 or more with at most 2 decimals, e.g. 1250.00').first().waitFor();
-      await page.getByTestId('close-line-inc.business.receipts').fill('900000.00');
+      // Wages far above any fixture return's income and losses: the tax surely changes.
+      await page.getByTestId('close-line-inc.wages').fill('99999999.00');
+      await waitForText(page.getByTestId('close-tax-difference'), /^Adjusted amount: \+/);
+      await page.getByTestId('close-figures').scrollIntoViewIfNeeded();
       await page.getByTestId('close-preview').click();
-      await page.getByTestId('close-letter-preview').waitFor();
+      await page
+        .getByTestId('close-letter-preview')
+        .waitFor()
+        .catch(async (e) => {
+          await screenshot(page, `debug-close-preview-${name}`);
+          throw e;
+        });
       await page.getByTestId('close-submit').click();
       await page.getByTestId('close-confirm-confirm').click();
       await waitForText(page.getByTestId('case-state'), 'Closed, adjusted', { exact: true });

@@ -5,10 +5,9 @@ import { View } from 'react-native';
 import { space } from '../../theme';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
-import { CaseAnalyses } from '../analyses/case-analyses';
 import { LettersPanel } from '../letters/letters-panel';
 import { isFinalState, type CaseState } from '../../../shared/cases';
-import { CaseActionBar, jumpTo, type CasePart } from './case-action-bar';
+import { CaseActionBar, type CasePart } from './case-action-bar';
 import { CaseActions, type ClosingMove } from './case-actions';
 import { CaseDigits, CaseFactors, CaseLines } from './case-evidence';
 import { CaseCaution, CaseHeader, CaseScoreSummary } from './case-header';
@@ -71,14 +70,11 @@ export function CaseScreen() {
     );
   }
   const d = c.data;
-  const next =
-    finishedHere === d.id && isFinalState(d.state) ? (
-      <CaseNext caseId={d.id} state={d.state} trail={trail} onShown={() => requestAnimationFrame(() => jumpTo('actions'))} />
-    ) : null;
+  const next = finishedHere === d.id && isFinalState(d.state) ? <CaseNext caseId={d.id} state={d.state} trail={trail} /> : null;
   const actions = (
     <Part name="actions">
-      {next}
       <CaseCaution />
+      {next}
       {notice && !next && (
         <Txt tone="ok" accessibilityRole="alert" testID="case-notice">
           {notice}
@@ -91,7 +87,6 @@ export function CaseScreen() {
     <Part name="letters">
       {/* LettersPanel: mounted by the letters feature (components/features/letters/letters-panel.tsx) */}
       <LettersPanel caseId={d.id} state={d.state} canAct={d.actions.canAct} />
-      <CaseAnalyses caseId={d.id} canAct={d.actions.canAct} />
     </Part>
   );
   const why = (
