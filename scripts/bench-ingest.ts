@@ -1,11 +1,12 @@
 /**
- * `npm run bench:ingest [-- --returns 25000 --lines 1000000 --runs 2 --xlsx-lines 100000]`
+ * `npm run bench:ingest [-- --returns 25000 --lines 1000000 --runs 2 --xlsx-lines 100000 --json]`
  *
  * Generates an Aldermere batch of about 25,000 returns and 1,000,000 line items as CSV,
  * loads it through the intake service exactly as `POST /api/batches` does (file checks,
  * SHA-256, csv-parse, zod validation of every row, one transaction, COPY into the indexed
  * tables, totals), and in the same run loads the same three files with plain COPY into
- * unindexed tables. Prints both times, the ratio and the peak memory of the ingest.
+ * unindexed tables. Prints both times, the ratio and the peak memory of the ingest; with
+ * `--json` the last line is one JSON object with the figures.
  *
  * Runs on the start command's PostgreSQL (127.0.0.1:54329) in a throw-away database
  * `plumbline_bench`; starts the cluster if needed and stops it again only if it started it.
@@ -212,6 +213,21 @@ async function main() {
       '',
     ].join('\n'),
   );
+  if (process.argv.includes('--json')) {
+    const copyMs = median(results.map((r) => r.copyMs));
+    const ingestMs = median(results.map((r) => r.ingestMs));
+    console.log(
+      JSON.stringify({
+        returns: counts.returns,
+        lineItems: counts.lineItems,
+        runs,
+        copySeconds: Math.round(copyMs) / 1000,
+        ingestSeconds: Math.round(ingestMs) / 1000,
+        ratio: Math.round((ingestMs / copyMs) * 100) / 100,
+        peakRssMb: Math.round(Math.max(...results.map((r) => r.peakRss)) / 1024 / 1024),
+      }),
+    );
+  }
 }
 
 main().then(

@@ -1,5 +1,5 @@
 /**
- * `npm run bench:queue [-- --cases 100000 --clients 32 --seconds 15 --pages 40]`
+ * `npm run bench:queue [-- --cases 100000 --clients 32 --seconds 15 --pages 40 --json]`
  *
  * The examination queue under load: a throw-away database with 100,000 cases (filled with
  * SQL generate_series: taxpayers, one batch, returns, scores, cases and their 'opened'
@@ -344,6 +344,10 @@ async function main() {
         '',
       ].join('\n'),
     );
+    if (process.argv.includes('--json')) {
+      // The issue-16 shape: p95 by size, so runs at several --cases can be set side by side.
+      console.log(JSON.stringify({ cases, clients, seconds, p95Ms: { [cases]: queue.p95 }, healthP95Ms: healthFig.p95, aloneP95Ms: alone.p95 }));
+    }
   } finally {
     if (server) await stopProcess(server);
     if (mail) await stopProcess(mail);

@@ -1,11 +1,12 @@
 /**
- * `npm run bench:scoring [-- --returns 25000 --lines 1000000]`
+ * `npm run bench:scoring [-- --returns 25000 --lines 1000000 --json]`
  *
  * Scoring throughput: generates an Aldermere batch of about 25,000 returns and 1,000,000
  * line items, loads it through the intake service (timed, for comparison), then scores it
- * with real worker processes taking pg-boss jobs: once with one worker (profile version 1),
- * once with two workers (a copy of the profile as version 2, so the same returns are scored
- * again from scratch). Prints returns per second for each and the ratio.
+ * with real worker processes taking pg-boss jobs: once with one worker (the active profile),
+ * once with two workers (a copy of the active profile as the next version, so the same
+ * returns are scored again from scratch). Prints returns per second for each and the ratio;
+ * with `--json` the last line is one JSON object with the figures.
  * A benchmark: it prints, it does not fail.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -81,7 +82,13 @@ async function main() {
   const boss = createBoss(db.url, 'server');
   await boss.start();
   await ensureQueues(boss);
-  await db.ds.query(`INSERT INTO scoring_profile (version, settings, note) SELECT 2, settings, 'bench copy' FROM scoring_profile WHERE version = 1`);
+  // The active profile (what an office scores with), and an inactive copy of it as the next
+  // version for the second run.
+  const [{ active, copy }] = await db.ds.query(
+    `INSERT INTO scoring_profile (version, settings, note, active)
+     SELECT (SELECT max(version) + 1 FROM scoring_profile), settings, 'bench copy', false FROM scoring_profile WHERE active
+     RETURNING (SELECT version FROM scoring_profile WHERE active) AS active, version AS copy`,
+  );
 
   const timeRun = async (version: number, workers: number) => {
     const procs: ChildProcess[] = [];
@@ -101,8 +108,8 @@ async function main() {
     await Promise.all(procs.map((p) => new Promise((res) => (p.exitCode !== null ? res(null) : p.on('exit', res)))));
     return ms;
   };
-  const one = await timeRun(1, 1);
-  const two = await timeRun(2, 2);
+  const one = await timeRun(active, 1);
+  const two = await timeRun(copy, 2);
   const [{ n }] = await db.ds.query(`SELECT count(*)::int AS n FROM return_score WHERE batch_id = $1`, [batchId]);
   console.log('');
   console.log(`Scoring ${returns.toLocaleString('en-GB')} returns / ${w.counts.lineItems.toLocaleString('en-GB')} line items (return_score rows: ${n})`);
@@ -110,6 +117,21 @@ async function main() {
   console.log(`  one worker               ${secs(one)}  ${Math.round(returns / (one / 1000)).toLocaleString('en-GB')} returns/s`);
   console.log(`  two workers              ${secs(two)}  ${Math.round(returns / (two / 1000)).toLocaleString('en-GB')} returns/s`);
   console.log(`  two / one                ${(one / two).toFixed(2)}×   scoring / ingest (one worker) ${(one / ingestMs).toFixed(2)}`);
+  console.log(`  profile                  version ${active} (two workers: its copy, version ${copy})`);
+  if (process.argv.includes('--json')) {
+    const s3 = (ms: number) => Math.round(ms) / 1000;
+    console.log(
+      JSON.stringify({
+        returns: w.counts.returns,
+        lineItems: w.counts.lineItems,
+        profileVersion: active,
+        ingestSeconds: s3(ingestMs),
+        oneWorkerSeconds: s3(one),
+        twoWorkerSeconds: s3(two),
+        twoOverOne: Math.round((one / two) * 100) / 100,
+      }),
+    );
+  }
   await boss.stop({ graceful: false, wait: true });
   await db.close();
   releaseBenchCluster();

@@ -10,6 +10,7 @@ import type { AppDeps } from './app-deps';
 import { accessLogRoutes } from './access-log/access-log.routes';
 import { auditContext } from './access-log/audit-context';
 import { analysesRoutes } from './analyses/analyses.routes';
+import { caseAnalysesRoutes } from './analyses/case-analyses.routes';
 import { scoringProfileRoutes } from './scoring/scoring-profile.routes';
 import { authRoutes } from './auth/auth.routes';
 import { batchRoutes } from './batches/batch.routes';
@@ -68,6 +69,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(userRoutes({ dataSource, throttle }));
   api.use(accessLogRoutes({ dataSource }));
   api.use(analysesRoutes());
+  api.use(caseAnalysesRoutes({ dataSource }));
   api.use(scoringProfileRoutes({ dataSource, boss }));
   api.use(batchRoutes({ config, dataSource, boss }));
   api.use(caseRoutes({ dataSource, letters: { dataSource, mailer, publicUrl: config.publicUrl } }));

@@ -68,12 +68,18 @@ export function TopBar({ children }: { children: ReactNode }) {
 function PhoneNavRow({ links, activeIndex }: { links: ReactNode[]; activeIndex: number }) {
   const scroller = useRef<ScrollView>(null);
   const [box, setBox] = useState({ x: 0, view: 0, content: 0 });
-  const [activeX, setActiveX] = useState<number | null>(null);
+  // Where each entry starts in the row: layout events come only on mount and resize, so all are
+  // kept, and the current one is looked up when the page (and so the current entry) changes.
+  const [xs, setXs] = useState<number[]>([]);
+  const activeX = activeIndex >= 0 ? (xs[activeIndex] ?? null) : null;
   const more = box.content - box.view - box.x > 4;
   const before = box.x > 4;
+  // Once the row's width, its content's width and the entry's place are all known (they arrive
+  // in any order), scroll so the current entry shows.
   useEffect(() => {
-    if (activeX !== null && box.view > 0 && activeX > box.view * 0.6) scroller.current?.scrollTo({ x: Math.max(0, activeX - 24), animated: false });
-  }, [activeX, box.view]);
+    if (activeX !== null && box.view > 0 && box.content > box.view && activeX > box.view * 0.6)
+      scroller.current?.scrollTo({ x: Math.min(box.content - box.view, Math.max(0, activeX - 24)), animated: false });
+  }, [activeX, box.view, box.content]);
   const onScroll = (e: NativeSyntheticEvent<NativeScrollEvent>) => {
     const x = e.nativeEvent.contentOffset.x;
     setBox((b) => ({ ...b, x }));
@@ -123,7 +129,17 @@ function PhoneNavRow({ links, activeIndex }: { links: ReactNode[]; activeIndex: 
         contentContainerStyle={{ paddingHorizontal: space.sm, paddingVertical: space.xs, gap: space.xs }}
       >
         {links.map((l, i) => (
-          <View key={i} onLayout={i === activeIndex ? (e) => setActiveX(e.nativeEvent.layout.x) : undefined}>
+          <View
+            key={i}
+            onLayout={(e) => {
+              const x = e.nativeEvent.layout.x;
+              setXs((old) => {
+                const next = [...old];
+                next[i] = x;
+                return next;
+              });
+            }}
+          >
             {l}
           </View>
         ))}

@@ -9,6 +9,7 @@ import { HttpError } from '../http/errors';
 import { CapError, DEFAULT_READ_CAPS, EXCEL_MAX_ROWS, type ReadCaps } from '../batches/intake/caps';
 import { sniff } from '../batches/intake/sources';
 import { readAmountsInThread, ReaderDiedError } from '../batches/intake/upload-worker';
+import type { AmountFileResult } from './amount-file';
 
 /**
  * Reading caps of an amounts file: one Excel sheet's rows; the rest as for any upload
@@ -49,6 +50,20 @@ async function firstBytes(file: string): Promise<Buffer> {
  *   413 for a file over a reading limit (the message names it and how to split the file)
  */
 export async function analyseFile(storedPath: string, originalName: string, column: string | null, caps: ReadCaps = AMOUNT_FILE_CAPS): Promise<DigitProfile> {
+  return profileColumn(await readColumn(storedPath, originalName, column, null, caps));
+}
+
+/**
+ * Reads a column of an uploaded file (and its split column) in the reading thread, with the
+ * errors a person should read as HttpErrors naming the file as its sender knows it.
+ */
+export async function readColumn(
+  storedPath: string,
+  originalName: string,
+  column: string | null,
+  by: string | null,
+  caps: ReadCaps = AMOUNT_FILE_CAPS,
+): Promise<AmountFileResult> {
   const ext = path.extname(originalName).toLowerCase();
   const kind = ext === '.csv' ? 'csv' : ext === '.xlsx' ? 'xlsx' : ext === '.txt' || ext === '' ? 'text' : null;
   if (!kind) throw new HttpError(422, `"${originalName}" is not a .txt, .csv or .xlsx file. Save the amounts in one of those formats.`);
@@ -74,8 +89,7 @@ export async function analyseFile(storedPath: string, originalName: string, colu
     return m.startsWith(originalName) ? m : `${originalName}: ${m}`;
   };
   try {
-    const { cents, wide } = await readAmountsInThread(storedPath, column, kind, caps);
-    return profileColumn({ cents, wide });
+    return await readAmountsInThread(storedPath, column, kind, caps, by);
   } catch (e) {
     if (e instanceof CapError) throw new HttpError(413, named(e.message), { limit: e.cap });
     if (e instanceof ReaderDiedError) throw new HttpError(e.reason === 'memory' ? 413 : 422, named(e.message));

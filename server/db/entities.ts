@@ -19,6 +19,7 @@ import { Letter } from '../letters/letter.entity';
 import { ReplyUpload } from '../letters/reply-upload.entity';
 import { CaseAttention } from '../cases/case-attention.entity';
 import { SavedViewRecord } from '../saved-views/saved-view.entity';
+import { CaseAnalysis } from '../analyses/case-analysis.entity';
 
 export const entities = [
   User,
@@ -41,4 +42,5 @@ export const entities = [
   ReplyUpload,
   CaseAttention,
   SavedViewRecord,
+  CaseAnalysis,
 ];

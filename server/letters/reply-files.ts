@@ -24,15 +24,48 @@ export interface CheckedFile {
   bytes: Buffer;
 }
 
-/** The type a file's signature shows: PDF "%PDF-", JPEG FF D8 FF, PNG's 8-byte signature. */
+const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
+
+/**
+ * The type a file's content shows: PDF "%PDF-", JPEG FF D8 FF, PNG's 8-byte signature; an
+ * XLSX workbook is a ZIP ("PK\x03\x04") whose entries include [Content_Types].xml and
+ * xl/workbook.xml; a CSV is UTF-8 text without control characters (tabs and line breaks
+ * aside) whose first line has a comma, semicolon or tab and which is not markup.
+ */
 export function sniffType(bytes: Buffer): ReplyFileType | null {
   if (bytes.length >= 5 && bytes.subarray(0, 5).toString('latin1') === '%PDF-') return 'application/pdf';
   if (bytes.length >= 3 && bytes[0] === 0xff && bytes[1] === 0xd8 && bytes[2] === 0xff) return 'image/jpeg';
   if (bytes.length >= 8 && bytes.subarray(0, 8).equals(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]))) return 'image/png';
-  return null;
+  if (bytes.length >= 4 && bytes.subarray(0, 4).equals(Buffer.from([0x50, 0x4b, 0x03, 0x04]))) {
+    return bytes.includes('[Content_Types].xml') && bytes.includes('xl/workbook.xml') ? XLSX_TYPE : null;
+  }
+  return looksLikeCsv(bytes) ? 'text/csv' : null;
 }
 
-const EXTENSION: Record<ReplyFileType, string> = { 'application/pdf': '.pdf', 'image/jpeg': '.jpg', 'image/png': '.png' };
+function looksLikeCsv(bytes: Buffer): boolean {
+  let text: string;
+  try {
+    text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
+  } catch {
+    return false;
+  }
+  text = text.replace(/^\uFEFF/, '');
+  if (/[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]/.test(text)) return false;
+  if (/^\s*</.test(text)) return false; // a web page or XML, not a table
+  const first = text.split(/\r?\n/, 1)[0];
+  return /[,;\t]/.test(first);
+}
+
+const EXTENSION: Record<ReplyFileType, string> = {
+  'application/pdf': '.pdf',
+  'image/jpeg': '.jpg',
+  'image/png': '.png',
+  'text/csv': '.csv',
+  [XLSX_TYPE]: '.xlsx',
+};
+
+/** What browsers and mail programs may call a CSV file; its content is what counts. */
+const CSV_DECLARED = ['text/plain', 'application/csv', 'application/vnd.ms-excel', 'text/comma-separated-values'];
 
 /**
  * The name as sent, reduced to its last path segment without control or quote characters;
@@ -82,10 +115,13 @@ export function checkReplyFiles(files: readonly IncomingFile[]): CheckedFile[] {
     if (f.bytes.length === 0) return void problems.push(`${shown} is empty.`);
     if (f.bytes.length > REPLY_MAX_FILE_BYTES) return void problems.push(`${shown} is larger than ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB.`);
     const type = sniffType(f.bytes);
-    if (!type) return void problems.push(`${shown} is not a PDF, JPEG or PNG file.`);
-    if (f.declaredType && f.declaredType !== 'application/octet-stream' && !(REPLY_FILE_TYPES as readonly string[]).includes(f.declaredType)) {
-      return void problems.push(`${shown} was sent as ${f.declaredType}; send PDF, JPEG or PNG files only.`);
-    }
+    if (!type) return void problems.push(`${shown} is not a PDF, JPEG, PNG, CSV or XLSX file.`);
+    const declaredOk =
+      !f.declaredType ||
+      f.declaredType === 'application/octet-stream' ||
+      (REPLY_FILE_TYPES as readonly string[]).includes(f.declaredType) ||
+      (type === 'text/csv' && CSV_DECLARED.includes(f.declaredType));
+    if (!declaredOk) return void problems.push(`${shown} was sent as ${f.declaredType}; send PDF, JPEG, PNG, CSV or XLSX files only.`);
     out.push({
       fileName: cleanFileName(f.originalName, type, i),
       contentType: type,

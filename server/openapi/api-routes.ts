@@ -8,7 +8,14 @@
  * decides (shared/permissions.ts), and the document only says whether a session is needed.
  */
 import { z } from 'zod';
-import { DigitAnalysisRequestSchema } from '../../shared/analyses';
+import {
+  DigitAnalysisRequestSchema,
+  ReconciliationRequestSchema,
+  ReconciliationSchema,
+  SaveAnalysisRequestSchema,
+  SavedAnalysisListSchema,
+  SavedAnalysisSchema,
+} from '../../shared/analyses';
 import { AccessLogExportQuerySchema, AccessLogPageSchema, AccessLogQuerySchema } from '../../shared/access-log';
 import { LoginRequestSchema, SessionResponseSchema } from '../../shared/auth';
 import {
@@ -79,6 +86,9 @@ export const COMPONENTS = {
   UserList: UserListSchema,
   AccessLogPage: AccessLogPageSchema,
   DigitProfile: digitProfileSchema,
+  SavedAnalysis: SavedAnalysisSchema,
+  SavedAnalysisList: SavedAnalysisListSchema,
+  Reconciliation: ReconciliationSchema,
   ProfileVersion: ProfileVersionSchema,
   ProfileList: ProfileListSchema,
   Performance: PerformanceSchema,
@@ -307,6 +317,48 @@ export const API_ROUTES: readonly ApiRoute[] = [
       },
     },
     responses: { 200: json(digitProfileSchema, 'The digit profile.'), 413: error('The file is over the size or reading limit.') },
+  },
+
+  // server/analyses/case-analyses.routes.ts
+  {
+    method: 'post',
+    path: '/api/cases/:id/analyses',
+    operationId: 'saveCaseAnalysis',
+    tag: 'analyses',
+    summary: "Run a digit analysis of a reply file's column and keep it with the case (never changed afterwards)",
+    body: SaveAnalysisRequestSchema,
+    responses: {
+      201: json(SavedAnalysisSchema, 'The saved working paper; result is the JSON of npm run digits -- --json.'),
+      404: error('No such case or reply file.'),
+    },
+  },
+  {
+    method: 'get',
+    path: '/api/cases/:id/analyses',
+    operationId: 'listCaseAnalyses',
+    tag: 'analyses',
+    summary: 'The digit analyses kept with a case, oldest first',
+    responses: { 200: json(SavedAnalysisListSchema, 'The working papers.') },
+  },
+  {
+    method: 'get',
+    path: '/api/cases/:id/analyses/:analysisId/pdf',
+    operationId: 'getCaseAnalysisPdf',
+    tag: 'analyses',
+    summary: 'A saved digit analysis as a PDF working paper',
+    responses: { 200: file(['application/pdf'], 'The PDF.'), 404: error('No such analysis on this case.') },
+  },
+  {
+    method: 'post',
+    path: '/api/cases/:id/reconciliation',
+    operationId: 'reconcileLedger',
+    tag: 'analyses',
+    summary: "A received ledger's totals per category, mapped to line codes, beside the amounts the return reports",
+    body: ReconciliationRequestSchema,
+    responses: {
+      200: json(ReconciliationSchema, 'One row per mapped line code with the difference; unmapped categories apart.'),
+      404: error('No such case or reply file.'),
+    },
   },
 
   // server/scoring/scoring-profile.routes.ts

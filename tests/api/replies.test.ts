@@ -82,7 +82,7 @@ describe('reply links', () => {
         maxFiles: REPLY_MAX_FILES,
         maxFileBytes: REPLY_MAX_FILE_BYTES,
         maxTotalBytes: expect.any(Number),
-        types: ['application/pdf', 'image/jpeg', 'image/png'],
+        types: ['application/pdf', 'image/jpeg', 'image/png', 'text/csv', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet'],
       },
     });
     const raw = JSON.stringify(res.body);
@@ -215,11 +215,11 @@ describe('reply links', () => {
 
     const html = await upload(token, [{ name: 'statement.pdf', bytes: Buffer.from('<html><script>alert(1)</script></html>'), type: 'application/pdf' }]);
     expect(html.status).toBe(422);
-    expect(html.body.error).toBe('statement.pdf is not a PDF, JPEG or PNG file.');
+    expect(html.body.error).toBe('statement.pdf is not a PDF, JPEG, PNG, CSV or XLSX file.');
 
     const gif = await upload(token, [{ name: 'scan.gif', bytes: PNG, type: 'image/gif' }]);
     expect(gif.status).toBe(422);
-    expect(gif.body.error).toMatch(/send PDF, JPEG or PNG files only/);
+    expect(gif.body.error).toMatch(/send PDF, JPEG, PNG, CSV or XLSX files only/);
 
     const empty = await upload(token, [{ name: 'empty.pdf', bytes: Buffer.alloc(0), type: 'application/pdf' }]);
     expect(empty.status).toBe(422);
@@ -230,7 +230,7 @@ describe('reply links', () => {
       { name: 'tool.exe', bytes: Buffer.from('MZ\x90\x00 not a document'), type: 'application/octet-stream' },
     ]);
     expect(mixed.status).toBe(422);
-    expect(mixed.body.problems).toEqual(['tool.exe is not a PDF, JPEG or PNG file.']);
+    expect(mixed.body.problems).toEqual(['tool.exe is not a PDF, JPEG, PNG, CSV or XLSX file.']);
 
     const big = await upload(token, [{ name: 'huge.pdf', bytes: Buffer.concat([PDF, Buffer.alloc(REPLY_MAX_FILE_BYTES)]), type: 'application/pdf' }]);
     expect(big.status).toBe(413);
@@ -313,7 +313,7 @@ describe('reply links', () => {
       { filename: '..', type: 'application/octet-stream', bytes: Buffer.from('MZ not a document') },
     ]);
     expect(refused.status).toBe(422);
-    expect(refused.body.problems).toEqual(['File 2 is not a PDF, JPEG or PNG file.']);
+    expect(refused.body.problems).toEqual(['File 2 is not a PDF, JPEG, PNG, CSV or XLSX file.']);
     expect(await count()).toBe(0);
     expect(await state()).toBe('sent');
 

@@ -89,6 +89,13 @@ describe('safe case actions (browser)', () => {
         const box = await bar.boundingBox();
         expect(box!.y + box!.height).toBeLessThan(viewport.height);
         await screenshot(page, `case-actions-bar-${name}`);
+        // How far down the page the Actions and Letters start, and how tall the whole page is.
+        const layout = await page.evaluate(() => {
+          const main = document.querySelector('main')!;
+          const top = (id: string) => Math.round(document.getElementById(id)!.getBoundingClientRect().top - main.getBoundingClientRect().top + main.scrollTop);
+          return { actions: top('case-part-actions'), letters: top('case-part-letters'), page: main.scrollHeight };
+        });
+        console.log(`case screen at ${viewport.width}×${viewport.height}: ${JSON.stringify(layout)}`);
       }
       await act(page, 'bar-claim', 'case-claim');
       await waitForText(page.getByTestId('case-state'), 'Assigned', { exact: true });
@@ -147,6 +154,10 @@ describe('safe case actions (browser)', () => {
       await waitForText(page.getByTestId('case-next-done'), 'The case is closed, no change.', { exact: true });
       // The next case is the one that followed it in the open-by-priority view.
       await waitForText(page.getByTestId('case-next-which'), new RegExp(`^Next in the queue: ${refs[1]}, `));
+      // The notice and its button are brought into view, wherever the closing form was.
+      const nextBox = (await page.getByTestId('case-next-open').boundingBox())!;
+      expect(nextBox.y).toBeGreaterThanOrEqual(0);
+      expect(nextBox.y + nextBox.height).toBeLessThanOrEqual(viewport.height);
       await screenshot(page, `case-closed-next-${name}`);
       closed[name] = { url: caseUrl, ref: refs[0] };
 

@@ -72,8 +72,10 @@ describe('my cases, search and saved views (browser)', () => {
   }
 
   const rowPrefix = (wide: boolean) => (wide ? 'queue-row-' : 'queue-card-');
+  /** The queue's rows or cards (not the deadline labels inside them, whose ids share the prefix). */
+  const rowsSelector = (wide: boolean) => `[data-testid^="${rowPrefix(wide)}"]:not([data-testid*="-deadline-"])`;
   const listedRefs = async (page: Page, wide: boolean) =>
-    page.$$eval(`[data-testid^="${rowPrefix(wide)}"]`, (els, prefix) => els.map((e) => e.getAttribute('data-testid')!.slice(prefix.length)), rowPrefix(wide));
+    page.$$eval(rowsSelector(wide), (els, prefix) => els.map((e) => e.getAttribute('data-testid')!.slice(prefix.length)), rowPrefix(wide));
 
   /** Waits for the queue to have answered for the current address (the previous page may still show). */
   async function queueSettled(page: Page) {
@@ -118,7 +120,7 @@ describe('my cases, search and saved views (browser)', () => {
 
       // Only the examiner's own cases being worked, and the reply flagged on its row.
       await waitForText(page.getByTestId('queue-total'), new RegExp(`of ${mine.length} cases? being worked`));
-      await waitForCount(page.locator(`[data-testid^="${rowPrefix(wide)}"]`), mine.length);
+      await waitForCount(page.locator(rowsSelector(wide)), mine.length);
       expect((await listedRefs(page, wide)).sort()).toEqual([...mine].sort());
       await page.getByTestId(`reply-flag-${replied.ref}`).waitFor();
       await waitForText(page.getByTestId('needs-reply-count'), /^[1-9]\d*$/);
@@ -132,16 +134,25 @@ describe('my cases, search and saved views (browser)', () => {
       // "Replies received" narrows to the replied case; opening it clears the flag.
       await page.getByTestId('needs-reply').click();
       await page.waitForURL(/needs=reply/);
-      await waitForCount(page.locator(`[data-testid^="${rowPrefix(wide)}"]`), 1);
+      await page.waitForFunction(
+        ([rows, ref]) => {
+          const listed = Array.from(document.querySelectorAll(rows));
+          const flagged = document.querySelectorAll('[data-testid^="reply-flag-"]').length;
+          return listed.length === flagged && !!document.querySelector(`[data-testid="reply-flag-${ref}"]`);
+        },
+        [rowsSelector(wide), replied.ref],
+      );
       await page.getByTestId(`${rowPrefix(wide)}${replied.ref}`).click();
       await page.waitForURL(/\/cases\/[0-9a-f-]{36}$/);
       await page.getByTestId('case-screen').waitFor();
+      // The case says what is new, on this first opening by its examiner.
+      await waitForText(page.getByTestId('case-reply-flag'), 'New reply from the taxpayer');
       // A case page belongs to the queue: the menu marks it.
       await waitForAttribute(page.getByTestId('nav-queue'), 'aria-current', 'page');
       await screenshot(page, `my-cases-case-frame-${name}`);
       await page.goto(s.server.baseUrl + '/queue', { waitUntil: 'networkidle' });
       await page.getByRole('heading', { name: 'My cases' }).waitFor();
-      await waitForCount(page.locator(`[data-testid^="${rowPrefix(wide)}"]`), mine.length);
+      await waitForCount(page.locator(rowsSelector(wide)), mine.length);
       await waitForCount(page.getByTestId(`reply-flag-${replied.ref}`), 0);
 
       // A search by part of the taxpayer's name finds the finished case, marked finished.
@@ -203,10 +214,18 @@ describe('my cases, search and saved views (browser)', () => {
     // No status entry in the menu; About leads to it and stays marked there.
     await waitForCount(page.getByTestId('nav-home'), 0);
     await page.goto(s.server.baseUrl + '/about', { waitUntil: 'networkidle' });
-    await page.getByTestId('about-status-link').click();
+    await page.getByTestId('cautions').waitFor();
+    await screenshot(page, 'frame-phone-about');
+    await page.getByRole('link', { name: /System status/ }).click();
     await page.waitForURL((u) => u.pathname === '/status');
     await waitForText(page.getByTestId('health-database-state'), 'Up', { exact: true });
     await waitForAttribute(page.getByTestId('nav-about'), 'aria-current', 'page');
+    // The current entry is scrolled into the phone's row, and the cue now points back.
+    await page.getByTestId('nav-more-left').waitFor();
+    await page.waitForFunction(() => {
+      const about = document.querySelector('[data-testid="nav-about"]')?.getBoundingClientRect();
+      return !!about && about.right <= window.innerWidth && about.left >= 0;
+    });
     await screenshot(page, 'frame-phone-status');
     await page.close();
   });

@@ -114,7 +114,16 @@ function Row({ e, wide }: { e: AccessLogEntry; wide: boolean }) {
 }
 
 type Draft = { user: string; taxpayer: string; from: string; to: string; action: string };
-const EMPTY: Draft = { user: '', taxpayer: '', from: '', to: '', action: 'any' };
+
+/** How many days the screen shows at first: grouping a whole year of lines takes seconds. */
+const DEFAULT_DAYS = 7;
+
+/** The filters the screen opens with: the last {@link DEFAULT_DAYS} days (today included). */
+function startingDraft(): Draft {
+  const d = new Date(Date.now() - (DEFAULT_DAYS - 1) * 86_400_000);
+  const p = (n: number) => String(n).padStart(2, '0');
+  return { user: '', taxpayer: '', from: `${d.getFullYear()}-${p(d.getMonth() + 1)}-${p(d.getDate())}`, to: '', action: 'any' };
+}
 
 /** The draft as the API's query (blank fields left out), or every field's problem. */
 function checkDraft(d: Draft): { query: AccessLogExportQuery } | { issues: Record<string, string> } {
@@ -142,8 +151,8 @@ function download(url: string) {
 /** The administrator's view of who saw or changed what: one row per thing a person did. */
 export function AccessLogScreen() {
   const wide = useIsWide();
-  const [draft, setDraft] = useState<Draft>(EMPTY);
-  const [filters, setFilters] = useState<AccessLogExportQuery>({});
+  const [draft, setDraft] = useState<Draft>(startingDraft);
+  const [filters, setFilters] = useState<AccessLogExportQuery>(() => ({ from: startingDraft().from }));
   const [shownIssues, setShownIssues] = useState<Record<string, string>>({});
   const [page, setPage] = useState(1);
   const log = useAccessLog({ ...filters, page, pageSize: 50 });
@@ -226,10 +235,11 @@ export function AccessLogScreen() {
           <Button
             testID="log-filter-clear"
             kind="secondary"
-            label="Clear"
+            label={`Clear (last ${DEFAULT_DAYS} days)`}
             onPress={() => {
-              setDraft(EMPTY);
-              apply(EMPTY);
+              const start = startingDraft();
+              setDraft(start);
+              apply(start);
             }}
           />
           <Button

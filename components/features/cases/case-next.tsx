@@ -12,10 +12,15 @@ import { Txt } from '../../ui/text';
 import { findNextCase, type NextCase, type QueueTrail } from './queue-trail';
 
 /** The finished case's notice and the way on: "Next case" or back to the queue. */
-export function CaseNext({ caseId, state, trail }: { caseId: string; state: CaseState; trail: QueueTrail | null }) {
+export function CaseNext({ caseId, state, trail, onShown }: { caseId: string; state: CaseState; trail: QueueTrail | null; onShown?(): void }) {
   const router = useRouter();
   const [found, setFound] = useState<NextCase | null>(null);
   const [error, setError] = useState<string | null>(null);
+  // The closing form that was pressed may sit far below: bring this notice into view once.
+  useEffect(() => {
+    onShown?.();
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- once, when the notice appears
+  }, []);
   useEffect(() => {
     let live = true;
     findNextCase(trail, caseId).then(

@@ -5,9 +5,10 @@ import { View } from 'react-native';
 import { space } from '../../theme';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
+import { CaseAnalyses } from '../analyses/case-analyses';
 import { LettersPanel } from '../letters/letters-panel';
 import { isFinalState, type CaseState } from '../../../shared/cases';
-import { CaseActionBar, type CasePart } from './case-action-bar';
+import { CaseActionBar, jumpTo, type CasePart } from './case-action-bar';
 import { CaseActions, type ClosingMove } from './case-actions';
 import { CaseDigits, CaseFactors, CaseLines } from './case-evidence';
 import { CaseCaution, CaseHeader, CaseScoreSummary } from './case-header';
@@ -70,11 +71,14 @@ export function CaseScreen() {
     );
   }
   const d = c.data;
-  const next = finishedHere === d.id && isFinalState(d.state) ? <CaseNext caseId={d.id} state={d.state} trail={trail} /> : null;
+  const next =
+    finishedHere === d.id && isFinalState(d.state) ? (
+      <CaseNext caseId={d.id} state={d.state} trail={trail} onShown={() => requestAnimationFrame(() => jumpTo('actions'))} />
+    ) : null;
   const actions = (
     <Part name="actions">
-      <CaseCaution />
       {next}
+      <CaseCaution />
       {notice && !next && (
         <Txt tone="ok" accessibilityRole="alert" testID="case-notice">
           {notice}
@@ -87,6 +91,7 @@ export function CaseScreen() {
     <Part name="letters">
       {/* LettersPanel: mounted by the letters feature (components/features/letters/letters-panel.tsx) */}
       <LettersPanel caseId={d.id} state={d.state} canAct={d.actions.canAct} />
+      <CaseAnalyses caseId={d.id} canAct={d.actions.canAct} />
     </Part>
   );
   const why = (

@@ -15,6 +15,7 @@ import { ScoringVersionThree1766000000000 } from './1766000000000-scoring-v3';
 import { BatchLabel1766050000000 } from './1766050000000-batch-label';
 import { MyCases1766040000000 } from './1766040000000-my-cases';
 import { ClosingLetters1766020000000 } from './1766020000000-closing-letters';
+import { CaseAnalyses1766070000000 } from './1766070000000-case-analyses';
 
 export const migrations = [
   Foundation1764600000000,
@@ -30,4 +31,5 @@ export const migrations = [
   ClosingLetters1766020000000,
   MyCases1766040000000,
   BatchLabel1766050000000,
+  CaseAnalyses1766070000000,
 ];
