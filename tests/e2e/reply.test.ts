@@ -242,6 +242,9 @@ describe('taxpayer reply page in the browser', () => {
         .fill('The receipts do not cover the vehicle expenses claimed; income matching should compare the third-party statements.');
       await screenshot(page, `letters-panel-referral-${name}`);
       await page.getByTestId('referral-send').click();
+      // Referring finishes the case: it asks first (issue 14).
+      await waitForText(page.getByTestId('referral-confirm-consequence'), /finished as referred/);
+      await page.getByTestId('referral-confirm-confirm').click();
       await page
         .getByTestId('letters-notice')
         .waitFor()

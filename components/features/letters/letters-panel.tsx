@@ -32,6 +32,7 @@ import { colours, radius, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { ChoiceRow } from '../../ui/choice-row';
+import { ConfirmDialog } from '../../ui/confirm-dialog';
 import { Field } from '../../ui/field';
 import { FormField } from '../../ui/form-field';
 import { Txt } from '../../ui/text';
@@ -330,6 +331,7 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
   const sendRequest = useSendDocumentRequest(caseId);
   const refer = useSendReferral(caseId);
   const [open, setOpen] = useState<'request' | 'referral' | null>(null);
+  const [referring, setReferring] = useState<ReferralInput | null>(null);
   const context = useLetterContext(caseId, open === 'request');
   const [notice, setNotice] = useState<string | null>(null);
   const mayRequest = canAct && state === 'in_review';
@@ -386,11 +388,31 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
           error={sendRequest.error}
         />
       )}
-      {open === 'referral' && mayRefer && (
-        <ReferralForm
-          onSubmit={(v) => refer.mutate(v, { onSuccess: done('The referral memo was written and is kept with the case.') })}
+      {open === 'referral' && mayRefer && <ReferralForm onSubmit={setReferring} busy={refer.isPending} error={null} />}
+      {referring && (
+        // A referral finishes the case: it asks first, with the consequence in words (issue 14).
+        <ConfirmDialog
+          testID="referral-confirm"
+          title={`Refer this case${referring.unit ? ` to the ${REFERRAL_UNIT_LABELS[referring.unit]}` : ''}?`}
+          consequence={
+            `The referral memo is written and kept with the case, and the case is finished as referred. ` +
+            `It leaves the cases being worked, no more letters can be sent on it, and only a supervisor can reopen it.`
+          }
+          confirmLabel="Write the memo and refer"
+          onConfirm={() =>
+            refer.mutate(referring, {
+              onSuccess: () => {
+                setReferring(null);
+                done('The referral memo was written and is kept with the case.')();
+              },
+            })
+          }
+          onCancel={() => {
+            refer.reset();
+            setReferring(null);
+          }}
           busy={refer.isPending}
-          error={refer.error}
+          error={refer.error?.message}
         />
       )}
     </Card>
