@@ -4,13 +4,14 @@ import { allow, secureRouter } from '../auth/access';
 import { removeSpooled, spoolStorage } from '../batches/intake/upload-spool';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
-import { analyseAmounts, analyseFile } from './analyses.service';
+import { analyseAmounts, analyseFile, analyseFileBy } from './analyses.service';
 
 /** Largest file for an ad-hoc digit analysis. */
 const MAX_FILE_BYTES = 50 * 1024 * 1024;
 
 /**
- * `POST /api/analyses/digits`: JSON {amounts} or multipart `file` (+ optional `column`).
+ * `POST /api/analyses/digits`: JSON {amounts} or multipart `file` (+ optional `column`, and
+ * `by`: a column to split by, which adds `split` to the answer).
  * The file waits in the upload spool (server/batches/intake/upload-spool.ts) and is read in
  * a worker thread under reading caps; it is removed when the answer is sent. It needs none of
  * the application's dependencies: the analysis reads the file and stores nothing.
@@ -41,7 +42,8 @@ export function analysesRoutes() {
         const file = req.file;
         if (!file) return next(new HttpError(422, 'No file: send the amounts as the multipart field "file".'));
         const column = typeof req.body?.column === 'string' && req.body.column.trim() ? req.body.column.trim() : null;
-        analyseFile(file.path, file.originalname, column)
+        const by = typeof req.body?.by === 'string' && req.body.by.trim() ? req.body.by.trim() : null;
+        (by === null ? analyseFile(file.path, file.originalname, column) : analyseFileBy(file.path, file.originalname, column, by))
           .then((profile) => res.json(profile))
           .catch(next)
           .finally(() => void removeSpooled([file]));

@@ -4,7 +4,7 @@
  */
 import fs from 'node:fs';
 import path from 'node:path';
-import { AMOUNT_FORMS, findAmountErrors, profileAmounts, profileColumn, type DigitProfile } from '../../shared/digits';
+import { AMOUNT_FORMS, digitResult, findAmountErrors, profileAmounts, profileColumn, type DigitProfile, type DigitResult } from '../../shared/digits';
 import { HttpError } from '../http/errors';
 import { CapError, DEFAULT_READ_CAPS, EXCEL_MAX_ROWS, type ReadCaps } from '../batches/intake/caps';
 import { sniff } from '../batches/intake/sources';
@@ -51,6 +51,12 @@ async function firstBytes(file: string): Promise<Buffer> {
  */
 export async function analyseFile(storedPath: string, originalName: string, column: string | null, caps: ReadCaps = AMOUNT_FILE_CAPS): Promise<DigitProfile> {
   return profileColumn(await readColumn(storedPath, originalName, column, null, caps));
+}
+
+/** As {@link analyseFile}, split by a second column: the profile with each group's figures. */
+export async function analyseFileBy(storedPath: string, originalName: string, column: string | null, by: string): Promise<DigitResult> {
+  const read = await readColumn(storedPath, originalName, column, by);
+  return digitResult(read, read.groups);
 }
 
 /**

@@ -18,6 +18,7 @@ interface RoleNavItem extends NavItem {
 export const NAV_ITEMS: readonly RoleNavItem[] = [
   { href: '/queue', label: 'Queue', roles: CAN.readCases, also: ['/cases'] },
   { href: '/workload', label: 'Workload', roles: CAN.readWorkload },
+  { href: '/analysis', label: 'Digit analysis', roles: CAN.analyse },
   { href: '/batches', label: 'Batches', roles: CAN.readBatches },
   { href: '/scoring', label: 'Scoring', roles: CAN.editScoring },
   { href: '/programme', label: 'Programme', roles: CAN.readProgramme },

@@ -1,0 +1,1 @@
+export { AnalysisScreen as default } from '../../components/features/analyses/analysis-screen';
