@@ -55,7 +55,7 @@ function TestBlock({ test, r }: { test: DigitTestName; r: DigitResultJson }) {
         `${test === 'lastTwo' ? String(DIGIT_LABELS[test][i]).padStart(2, '0') : DIGIT_LABELS[test][i]}: ${pct(t.counts[i] / (t.n || 1))} vs ${pct(t.expected[i])} (Z ${z.toFixed(2)})`,
     );
   return (
-    <Card style={{ gap: space.sm, flexBasis: 420, flexGrow: 1 }} testID={`analysis-${test}`}>
+    <Card style={{ gap: space.sm, flexBasis: 300, flexGrow: 1, minWidth: 0 }} testID={`analysis-${test}`}>
       {test === 'firstDigit' ? (
         <DigitChart counts={t.counts} title={TITLES[test]} caption={caption} />
       ) : (
