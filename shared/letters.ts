@@ -32,7 +32,13 @@ export const REPLY_MAX_FILE_BYTES = 10 * 1024 * 1024;
 /** All files of one reply together (the server refuses larger bodies before reading them). */
 export const REPLY_MAX_TOTAL_BYTES = 30 * 1024 * 1024;
 /** What a taxpayer may send: scans and exports of records. Checked by content, not only by name. */
-export const REPLY_FILE_TYPES = ['application/pdf', 'image/jpeg', 'image/png', 'text/csv', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet'] as const;
+export const REPLY_FILE_TYPES = [
+  'application/pdf',
+  'image/jpeg',
+  'image/png',
+  'text/csv',
+  'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+] as const;
 export type ReplyFileType = (typeof REPLY_FILE_TYPES)[number];
 
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;

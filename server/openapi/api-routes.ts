@@ -545,6 +545,15 @@ export const API_ROUTES: readonly ApiRoute[] = [
   },
   {
     method: 'post',
+    path: '/api/cases/:id/reopen',
+    operationId: 'reopenCase',
+    tag: 'cases',
+    summary: 'Reopen a finished case with a reason (supervisor)',
+    body: ReopenRequestSchema,
+    responses: { 200: json(CaseChangedSchema, 'The case afterwards: back in review.'), 404: noCase, 409: error('The case is not finished.') },
+  },
+  {
+    method: 'post',
     path: '/api/cases/:id/transition',
     operationId: 'moveCase',
     tag: 'cases',
@@ -611,15 +620,6 @@ export const API_ROUTES: readonly ApiRoute[] = [
   },
 
   // server/cases/workload.routes.ts
-  {
-    method: 'post',
-    path: '/api/cases/:id/reopen',
-    operationId: 'reopenCase',
-    tag: 'cases',
-    summary: 'Reopen a finished case with a reason (supervisor)',
-    body: ReopenRequestSchema,
-    responses: { 200: json(CaseChangedSchema, 'The case afterwards: back in review.'), 404: noCase, 409: error('The case is not finished.') },
-  },
   {
     method: 'get',
     path: '/api/workload',
@@ -768,7 +768,11 @@ export const API_ROUTES: readonly ApiRoute[] = [
     summary: 'Send records asked for: in one go or in parts until the due date or "complete"',
     multipart: {
       parts: {
-        files: { kind: 'files', description: `Up to ${REPLY_MAX_FILES} PDF, JPEG or PNG files (none only with complete=true after an earlier send).`, mediaTypes: REPLY_FILE_TYPES },
+        files: {
+          kind: 'files',
+          description: `Up to ${REPLY_MAX_FILES} PDF, JPEG or PNG files (none only with complete=true after an earlier send).`,
+          mediaTypes: REPLY_FILE_TYPES,
+        },
         complete: { kind: 'text', description: '"true" when this is everything: the link closes and the case goes back to review.' },
       },
     },
