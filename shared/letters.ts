@@ -40,6 +40,13 @@ export const REPLY_FILE_TYPES = [
   'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
 ] as const;
 export type ReplyFileType = (typeof REPLY_FILE_TYPES)[number];
+/** The accepted types in words, for letters, the reply page and refusals. */
+export const REPLY_FILE_WORDS = 'PDF, JPEG, PNG, CSV or XLSX';
+/**
+ * Name endings the reply page offers. Browsers declare CSV under several types (text/csv,
+ * application/vnd.ms-excel, none), so the page also goes by the name; the server checks content.
+ */
+export const REPLY_FILE_ENDINGS = ['.pdf', '.jpg', '.jpeg', '.png', '.csv', '.xlsx'] as const;
 
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
 
@@ -320,7 +327,8 @@ export type ReplyReceipt = z.infer<typeof ReplyReceiptSchema>;
 
 /** What the taxpayer's reply page may send: checks a file's declared type, size and name. */
 export function replyFileProblem(file: { name: string; type: string; size: number }): string | null {
-  if (!(REPLY_FILE_TYPES as readonly string[]).includes(file.type)) return `${file.name}: send PDF, JPEG or PNG files only.`;
+  const named = REPLY_FILE_ENDINGS.some((e) => file.name.toLowerCase().endsWith(e));
+  if (!(REPLY_FILE_TYPES as readonly string[]).includes(file.type) && !named) return `${file.name}: send ${REPLY_FILE_WORDS} files only.`;
   if (file.size === 0) return `${file.name} is empty.`;
   if (file.size > REPLY_MAX_FILE_BYTES) return `${file.name} is larger than ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB.`;
   return null;

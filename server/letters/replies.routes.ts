@@ -2,7 +2,7 @@
  * The taxpayer's reply link (no account; publicAccess; the token is the key):
  *  - `GET /api/replies/:token` → {state: 'open', taxpayerName, items, dueDate, office,
  *    limits}; 404 unknown link; 410 {error, state: 'answered' | 'expired'};
- *  - `POST /api/replies/:token` multipart, files in the `files` field (PDF, JPEG or PNG;
+ *  - `POST /api/replies/:token` multipart, files in the `files` field (PDF, JPEG, PNG, CSV or XLSX;
  *    REPLY_MAX_FILES files of at most REPLY_MAX_FILE_BYTES, REPLY_MAX_TOTAL_BYTES together)
  *    and `complete` ("true" when that is everything; then no file is needed after an earlier
  *    send) → 201 {received, receivedAt, part, complete, dueDate, acknowledgement}. The link

@@ -5,7 +5,7 @@
  * shown to staff.
  */
 import { createHash } from 'node:crypto';
-import { REPLY_FILE_TYPES, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES, type ReplyFileType } from '../../shared/letters';
+import { REPLY_FILE_TYPES, REPLY_FILE_WORDS, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES, REPLY_MAX_TOTAL_BYTES, type ReplyFileType } from '../../shared/letters';
 import { HttpError } from '../http/errors';
 
 /** A received file, before checks. */
@@ -115,13 +115,13 @@ export function checkReplyFiles(files: readonly IncomingFile[]): CheckedFile[] {
     if (f.bytes.length === 0) return void problems.push(`${shown} is empty.`);
     if (f.bytes.length > REPLY_MAX_FILE_BYTES) return void problems.push(`${shown} is larger than ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB.`);
     const type = sniffType(f.bytes);
-    if (!type) return void problems.push(`${shown} is not a PDF, JPEG, PNG, CSV or XLSX file.`);
+    if (!type) return void problems.push(`${shown} is not a ${REPLY_FILE_WORDS} file.`);
     const declaredOk =
       !f.declaredType ||
       f.declaredType === 'application/octet-stream' ||
       (REPLY_FILE_TYPES as readonly string[]).includes(f.declaredType) ||
       (type === 'text/csv' && CSV_DECLARED.includes(f.declaredType));
-    if (!declaredOk) return void problems.push(`${shown} was sent as ${f.declaredType}; send PDF, JPEG, PNG, CSV or XLSX files only.`);
+    if (!declaredOk) return void problems.push(`${shown} was sent as ${f.declaredType}; send ${REPLY_FILE_WORDS} files only.`);
     out.push({
       fileName: cleanFileName(f.originalName, type, i),
       contentType: type,

@@ -44,6 +44,7 @@ import {
   LetterCreatedSchema,
   LetterListSchema,
   REPLY_FILE_TYPES,
+  REPLY_FILE_WORDS,
   REPLY_MAX_FILES,
   ReferralInputSchema,
   ReplyClosedSchema,
@@ -770,7 +771,7 @@ export const API_ROUTES: readonly ApiRoute[] = [
       parts: {
         files: {
           kind: 'files',
-          description: `Up to ${REPLY_MAX_FILES} PDF, JPEG or PNG files (none only with complete=true after an earlier send).`,
+          description: `Up to ${REPLY_MAX_FILES} ${REPLY_FILE_WORDS} files (none only with complete=true after an earlier send).`,
           mediaTypes: REPLY_FILE_TYPES,
         },
         complete: { kind: 'text', description: '"true" when this is everything: the link closes and the case goes back to review.' },

@@ -104,7 +104,7 @@ describe('taxpayer reply page in the browser', () => {
 
       // A file of the wrong kind is caught before sending.
       await page.getByTestId('reply-file-input').setInputFiles([{ name: 'notes.txt', mimeType: 'text/plain', buffer: Buffer.from('hello') }]);
-      await waitForText(page.getByTestId('reply-problems'), 'notes.txt: send PDF, JPEG or PNG files only.');
+      await waitForText(page.getByTestId('reply-problems'), 'notes.txt: send PDF, JPEG, PNG, CSV or XLSX files only.');
       await waitForAttribute(page.getByTestId('reply-send'), 'aria-disabled', 'true');
       await page.getByRole('button', { name: 'Remove notes.txt' }).click();
 

@@ -9,7 +9,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useMemo, useState } from 'react';
 import { useForm } from 'react-hook-form';
-import { ScrollView, View } from 'react-native';
+import { View } from 'react-native';
 import { TransitionRequestSchema, type TransitionRequest } from '../../../shared/cases';
 import { applyCorrections, CORRECTABLE_LINE_CODES, CorrectionSchema, type Correction } from '../../../shared/returns/corrections';
 import { LINE_CODE_DEFS, type CentsLine, type LineCode } from '../../../shared/returns/line-codes';
@@ -21,6 +21,7 @@ import { Field } from '../../ui/field';
 import { FormField } from '../../ui/form-field';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
+import { LetterText } from '../letters/letter-text';
 import { usePreviewClosingLetter } from '../letters/use-letters';
 import type { CloseFormProps } from './case-actions';
 import { useCase } from './use-cases';
@@ -205,11 +206,7 @@ export function CloseForm({ caseId, to, onSubmit, onCancel }: CloseFormProps) {
           <Txt variant="small" bold>
             {preview.data.subject}
           </Txt>
-          <ScrollView style={{ maxHeight: 320 }} nestedScrollEnabled>
-            <Txt variant="small" style={{ whiteSpace: 'pre-wrap' } as object} testID="close-letter-text">
-              {preview.data.text}
-            </Txt>
-          </ScrollView>
+          <LetterText text={preview.data.text} testID="close-letter-text" />
         </View>
       )}
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm }}>

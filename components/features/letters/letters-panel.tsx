@@ -7,7 +7,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useMemo, useState } from 'react';
 import { Controller, useForm } from 'react-hook-form';
-import { Linking, Pressable, ScrollView, View } from 'react-native';
+import { Linking, Pressable, View } from 'react-native';
 import type { CaseState } from '../../../shared/cases';
 import {
   addDays,
@@ -36,6 +36,7 @@ import { ConfirmDialog } from '../../ui/confirm-dialog';
 import { Field } from '../../ui/field';
 import { FormField } from '../../ui/form-field';
 import { Txt } from '../../ui/text';
+import { LetterText } from './letter-text';
 import { letterPdfUrl, replyUploadUrl, useLetterContext, useLetters, usePreviewDocumentRequest, useSendDocumentRequest, useSendReferral } from './use-letters';
 
 /** Props for {@link LettersPanel}. */
@@ -139,11 +140,7 @@ function LetterPreviewBox({ preview, testID }: { preview: LetterPreview; testID:
       <Txt variant="small" bold>
         {preview.subject}
       </Txt>
-      <ScrollView style={{ maxHeight: 320 }} nestedScrollEnabled>
-        <Txt variant="small" style={{ whiteSpace: 'pre-wrap' } as object} testID={`${testID}-text`}>
-          {preview.text}
-        </Txt>
-      </ScrollView>
+      <LetterText text={preview.text} testID={`${testID}-text`} />
     </View>
   );
 }

@@ -1,7 +1,7 @@
 /**
  * The taxpayer's reply page (docs/design.md#letters-and-replies): no sign-in, reached by
  * the one-time link in a document-request letter. It names the office, says what is asked and by when, lets
- * the taxpayer choose PDF, JPEG or PNG files and send them with visible progress, and ends
+ * the taxpayer choose PDF, JPEG, PNG, CSV or XLSX files and send them with visible progress, and ends
  * in a clear thank-you, or says plainly that the link was used or has expired and whom to
  * contact. It shows nothing else about the case: no TIN, no figures.
  */
@@ -13,6 +13,9 @@ import {
   isoToday,
   longDate,
   OFFICE,
+  REPLY_FILE_ENDINGS,
+  REPLY_FILE_TYPES,
+  REPLY_FILE_WORDS,
   REPLY_MAX_FILE_BYTES,
   REPLY_MAX_FILES,
   REPLY_MAX_TOTAL_BYTES,
@@ -31,7 +34,7 @@ import { useReplyLink, useUploadReply } from './use-reply';
 
 const MB = 1024 * 1024;
 const size = (n: number) => (n >= MB ? `${(n / MB).toFixed(1)} MB` : `${Math.max(1, Math.round(n / 1024))} KB`);
-const ACCEPT = '.pdf,.jpg,.jpeg,.png,application/pdf,image/jpeg,image/png';
+const ACCEPT = [...REPLY_FILE_ENDINGS, ...REPLY_FILE_TYPES].join(',');
 
 /** "1 December 2026 at 22:41" in the taxpayer's own time zone. */
 function receivedWhen(iso: string): string {
@@ -235,7 +238,7 @@ function RequestForm({
           {sentBefore ? 'Send more files' : 'Send your files'}
         </Txt>
         <Txt variant="small" tone="soft">
-          {`PDF, JPEG or PNG; up to ${REPLY_MAX_FILES} files of ${REPLY_MAX_FILE_BYTES / MB} MB at a time. You can send everything at once or in parts until the due date; we confirm each send by e-mail. If a record does not exist, a short note (as a PDF or a photo) explaining why is welcome.`}
+          {`${REPLY_FILE_WORDS}; up to ${REPLY_MAX_FILES} files of ${REPLY_MAX_FILE_BYTES / MB} MB at a time. You can send everything at once or in parts until the due date; we confirm each send by e-mail. If a record does not exist, a short note (as a PDF or a photo) explaining why is welcome.`}
         </Txt>
         <FilePicker onPick={pick} disabled={upload.isPending} />
         {files.length > 0 && (

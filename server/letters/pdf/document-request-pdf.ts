@@ -3,7 +3,7 @@
  * see, why in plain words, by when, how to send it, and whom to ask. It asks; it does not accuse. It never
  * mentions scores, digit tests or anything that reads as suspicion (docs/design.md#cautions).
  */
-import { OFFICE, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../../shared/letters';
+import { OFFICE, REPLY_FILE_WORDS, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../../shared/letters';
 import { callout, contentWidth, F, footers, INK, letterClosing, letterhead, letterOpening, newPdf, numberedItems, pdfBytes, replyLinkBox } from './pdf-base';
 
 /** Everything the letter says. */
@@ -31,7 +31,7 @@ export const letterWording = {
     `We are reviewing your ${l.taxYear} income-tax return and would like to see the records listed below. We review a number of returns each year in this way, and the records help us understand the figures you reported.`,
   notADecision:
     'This is a request for records, not a decision. We have not reached any conclusion about your return, and this letter does not change the tax you owe.',
-  howToSend: `Please upload copies through your personal reply link. You do not need an account. You can send up to ${REPLY_MAX_FILES} files at a time (PDF, JPEG or PNG, up to ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB each), in one go or in several parts until the end of the due date; when you have sent everything, please say so on the reply page. We confirm each send by e-mail. The link is for this request only; please do not share it.`,
+  howToSend: `Please upload copies through your personal reply link. You do not need an account. You can send up to ${REPLY_MAX_FILES} files at a time (${REPLY_FILE_WORDS}, up to ${REPLY_MAX_FILE_BYTES / 1024 / 1024} MB each), in one go or in several parts until the end of the due date; when you have sent everything, please say so on the reply page. We confirm each send by e-mail. The link is for this request only; please do not share it.`,
   missing:
     'If a record does not exist or you cannot find it, please tell us in a short note uploaded with the other files, or contact us. A brief explanation is welcome.',
   help: `If you need more time or have a question, please contact us before the due date: telephone ${OFFICE.phone} (${OFFICE.hours}) or e-mail ${OFFICE.email}. You can also write to us at ${OFFICE.address.join(', ')}.`,
