@@ -39,7 +39,8 @@ export const startSetup: LocalSetup = {
 export const testSetup: LocalSetup = {
   cluster: {
     dataDir: path.join(projectRoot, '.pg-test', 'data'),
-    port: 54339,
+    // PLUMBLINE_TEST_PG_PORT lets a second checkout run its tests beside this one.
+    port: Number(process.env.PLUMBLINE_TEST_PG_PORT ?? 54339),
     database: 'plumbline_test',
     // The cluster's superuser (creates databases and roles only); the owner runs migrations;
     // the server and worker log in as the application role (server/db/roles.ts).

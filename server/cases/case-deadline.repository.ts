@@ -6,6 +6,7 @@
  * writes (case-open.repository.ts) can keep deadlines in their own transaction.
  */
 import { assessmentDeadline, type AssessmentDeadline } from '../../shared/returns/assessment-deadline';
+import { STATEMENT_KIND_LINE } from '../../shared/returns/line-codes';
 import { centsFromNumeric } from '../../shared/returns/money';
 import type { Db } from '../db/db';
 
@@ -19,6 +20,8 @@ export interface DeadlineFacts {
   grossIncome: string;
   /** Income third-party statements show beyond the return's own lines, summed over kinds. */
   statementExcess: string;
+  /** Income the examiner's corrected figures add on the income lines (case_correction), summed. */
+  correctedExcess: string;
 }
 
 /** The rule applied to one case's facts. */
@@ -27,7 +30,8 @@ export function deadlineOf(f: DeadlineFacts): AssessmentDeadline {
     taxYear: Number(f.taxYear),
     filedOn: f.filedOn,
     reportedIncomeCents: centsFromNumeric(f.grossIncome) ?? 0,
-    omittedIncomeCents: centsFromNumeric(f.statementExcess) ?? 0,
+    // Statements and corrections may both see the same missing income: the larger counts, not the sum.
+    omittedIncomeCents: Math.max(centsFromNumeric(f.statementExcess) ?? 0, centsFromNumeric(f.correctedExcess) ?? 0),
   });
 }
 
@@ -51,7 +55,8 @@ export async function refreshDeadlines(db: Db, caseIds: string[]): Promise<numbe
 /**
  * The facts for some cases. Statements are matched by TIN and tax year, each kind against
  * its income line (shared/returns/line-codes.ts STATEMENT_KIND_LINE); only the part of a
- * kind's statements above what the return reported counts as left out.
+ * kind's statements above what the return reported counts as left out. The examiner's
+ * corrected figures (case_correction) count what they raise on the same income lines.
  */
 export async function findDeadlineFacts(db: Db, caseIds: string[]): Promise<DeadlineFacts[]> {
   if (!caseIds.length) return [];
@@ -61,13 +66,15 @@ export async function findDeadlineFacts(db: Db, caseIds: string[]): Promise<Dead
             (r.total_wages + r.total_interest + r.total_receipts)::text AS "grossIncome",
             coalesce((SELECT sum(greatest(0, s.amount - CASE s.kind WHEN 'wages' THEN r.total_wages WHEN 'interest' THEN r.total_interest ELSE r.total_receipts END))
                         FROM (SELECT kind, sum(amount) AS amount FROM third_party_statement st
-                               WHERE st.tin = t.tin AND st.tax_year = r.tax_year GROUP BY kind) s), 0)::text AS "statementExcess"
+                               WHERE st.tin = t.tin AND st.tax_year = r.tax_year GROUP BY kind) s), 0)::text AS "statementExcess",
+            coalesce((SELECT sum(greatest(0, cc.corrected_amount - cc.filed_amount)) FROM case_correction cc
+                       WHERE cc.case_id = c.id AND cc.line_code = ANY($2::text[])), 0)::text AS "correctedExcess"
        FROM exam_case c
        JOIN tax_return r ON r.id = c.return_id
        JOIN taxpayer t ON t.id = c.taxpayer_id
        JOIN filing_batch b ON b.id = r.batch_id
       WHERE c.id = ANY($1::uuid[])`,
-    [caseIds],
+    [caseIds, Object.values(STATEMENT_KIND_LINE)],
   );
 }
 

@@ -21,6 +21,7 @@ import { LINE_CODE_DEFS, type CentsLine, type LineCode } from '../../shared/retu
 import { formatCents } from '../../shared/returns/money';
 import { recordAccess } from '../access-log/access-log.service';
 import type { AuditContext, StaffAudit } from '../access-log/audit-context';
+import { refreshDeadlines } from '../cases/case-deadline.repository';
 import { assertMayAct, lockCase, moveCase } from '../cases/case-workflow';
 import type { ExamCase } from '../cases/exam-case.entity';
 import { today as clockToday } from '../clock';
@@ -158,6 +159,8 @@ export async function closeWithLetter(m: EntityManager, deps: LetterDeps, audit:
     detail: { letterId, ...(corrections.length ? { corrections } : {}) },
   });
   await insertCorrections(m, locked.id, audit.actor.id, corrections);
+  // Income the corrections add can lengthen the assessment period (6 years past 25 %).
+  await refreshDeadlines(m, [locked.id]);
   const to = await findTaxpayerAddress(m, locked.id);
   const pdf = await letter.render();
   await insertLetter(m, {

@@ -388,13 +388,18 @@ export async function caseHasReplyFiles(db: Db, caseId: string): Promise<boolean
   return rows.length > 0;
 }
 
-/** Keeps the corrected figures of a case closed adjusted (amounts as decimal text). */
+/**
+ * Keeps the corrected figures of the case's latest closing (amounts as decimal text). A case
+ * reopened and closed again replaces its figures; each closing's figures stay in its history
+ * event.
+ */
 export async function insertCorrections(
   m: EntityManager,
   caseId: string,
   createdBy: string,
   rows: { lineCode: string; filed: string; corrected: string }[],
 ): Promise<void> {
+  await m.query(`DELETE FROM case_correction WHERE case_id = $1`, [caseId]);
   if (!rows.length) return;
   await m.query(
     `INSERT INTO case_correction (case_id, line_code, filed_amount, corrected_amount, created_by)

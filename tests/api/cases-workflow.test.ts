@@ -165,6 +165,54 @@ describe('case workflow through the API', () => {
       );
     });
 
+    it('corrections that add more than 25 % of the reported income lengthen the assessment period to 6 years; a reopened case closes again with new figures', async () => {
+      // A case whose deadline stands on the 3-year rule (no statements beyond the return).
+      const facts = async (id: string) =>
+        (
+          await ctx.dataSource.query(
+            `SELECT c.assess_basis AS basis, to_char(c.assess_by, 'YYYY-MM-DD') AS "assessBy",
+                    (r.total_wages + r.total_interest + r.total_receipts)::numeric AS gross, r.total_wages::numeric AS wages
+               FROM exam_case c JOIN tax_return r ON r.id = c.return_id WHERE c.id = $1`,
+            [id],
+          )
+        )[0] as { basis: string; assessBy: string; gross: string; wages: string };
+      // Gross income well above the tax-free band, so a 10 % addition still changes the tax.
+      const fits = async (id: string) => {
+        const f = await facts(id);
+        return f.basis === 'standard' && Number(f.gross) > 60000;
+      };
+      let id = take();
+      while (!(await fits(id))) id = take();
+      const before = await facts(id);
+      id = await caseInState(ctx.dataSource, id, 'in_review', examiner);
+      // Wages raised by 30 % of the reported gross income (+1.00): more than the 25 % of
+      // shared/returns/assessment-deadline.ts, so 6 years instead of 3 from the same start.
+      const raised = (Number(before.wages) + Number(before.gross) * 0.3 + 1).toFixed(2);
+      const res = await post(examiner, `/api/cases/${id}/transition`, {
+        to: 'closed_adjusted',
+        outcome: 'Wages from a second employer were left out.',
+        corrections: [{ lineCode: 'inc.wages', amount: raised }],
+      });
+      expect(res.status).toBe(200);
+      const after = await facts(id);
+      expect(after.basis).toBe('omitted-income');
+      const [y, m, d] = before.assessBy.split('-').map(Number);
+      expect(after.assessBy).toBe(`${y + 3}-${String(m).padStart(2, '0')}-${String(d).padStart(2, '0')}`);
+
+      // Reopened and closed again with a correction under 25 %: the new figures replace the old,
+      // and the deadline follows them back to 3 years.
+      expect((await post(supervisor, `/api/cases/${id}/reopen`, { reason: 'The second employer was the same firm under a new name.' })).status).toBe(200);
+      const small = (Number(before.wages) + Number(before.gross) * 0.1).toFixed(2);
+      const again = await post(examiner, `/api/cases/${id}/transition`, {
+        to: 'closed_adjusted',
+        outcome: 'One wage slip was added twice.',
+        corrections: [{ lineCode: 'inc.wages', amount: small }],
+      });
+      expect(again.status).toBe(200);
+      expect(await ctx.dataSource.query(`SELECT corrected_amount FROM case_correction WHERE case_id = $1`, [id])).toEqual([{ corrected_amount: small }]);
+      expect(await facts(id)).toMatchObject({ basis: 'standard', assessBy: before.assessBy });
+    });
+
     it('refuses a close without its facts (422, each named)', async () => {
       const id = await caseInState(ctx.dataSource, take(), 'in_review', examiner);
       const noOutcome = await post(examiner, `/api/cases/${id}/transition`, { to: 'closed_no_change' });
