@@ -8,7 +8,7 @@ import os from 'node:os';
 import path from 'node:path';
 import type { Browser } from 'playwright-core';
 import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
-import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS, waitForText } from '../helpers/browser';
+import { expectNoSeriousAxeViolations, launchBrowser, screenshot, signInThroughUi, VIEWPORTS, waitForText } from '../helpers/browser';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
 
 jest.setTimeout(300_000);
@@ -28,7 +28,7 @@ describe('Digit analysis screen (browser)', () => {
     fs.rmSync(dir, { recursive: true, force: true });
   });
 
-  it('analyses an uploaded CSV column split by account, with charts, figures and the caution', async () => {
+  it('analyses an uploaded CSV column split by account, with charts, figures and the caution; axe-core finds nothing serious before or after', async () => {
     // 20,000 invented ledger lines, amounts log-uniform over five decades (Benford-like).
     const lines = Array.from(
       { length: 20_000 },
@@ -40,6 +40,8 @@ describe('Digit analysis screen (browser)', () => {
       const page = await browser.newPage({ viewport });
       await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
       await page.goto(s.server.baseUrl + '/analysis', { waitUntil: 'networkidle' });
+      await page.getByTestId('analysis-pick').waitFor();
+      await expectNoSeriousAxeViolations(page, `digit analysis, nothing chosen yet ${name}`);
       const chooser = page.waitForEvent('filechooser');
       await page.getByTestId('analysis-pick').click();
       await (await chooser).setFiles(file);
@@ -52,6 +54,7 @@ describe('Digit analysis screen (browser)', () => {
       await page.getByTestId('analysis-lastTwo').waitFor();
       await waitForText(page.getByTestId('analysis-split'), 'By account (4 groups');
       await waitForText(page.getByTestId('analysis-screen'), 'proves nothing');
+      await expectNoSeriousAxeViolations(page, `digit analysis with its results ${name}`);
       await screenshot(page, `analysis-${name}`);
       await page.getByTestId('analysis-lastTwo').scrollIntoViewIfNeeded();
       await screenshot(page, `analysis-charts-${name}`);
