@@ -9,7 +9,8 @@
  *  - `GET /api/cases/:id/letter-context` (workCases) → {today, emailOnFile, earliestDueDate,
  *    latestDueDate}: what the request form shows before Send (issue 14);
  *  - `POST /api/cases/:id/document-requests/preview` (same body as sending) and
- *    `POST /api/cases/:id/closing-letter/preview` (a closing transition's body) → {kind, to,
+ *    `POST /api/cases/:id/closing-letter/preview` (a closing transition's body) and
+ *    `POST /api/cases/:id/referral/preview` (a referral's body) → {kind, to,
  *    subject, text}: the letter as it would go, nothing stored or sent;
  *  - `GET /api/cases/:id/letters` (readCases) → {items: [letter]};
  *  - `GET /api/cases/:id/letters/:letterId/pdf` (readCases) → the PDF (office copy);
@@ -29,6 +30,7 @@ import {
   letterPdf,
   listLetters,
   previewDocumentRequest,
+  previewReferralMemo,
   referCase,
   replyUploadFile,
   sendDocumentRequest,
@@ -74,6 +76,11 @@ export function letterRoutes(deps: LetterDeps) {
     const created = await sendDocumentRequest(ld, staffAuditOf(req), id, req.body);
     // A soft check: the examiner's own words go out as typed; the answer names the flagged ones.
     res.status(201).json({ ...created, warnings: letterItemWarnings(req.body.items) });
+  });
+
+  r.post('/cases/:id/referral/preview', allow('workCases'), validate(ReferralInputSchema), async (req, res) => {
+    res.setHeader('Cache-Control', 'private, no-store');
+    res.json(await previewReferralMemo(ld, staffAuditOf(req), String(req.params.id), req.body));
   });
 
   r.post('/cases/:id/referral', allow('workCases'), validate(ReferralInputSchema), async (req, res) => {

@@ -12,7 +12,7 @@
  * which answers "not found" and harms nobody; the examiner sees no letter and sends again.
  */
 import { createHash, randomBytes, randomUUID } from 'node:crypto';
-import type { DataSource } from 'typeorm';
+import type { DataSource, EntityManager } from 'typeorm';
 import { z } from 'zod';
 import { maskTin } from '../../shared/access-log';
 import { CASE_STATE_LABELS, type CaseState } from '../../shared/cases';
@@ -55,7 +55,7 @@ import {
   type LetterRow,
 } from './letters.repository';
 import { renderDocumentRequestPdf, type DocumentRequestLetter } from './pdf/document-request-pdf';
-import { renderReferralMemoPdf } from './pdf/referral-memo-pdf';
+import { referralMemoText, renderReferralMemoPdf, type ReferralMemo } from './pdf/referral-memo-pdf';
 import { isUuid } from '../../shared/ids';
 
 /** What the letter services need. */
@@ -350,47 +350,8 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
       );
     }
     const ctx = (await findCaseContext(m, caseId))!;
-    const notes = await findNotes(m, caseId);
-    const events = await findEvents(m, caseId);
     const reference = `RM-${letterId.slice(0, 8).toUpperCase()}`;
-    const pdf = await renderReferralMemoPdf({
-      reference,
-      date: clockToday(),
-      unitLabel,
-      summary: input.summary,
-      author: actor.displayName,
-      facts: {
-        returnRef: ctx.returnRef,
-        taxYear: ctx.taxYear,
-        taxpayerName: ctx.taxpayerName,
-        maskedTin: maskTin(ctx.tin),
-        activity: ACTIVITY_WORDS[ctx.activityCode as keyof typeof ACTIVITY_WORDS] ?? ctx.activityCode,
-        preparer: ctx.preparerCode,
-        batch: `${ctx.batchFiles.join(', ') || 'batch'} (loaded ${ctx.batchCreatedAt.toISOString().slice(0, 10)})`,
-        caseState: CASE_STATE_LABELS[ctx.state as CaseState] ?? ctx.state,
-        openedAt: ctx.openedAt,
-        assignee: ctx.assigneeName,
-        riskScore: ctx.riskScore,
-        profileVersion: ctx.profileVersion,
-        amountAtStakeCents: centsFromNumeric(ctx.amountAtStake) ?? 0,
-        priority: ctx.priority,
-      },
-      breakdown: ctx.breakdown,
-      notes: notes.map((n) => ({ at: n.at, who: n.author, text: n.text })),
-      events: events.map((e) => {
-        // Atkinson Hyperlegible has no arrow glyph: the move is written in words.
-        const move =
-          e.from && e.to
-            ? ` (from ${(CASE_STATE_LABELS[e.from as CaseState] ?? e.from).toLowerCase()} to ${(CASE_STATE_LABELS[e.to as CaseState] ?? e.to).toLowerCase()})`
-            : '';
-        const outcome = typeof e.detail.outcome === 'string' ? `: ${e.detail.outcome}` : '';
-        return {
-          at: e.at,
-          who: e.actor ?? (e.kind === 'reply-received' ? 'Taxpayer (reply link)' : null),
-          text: `${EVENT_WORDS[e.kind] ?? e.kind}${move}${outcome}`,
-        };
-      }),
-    });
+    const pdf = await renderReferralMemoPdf(await referralMemo(m, ctx, caseId, actor.displayName, reference, unitLabel, input.summary));
     await insertLetter(m, {
       id: letterId,
       caseId,
@@ -412,6 +373,85 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
     return c.state;
   });
   return { letter: await letterDto(deps.dataSource, caseId, letterId), caseState: moved };
+}
+
+/** What a referral memo sets out (the PDF and its text preview share it). */
+async function referralMemo(
+  m: EntityManager,
+  ctx: NonNullable<Awaited<ReturnType<typeof findCaseContext>>>,
+  caseId: string,
+  author: string,
+  reference: string,
+  unitLabel: string,
+  summary: string,
+): Promise<ReferralMemo> {
+  const notes = await findNotes(m, caseId);
+  const events = await findEvents(m, caseId);
+  return {
+    reference,
+    date: clockToday(),
+    unitLabel,
+    summary,
+    author,
+    facts: {
+      returnRef: ctx.returnRef,
+      taxYear: ctx.taxYear,
+      taxpayerName: ctx.taxpayerName,
+      maskedTin: maskTin(ctx.tin),
+      activity: ACTIVITY_WORDS[ctx.activityCode as keyof typeof ACTIVITY_WORDS] ?? ctx.activityCode,
+      preparer: ctx.preparerCode,
+      batch: `${ctx.batchFiles.join(', ') || 'batch'} (loaded ${ctx.batchCreatedAt.toISOString().slice(0, 10)})`,
+      caseState: CASE_STATE_LABELS[ctx.state as CaseState] ?? ctx.state,
+      openedAt: ctx.openedAt,
+      assignee: ctx.assigneeName,
+      riskScore: ctx.riskScore,
+      profileVersion: ctx.profileVersion,
+      amountAtStakeCents: centsFromNumeric(ctx.amountAtStake) ?? 0,
+      priority: ctx.priority,
+    },
+    breakdown: ctx.breakdown,
+    notes: notes.map((n) => ({ at: n.at, who: n.author, text: n.text })),
+    events: events.map((e) => {
+      // Atkinson Hyperlegible has no arrow glyph: the move is written in words.
+      const move =
+        e.from && e.to
+          ? ` (from ${(CASE_STATE_LABELS[e.from as CaseState] ?? e.from).toLowerCase()} to ${(CASE_STATE_LABELS[e.to as CaseState] ?? e.to).toLowerCase()})`
+          : '';
+      const outcome = typeof e.detail.outcome === 'string' ? `: ${e.detail.outcome}` : '';
+      return {
+        at: e.at,
+        who: e.actor ?? (e.kind === 'reply-received' ? 'Taxpayer (reply link)' : null),
+        text: `${EVENT_WORDS[e.kind] ?? e.kind}${move}${outcome}`,
+      };
+    }),
+  };
+}
+
+/**
+ * The memo a referral would write, as text, for the examiner to read before referring;
+ * nothing is stored and the case does not move.
+ * @throws HttpError 404, 403, 409 as for the referral itself
+ */
+export async function previewReferralMemo(deps: LetterDeps, audit: StaffAudit, caseId: string, input: ReferralInput): Promise<LetterPreview> {
+  const unitLabel = REFERRAL_UNIT_LABELS[input.unit ?? 'field-audit'];
+  return deps.dataSource.transaction(async (m) => {
+    const c = await lockCase(m, caseId);
+    assertMayAct(audit.actor, c);
+    if (c.state !== 'in_review' && c.state !== 'awaiting_reply') {
+      throw new HttpError(409, `A case can be referred while it is in review or awaiting a reply; this case is ${CASE_STATE_LABELS[c.state].toLowerCase()}.`);
+    }
+    const ctx = (await findCaseContext(m, caseId))!;
+    const memo = await referralMemo(m, ctx, caseId, audit.actor.displayName, 'RM-(given on referring)', unitLabel, input.summary);
+    await recordAccess(m, audit, {
+      action: 'view',
+      recordType: 'case',
+      recordId: caseId,
+      taxpayerId: ctx.taxpayerId,
+      taxpayerLabel: maskTin(ctx.tin),
+      detail: 'referral_memo preview',
+    });
+    return { kind: 'referral_memo', to: null, subject: `Referral memo: ${ctx.returnRef}, for the ${unitLabel}`, text: referralMemoText(memo) };
+  });
 }
 
 async function caseForRead(ds: DataSource, caseId: string): Promise<{ taxpayerId: string; label: string | null }> {

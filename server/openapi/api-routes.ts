@@ -699,6 +699,19 @@ export const API_ROUTES: readonly ApiRoute[] = [
   },
   {
     method: 'post',
+    path: '/api/cases/:id/referral/preview',
+    operationId: 'previewReferralMemo',
+    tag: 'letters',
+    summary: 'The referral memo a referral would write, as text (nothing stored, the case does not move)',
+    body: ReferralInputSchema,
+    responses: {
+      200: json(LetterPreviewSchema, 'The memo’s subject and text (to: null, it stays in the office).'),
+      404: noCase,
+      409: error('The case cannot be referred from its state.'),
+    },
+  },
+  {
+    method: 'post',
     path: '/api/cases/:id/closing-letter/preview',
     operationId: 'previewClosingLetter',
     tag: 'letters',

@@ -37,6 +37,37 @@ describe('referral memos', () => {
 
   const refer = (who: SignedIn, caseId: string, body: object) => who.agent.post(`/api/cases/${caseId}/referral`).set('X-CSRF-Token', who.csrf).send(body);
 
+  it('previews the memo as text before referring: facts, masked TIN, every component; nothing stored, the case stays where it is', async () => {
+    const { caseId } = await caseInReview(ctx.dataSource, examiner);
+    const before = (await ctx.dataSource.query(`SELECT count(*)::int AS n FROM letter WHERE case_id = $1`, [caseId]))[0].n;
+    const res = await examiner.agent
+      .post(`/api/cases/${caseId}/referral/preview`)
+      .set('X-CSRF-Token', examiner.csrf)
+      .send({ unit: 'income-matching', summary: SUMMARY });
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ kind: 'referral_memo', to: null, subject: expect.stringMatching(/^Referral memo: .+, for the Cross-Check Team$/) });
+    const facts = (
+      await ctx.dataSource.query(
+        `SELECT t.tin, t.name, r.return_ref, s.breakdown FROM exam_case c JOIN taxpayer t ON t.id = c.taxpayer_id JOIN tax_return r ON r.id = c.return_id JOIN return_score s ON s.id = c.score_id WHERE c.id = $1`,
+        [caseId],
+      )
+    )[0];
+    const text = res.body.text as string;
+    expect(text).toContain('RM-(given on referring)');
+    expect(text).toContain(SUMMARY);
+    expect(text).toContain(facts.name);
+    expect(text).toContain(facts.return_ref);
+    expect(text).toContain(`••• ••• ${String(facts.tin).slice(-3)}`);
+    expect(text).not.toContain(String(facts.tin));
+    expect(text).toContain(SCREENING_CAUTION);
+    for (const c of (facts.breakdown as ScoreBreakdown).components) expect(text).toContain(`- ${c.label}: ${c.points.toFixed(1)}.`);
+    // Nothing written, nothing moved; the look is in the access log.
+    expect((await ctx.dataSource.query(`SELECT count(*)::int AS n FROM letter WHERE case_id = $1`, [caseId]))[0].n).toBe(before);
+    expect((await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [caseId]))[0].state).toBe('in_review');
+    const logged = await ctx.dataSource.query(`SELECT detail FROM access_log WHERE record_id = $1 AND detail = 'referral_memo preview'`, [caseId]);
+    expect(logged).toHaveLength(1);
+  });
+
   it('writes the memo with facts, masked TIN, score breakdown, digit chart and notes, and refers the case', async () => {
     const { caseId, taxpayerId } = await caseInReview(ctx.dataSource, examiner);
     await ctx.dataSource.query(`INSERT INTO case_note (case_id, author_id, text) VALUES ($1, $2, $3)`, [

@@ -84,6 +84,7 @@ const EXPECTED: Record<string, typeof PUBLIC | readonly Role[]> = {
   'POST /api/cases/:id/document-requests/preview': CASE_WORK,
   'POST /api/cases/:id/closing-letter/preview': CASE_WORK,
   'POST /api/cases/:id/referral': CASE_WORK,
+  'POST /api/cases/:id/referral/preview': CASE_WORK,
   'GET /api/cases/:id/letters': CASE_WORK,
   'GET /api/cases/:id/letters/:letterId/pdf': CASE_WORK,
   'GET /api/cases/:id/reply-uploads/:uploadId': CASE_WORK,

@@ -244,6 +244,9 @@ describe('taxpayer reply page in the browser', () => {
       await page.getByTestId('referral-send').click();
       // Referring finishes the case: it asks first (issue 14).
       await waitForText(page.getByTestId('referral-confirm-consequence'), /finished as referred/);
+      // The memo is read before it is written (issue 14).
+      await waitForText(page.getByTestId('referral-preview-text'), /Referral memo RM-\(given on referring\)[\s\S]*income matching should compare/);
+      await screenshot(page, `referral-memo-preview-${name}`);
       await page.getByTestId('referral-confirm-confirm').click();
       await page
         .getByTestId('letters-notice')

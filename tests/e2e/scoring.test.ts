@@ -24,6 +24,9 @@ describe('scoring profile screen (supervisor, browser)', () => {
     await page.getByTestId('weight-cashHeavy').fill('2');
     await page.getByTestId('profile-note').fill('Less weight on cash-heavy trades');
     await page.getByTestId('save-profile').click();
+    // Saving makes the version active for every new batch: it asks first, in words (issue 14).
+    await waitForText(page.getByTestId('confirm-save'), /make it active\? From then on every batch loaded is scored with it/);
+    await page.getByTestId('confirm-save-yes').click();
     // The new version is one past the newest the migrations installed (not a fixed number:
     // a migration may add a version of the defaults).
     const saved = page.getByText(/^Saved as version \d+; new batches are scored with it\.$/);

@@ -37,7 +37,16 @@ import { Field } from '../../ui/field';
 import { FormField } from '../../ui/form-field';
 import { Txt } from '../../ui/text';
 import { LetterText } from './letter-text';
-import { letterPdfUrl, replyUploadUrl, useLetterContext, useLetters, usePreviewDocumentRequest, useSendDocumentRequest, useSendReferral } from './use-letters';
+import {
+  letterPdfUrl,
+  replyUploadUrl,
+  useLetterContext,
+  useLetters,
+  usePreviewDocumentRequest,
+  usePreviewReferral,
+  useSendDocumentRequest,
+  useSendReferral,
+} from './use-letters';
 
 /** Props for {@link LettersPanel}. */
 export interface LettersPanelProps {
@@ -132,10 +141,14 @@ function LetterPreviewBox({ preview, testID }: { preview: LetterPreview; testID:
   return (
     <View style={{ gap: space.xs, padding: space.md, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID={testID}>
       <Txt variant="small" bold>
-        The letter as it will be sent
+        {preview.kind === 'referral_memo' ? 'The memo as it will be written' : 'The letter as it will be sent'}
       </Txt>
       <Txt variant="small" tone="soft" testID={`${testID}-to`}>
-        {preview.to ? `By e-mail to ${preview.to}, with the PDF attached` : 'No e-mail address: kept with the case for post'}
+        {preview.kind === 'referral_memo'
+          ? 'Kept with the case for the unit; its PDF also charts the return’s first digits'
+          : preview.to
+            ? `By e-mail to ${preview.to}, with the PDF attached`
+            : 'No e-mail address: kept with the case for post'}
       </Txt>
       <Txt variant="small" bold>
         {preview.subject}
@@ -327,6 +340,7 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
   // which unmounts the form, and react-query drops the callbacks of an unmounted caller.
   const sendRequest = useSendDocumentRequest(caseId);
   const refer = useSendReferral(caseId);
+  const memoPreview = usePreviewReferral(caseId);
   const [open, setOpen] = useState<'request' | 'referral' | null>(null);
   const [referring, setReferring] = useState<ReferralInput | null>(null);
   const context = useLetterContext(caseId, open === 'request');
@@ -385,7 +399,17 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
           error={sendRequest.error}
         />
       )}
-      {open === 'referral' && mayRefer && <ReferralForm onSubmit={setReferring} busy={refer.isPending} error={null} />}
+      {open === 'referral' && mayRefer && (
+        <ReferralForm
+          onSubmit={(values) => {
+            // The memo is read before anything is written (issue 14).
+            setReferring(values);
+            memoPreview.mutate(values);
+          }}
+          busy={refer.isPending}
+          error={null}
+        />
+      )}
       {referring && (
         // A referral finishes the case: it asks first, with the consequence in words (issue 14).
         <ConfirmDialog
@@ -408,9 +432,19 @@ export function LettersPanel({ caseId, state, canAct }: LettersPanelProps) {
             refer.reset();
             setReferring(null);
           }}
-          busy={refer.isPending}
-          error={refer.error?.message}
-        />
+          busy={refer.isPending || memoPreview.isPending}
+          error={refer.error?.message ?? memoPreview.error?.message}
+        >
+          {memoPreview.data ? (
+            <LetterPreviewBox preview={memoPreview.data} testID="referral-preview" />
+          ) : (
+            !memoPreview.error && (
+              <Txt variant="small" tone="soft">
+                Writing the memo’s preview…
+              </Txt>
+            )
+          )}
+        </ConfirmDialog>
       )}
     </Card>
   );

@@ -79,6 +79,13 @@ export function usePreviewDocumentRequest(caseId: string) {
   });
 }
 
+/** The referral memo a referral would write, as text; nothing is stored and the case does not move. */
+export function usePreviewReferral(caseId: string) {
+  return useMutation({
+    mutationFn: (input: ReferralInput) => apiSend('POST', `/api/cases/${caseId}/referral/preview`, input, LetterPreviewSchema),
+  });
+}
+
 /** The closing letter (no change or adjustment proposal) a closing would send; nothing is stored or sent. */
 export function usePreviewClosingLetter(caseId: string) {
   return useMutation({

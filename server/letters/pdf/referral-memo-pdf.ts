@@ -361,3 +361,34 @@ export async function renderReferralMemoPdf(m: ReferralMemo): Promise<Buffer> {
   footers(doc, `Referral memo ${m.reference} · ${m.facts.returnRef} · Internal`);
   return pdfBytes(doc);
 }
+
+/**
+ * The memo's content as plain text, for the preview an examiner reads before referring
+ * (issue 14): the same facts, components and entries the PDF sets out, without the charts.
+ */
+export function referralMemoText(m: ReferralMemo): string {
+  const f = m.facts;
+  const lines = [
+    `Referral memo ${m.reference}, ${longDate(m.date)}, from ${m.author}`,
+    `For the ${m.unitLabel}`,
+    '',
+    SCREENING_CAUTION,
+    '',
+    `Summary: ${m.summary}`,
+    '',
+    `Taxpayer: ${f.taxpayerName} (TIN ${f.maskedTin}), ${f.activity}${f.preparer ? `, preparer ${f.preparer}` : ''}`,
+    `Return ${f.returnRef}, tax year ${f.taxYear}, ${f.batch}`,
+    `Case opened ${stamp(f.openedAt)}; ${f.caseState.toLowerCase()}; examiner ${f.assignee ?? 'not assigned'}`,
+    `Risk score ${f.riskScore} of 100 (profile version ${f.profileVersion}); amount at stake ${money(f.amountAtStakeCents)}; priority ${f.priority}`,
+  ];
+  if (m.breakdown) {
+    lines.push('', 'Score breakdown (points, evidence):');
+    for (const c of [...m.breakdown.components].sort((p, q) => q.points - p.points)) lines.push(`- ${c.label}: ${c.points.toFixed(1)}. ${c.evidence}`);
+    lines.push(`The PDF also charts the return's first digits against Benford's expected shares.`);
+  }
+  lines.push('', `Examiner's notes: ${m.notes.length || 'none'}`);
+  for (const n of m.notes) lines.push(`- ${stamp(n.at)}${n.who ? `, ${n.who}` : ''}: ${n.text}`);
+  lines.push('', `Case history: ${m.events.length} entries`);
+  for (const e of m.events) lines.push(`- ${stamp(e.at)}${e.who ? `, ${e.who}` : ''}: ${e.text}`);
+  return lines.join('\n');
+}
