@@ -81,9 +81,11 @@ describe('scoring profiles', () => {
       expect(s.suggested).toBeGreaterThanOrEqual(0);
       expect(s.suggested).toBeLessThanOrEqual(100);
     }
-    // The only factor that decides the outcome here gets the largest suggested weight.
-    const top = [...fit.suggestions].sort((x, y) => y.suggested - x.suggested)[0];
-    expect(top.key).toBe('totalsMismatch');
+    // The only factor that decides the outcome here gets the largest suggested weight. Others
+    // may tie with it at the cap of 100 (the random sample, drawn afresh each run, weighs 100×),
+    // so the check is that none is above it, not the order of a sort among equals.
+    const totalsFit = fit.suggestions.find((x) => x.key === 'totalsMismatch')!;
+    expect(totalsFit.suggested).toBe(Math.max(...fit.suggestions.map((x) => x.suggested)));
     expect(fit.backTest.suggested.k).toBe(fit.backTest.current.k);
     expect(fit.backTest.suggested.precisionAtK).toBeGreaterThanOrEqual(fit.backTest.current.precisionAtK);
   });
