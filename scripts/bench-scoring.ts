@@ -14,6 +14,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { ingestUpload } from '../server/batches/batch.service';
 import { createBoss, ensureQueues, QUEUES } from '../server/queue/queues';
+import { findActiveProfile, insertProfile, lockProfiles, nextProfileVersion } from '../server/scoring/scoring-profile.repository';
 import { writeCsvBatch } from '../server/seed/batch-files';
 import { DEFAULT_INTAKE_LIMITS } from '../shared/returns/batch-rows';
 import { freshBenchDb, releaseBenchCluster } from './lib/bench-db';
@@ -84,11 +85,13 @@ async function main() {
   await ensureQueues(boss);
   // The active profile (what an office scores with), and an inactive copy of it as the next
   // version for the second run.
-  const [{ active, copy }] = await db.ds.query(
-    `INSERT INTO scoring_profile (version, settings, note, active)
-     SELECT (SELECT max(version) + 1 FROM scoring_profile), settings, 'bench copy', false FROM scoring_profile WHERE active
-     RETURNING (SELECT version FROM scoring_profile WHERE active) AS active, version AS copy`,
-  );
+  const { version: active, settings } = await findActiveProfile(db.ds);
+  const copy = await db.ds.transaction(async (m) => {
+    await lockProfiles(m);
+    const version = await nextProfileVersion(m);
+    await insertProfile(m, { version, settings, note: 'bench copy', authorId: db.clerkId, active: false });
+    return version;
+  });
 
   const timeRun = async (version: number, workers: number) => {
     const procs: ChildProcess[] = [];

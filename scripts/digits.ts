@@ -28,9 +28,15 @@ import os from 'node:os';
 import path from 'node:path';
 import {
   AmountParseError,
-  DIGIT_LABELS,
+  DIGIT_TEST_TITLES as TEST_TITLE,
   MIN_N_FOR_CONFORMITY,
+  binLabel,
   digitResult,
+  fixedOrDash as fixed,
+  groupsByZ,
+  largestDeviations,
+  pValueText as pValue,
+  percentOrDash as pct,
   type GroupFigures,
   type DigitProfile,
   type DigitTestName,
@@ -89,33 +95,8 @@ function parseArgs(argv: string[]): Options | 'help' {
 // ---------------------------------------------------------------------------------------
 // The readable table
 
-const TEST_TITLE: Record<DigitTestName, string> = {
-  firstDigit: 'First digit',
-  secondDigit: 'Second digit',
-  firstTwo: 'First two digits',
-  lastTwo: 'Last two digits',
-};
-
 function int(n: number): string {
   return n.toLocaleString('en-US');
-}
-
-function pct(x: number | null): string {
-  return x === null ? '—' : `${(100 * x).toFixed(1)} %`;
-}
-
-function fixed(x: number | null, digits: number): string {
-  return x === null ? '—' : x.toFixed(digits);
-}
-
-function pValue(p: number | null): string {
-  if (p === null) return '—';
-  return p < 0.0001 ? '< 0.0001' : p.toFixed(4);
-}
-
-function label(test: DigitTestName, bin: number): string {
-  const d = DIGIT_LABELS[test][bin];
-  return test === 'lastTwo' ? String(d).padStart(2, '0') : String(d);
 }
 
 function summaryLine(test: DigitTestName, r: DigitTestResult): string {
@@ -129,7 +110,7 @@ function fullTable(test: DigitTestName, r: DigitTestResult): string[] {
   r.counts.forEach((c, i) => {
     const obs = r.n > 0 ? c / r.n : null;
     lines.push(
-      `  ${label(test, i).padStart(5)}  ${int(c).padStart(9)}  ${pct(obs).padStart(9)}  ${pct(r.expected[i]).padStart(9)}  ${fixed(r.z[i], 2).padStart(6)}`,
+      `  ${binLabel(test, i).padStart(5)}  ${int(c).padStart(9)}  ${pct(obs).padStart(9)}  ${pct(r.expected[i]).padStart(9)}  ${fixed(r.z[i], 2).padStart(6)}`,
     );
   });
   lines.push(summaryLine(test, r));
@@ -139,11 +120,7 @@ function fullTable(test: DigitTestName, r: DigitTestResult): string[] {
 function shortTable(test: DigitTestName, r: DigitTestResult): string[] {
   const lines = [`${TEST_TITLE[test]} (n = ${int(r.n)}; ${r.counts.length} groups)`, summaryLine(test, r)];
   if (r.n > 0) {
-    const top = r.z
-      .map((z, i) => ({ z: z ?? 0, i }))
-      .sort((a, b) => b.z - a.z || a.i - b.i)
-      .slice(0, 5)
-      .map(({ z, i }) => `${label(test, i)} ${pct(r.counts[i] / r.n)} vs ${pct(r.expected[i])} (Z ${z.toFixed(2)})`);
+    const top = largestDeviations(test, r).map((d) => `${d.label} ${pct(d.observed)} vs ${pct(d.expected)} (Z ${d.z.toFixed(2)})`);
     lines.push(`  largest deviations: ${top.join(' · ')}`);
   }
   return lines;
@@ -199,7 +176,7 @@ function renderTable(p: DigitProfile, source: string): string {
 
 /** The groups of a split, one line each, highest size-aware z first. */
 function renderGroups(split: { column: string; groups: GroupFigures[] }): string {
-  const rows = [...split.groups].sort((a, b) => (b.sizeAware.zScore ?? -Infinity) - (a.sizeAware.zScore ?? -Infinity));
+  const rows = groupsByZ(split.groups);
   const lines = [`By ${split.column} (${int(split.groups.length)} groups; first digit, highest size-aware z first):`];
   for (const g of rows) {
     lines.push(

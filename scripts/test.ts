@@ -56,37 +56,46 @@ async function prepareTemplate(): Promise<void> {
 }
 
 /**
- * `npm run lint` (ESLint, then `prettier --check`) before a full run, so the conventions hold
- * like the tests do. Skipped when jest gets arguments (one file while working) or with
- * PLUMBLINE_SKIP_LINT=1.
+ * The checks of a full run, before the tests: `npm run lint` (ESLint, then `prettier --check`)
+ * so the conventions hold like the tests do, and `npm run typecheck` (Expo Router's
+ * typed-route declarations, then `tsc --noEmit`) because jest runs TypeScript through SWC and
+ * Babel, which strip types without checking them. Skipped when jest gets arguments (one file
+ * while working); PLUMBLINE_SKIP_LINT=1 skips both, PLUMBLINE_SKIP_TYPECHECK=1 the typecheck.
  */
-function lintPasses(jestArgs: string[]): boolean {
-  if (process.env.PLUMBLINE_SKIP_LINT === '1' || jestArgs.length > 0) return true;
-  log('lint: npm run lint (eslint, prettier --check); PLUMBLINE_SKIP_LINT=1 skips it');
-  const r = spawnSync('npm', ['run', '--silent', 'lint'], { cwd: projectRoot, stdio: 'inherit' });
-  if (r.status === 0) return true;
-  log('lint failed: `npm run format` fixes the layout and what eslint can fix; fix the rest by hand');
-  return false;
-}
+const PRE_CHECKS = [
+  {
+    script: 'lint',
+    what: 'eslint, prettier --check',
+    skippedBy: ['PLUMBLINE_SKIP_LINT'],
+    onFail: '`npm run format` fixes the layout and what eslint can fix; fix the rest by hand',
+  },
+  {
+    script: 'typecheck',
+    what: 'typed routes, tsc --noEmit',
+    skippedBy: ['PLUMBLINE_SKIP_LINT', 'PLUMBLINE_SKIP_TYPECHECK'],
+    onFail: 'fix the errors above (they name file, line and column)',
+  },
+];
 
-/**
- * `npm run typecheck` (Expo Router's typed-route declarations, then `tsc --noEmit`) before a
- * full run: jest runs TypeScript through SWC and Babel, which strip types without checking them.
- * Skipped like the lint, or alone with PLUMBLINE_SKIP_TYPECHECK=1.
- */
-function typecheckPasses(jestArgs: string[]): boolean {
-  if (process.env.PLUMBLINE_SKIP_LINT === '1' || process.env.PLUMBLINE_SKIP_TYPECHECK === '1' || jestArgs.length > 0) return true;
-  log('typecheck: npm run typecheck (typed routes, tsc --noEmit); PLUMBLINE_SKIP_TYPECHECK=1 skips it');
-  const r = spawnSync('npm', ['run', '--silent', 'typecheck'], { cwd: projectRoot, stdio: ['ignore', 'inherit', 'inherit'] });
-  if (r.status === 0) return true;
-  log('typecheck failed: fix the errors above (they name file, line and column)');
-  return false;
+/** Runs {@link PRE_CHECKS} in turn; false after the first that fails (its output is on screen). */
+function preChecksPass(jestArgs: string[]): boolean {
+  if (jestArgs.length > 0) return true;
+  for (const c of PRE_CHECKS) {
+    if (c.skippedBy.some((v) => process.env[v] === '1')) continue;
+    log(`${c.script}: npm run ${c.script} (${c.what}); ${c.skippedBy[c.skippedBy.length - 1]}=1 skips it`);
+    const r = spawnSync('npm', ['run', '--silent', c.script], { cwd: projectRoot, stdio: ['ignore', 'inherit', 'inherit'] });
+    if (r.status !== 0) {
+      log(`${c.script} failed: ${c.onFail}`);
+      return false;
+    }
+  }
+  return true;
 }
 
 async function main(): Promise<number> {
   const t0 = Date.now();
   const jestArgs = process.argv.slice(2);
-  if (!lintPasses(jestArgs) || !typecheckPasses(jestArgs)) return 1;
+  if (!preChecksPass(jestArgs)) return 1;
   let maildev: Managed | null = null;
   fs.mkdirSync(runsDir, { recursive: true });
   fs.writeFileSync(path.join(runsDir, String(process.pid)), '');

@@ -14,6 +14,16 @@ export const DigitAnalysisRequestSchema = z.object({
 });
 export type DigitAnalysisRequest = z.infer<typeof DigitAnalysisRequestSchema>;
 
+/**
+ * The file ending a reply file is read by when it holds records as data (CSV or XLSX, of
+ * shared/letters.ts REPLY_FILE_TYPES), or null for a document or an image: what a digit
+ * analysis or a reconciliation can read.
+ */
+export function dataFileEnding(contentType: string): '.csv' | '.xlsx' | null {
+  if (contentType === 'text/csv') return '.csv';
+  return contentType === 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet' ? '.xlsx' : null;
+}
+
 /** Where a saved analysis takes its amounts: a file the taxpayer sent through a reply link. */
 export const AnalysisSourceSchema = z.strictObject({
   uploadId: z.uuid({ error: 'Choose a received reply file (its id)' }),

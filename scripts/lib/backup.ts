@@ -7,11 +7,9 @@
  * into an empty database only, in one transaction, so a failed restore leaves nothing behind;
  * the owner and application grants are then set up exactly as on a fresh start.
  */
-import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import type { Client as PgClient } from 'pg';
-import { connectionString, ensureDatabase, ensurePgInstalled, grantApplication, prepareOwnership, type ClusterSpec } from './pg';
+import { clientTool, ensureDatabase, grantApplication, prepareOwnership, withClient, type ClusterSpec } from './pg';
 
 /** The first bytes of every custom-format archive pg_dump writes (pg_backup_archiver.c). */
 const CUSTOM_FORMAT_MAGIC = 'PGDMP';
@@ -24,18 +22,6 @@ export interface BackupResult {
   file: string;
   bytes: number;
   seconds: number;
-}
-
-/** Runs one of PostgreSQL's client tools as the owner, over loopback, with the password in the environment. */
-function ownerTool(spec: ClusterSpec, tool: string, args: string[]) {
-  const bin = ensurePgInstalled();
-  const r = spawnSync(path.join(bin, tool), ['-h', '127.0.0.1', '-p', String(spec.port), '-U', spec.owner.user, ...args], {
-    encoding: 'utf8',
-    env: { ...process.env, PGPASSWORD: spec.owner.password },
-    maxBuffer: 64 * 1024 * 1024,
-  });
-  if (r.error) throw r.error;
-  return r;
 }
 
 /**
@@ -54,7 +40,7 @@ export function backupDatabase(spec: ClusterSpec, database: string, file: string
   const partial = `${target}.partial-${process.pid}`;
   const t0 = Date.now();
   try {
-    const r = ownerTool(spec, 'pg_dump', ['--format=custom', '--compress=6', '--file', partial, database]);
+    const r = clientTool(spec, 'pg_dump', ['--format=custom', '--compress=6', '--file', partial, database]);
     if (r.status !== 0) throw new Error(`pg_dump of database "${database}" failed (exit ${r.status}):\n${r.stderr.trim()}`);
     fs.renameSync(partial, target);
   } finally {
@@ -86,18 +72,13 @@ function checkArchive(file: string): string {
 
 /** Tables and other relations the database already holds in the application's schemas. */
 async function relationsIn(spec: ClusterSpec, database: string): Promise<number> {
-  const { Client } = await import('pg');
-  const client: PgClient = new Client({ connectionString: connectionString(spec, database, 'owner') });
-  await client.connect();
-  try {
-    const r = await client.query(
+  return withClient(spec, database, 'owner', async (c) => {
+    const r = await c.query(
       `SELECT count(*)::int AS n FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace
        WHERE n.nspname IN ('public', 'pgboss') AND c.relkind IN ('r', 'p', 'v', 'm', 'S')`,
     );
     return (r.rows[0] as { n: number }).n;
-  } finally {
-    await client.end();
-  }
+  });
 }
 
 /**
@@ -118,7 +99,7 @@ export async function restoreDatabase(spec: ClusterSpec, database: string, file:
   const t0 = Date.now();
   // --no-owner/--no-privileges: the objects belong to whoever restores (the owner role), and
   // the application's grants are given below exactly as on a fresh start (server/db/roles.ts).
-  const r = ownerTool(spec, 'pg_restore', ['--dbname', database, '--no-owner', '--no-privileges', '--single-transaction', '--exit-on-error', source]);
+  const r = clientTool(spec, 'pg_restore', ['--dbname', database, '--no-owner', '--no-privileges', '--single-transaction', '--exit-on-error', source]);
   if (r.status !== 0) throw new Error(`pg_restore into database "${database}" failed (exit ${r.status}); nothing was restored:\n${r.stderr.trim()}`);
   await prepareOwnership(spec, database);
   await grantApplication(spec, database);

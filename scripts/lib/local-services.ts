@@ -35,12 +35,19 @@ export const startSetup: LocalSetup = {
   maildevDir: path.join(projectRoot, '.data', 'maildev'),
 };
 
+const TEST_PG_PORT = 54339;
+/**
+ * PLUMBLINE_TEST_PG_PORT gives a test run a cluster of its own beside the usual one: its own
+ * port and data folder (one data folder serves one running PostgreSQL only), in this checkout
+ * or another.
+ */
+const testPgPort = Number(process.env.PLUMBLINE_TEST_PG_PORT ?? TEST_PG_PORT);
+
 /** The test command's services: own data folder and ports, never the demo data. */
 export const testSetup: LocalSetup = {
   cluster: {
-    dataDir: path.join(projectRoot, '.pg-test', 'data'),
-    // PLUMBLINE_TEST_PG_PORT lets a second checkout run its tests beside this one.
-    port: Number(process.env.PLUMBLINE_TEST_PG_PORT ?? 54339),
+    dataDir: testPgPort === TEST_PG_PORT ? path.join(projectRoot, '.pg-test', 'data') : path.join(projectRoot, '.pg-test', `port-${testPgPort}`, 'data'),
+    port: testPgPort,
     database: 'plumbline_test',
     // The cluster's superuser (creates databases and roles only); the owner runs migrations;
     // the server and worker log in as the application role (server/db/roles.ts).

@@ -7,7 +7,7 @@
  * initdb and pg_ctl refuse to run as root, so as root every call goes through
  * `runuser -u postgres`.
  */
-import { execFileSync, spawnSync } from 'node:child_process';
+import { execFileSync, spawnSync, type SpawnSyncReturns } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import type { Client as PgClient } from 'pg';
@@ -150,7 +150,7 @@ export function connectionString(spec: ClusterSpec, database = spec.database, lo
 }
 
 /** Runs `fn` on one connection to `database` as `login`. */
-async function withClient<T>(spec: ClusterSpec, database: string, login: LoginKind, fn: (c: PgClient) => Promise<T>): Promise<T> {
+export async function withClient<T>(spec: ClusterSpec, database: string, login: LoginKind, fn: (c: PgClient) => Promise<T>): Promise<T> {
   const { Client } = await import('pg');
   const client = new Client({ connectionString: connectionString(spec, database, login) });
   await client.connect();
@@ -332,14 +332,27 @@ export function clusterStatus(spec: ClusterSpec): string {
   return isReady(bin, spec) ? `running on 127.0.0.1:${spec.port} (data in ${spec.dataDir})` : `stopped (data in ${spec.dataDir})`;
 }
 
+/**
+ * Runs one of PostgreSQL's client tools (psql, pg_dump, pg_restore) over loopback as one of
+ * the cluster's logins (the owner unless told), with the password in the environment.
+ * Output is captured unless `inherit` hands the terminal to the tool.
+ */
+export function clientTool(spec: ClusterSpec, tool: string, args: string[], opts: { login?: LoginKind; inherit?: boolean } = {}): SpawnSyncReturns<string> {
+  const bin = ensurePgInstalled();
+  const l = loginOf(spec, opts.login ?? 'owner');
+  const r = spawnSync(path.join(bin, tool), ['-h', '127.0.0.1', '-p', String(spec.port), '-U', l.user, ...args], {
+    encoding: 'utf8',
+    stdio: opts.inherit ? 'inherit' : 'pipe',
+    env: { ...process.env, PGPASSWORD: l.password },
+    maxBuffer: 64 * 1024 * 1024,
+  });
+  if (r.error) throw r.error;
+  return r;
+}
+
 /** Runs psql against the cluster, interactively, as the owner (migrations' login). */
 export function psql(spec: ClusterSpec, args: string[]): number {
-  const bin = ensurePgInstalled();
-  const r = spawnSync(path.join(bin, 'psql'), ['-h', '127.0.0.1', '-p', String(spec.port), '-U', spec.owner.user, spec.database, ...args], {
-    stdio: 'inherit',
-    env: { ...process.env, PGPASSWORD: spec.owner.password },
-  });
-  return r.status ?? 1;
+  return clientTool(spec, 'psql', [spec.database, ...args], { inherit: true }).status ?? 1;
 }
 
 /** Removes the cluster's data folder entirely (after stopping it). */

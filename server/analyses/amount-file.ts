@@ -255,7 +255,6 @@ async function readXlsxFile(file: string, wanted: string | null, by: string | nu
       let index = -1; // column of the amounts (0-based), -1 until the first row is read
       let split = -1;
       let name = '';
-      let firstRow: unknown[] = [];
       let next = false;
       for await (const rows of reader.rows(ws, `${path.basename(file)}, sheet "${sheet}"`)) {
         for (const row of rows) {
@@ -274,8 +273,10 @@ async function readXlsxFile(file: string, wanted: string | null, by: string | nu
             if (col !== null) {
               index = col;
               name = header[col].trim();
-              firstRow = values;
-              if (by !== null) split = chooseSplit(header, by, col, `sheet "${sheet}"`);
+              if (by !== null) {
+                split = chooseSplit(header, by, col, `sheet "${sheet}"`);
+                out.byName = header[split].trim();
+              }
               continue;
             }
             if (by !== null) throw new AmountFileError(`sheet "${sheet}" has no header row, so it has no column "${by}" to split by`);
@@ -288,8 +289,7 @@ async function readXlsxFile(file: string, wanted: string | null, by: string | nu
         if (next) break;
       }
       if (index >= 0) {
-        if (split >= 0) out.byName = cellHeader(firstRow[split + 1]).trim();
-        return name ? `sheet "${sheet}", column "${name}"${split >= 0 ? ` by "${by}"` : ''}` : `sheet "${sheet}", one column, no header`;
+        return name ? `sheet "${sheet}", column "${name}"${out.byName ? ` by "${out.byName}"` : ''}` : `sheet "${sheet}", one column, no header`;
       }
       skipped.push(`"${sheet}"`);
     }

@@ -4,7 +4,7 @@ import { allow, secureRouter } from '../auth/access';
 import { removeSpooled, spoolStorage } from '../batches/intake/upload-spool';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
-import { analyseAmounts, analyseFile, analyseFileBy } from './analyses.service';
+import { analyseAmounts, analyseFile } from './analyses.service';
 
 /** Largest file for an ad-hoc digit analysis. */
 const MAX_FILE_BYTES = 50 * 1024 * 1024;
@@ -43,7 +43,7 @@ export function analysesRoutes() {
         if (!file) return next(new HttpError(422, 'No file: send the amounts as the multipart field "file".'));
         const column = typeof req.body?.column === 'string' && req.body.column.trim() ? req.body.column.trim() : null;
         const by = typeof req.body?.by === 'string' && req.body.by.trim() ? req.body.by.trim() : null;
-        (by === null ? analyseFile(file.path, file.originalname, column) : analyseFileBy(file.path, file.originalname, column, by))
+        analyseFile(file.path, file.originalname, column, by)
           .then((profile) => res.json(profile))
           .catch(next)
           .finally(() => void removeSpooled([file]));

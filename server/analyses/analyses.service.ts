@@ -4,7 +4,7 @@
  */
 import fs from 'node:fs';
 import path from 'node:path';
-import { AMOUNT_FORMS, digitResult, findAmountErrors, profileAmounts, profileColumn, type DigitProfile, type DigitResult } from '../../shared/digits';
+import { AMOUNT_FORMS, digitResult, findAmountErrors, profileAmounts, type DigitProfile, type DigitResult } from '../../shared/digits';
 import { HttpError } from '../http/errors';
 import { CapError, DEFAULT_READ_CAPS, EXCEL_MAX_ROWS, type ReadCaps } from '../batches/intake/caps';
 import { sniff } from '../batches/intake/sources';
@@ -45,16 +45,12 @@ async function firstBytes(file: string): Promise<Buffer> {
 
 /**
  * Profiles a column of an uploaded file (text, CSV or XLSX, by the original name's
- * extension). The file is read in a worker thread under {@link AMOUNT_FILE_CAPS}.
+ * extension), split by a second column when `by` is given (the answer then has `split`).
+ * The file is read in a worker thread under {@link AMOUNT_FILE_CAPS}.
  * @throws HttpError 422 for a file that is not what its name says or holds a bad value,
  *   413 for a file over a reading limit (the message names it and how to split the file)
  */
-export async function analyseFile(storedPath: string, originalName: string, column: string | null, caps: ReadCaps = AMOUNT_FILE_CAPS): Promise<DigitProfile> {
-  return profileColumn(await readColumn(storedPath, originalName, column, null, caps));
-}
-
-/** As {@link analyseFile}, split by a second column: the profile with each group's figures. */
-export async function analyseFileBy(storedPath: string, originalName: string, column: string | null, by: string): Promise<DigitResult> {
+export async function analyseFile(storedPath: string, originalName: string, column: string | null, by: string | null): Promise<DigitResult> {
   const read = await readColumn(storedPath, originalName, column, by);
   return digitResult(read, read.groups);
 }

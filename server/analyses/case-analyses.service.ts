@@ -5,14 +5,22 @@
  * access log, like any taxpayer data.
  */
 import fs from 'node:fs';
-import type { DataSource } from 'typeorm';
+import type { DataSource, EntityManager } from 'typeorm';
 import { digitResult, digitResultSchema, type DigitResultJson } from '../../shared/digits';
-import type { Reconciliation, ReconciliationRequest, SaveAnalysisRequest, SavedAnalysis } from '../../shared/analyses';
+import {
+  dataFileEnding,
+  type AnalysisSource,
+  type Reconciliation,
+  type ReconciliationRequest,
+  type SaveAnalysisRequest,
+  type SavedAnalysis,
+} from '../../shared/analyses';
 import { LINE_CODE_DEFS, LINE_CODES, type LineCode } from '../../shared/returns/line-codes';
-import { recordAccess } from '../access-log/access-log.service';
+import { recordAccess, type AccessEvent } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import { removeSpooled, spoolPath } from '../batches/intake/upload-spool';
 import { assertMayAct, lockCase, taxpayerLabelOf } from '../cases/case-workflow';
+import type { ExamCase } from '../cases/exam-case.entity';
 import { now } from '../clock';
 import { isUuid } from '../../shared/ids';
 import { HttpError } from '../http/errors';
@@ -26,12 +34,6 @@ import {
   type CaseAnalysisRow,
 } from './case-analyses.repository';
 import { renderWorkingPaperPdf } from './working-paper-pdf';
-
-/** Reply-file types that hold records as data, and how each is read. */
-const DATA_KINDS: Record<string, '.csv' | '.xlsx'> = {
-  'text/csv': '.csv',
-  'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet': '.xlsx',
-};
 
 function toDto(r: CaseAnalysisRow): SavedAnalysis {
   return {
@@ -50,26 +52,53 @@ function toDto(r: CaseAnalysisRow): SavedAnalysis {
 }
 
 /**
+ * Locks the case, checks that the actor may act on it, and reads a column of one of its reply
+ * files (CSV or XLSX) in the reading thread, split by `by` when given.
+ * @param purpose what reads it, for the refusal of a document ("digit analysis")
+ */
+async function readReplyColumn(
+  m: EntityManager,
+  audit: StaffAudit,
+  caseId: string,
+  req: { source: AnalysisSource; column?: string | null },
+  by: string | null,
+  purpose: string,
+) {
+  const c = await lockCase(m, caseId);
+  assertMayAct(audit.actor, c);
+  const file = isUuid(req.source.uploadId) ? await findCaseReplyFile(m, caseId, req.source.uploadId) : null;
+  if (!file) throw new HttpError(404, 'No such reply file on this case.');
+  const ext = dataFileEnding(file.contentType);
+  if (!ext) throw new HttpError(422, `"${file.fileName}" is a document, not a table of figures; ${purpose} reads CSV or XLSX files.`);
+  const stored = spoolPath(ext);
+  fs.writeFileSync(stored, file.content, { mode: 0o600 });
+  try {
+    return { c, file, read: await readColumn(stored, file.fileName, req.column ?? null, by) };
+  } finally {
+    await removeSpooled([{ path: stored }]);
+  }
+}
+
+/** One line in the access log about the case (its taxpayer named by the masked TIN). */
+async function logCaseAccess(m: EntityManager, audit: StaffAudit, c: ExamCase, action: AccessEvent['action'], detail: string): Promise<void> {
+  await recordAccess(m, audit, {
+    action,
+    recordType: 'case',
+    recordId: c.id,
+    taxpayerId: c.taxpayerId,
+    taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
+    detail,
+  });
+}
+
+/**
  * Runs the digit analysis of a reply file's column and keeps it with the case.
  * @throws HttpError 404 (no such case or file on this case), 403 (not the case's examiner),
  *   422 (a file that holds no data, a missing column, a value that is not an amount)
  */
 export async function saveCaseAnalysis(ds: DataSource, audit: StaffAudit, caseId: string, req: SaveAnalysisRequest): Promise<SavedAnalysis> {
   return ds.transaction(async (m) => {
-    const c = await lockCase(m, caseId);
-    assertMayAct(audit.actor, c);
-    const file = isUuid(req.source.uploadId) ? await findCaseReplyFile(m, caseId, req.source.uploadId) : null;
-    if (!file) throw new HttpError(404, 'No such reply file on this case.');
-    const ext = DATA_KINDS[file.contentType];
-    if (!ext) throw new HttpError(422, `"${file.fileName}" is a document, not a table of figures; digit analysis reads CSV or XLSX files.`);
-    const stored = spoolPath(ext);
-    fs.writeFileSync(stored, file.content, { mode: 0o600 });
-    let read;
-    try {
-      read = await readColumn(stored, file.fileName, req.column ?? null, req.by ?? null);
-    } finally {
-      await removeSpooled([{ path: stored }]);
-    }
+    const { c, file, read } = await readReplyColumn(m, audit, caseId, req, req.by ?? null, 'digit analysis');
     const result = digitResultSchema.parse(JSON.parse(JSON.stringify(digitResult(read, read.groups))));
     const row = await insertCaseAnalysis(m, {
       caseId,
@@ -84,14 +113,7 @@ export async function saveCaseAnalysis(ds: DataSource, audit: StaffAudit, caseId
       what: read.what,
       result,
     });
-    await recordAccess(m, audit, {
-      action: 'change',
-      recordType: 'case',
-      recordId: caseId,
-      taxpayerId: c.taxpayerId,
-      taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
-      detail: `digit analysis ${row.id} saved (${read.what} of ${file.fileName})`,
-    });
+    await logCaseAccess(m, audit, c, 'change', `digit analysis ${row.id} saved (${read.what} of ${file.fileName})`);
     return toDto(row);
   });
 }
@@ -101,14 +123,7 @@ export async function listCaseAnalyses(ds: DataSource, audit: StaffAudit, caseId
   return ds.transaction(async (m) => {
     const c = await lockCase(m, caseId);
     const rows = await findCaseAnalyses(m, caseId);
-    await recordAccess(m, audit, {
-      action: 'view',
-      recordType: 'case',
-      recordId: caseId,
-      taxpayerId: c.taxpayerId,
-      taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
-      detail: `digit analyses listed (${rows.length})`,
-    });
+    await logCaseAccess(m, audit, c, 'view', `digit analyses listed (${rows.length})`);
     return rows.map(toDto);
   });
 }
@@ -119,14 +134,7 @@ export async function caseAnalysisPdf(ds: DataSource, audit: StaffAudit, caseId:
     const c = await lockCase(m, caseId);
     const row = isUuid(analysisId) ? await findCaseAnalysis(m, caseId, analysisId) : null;
     if (!row) throw new HttpError(404, 'No such analysis on this case.');
-    await recordAccess(m, audit, {
-      action: 'export',
-      recordType: 'case',
-      recordId: caseId,
-      taxpayerId: c.taxpayerId,
-      taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
-      detail: `digit analysis ${row.id} working paper`,
-    });
+    await logCaseAccess(m, audit, c, 'export', `digit analysis ${row.id} working paper`);
     const result = row.result as DigitResultJson;
     const pdf = await renderWorkingPaperPdf({
       caseRef: `Case ${c.id}`,
@@ -165,20 +173,7 @@ function textCents(t: string): bigint {
  */
 export async function reconcileLedger(ds: DataSource, audit: StaffAudit, caseId: string, req: ReconciliationRequest): Promise<Reconciliation> {
   return ds.transaction(async (m) => {
-    const c = await lockCase(m, caseId);
-    assertMayAct(audit.actor, c);
-    const file = isUuid(req.source.uploadId) ? await findCaseReplyFile(m, caseId, req.source.uploadId) : null;
-    if (!file) throw new HttpError(404, 'No such reply file on this case.');
-    const ext = DATA_KINDS[file.contentType];
-    if (!ext) throw new HttpError(422, `"${file.fileName}" is a document, not a table of figures; a reconciliation reads CSV or XLSX files.`);
-    const stored = spoolPath(ext);
-    fs.writeFileSync(stored, file.content, { mode: 0o600 });
-    let read;
-    try {
-      read = await readColumn(stored, file.fileName, req.column ?? null, req.by);
-    } finally {
-      await removeSpooled([{ path: stored }]);
-    }
+    const { c, file, read } = await readReplyColumn(m, audit, caseId, req, req.by, 'a reconciliation');
     const groups = read.groups!;
     const totals = groups.names.map(() => 0n);
     read.cents.forEach((v, i) => (totals[groups.ofCents[i]] += BigInt(v)));
@@ -214,14 +209,7 @@ export async function reconcileLedger(ds: DataSource, audit: StaffAudit, caseId:
           difference: centsText(r.total - rep),
         };
       });
-    await recordAccess(m, audit, {
-      action: 'view',
-      recordType: 'case',
-      recordId: caseId,
-      taxpayerId: c.taxpayerId,
-      taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
-      detail: `ledger ${file.fileName} reconciled with the return (${rows.length} line codes)`,
-    });
+    await logCaseAccess(m, audit, c, 'view', `ledger ${file.fileName} reconciled with the return (${rows.length} line codes)`);
     return { rows, unmapped };
   });
 }

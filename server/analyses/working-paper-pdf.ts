@@ -4,7 +4,19 @@
  * four digit tests as a vector chart against its expected curve with its figures, and the
  * other digit figures. Written by `npm run digits -- --pdf FILE` and by a case's saved analysis.
  */
-import { DIGIT_LABELS, type DigitProfile, type DigitTestName, type GroupFigures } from '../../shared/digits';
+import {
+  DIGIT_TEST_TITLES as TITLES,
+  binLabel,
+  fixedOrDash as fixed,
+  goodnessWords,
+  groupsByZ,
+  largestDeviations,
+  pValueText as pv,
+  percentOrDash as pct,
+  type DigitProfile,
+  type DigitTestName,
+  type GroupFigures,
+} from '../../shared/digits';
 import { CAUTIONS } from '../../shared/cautions';
 import {
   BRASS,
@@ -51,19 +63,8 @@ export interface WorkingPaper {
   split?: { column: string; groups: GroupFigures[] };
 }
 
-const TITLES: Record<DigitTestName, string> = {
-  firstDigit: 'First digit',
-  secondDigit: 'Second digit',
-  firstTwo: 'First two digits',
-  lastTwo: 'Last two digits',
-};
-
-const fixed = (x: number | null, d: number) => (x === null ? '—' : x.toFixed(d));
-const pct = (x: number | null) => (x === null ? '—' : `${(100 * x).toFixed(1)} %`);
-const pv = (p: number | null) => (p === null ? '—' : p < 0.0001 ? '< 0.0001' : p.toFixed(4));
 const int = (n: number) => n.toLocaleString('en-GB');
 const stamp = (d: Date) => `${d.toISOString().slice(0, 10)} ${d.toISOString().slice(11, 16)} UTC`;
-const verdict = (v: string | null) => (v === null ? '—' : v === 'not_rejected' ? 'not rejected' : v === 'rejected_5' ? 'rejected at 5 %' : 'rejected at 1 %');
 
 /** Bars of observed shares with the expected curve as a brass line, drawn as vectors. */
 function chart(doc: Pdf, test: DigitTestName, counts: readonly number[], expected: readonly number[], n: number): void {
@@ -109,9 +110,7 @@ function chart(doc: Pdf, test: DigitTestName, counts: readonly number[], expecte
   doc.font(F.body).fontSize(7).fillColor(INK);
   counts.forEach((_, i) => {
     if (i % every !== 0) return;
-    const d = DIGIT_LABELS[test][i];
-    const label = test === 'lastTwo' ? String(d).padStart(2, '0') : String(d);
-    doc.text(label, x0 + slot * i - 6, top + h + 3, { width: slot + 12, align: 'center', lineBreak: false });
+    doc.text(binLabel(test, i), x0 + slot * i - 6, top + h + 3, { width: slot + 12, align: 'center', lineBreak: false });
   });
   doc.x = doc.page.margins.left;
   doc.y = top + h + 16;
@@ -135,21 +134,15 @@ function testSection(doc: Pdf, test: DigitTestName, p: DigitProfile): void {
     r.conformity === 'too_few'
       ? `too few amounts for the published ranges; size-aware: MAD ${fixed(s.mad, 4)} against ${fixed(s.expectedMad, 4)} ± ${fixed(s.sdMad, 4)} expected for this n (z ${fixed(s.zScore, 2)}, ${s.verdict.replace('_', ' ')})`
       : `${r.conformity} (published conformity range)`;
-  const top = r.z
-    .map((z, i) => ({ z: z ?? 0, i }))
-    .sort((a, b) => b.z - a.z || a.i - b.i)
-    .slice(0, 5)
-    .map(({ z, i }) => {
-      const d = DIGIT_LABELS[test][i];
-      return `${test === 'lastTwo' ? String(d).padStart(2, '0') : d}: ${pct(r.counts[i] / r.n)} vs ${pct(r.expected[i])} (Z ${z.toFixed(2)})`;
-    })
+  const top = largestDeviations(test, r)
+    .map((d) => `${d.label}: ${pct(d.observed)} vs ${pct(d.expected)} (Z ${d.z.toFixed(2)})`)
     .join(' · ');
   facts(
     doc,
     [
       { label: 'MAD', value: `${fixed(r.mad, 5)}: ${conformity}` },
       { label: 'Chi-square', value: `${fixed(r.chiSquare, 2)}, df ${r.df}, p ${pv(r.pValue)}${r.chiSquareValid ? '' : ' (expected counts below 5)'}` },
-      { label: 'KS / Kuiper', value: `${fixed(r.ks, 4)} (${verdict(r.ksVerdict)}) / ${fixed(r.kuiper, 4)} (${verdict(r.kuiperVerdict)})` },
+      { label: 'KS / Kuiper', value: `${fixed(r.ks, 4)} (${goodnessWords(r.ksVerdict)}) / ${fixed(r.kuiper, 4)} (${goodnessWords(r.kuiperVerdict)})` },
       { label: 'Largest deviations', value: top },
     ],
     110,
@@ -212,7 +205,7 @@ export async function renderWorkingPaperPdf(wp: WorkingPaper): Promise<Buffer> {
 
   if (wp.split) {
     heading(doc, `By ${printable(wp.split.column)}`, 11.5);
-    const groups = [...wp.split.groups].sort((a, b) => (b.sizeAware.zScore ?? -Infinity) - (a.sizeAware.zScore ?? -Infinity)).slice(0, 60);
+    const groups = groupsByZ(wp.split.groups).slice(0, 60);
     doc
       .font(F.body)
       .fontSize(9)

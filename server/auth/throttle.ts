@@ -35,8 +35,8 @@ export class LoginThrottle {
 
   /** Null when a sign-in may be tried; otherwise which limit holds and for how long. */
   check(username: string, address: string): { scope: 'account' | 'address'; retryAfterSeconds: number } | null {
-    const acc = this.recent(`u:${username.toLowerCase()}`);
-    if (acc.length >= this.limits.perAccount) return { scope: 'account', retryAfterSeconds: this.wait(acc) };
+    const accountWait = this.accountLockedFor(username);
+    if (accountWait !== null) return { scope: 'account', retryAfterSeconds: accountWait };
     const addr = this.recent(`a:${address}`);
     if (addr.length >= this.limits.perAddress) return { scope: 'address', retryAfterSeconds: this.wait(addr) };
     return null;

@@ -15,7 +15,7 @@ import { closeWithLetter, isClosingMove } from '../letters/closing-letters.servi
 import type { LetterDeps } from '../letters/letters.service';
 import { findCaseTin, findExaminers, insertCaseNote } from './case.repository';
 import { dropQueueTotals } from './case-queue.service';
-import { assertMayAct, assignCase, claimCase, lockCase, moveCase, reopenCase, taxpayerLabelOf } from './case-workflow';
+import { assertMayAct, assignCase, claimCase, lockCase, logCaseAccess, moveCase, reopenCase } from './case-workflow';
 import type { ExamCase } from './exam-case.entity';
 
 const changed = (c: ExamCase): CaseChanged => ({ id: c.id, state: c.state, assignee: c.assigneeId });
@@ -60,14 +60,7 @@ export async function addNote(ds: DataSource, audit: StaffAudit, caseId: string,
     const c = await lockCase(m, caseId);
     assertMayAct(audit.actor, c);
     const n = await insertCaseNote(m, caseId, audit.actor.id, text);
-    await recordAccess(m, audit, {
-      action: 'change',
-      recordType: 'case',
-      recordId: caseId,
-      taxpayerId: c.taxpayerId,
-      taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
-      detail: `note ${n.id} added`,
-    });
+    await logCaseAccess(m, audit, c, 'change', `note ${n.id} added`);
     return { id: n.id, at: n.at.toISOString(), authorId: n.authorId, authorName: n.authorName, text: n.text };
   });
 }

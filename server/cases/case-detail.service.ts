@@ -1,7 +1,7 @@
 /**
  * One case for the case screen (issue 7): the case with its return, lines, score, history
  * in words, notes and letters, and what the caller may do now; opening a case writes one
- * 'view' line to the access log. Also the examiners one may filter by or assign to.
+ * 'view' line to the access log (and, for its examiner, marks it seen). Also the examiners one may filter by or assign to.
  */
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
@@ -35,6 +35,7 @@ import {
   userNames,
   type CaseEventRecord,
 } from './case.repository';
+import { findReplyUnreadSince, markSeenByAssignee } from './case-queue.repository';
 import { mayAct } from './case-workflow';
 import { longDate } from '../../shared/letters';
 import { caseDeadline } from './case-deadline.service';
@@ -100,12 +101,17 @@ function summarise(e: CaseEventRecord, names: Map<string, string>): string {
   }
 }
 
-/** One case for the case screen, logged as a 'view'. 404 when there is no such case. */
+/**
+ * One case for the case screen, logged as a 'view'. 404 when there is no such case. When the
+ * reader is the case's examiner, the case counts as opened by them: an unread reply is cleared
+ * (and reported once, in `replyUnreadSince`, so the screen can say what is new) and "handed to
+ * me" and "requests expired" stop counting what came before this moment.
+ */
 export async function getCaseDetail(ds: DataSource, audit: StaffAudit, caseId: string): Promise<CaseDetail> {
   if (!isUuid(caseId)) throw new HttpError(404, 'No such case.');
   const c = await findCaseDetail(ds, caseId);
   if (!c) throw new HttpError(404, 'No such case.');
-  const [lines, events, notes, letters, deadline, otherReturns, preparerCases] = await Promise.all([
+  const [lines, events, notes, letters, deadline, otherReturns, preparerCases, replyUnreadSince] = await Promise.all([
     findLineItems(ds, c.returnId),
     findCaseEvents(ds, caseId),
     findCaseNotes(ds, caseId),
@@ -113,6 +119,9 @@ export async function getCaseDetail(ds: DataSource, audit: StaffAudit, caseId: s
     caseDeadline(ds, caseId),
     findTaxpayerOtherReturns(ds, c.taxpayerId, c.returnId),
     findPreparerOtherCases(ds, c.returnId, PREPARER_CASES_SHOWN),
+    // The examiner's own opening counts as seen (issue 14): it clears an unread reply and
+    // reports it once; anyone else only reads whether one waits.
+    c.assigneeId === audit.actor.id ? markSeenByAssignee(ds, caseId, audit.actor.id) : findReplyUnreadSince(ds, caseId),
   ]);
   const mentioned = new Set<string>();
   for (const e of events) for (const k of ['from', 'to', 'assigneeId']) if (typeof e.detail?.[k] === 'string') mentioned.add(e.detail[k] as string);
@@ -203,6 +212,7 @@ export async function getCaseDetail(ds: DataSource, audit: StaffAudit, caseId: s
           }
         : null,
     },
+    replyUnreadSince: replyUnreadSince ? replyUnreadSince.toISOString() : null,
   };
 }
 

@@ -197,6 +197,11 @@ export async function markReplyUnread(db: Db, caseId: string): Promise<void> {
 /**
  * The case's examiner opened it: clears an unread reply and notes when. Returns when the
  * cleared reply had arrived (null when there was none). Does nothing for anyone else.
+ *
+ * This is a write on every read of the case screen, so it writes only when the opening changes
+ * something: a reply to clear, or a case event since the last "seen" (only events after it
+ * count in {@link needsCondition}; with none, moving "seen" on would change no count). An
+ * examiner reopening the same quiet case reads one index range and writes nothing.
  */
 export async function markSeenByAssignee(db: Db, caseId: string, userId: string): Promise<Date | null> {
   const rows: { was: Date | null }[] = await db.query(
@@ -205,6 +210,8 @@ export async function markSeenByAssignee(db: Db, caseId: string, userId: string)
           up AS (
             INSERT INTO case_attention (case_id, assignee_seen_at) SELECT id, now() FROM held
             ON CONFLICT (case_id) DO UPDATE SET assignee_seen_at = now(), reply_unread_since = NULL
+            WHERE case_attention.reply_unread_since IS NOT NULL OR case_attention.assignee_seen_at IS NULL
+               OR EXISTS (SELECT 1 FROM case_event e WHERE e.case_id = case_attention.case_id AND e.at > case_attention.assignee_seen_at)
             RETURNING case_id)
      SELECT (SELECT was FROM before) AS was FROM up`,
     [caseId, userId],

@@ -12,25 +12,14 @@ import ExcelJS from 'exceljs';
 import type { Writable } from 'node:stream';
 import type { DataSource } from 'typeorm';
 import { maskTin } from '../../shared/access-log';
-import type { CaseDetail, CaseList, CaseListItem, CaseListQuery, NeedsMe } from '../../shared/case-api';
+import type { CaseList, CaseListItem, CaseListQuery, NeedsMe } from '../../shared/case-api';
 import { CASE_STATE_LABELS, isFinalState } from '../../shared/cases';
 import { SCREENING_CAUTION } from '../../shared/cautions';
 import { safeCellText } from '../../shared/spreadsheet-text';
 import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import type { SessionUser } from '../auth/access';
-import {
-  caseFilterOf,
-  countCases,
-  countNeeds,
-  findCasePage,
-  findReplyUnreadSince,
-  iterateCases,
-  markSeenByAssignee,
-  type CaseFilter,
-  type QueueCase,
-} from './case-queue.repository';
-import { getCaseDetail } from './case-detail.service';
+import { caseFilterOf, countCases, countNeeds, findCasePage, iterateCases, type CaseFilter, type QueueCase } from './case-queue.repository';
 import { now as officeNow, today } from '../clock';
 
 function toItem(r: QueueCase): CaseListItem {
@@ -126,18 +115,6 @@ export async function listCases(ds: DataSource, audit: StaffAudit, q: CaseListQu
 /** How many of the caller's own cases need them for each reason (the "Needs me" strip, issue 14). */
 export async function needsMe(ds: DataSource, actor: Pick<SessionUser, 'id'>): Promise<NeedsMe> {
   return countNeeds(ds, actor.id, today());
-}
-
-/**
- * One case as the case screen reads it, and, when the reader is the case's examiner, the
- * case counted as opened by them: an unread reply is cleared (and reported once, in
- * `replyUnreadSince`, so the screen can say what is new) and "handed to me" and "requests
- * expired" stop counting what came before this moment.
- */
-export async function openCase(ds: DataSource, audit: StaffAudit, caseId: string): Promise<CaseDetail> {
-  const detail = await getCaseDetail(ds, audit, caseId);
-  const since = detail.assignee?.id === audit.actor.id ? await markSeenByAssignee(ds, caseId, audit.actor.id) : await findReplyUnreadSince(ds, caseId);
-  return { ...detail, replyUnreadSince: since ? since.toISOString() : null };
 }
 
 /** Words for the filters of an export (its access-log line and its About sheet). */

@@ -91,9 +91,19 @@ export async function addCaseEvent(
   await insertCaseEvent(m, { caseId, actorId: actor?.id ?? null, kind, detail, from: from ?? null, to: to ?? null });
 }
 
-async function logChange(m: EntityManager, audit: StaffAudit, c: ExamCase, detail: string) {
+/**
+ * One access-log line about a case, inside the caller's transaction, naming its taxpayer so
+ * "who touched this taxpayer" finds it. Every case change (moves here, notes) logs through it.
+ */
+export async function logCaseAccess(
+  m: EntityManager,
+  audit: StaffAudit,
+  c: Pick<ExamCase, 'id' | 'taxpayerId'>,
+  action: 'change' | 'view' | 'export',
+  detail: string,
+): Promise<void> {
   await recordAccess(m, audit, {
-    action: 'change',
+    action,
     recordType: 'case',
     recordId: c.id,
     taxpayerId: c.taxpayerId,
@@ -148,7 +158,7 @@ export async function moveCase(m: EntityManager, audit: StaffAudit, caseOrId: Ex
     from,
     to,
   );
-  await logChange(m, audit, c, `${from} → ${to}`);
+  await logCaseAccess(m, audit, c, 'change', `${from} → ${to}`);
   return c;
 }
 
@@ -170,7 +180,7 @@ export async function claimCase(ds: DataSource, audit: StaffAudit, caseId: strin
     c.updatedAt = officeNow();
     await saveCase(m, c);
     await addCaseEvent(m, c.id, actor, 'claimed', { assigneeId: actor.id }, 'open', 'assigned');
-    await logChange(m, audit, c, 'claimed');
+    await logCaseAccess(m, audit, c, 'change', 'claimed');
     return c;
   });
 }
@@ -200,7 +210,7 @@ export async function assignCase(ds: DataSource, audit: StaffAudit, caseId: stri
     await saveCase(m, c);
     const kind = !previous ? 'assigned' : from === 'open' || from === 'assigned' ? 'reassigned' : 'handed-over';
     await addCaseEvent(m, c.id, audit.actor, kind, { from: previous, to: assigneeId }, from, to);
-    await logChange(m, audit, c, `assigned to ${who.displayName}`);
+    await logCaseAccess(m, audit, c, 'change', `assigned to ${who.displayName}`);
     return c;
   });
 }
@@ -229,7 +239,7 @@ export async function reopenCase(ds: DataSource, audit: StaffAudit, caseId: stri
     c.updatedAt = officeNow();
     await saveCase(m, c);
     await addCaseEvent(m, c.id, audit.actor, 'reopened', detail, from, REOPEN_STATE);
-    await logChange(m, audit, c, `reopened: ${from} → ${REOPEN_STATE}; reason: ${reason}`);
+    await logCaseAccess(m, audit, c, 'change', `reopened: ${from} → ${REOPEN_STATE}; reason: ${reason}`);
     return c;
   });
 }

@@ -6,8 +6,8 @@ import { allow, secureRouter } from '../auth/access';
 import { validate } from '../http/validate';
 import type { LetterDeps } from '../letters/letters.service';
 import { addNote, assign, bulkReassign, claim, reopen, revealTin, transition } from './case-actions.service';
-import { listExaminers } from './case-detail.service';
-import { exportCases, listCases, openCase } from './case-queue.service';
+import { getCaseDetail, listExaminers } from './case-detail.service';
+import { exportCases, listCases } from './case-queue.service';
 import { today as officeToday } from '../clock';
 
 /**
@@ -51,7 +51,7 @@ export function caseRoutes(deps: Pick<AppDeps, 'dataSource'> & { letters: Letter
 
   r.get('/cases/:id', allow('readCases'), async (req, res) => {
     res.setHeader('Cache-Control', 'no-store');
-    res.json(await openCase(ds, staffAuditOf(req), String(req.params.id)));
+    res.json(await getCaseDetail(ds, staffAuditOf(req), String(req.params.id)));
   });
 
   r.post('/cases/:id/claim', allow('workCases'), async (req, res) => {

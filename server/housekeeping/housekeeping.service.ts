@@ -94,44 +94,34 @@ export async function runDailyPass(deps: HousekeepingDeps, settings: Housekeepin
 
 /** Expires overdue requests; ends by date those that took sends. Counts both. */
 async function expireOverdue(ds: DataSource, day: string): Promise<{ expired: number; completed: number }> {
-  let n = 0;
+  let expired = 0;
   let completed = 0;
   for (const r of await findRequestsPastDue(ds, day)) {
-    const did = await ds.transaction(async (m) => {
+    const done = await ds.transaction(async (m) => {
       const c = await lockCase(m, r.caseId);
       // Records that came in parts: the date ends the sends, and the case goes back to review
       // as for a reply the taxpayer said was complete. Not an expiry.
       const sends = await completeByDueDate(m, r.id);
-      if (sends > 0) {
-        const detail = { documentRequestId: r.id, letterId: r.letterId, dueDate: r.dueDate, sends, completedBy: 'due-date' };
-        await endReplyWait(m, c, 'reply-received', detail, !(await otherRequestWaiting(m, r.caseId, r.id, day)), now());
-        await recordAccess(m, AUDIT, {
-          action: 'change',
-          recordType: 'document_request',
-          recordId: r.id,
-          taxpayerId: r.taxpayerId,
-          taxpayerLabel: maskTin(String(r.tin)),
-          detail: `due date ${r.dueDate} passed after ${sends} send${sends === 1 ? '' : 's'}: reply complete`,
-        });
-        completed++;
-        return false;
-      }
-      if (!(await expireRequest(m, r.id))) return false;
-      const detail = { documentRequestId: r.id, letterId: r.letterId, dueDate: r.dueDate };
-      await endReplyWait(m, c, 'reply-overdue', detail, !(await otherRequestWaiting(m, r.caseId, r.id, day)), now());
+      if (!sends && !(await expireRequest(m, r.id))) return null;
+      const base = { documentRequestId: r.id, letterId: r.letterId, dueDate: r.dueDate };
+      const detail = sends ? { ...base, sends, completedBy: 'due-date' } : base;
+      await endReplyWait(m, c, sends ? 'reply-received' : 'reply-overdue', detail, !(await otherRequestWaiting(m, r.caseId, r.id, day)), now());
       await recordAccess(m, AUDIT, {
         action: 'change',
         recordType: 'document_request',
         recordId: r.id,
         taxpayerId: r.taxpayerId,
         taxpayerLabel: maskTin(String(r.tin)),
-        detail: `no reply by ${r.dueDate}: request expired`,
+        detail: sends
+          ? `due date ${r.dueDate} passed after ${sends} send${sends === 1 ? '' : 's'}: reply complete`
+          : `no reply by ${r.dueDate}: request expired`,
       });
-      return true;
+      return sends ? 'completed' : 'expired';
     });
-    if (did) n++;
+    if (done === 'expired') expired++;
+    if (done === 'completed') completed++;
   }
-  return { expired: n, completed };
+  return { expired, completed };
 }
 
 async function sendReminders(deps: HousekeepingDeps, day: string, daysBefore: number): Promise<number> {

@@ -21,7 +21,6 @@ import { LINE_CODE_DEFS, type CentsLine, type LineCode } from '../../shared/retu
 import { formatCents } from '../../shared/returns/money';
 import { recordAccess } from '../access-log/access-log.service';
 import type { AuditContext, StaffAudit } from '../access-log/audit-context';
-import { refreshDeadlines } from '../cases/case-deadline.repository';
 import { assertMayAct, lockCase, moveCase } from '../cases/case-workflow';
 import type { ExamCase } from '../cases/exam-case.entity';
 import { today as clockToday } from '../clock';
@@ -29,15 +28,14 @@ import { HttpError } from '../http/errors';
 import {
   caseHasReplyFiles,
   findCaseContext,
-  findCaseTaxpayer,
   findFiledLines,
   findTaxpayerAddress,
-  insertCorrections,
   insertLetter,
+  replaceCorrections,
   setLetterMessageId,
   type CaseContext,
 } from './letters.repository';
-import { sha256, type LetterDeps } from './letters.service';
+import { logLetterPreview, sha256, type LetterDeps } from './letters.service';
 import {
   acknowledgementText,
   acknowledgementWording,
@@ -148,7 +146,8 @@ export async function closeWithLetter(m: EntityManager, deps: LetterDeps, audit:
   const ctx = await findCaseContext(m, locked.id);
   if (!ctx) throw new HttpError(404, 'No such case.');
   const letterId = randomUUID();
-  const letter = await closingLetter(m, ctx, req, audit.actor.displayName, (prefix) => referenceOf(prefix, letterId), clockToday());
+  const date = clockToday();
+  const letter = await closingLetter(m, ctx, req, audit.actor.displayName, (prefix) => referenceOf(prefix, letterId), date);
   const adjustedAmount = letter.figures ? formatCents(letter.figures.taxDifference) : undefined;
   const corrections = letter.figures
     ? letter.figures.lines.filter((x) => x.changed).map((x) => ({ lineCode: x.code, filed: formatCents(x.filed), corrected: formatCents(x.corrected) }))
@@ -158,19 +157,18 @@ export async function closeWithLetter(m: EntityManager, deps: LetterDeps, audit:
     adjustedAmount,
     detail: { letterId, ...(corrections.length ? { corrections } : {}) },
   });
-  await insertCorrections(m, locked.id, audit.actor.id, corrections);
-  // Income the corrections add can lengthen the assessment period (6 years past 25 %).
-  await refreshDeadlines(m, [locked.id]);
+  await replaceCorrections(m, locked.id, audit.actor.id, corrections);
   const to = await findTaxpayerAddress(m, locked.id);
   const pdf = await letter.render();
+  const hash = sha256(pdf);
   await insertLetter(m, {
     id: letterId,
     caseId: locked.id,
     kind: letter.kind,
     fileName: letter.fileName,
     pdf,
-    sha256: sha256(pdf),
-    sentSha256: to ? sha256(pdf) : null,
+    sha256: hash,
+    sentSha256: to ? hash : null,
     recipient: to ?? BY_POST,
     subject: letter.subject,
     messageId: null,
@@ -179,7 +177,7 @@ export async function closeWithLetter(m: EntityManager, deps: LetterDeps, audit:
   if (to) {
     // Last step of the transaction: a refused send rolls the closing back.
     const mail = closingLetterMail(
-      { ...ctx, reference: letter.reference, date: clockToday() },
+      { taxpayerName: ctx.taxpayerName, reference: letter.reference },
       letter.subject,
       letter.text,
       audit.actor.displayName,
@@ -221,14 +219,7 @@ export async function previewClosingLetter(ds: DataSource, audit: StaffAudit, ca
     // The reference is given when the letter is sent.
     const letter = await closingLetter(m, ctx, req, audit.actor.displayName, (prefix) => `${prefix}-(given on sending)`, clockToday());
     const to = await findTaxpayerAddress(m, caseId);
-    await recordAccess(m, audit, {
-      action: 'view',
-      recordType: 'case',
-      recordId: caseId,
-      taxpayerId: ctx.taxpayerId,
-      taxpayerLabel: maskTin(ctx.tin),
-      detail: `${letter.kind} preview`,
-    });
+    await logLetterPreview(m, audit, ctx, letter.kind);
     return {
       kind: letter.kind,
       to,
@@ -277,6 +268,7 @@ export async function acknowledgeSend(deps: LetterDeps, audit: AuditContext, s: 
         dueDate: s.dueDate,
       };
       const pdf = await renderAcknowledgementPdf(l);
+      const hash = sha256(pdf);
       const fileName = `records-received-${reference}.pdf`;
       const subject = acknowledgementWording.subject(l);
       await insertLetter(m, {
@@ -285,23 +277,22 @@ export async function acknowledgeSend(deps: LetterDeps, audit: AuditContext, s: 
         kind: 'acknowledgement',
         fileName,
         pdf,
-        sha256: sha256(pdf),
-        sentSha256: sha256(pdf),
+        sha256: hash,
+        sentSha256: hash,
         recipient: s.email,
         subject,
         messageId: null,
         createdBy: null,
       });
-      const t = await findCaseTaxpayer(m, s.caseId);
       await recordAccess(m, audit, {
         action: 'change',
         recordType: 'letter',
         recordId: letterId,
-        taxpayerId: t?.taxpayerId ?? null,
-        taxpayerLabel: t ? maskTin(t.tin) : null,
+        taxpayerId: ctx.taxpayerId,
+        taxpayerLabel: maskTin(ctx.tin),
         detail: `acknowledgement of send ${s.part}`,
       });
-      const mail = closingLetterMail({ ...l }, subject, acknowledgementText(l), null, s.email, pdf, fileName);
+      const mail = closingLetterMail(l, subject, acknowledgementText(l), null, s.email, pdf, fileName);
       const info = await deps.mailer.transport.sendMail({ ...mail, from: deps.mailer.from });
       await setLetterMessageId(m, letterId, info.messageId ?? null);
     });

@@ -7,6 +7,7 @@ import type { EntityManager } from 'typeorm';
 import type { DocumentRequestState, LetterKind, ReplyFileType } from '../../shared/letters';
 import type { ScoreBreakdown } from '../../shared/scoring/breakdown';
 import type { Db } from '../db/db';
+import { refreshDeadlines } from '../cases/case-deadline.repository';
 import { now as officeNow } from '../clock';
 
 /** What letters need to know about a case, its return and its taxpayer. */
@@ -389,21 +390,23 @@ export async function caseHasReplyFiles(db: Db, caseId: string): Promise<boolean
 }
 
 /**
- * Keeps the corrected figures of the case's latest closing (amounts as decimal text). A case
- * reopened and closed again replaces its figures; each closing's figures stay in its history
- * event.
+ * Keeps the corrected figures of the case's latest closing (amounts as decimal text) and
+ * works out the case's assessment deadline again, which follows them (income the corrections
+ * add can lengthen the assessment period). A case reopened and closed again replaces its
+ * figures; each closing's figures stay in its history event.
  */
-export async function insertCorrections(
+export async function replaceCorrections(
   m: EntityManager,
   caseId: string,
   createdBy: string,
   rows: { lineCode: string; filed: string; corrected: string }[],
 ): Promise<void> {
   await m.query(`DELETE FROM case_correction WHERE case_id = $1`, [caseId]);
-  if (!rows.length) return;
-  await m.query(
-    `INSERT INTO case_correction (case_id, line_code, filed_amount, corrected_amount, created_by)
-     SELECT $1, u.code, u.filed, u.corrected, $2 FROM unnest($3::text[], $4::numeric[], $5::numeric[]) AS u(code, filed, corrected)`,
-    [caseId, createdBy, rows.map((r) => r.lineCode), rows.map((r) => r.filed), rows.map((r) => r.corrected)],
-  );
+  if (rows.length)
+    await m.query(
+      `INSERT INTO case_correction (case_id, line_code, filed_amount, corrected_amount, created_by)
+       SELECT $1, u.code, u.filed, u.corrected, $2 FROM unnest($3::text[], $4::numeric[], $5::numeric[]) AS u(code, filed, corrected)`,
+      [caseId, createdBy, rows.map((r) => r.lineCode), rows.map((r) => r.filed), rows.map((r) => r.corrected)],
+    );
+  await refreshDeadlines(m, [caseId]);
 }

@@ -36,6 +36,8 @@ import { recordAccess } from '../access-log/access-log.service';
 import { today as clockToday } from '../clock';
 import type { StaffAudit } from '../access-log/audit-context';
 import { assertMayAct, lockCase, moveCase } from '../cases/case-workflow';
+import type { ExamCase } from '../cases/exam-case.entity';
+import type { Db } from '../db/db';
 import { HttpError } from '../http/errors';
 import type { Mailer } from '../mail/mailer';
 import { documentRequestMail } from './letter-mail';
@@ -169,16 +171,8 @@ function requestAddress(ctx: Pick<CaseContext, 'email'>, input: Pick<DocumentReq
  * window by the office clock, and the taxpayer's e-mail address on file (logged as a view).
  */
 export async function letterContext(ds: DataSource, audit: StaffAudit, caseId: string): Promise<LetterContext> {
-  const c = await caseForRead(ds, caseId);
-  const ctx = (await findCaseContext(ds, caseId))!;
-  await recordAccess(ds, audit, {
-    action: 'view',
-    recordType: 'case',
-    recordId: caseId,
-    taxpayerId: c.taxpayerId,
-    taxpayerLabel: c.label,
-    detail: 'e-mail address on file',
-  });
+  const ctx = await contextForRead(ds, caseId);
+  await logLetterPreview(ds, audit, ctx, 'e-mail address on file');
   const t = clockToday();
   return {
     today: t,
@@ -188,23 +182,19 @@ export async function letterContext(ds: DataSource, audit: StaffAudit, caseId: s
   };
 }
 
-/**
- * The document request as it would be sent (issue 14: the examiner reads it before Send):
- * the e-mail's text with the reply link masked; nothing stored or sent.
- * @throws HttpError as {@link sendDocumentRequest}, except 502
- */
-export async function previewDocumentRequest(deps: LetterDeps, audit: StaffAudit, caseId: string, input: DocumentRequestInput): Promise<LetterPreview> {
-  const c = await caseForRead(deps.dataSource, caseId);
-  const ctx = (await findCaseContext(deps.dataSource, caseId))!;
-  assertMayAct(audit.actor, { assigneeId: ctx.assigneeId });
-  if (ctx.state !== 'in_review')
+/** 409 unless the case is in review, the only state a document request is sent from. */
+function assertMayRequest(state: CaseState): void {
+  if (state !== 'in_review')
     throw new HttpError(
       409,
-      `A document request can be sent only while the case is in review; this case is ${CASE_STATE_LABELS[ctx.state as CaseState]?.toLowerCase() ?? ctx.state}.`,
+      `A document request can be sent only while the case is in review; this case is ${CASE_STATE_LABELS[state]?.toLowerCase() ?? state}.`,
     );
-  const to = requestAddress(ctx, input);
-  const letter: DocumentRequestLetter = {
-    reference: 'DR-(given on sending)',
+}
+
+/** The document request's words for a case: what the preview shows and the send mails. */
+function requestLetter(ctx: CaseContext, input: DocumentRequestInput, reference: string, replyUrl: string, signedBy: string): DocumentRequestLetter {
+  return {
+    reference,
     date: clockToday(),
     taxpayerName: ctx.taxpayerName,
     postalAddress: ctx.postalAddress,
@@ -212,18 +202,24 @@ export async function previewDocumentRequest(deps: LetterDeps, audit: StaffAudit
     returnRef: ctx.returnRef,
     items: input.items,
     dueDate: input.dueDate,
-    replyUrl: maskedReplyUrl(deps.publicUrl),
-    signedBy: audit.actor.displayName,
+    replyUrl,
+    signedBy,
   };
+}
+
+/**
+ * The document request as it would be sent (issue 14: the examiner reads it before Send):
+ * the e-mail's text with the reply link masked; nothing stored or sent.
+ * @throws HttpError as {@link sendDocumentRequest}, except 502
+ */
+export async function previewDocumentRequest(deps: LetterDeps, audit: StaffAudit, caseId: string, input: DocumentRequestInput): Promise<LetterPreview> {
+  const ctx = await contextForRead(deps.dataSource, caseId);
+  assertMayAct(audit.actor, { assigneeId: ctx.assigneeId });
+  assertMayRequest(ctx.state as CaseState);
+  const to = requestAddress(ctx, input);
+  const letter = requestLetter(ctx, input, 'DR-(given on sending)', maskedReplyUrl(deps.publicUrl), audit.actor.displayName);
   const mail = documentRequestMail(letter, to, Buffer.alloc(0), 'preview.pdf');
-  await recordAccess(deps.dataSource, audit, {
-    action: 'view',
-    recordType: 'case',
-    recordId: caseId,
-    taxpayerId: c.taxpayerId,
-    taxpayerLabel: c.label,
-    detail: 'document_request preview',
-  });
+  await logLetterPreview(deps.dataSource, audit, ctx, 'document_request preview');
   return { kind: 'document_request', to, subject: String(mail.subject), text: String(mail.text) };
 }
 
@@ -239,30 +235,14 @@ export async function sendDocumentRequest(deps: LetterDeps, audit: StaffAudit, c
   const moved = await deps.dataSource.transaction(async (m) => {
     const locked = await lockCase(m, caseId);
     assertMayAct(actor, locked);
-    if (locked.state !== 'in_review') {
-      throw new HttpError(
-        409,
-        `A document request can be sent only while the case is in review; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`,
-      );
-    }
+    assertMayRequest(locked.state);
     const ctx = (await findCaseContext(m, caseId))!;
     const to = requestAddress(ctx, input);
 
     // 32 random bytes: the link cannot be guessed; only its hash is stored.
     const token = randomBytes(32).toString('base64url');
     const reference = `DR-${letterId.slice(0, 8).toUpperCase()}`;
-    const letter: DocumentRequestLetter = {
-      reference,
-      date: clockToday(),
-      taxpayerName: ctx.taxpayerName,
-      postalAddress: ctx.postalAddress,
-      taxYear: ctx.taxYear,
-      returnRef: ctx.returnRef,
-      items: input.items,
-      dueDate: input.dueDate,
-      replyUrl: `${deps.publicUrl}/reply/${token}`,
-      signedBy: actor.displayName,
-    };
+    const letter = requestLetter(ctx, input, reference, `${deps.publicUrl}/reply/${token}`, actor.displayName);
     // The mailed copy holds the link; the office copy masks it, so nobody who can read the
     // database (or a backup) can answer in the taxpayer's place.
     const sentPdf = await renderDocumentRequestPdf(letter);
@@ -341,15 +321,7 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
   const unit = input.unit ?? 'field-audit';
   const unitLabel = REFERRAL_UNIT_LABELS[unit];
   const moved = await deps.dataSource.transaction(async (m) => {
-    const locked = await lockCase(m, caseId);
-    assertMayAct(actor, locked);
-    if (locked.state !== 'in_review' && locked.state !== 'awaiting_reply') {
-      throw new HttpError(
-        409,
-        `A case can be referred while it is in review or awaiting a reply; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`,
-      );
-    }
-    const ctx = (await findCaseContext(m, caseId))!;
+    const { locked, ctx } = await lockForReferral(m, audit, caseId);
     const reference = `RM-${letterId.slice(0, 8).toUpperCase()}`;
     const pdf = await renderReferralMemoPdf(await referralMemo(m, ctx, caseId, actor.displayName, reference, unitLabel, input.summary));
     await insertLetter(m, {
@@ -375,10 +347,22 @@ export async function referCase(deps: LetterDeps, audit: StaffAudit, caseId: str
   return { letter: await letterDto(deps.dataSource, caseId, letterId), caseState: moved };
 }
 
+/** Locks a case the actor may refer, with its context; 409 unless it is in review or awaiting a reply. */
+async function lockForReferral(m: EntityManager, audit: StaffAudit, caseId: string): Promise<{ locked: ExamCase; ctx: CaseContext }> {
+  const locked = await lockCase(m, caseId);
+  assertMayAct(audit.actor, locked);
+  if (locked.state !== 'in_review' && locked.state !== 'awaiting_reply')
+    throw new HttpError(
+      409,
+      `A case can be referred while it is in review or awaiting a reply; this case is ${CASE_STATE_LABELS[locked.state].toLowerCase()}.`,
+    );
+  return { locked, ctx: (await findCaseContext(m, caseId))! };
+}
+
 /** What a referral memo sets out (the PDF and its text preview share it). */
 async function referralMemo(
   m: EntityManager,
-  ctx: NonNullable<Awaited<ReturnType<typeof findCaseContext>>>,
+  ctx: CaseContext,
   caseId: string,
   author: string,
   reference: string,
@@ -435,22 +419,32 @@ async function referralMemo(
 export async function previewReferralMemo(deps: LetterDeps, audit: StaffAudit, caseId: string, input: ReferralInput): Promise<LetterPreview> {
   const unitLabel = REFERRAL_UNIT_LABELS[input.unit ?? 'field-audit'];
   return deps.dataSource.transaction(async (m) => {
-    const c = await lockCase(m, caseId);
-    assertMayAct(audit.actor, c);
-    if (c.state !== 'in_review' && c.state !== 'awaiting_reply') {
-      throw new HttpError(409, `A case can be referred while it is in review or awaiting a reply; this case is ${CASE_STATE_LABELS[c.state].toLowerCase()}.`);
-    }
-    const ctx = (await findCaseContext(m, caseId))!;
+    const { ctx } = await lockForReferral(m, audit, caseId);
     const memo = await referralMemo(m, ctx, caseId, audit.actor.displayName, 'RM-(given on referring)', unitLabel, input.summary);
-    await recordAccess(m, audit, {
-      action: 'view',
-      recordType: 'case',
-      recordId: caseId,
-      taxpayerId: ctx.taxpayerId,
-      taxpayerLabel: maskTin(ctx.tin),
-      detail: 'referral_memo preview',
-    });
+    await logLetterPreview(m, audit, ctx, 'referral_memo preview');
     return { kind: 'referral_memo', to: null, subject: `Referral memo: ${ctx.returnRef}, for the ${unitLabel}`, text: referralMemoText(memo) };
+  });
+}
+
+/** The case's context for a read; 404 when there is no such case. */
+async function contextForRead(ds: DataSource, caseId: string): Promise<CaseContext> {
+  const ctx = isUuid(caseId) ? await findCaseContext(ds, caseId) : null;
+  if (!ctx) throw new HttpError(404, 'No such case.');
+  return ctx;
+}
+
+/**
+ * Logs a look at what a letter would say (or the address it would go to) as a view of the
+ * case: the previews show the taxpayer's particulars.
+ */
+export async function logLetterPreview(db: Db, audit: StaffAudit, ctx: CaseContext, detail: string): Promise<void> {
+  await recordAccess(db, audit, {
+    action: 'view',
+    recordType: 'case',
+    recordId: ctx.id,
+    taxpayerId: ctx.taxpayerId,
+    taxpayerLabel: maskTin(ctx.tin),
+    detail,
   });
 }
 

@@ -52,6 +52,19 @@ function closed(state: 'answered' | 'expired', dueDate: string, sends = 0): Http
 }
 
 /**
+ * Why a request takes no more sends, or null while it is open: the taxpayer said that is
+ * everything, or its due date passed (answered by date when sends came in before it,
+ * expired otherwise). `expire` asks the caller to record an expiry the date already says,
+ * so staff lists and the reply page agree.
+ */
+function whyClosed(r: RequestByToken): { error: HttpError; expire: boolean } | null {
+  if (r.state === 'answered') return { error: closed('answered', r.dueDate, r.sends), expire: false };
+  if (r.state !== 'expired' && r.dueDate >= today()) return null;
+  if (r.sends > 0) return { error: closed('answered', r.dueDate, r.sends), expire: false };
+  return { error: closed('expired', r.dueDate), expire: true };
+}
+
+/**
  * Finds the request a token opens and checks it can still take a send: records may come in
  * several sends until the due date or until the taxpayer says that is everything.
  * @throws HttpError 404 unknown token, 410 closed (everything sent, or past its due date; with `state`)
@@ -59,13 +72,10 @@ function closed(state: 'answered' | 'expired', dueDate: string, sends = 0): Http
 export async function openRequest(ds: DataSource, token: string): Promise<RequestByToken> {
   const r = TOKEN.test(token) ? await findRequestByTokenHash(ds, hashReplyToken(token)) : null;
   if (!r) throw new HttpError(404, NOT_FOUND);
-  if (r.state === 'answered') throw closed('answered', r.dueDate, r.sends);
-  if (r.state === 'expired' || r.dueDate < today()) {
-    // Sends came in before the date: the reply is complete by date (the daily pass records it).
-    if (r.sends > 0) throw closed('answered', r.dueDate, r.sends);
-    // Record what the date already says, so staff lists and this page agree.
-    await markExpired(ds, r.id);
-    throw closed('expired', r.dueDate);
+  const shut = whyClosed(r);
+  if (shut) {
+    if (shut.expire) await markExpired(ds, r.id);
+    throw shut.error;
   }
   return r;
 }
@@ -111,8 +121,9 @@ export async function receiveReply(deps: LetterDeps, audit: AuditContext, token:
   const result = await ds.transaction(async (m) => {
     const r = await findRequestByTokenHash(m, hash, true);
     if (!r) throw new HttpError(404, NOT_FOUND);
-    if (r.state === 'answered') throw closed('answered', r.dueDate, r.sends);
-    if (r.state === 'expired' || r.dueDate < today()) return { kind: 'expired' as const, request: r };
+    // Closed: answered outside this transaction, so the expiry it records is kept.
+    const shut = whyClosed(r);
+    if (shut) return { kind: 'closed' as const, shut, request: r };
     if (onlyComplete && r.sends === 0) throw new HttpError(422, 'Choose at least one file to send.');
     const part = onlyComplete ? r.sends : r.sends + 1;
     const receivedAt = await storeReplyPart(m, r.id, part, checked, complete);
@@ -133,10 +144,9 @@ export async function receiveReply(deps: LetterDeps, audit: AuditContext, token:
     });
     return { kind: 'received' as const, request: r, part, receivedAt };
   });
-  if (result.kind === 'expired') {
-    if (result.request.sends > 0) throw closed('answered', result.request.dueDate, result.request.sends);
-    await markExpired(ds, result.request.id);
-    throw closed('expired', result.request.dueDate);
+  if (result.kind === 'closed') {
+    if (result.shut.expire) await markExpired(ds, result.request.id);
+    throw result.shut.error;
   }
   const r = result.request;
   const acknowledgement = await acknowledgeSend(deps, audit, {

@@ -4,6 +4,7 @@
  * batch's random cases.
  */
 import { FINAL_STATES } from '../../shared/cases';
+import type { SelectedScore } from '../cases/case-open.repository';
 import type { Db } from '../db/db';
 
 /** A scored return below the cut without a case: a candidate for random review. */
@@ -13,15 +14,6 @@ export interface CandidateRecord {
   scoreId: string;
   activityCode: string;
   incomeCents: string;
-}
-
-/** The run of (batch, version), its size and any sample already drawn. */
-export async function findRun(db: Db, batchId: string, version: number): Promise<{ id: string; total: number; randomSample: unknown } | null> {
-  const r = await db.query(`SELECT id, total, random_sample AS "randomSample" FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`, [
-    batchId,
-    version,
-  ]);
-  return r[0] ?? null;
 }
 
 /** Returns scored under the version that the score did not select and that have no case. */
@@ -113,18 +105,8 @@ export async function randomCasesOf(db: Db, batchId: string): Promise<{ caseId: 
   );
 }
 
-/** A scored return of a run, as the capacity selection takes it. */
-export interface RankedScore {
-  returnId: string;
-  taxpayerId: string;
-  scoreId: string;
-  riskScore: number;
-  stakeCents: number;
-  priority: number;
-}
-
-/** The run's scored returns with a score above 0 (candidates of a capacity selection). */
-export async function positiveScores(db: Db, batchId: string, version: number): Promise<RankedScore[]> {
+/** The run's scored returns with a score above 0 (candidates of a capacity selection), as a case is opened from them. */
+export async function positiveScores(db: Db, batchId: string, version: number): Promise<SelectedScore[]> {
   const rows: { returnId: string; taxpayerId: string; scoreId: string; riskScore: string; stakeCents: string; priority: string }[] = await db.query(
     `SELECT s.return_id AS "returnId", r.taxpayer_id AS "taxpayerId", s.id::text AS "scoreId", s.risk_score::text AS "riskScore",
             round(s.amount_at_stake * 100)::bigint::text AS "stakeCents", s.priority::text AS priority
@@ -135,21 +117,18 @@ export async function positiveScores(db: Db, batchId: string, version: number): 
   return rows.map((r) => ({ ...r, riskScore: Number(r.riskScore), stakeCents: Number(r.stakeCents), priority: Number(r.priority) }));
 }
 
-/** Records in the chosen scores' breakdowns that they were selected, and the cut that filled the capacity. */
-export async function markSelected(db: Db, scoreIds: string[], cut: number): Promise<void> {
+/** Records in the chosen scores' breakdowns that they were selected (the cut follows in {@link writeCutOnCases}). */
+export async function markSelected(db: Db, scoreIds: string[]): Promise<void> {
   if (!scoreIds.length) return;
-  await db.query(
-    `UPDATE return_score SET breakdown = jsonb_set(jsonb_set(breakdown, '{selected}', 'true'), '{selectionCut}', to_jsonb($2::numeric))
-      WHERE id = ANY($1::bigint[])`,
-    [scoreIds, cut],
-  );
+  await db.query(`UPDATE return_score SET breakdown = jsonb_set(breakdown, '{selected}', 'true') WHERE id = ANY($1::bigint[])`, [scoreIds]);
 }
 
-/** Writes the cut in force into the breakdowns of the run's scores that have a case (selected or drawn at random). */
+/** Writes the cut in force into the breakdowns of the run's selected scores and of those with a case (drawn at random), once each. */
 export async function writeCutOnCases(db: Db, batchId: string, version: number, cut: number): Promise<void> {
   await db.query(
     `UPDATE return_score s SET breakdown = jsonb_set(s.breakdown, '{selectionCut}', to_jsonb($3::numeric))
-      WHERE s.batch_id = $1 AND s.profile_version = $2 AND EXISTS (SELECT 1 FROM exam_case c WHERE c.score_id = s.id)`,
+      WHERE s.batch_id = $1 AND s.profile_version = $2
+        AND (coalesce((s.breakdown->>'selected')::boolean, false) OR EXISTS (SELECT 1 FROM exam_case c WHERE c.score_id = s.id))`,
     [batchId, version, cut],
   );
 }

@@ -19,11 +19,11 @@ import { openCasesForScores, openRandomCases } from '../cases/case-open.reposito
 import { HttpError } from '../http/errors';
 import { isUuid } from '../../shared/ids';
 import { batchState, profileSettings } from '../scoring/scoring-profile.repository';
+import { findRun } from '../scoring/scoring.repository';
 import {
   closedCasesForFit,
   countOpenRandom,
   finishedCases,
-  findRun,
   latestFinishedRun,
   markSelected,
   writeCutOnCases,
@@ -58,7 +58,6 @@ async function selectByCapacity(m: EntityManager, batchId: string, version: numb
   await markSelected(
     m,
     picked.map((r) => r.scoreId),
-    cut,
   );
   await openCasesForScores(m, batchId, version, picked);
   return cut;

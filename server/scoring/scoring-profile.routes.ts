@@ -5,7 +5,8 @@ import { staffAuditOf } from '../access-log/audit-context';
 import { allow, secureRouter } from '../auth/access';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
-import { activateProfile, addProfile, factorPerformance, listProfiles, previewProfile, rescoreBatch } from './scoring-profile.service';
+import { previewSelection } from '../programme/programme.service';
+import { activateProfile, addProfile, factorPerformance, listProfiles, rescoreBatch } from './scoring-profile.service';
 
 /** Scoring profiles (read: examiners and supervisors; change: supervisors). */
 export function scoringProfileRoutes(deps: Pick<AppDeps, 'dataSource' | 'boss'>) {
@@ -26,8 +27,9 @@ export function scoringProfileRoutes(deps: Pick<AppDeps, 'dataSource' | 'boss'>)
   r.get('/scoring/performance', allow('editScoring'), async (_req, res) => {
     res.json(await factorPerformance(ds));
   });
+  // The preview is the Programme's selection rule run on a scored batch, saving nothing.
   r.post('/scoring/preview', allow('editScoring'), validate(PreviewRequestSchema), async (req, res) => {
-    res.json(await previewProfile(ds, req.body));
+    res.json(await previewSelection(ds, req.body));
   });
   r.post('/batches/:id/rescore', allow('editScoring'), validate(RescoreSchema), async (req, res) => {
     res.status(202).json(await rescoreBatch(ds, deps.boss, staffAuditOf(req), String(req.params.id), req.body.version));

@@ -16,8 +16,7 @@ import type { StaffAudit } from '../access-log/audit-context';
 import { HttpError } from '../http/errors';
 import { QUEUES } from '../queue/queues';
 import { isUuid } from '../../shared/ids';
-import type { Preview, PreviewRequest } from '../../shared/programme/api';
-import { learnWeights, previewSelection } from '../programme/programme.service';
+import { learnWeights } from '../programme/programme.service';
 import {
   activeProfileVersion,
   batchState,
@@ -105,9 +104,4 @@ export async function factorPerformance(ds: DataSource): Promise<Performance> {
     }),
     learned,
   };
-}
-
-/** What a profile's settings would select in a scored batch, saving nothing (the Scoring screen's preview). */
-export async function previewProfile(ds: DataSource, req: PreviewRequest): Promise<Preview> {
-  return previewSelection(ds, req);
 }

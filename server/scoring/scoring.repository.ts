@@ -229,6 +229,22 @@ export async function slotPopularity(m: EntityManager, minCents: number): Promis
   return { popular: rows.map((r) => [Number(r.cents), Number(r.w), Number(r.c), Number(r.t)]), slots: [Number(all[0].w), Number(all[0].c)] };
 }
 
+/**
+ * Folds (key, line code, first digit, count) rows into first-digit counts per key and line
+ * code (9 counts, digits 1 to 9); a digit outside 1..9 is left out.
+ */
+function digitCountsBy<R extends { line_code: string; d: number; n: string }>(rows: R[], keyOf: (r: R) => string): Map<string, Record<string, number[]>> {
+  const out = new Map<string, Record<string, number[]>>();
+  for (const r of rows) {
+    if (r.d < 1 || r.d > 9) continue;
+    const key = keyOf(r);
+    const t = out.get(key) ?? {};
+    (t[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += Number(r.n);
+    out.set(key, t);
+  }
+  return out;
+}
+
 /** First-digit counts per line code over the batch's slots, and per preparer and line code. */
 export async function slotDigitCounts(m: EntityManager): Promise<{ lineCodes: Record<string, number[]>; preparers: Record<string, Record<string, number[]>> }> {
   const rows: { preparer_id: string | null; line_code: string; d: number; n: string }[] = await m.query(
@@ -249,13 +265,7 @@ export async function slotTaxpayerDigitCounts(m: EntityManager): Promise<Record<
   const rows: { taxpayer_id: string; line_code: string; d: number; n: string }[] = await m.query(
     `SELECT taxpayer_id, line_code, d, count(*) AS n FROM batch_slot WHERE d BETWEEN 1 AND 9 GROUP BY 1, 2, 3`,
   );
-  const out = new Map<string, Record<string, number[]>>();
-  for (const r of rows) {
-    const t = out.get(r.taxpayer_id) ?? {};
-    (t[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += Number(r.n);
-    out.set(r.taxpayer_id, t);
-  }
-  return [...out.values()];
+  return [...digitCountsBy(rows, (r) => r.taxpayer_id).values()];
 }
 
 /**
@@ -271,14 +281,7 @@ export async function taxpayerPreparerDigitCounts(db: Db, batchId: string, taxpa
      SELECT taxpayer_id, preparer_id, line_code, d, count(*) AS n FROM s WHERE d BETWEEN 1 AND 9 GROUP BY 1, 2, 3, 4`,
     [batchId, taxpayerIds],
   );
-  const out = new Map<string, Record<string, number[]>>();
-  for (const r of rows) {
-    const key = `${r.taxpayer_id}|${r.preparer_id}`;
-    const t = out.get(key) ?? {};
-    (t[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += Number(r.n);
-    out.set(key, t);
-  }
-  return out;
+  return digitCountsBy(rows, (r) => `${r.taxpayer_id}|${r.preparer_id}`);
 }
 
 /** Per preparer: distinct taxpayers in the batch, and amounts (>= min) carried by two or more of them; and all taxpayers. */
@@ -321,14 +324,7 @@ export async function taxpayerCodeDigitCounts(
      SELECT taxpayer_id, line_code, substr(ltrim(replace(a::text, '.', ''), '0'), 1, 1)::int AS d, count(*) AS n FROM s GROUP BY 1, 2, 3`,
     params,
   );
-  const out = new Map<string, Record<string, number[]>>();
-  for (const r of rows) {
-    if (r.d < 1 || r.d > 9) continue;
-    const t = out.get(r.taxpayer_id) ?? {};
-    (t[r.line_code] ??= new Array(9).fill(0))[r.d - 1] += Number(r.n);
-    out.set(r.taxpayer_id, t);
-  }
-  return out;
+  return digitCountsBy(rows, (r) => r.taxpayer_id);
 }
 
 /** Pattern p-values of a run's scores (ids and p), for the Benjamini–Hochberg step. */
@@ -356,17 +352,24 @@ export async function writePatternQs(db: Db, index: number, pending: string, row
   );
 }
 
-/** A run of (batch, profile version), if it was created. */
-export async function findRun(
-  db: Db,
-  batchId: string,
-  version: number,
-): Promise<{ id: string; scored: number; failed: number; finishedAt: Date | null } | null> {
-  const r: { id: string; scored: number; failed: number; finished_at: Date | null }[] = await db.query(
-    `SELECT id, scored, failed, finished_at FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`,
+/** A run of (batch, profile version) as stored: its size, progress, finish and any random review sample drawn. */
+export interface RunRecord {
+  id: string;
+  total: number;
+  scored: number;
+  failed: number;
+  finishedAt: Date | null;
+  randomSample: unknown;
+}
+
+/** The run of (batch, profile version), if it was created. */
+export async function findRun(db: Db, batchId: string, version: number): Promise<RunRecord | null> {
+  const r: RunRecord[] = await db.query(
+    `SELECT id::text AS id, total, scored, failed, finished_at AS "finishedAt", random_sample AS "randomSample"
+       FROM scoring_run WHERE batch_id = $1 AND profile_version = $2`,
     [batchId, version],
   );
-  return r.length ? { id: String(r[0].id), scored: r[0].scored, failed: r[0].failed, finishedAt: r[0].finished_at } : null;
+  return r[0] ?? null;
 }
 
 /** Creates the run of (batch, profile version) with its context, unless another caller already did. */

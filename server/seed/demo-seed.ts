@@ -13,6 +13,7 @@ import type { Role } from '../../shared/roles';
 import { ingestUpload } from '../batches/batch.service';
 import { createBoss, ensureQueues } from '../queue/queues';
 import { insertUser, userNameTaken } from '../users/user.repository';
+import { BCRYPT_ROUNDS } from '../users/user.service';
 import { writeAnswers, writeCsvBatch } from './batch-files';
 import { seedDemoHistory } from './demo-history';
 import { accountIdByUsername, anyBatchOnFile } from './demo-seed.repository';
@@ -32,7 +33,7 @@ export const DEMO_ACCOUNTS: { username: string; displayName: string; role: Role 
 /** Creates missing demo accounts; leaves existing ones (and changed passwords) alone. */
 export async function seedDemoAccounts(ds: DataSource): Promise<number> {
   let created = 0;
-  const hash = await bcrypt.hash(DEMO_PASSWORD, 10);
+  const hash = await bcrypt.hash(DEMO_PASSWORD, BCRYPT_ROUNDS);
   for (const a of DEMO_ACCOUNTS) {
     if (await userNameTaken(ds.manager, a.username)) continue;
     await insertUser(ds.manager, a, hash);

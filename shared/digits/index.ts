@@ -92,5 +92,6 @@ export {
 } from './wide';
 export { digitProfileSchema, digitResultSchema, groupFiguresSchema, type DigitProfileJson, type DigitResultJson } from './schema';
 export { digitResult, profileGroups, type DigitResult, type GroupFigures } from './split';
+export { DIGIT_TEST_TITLES, binLabel, fixedOrDash, goodnessWords, groupsByZ, largestDeviations, pValueText, percentOrDash, type Deviation } from './words';
 export { chiSquareCritical, chiSquareSurvival, binomialUpperTail } from './stats';
 export { mulberry32 } from './random';

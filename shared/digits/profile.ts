@@ -313,20 +313,44 @@ function sideProfile(counter: DigitCounter, sign: SignSelection): SideProfile {
  * (Nigrini 2011, Forensic Analytics; docs/methods.md#other-digit-figures).
  */
 function summation(counter: DigitCounter): Summation {
-  if (counter.wideSums !== null) return wideSummation(counter, counter.wideSums);
-  const sums: number[] = [];
-  let totalCents = 0;
-  for (let d = 10; d <= 99; d++) {
-    const s = counter.sums[d] + counter.sums[100 + d];
-    sums.push(s / 100);
-    totalCents += s;
-  }
   const n = counter.n('firstTwo');
   const expected = 1 / 90;
-  if (totalCents === 0) {
-    return { n, total: 0, sums, proportions: sums.map(() => null), expected, mad: null, largest: [] };
+  let sums: (number | null)[];
+  let total: number | null;
+  let proportions: number[];
+  if (counter.wideSums === null) {
+    const units: number[] = [];
+    let totalCents = 0;
+    for (let d = 10; d <= 99; d++) {
+      const s = counter.sums[d] + counter.sums[100 + d];
+      units.push(s / 100);
+      totalCents += s;
+    }
+    sums = units;
+    total = totalCents / 100;
+    if (totalCents === 0) return { n, total, sums, proportions: units.map(() => null), expected, mad: null, largest: [] };
+    proportions = units.map((u) => (u * 100) / totalCents);
+  } else {
+    // Amounts too large for cents: the group sums in exact integers (bigint), shares from
+    // their quotient, so a 10^300 amount neither overflows nor swamps the rounding. The
+    // total is above 0: every wide amount is.
+    const wideSums = counter.wideSums;
+    const groups: bigint[] = [];
+    let totalCents = 0n;
+    for (let d = 10; d <= 99; d++) {
+      const g = BigInt(counter.sums[d]) + BigInt(counter.sums[100 + d]) + wideSums[d] + wideSums[100 + d];
+      groups.push(g);
+      totalCents += g;
+    }
+    const toUnits = (c: bigint): number | null => {
+      const x = Number(c) / 100;
+      return Number.isFinite(x) ? x : null;
+    };
+    const SCALE = 10n ** 18n;
+    sums = groups.map(toUnits);
+    total = toUnits(totalCents);
+    proportions = groups.map((g) => Number((g * SCALE) / totalCents) / 1e18);
   }
-  const proportions = sums.map((s) => (s * 100) / totalCents);
   let mad = 0;
   for (const p of proportions) mad += abs(p - expected);
   const largest = proportions
@@ -334,36 +358,7 @@ function summation(counter: DigitCounter): Summation {
     .filter((g) => g.share > 0)
     .sort((a, b) => b.share - a.share || a.digits - b.digits)
     .slice(0, 5);
-  return { n, total: totalCents / 100, sums, proportions, expected, mad: mad / 90, largest };
-}
-
-/**
- * Summation test with amounts too large for cents: the group sums in exact integers (bigint),
- * shares from their quotient, so a 10^300 amount neither overflows nor swamps the rounding.
- */
-function wideSummation(counter: DigitCounter, wideSums: bigint[]): Summation {
-  const groups: bigint[] = [];
-  let total = 0n;
-  for (let d = 10; d <= 99; d++) {
-    const g = BigInt(counter.sums[d]) + BigInt(counter.sums[100 + d]) + wideSums[d] + wideSums[100 + d];
-    groups.push(g);
-    total += g;
-  }
-  const units = (c: bigint): number | null => {
-    const x = Number(c) / 100;
-    return Number.isFinite(x) ? x : null;
-  };
-  const SCALE = 10n ** 18n;
-  const proportions = groups.map((g) => Number((g * SCALE) / total) / 1e18);
-  const expected = 1 / 90;
-  let mad = 0;
-  for (const p of proportions) mad += abs(p - expected);
-  const largest = proportions
-    .map((share, i) => ({ digits: i + 10, share }))
-    .filter((g) => g.share > 0)
-    .sort((a, b) => b.share - a.share || a.digits - b.digits)
-    .slice(0, 5);
-  return { n: counter.n('firstTwo'), total: units(total), sums: groups.map(units), proportions, expected, mad: mad / 90, largest };
+  return { n, total, sums, proportions, expected, mad: mad / 90, largest };
 }
 
 /**

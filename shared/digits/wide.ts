@@ -10,7 +10,7 @@
  * that is small enough for the fast path is returned as ordinary cents.
  */
 
-import { AMOUNT_LIMIT, AmountParseError, MAX_ABS_CENTS, centsFromNumber, parseCents, showValue, type AmountUnit } from './parse';
+import { AMOUNT_LIMIT, AmountParseError, MAX_ABS_CENTS, centsFromNumber, parseCents, type AmountUnit } from './parse';
 import { centsFromDecimal } from '../returns/money';
 
 const { abs, round } = Math;
@@ -89,12 +89,8 @@ export function amountFromText(s: string, position: string): number | WideAmount
  */
 export function amountFromValue(value: unknown, position: string): number | WideAmount {
   if (typeof value === 'number') {
-    const a = abs(value);
-    if (a < AMOUNT_LIMIT) {
-      const c = round(a * 100);
-      if (c / 100 === a) return value < 0 ? -c : c;
-    }
-    if (!Number.isFinite(value) || a < AMOUNT_LIMIT) return centsFromNumber(value, position); // throws the number's own message
+    // Below 10^13 (or not finite) the cents path decides, with the number's own message.
+    if (!Number.isFinite(value) || abs(value) < AMOUNT_LIMIT) return centsFromNumber(value, position);
     return amountFromText(String(value), position);
   }
   if (typeof value === 'string') return amountFromText(value, position);
@@ -245,6 +241,3 @@ function textError(s: string, position: string): AmountParseError {
   }
   return new AmountParseError(s, position, `is not a valid amount: ${AMOUNT_FORMS}`);
 }
-
-/** For messages: the value as shown (re-exported for callers of this module). */
-export { showValue };

@@ -5,7 +5,7 @@
  * step and the Scoring screen's preview both choose through {@link chooseSelection}, so a preview
  * counts exactly what a re-score then selects. Pure.
  */
-import { FACTORS, type GroupKey } from '../scoring/registry';
+import { countedComponents } from '../scoring/registry';
 import { COMPONENTS, type ComponentKey, type ScoringSettings } from '../scoring/settings';
 
 /** A scored return as the selection sees it. */
@@ -73,18 +73,7 @@ export function rescore(
     const full = unchanged && c.points > 0 ? c.points : w * c.strength;
     return { key, full, points: unchanged && c.points > 0 ? c.points : round1(full) };
   });
-  const best = new Map<GroupKey, { key: ComponentKey; full: number }>();
-  const counted = new Set<ComponentKey>();
-  for (const r of raw) {
-    const g = FACTORS[r.key].group;
-    if (!g) {
-      counted.add(r.key);
-      continue;
-    }
-    const b = best.get(g);
-    if (!b || r.full > b.full) best.set(g, r);
-  }
-  for (const b of best.values()) counted.add(b.key);
+  const counted = countedComponents(raw);
   const riskScore = Math.min(100, round1(raw.reduce((s, r) => s + (counted.has(r.key) ? r.points : 0), 0)));
   return { riskScore, priority: Math.round(riskScore * stakeCents) / 100 };
 }

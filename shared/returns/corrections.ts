@@ -11,6 +11,7 @@
  */
 import { z } from 'zod';
 import { computeTotals, LINE_CODE_DEFS, LINE_CODE_LIST, type CentsLine, type LineCode, type ReturnTotals } from './line-codes';
+import { money } from '../scoring/format';
 import { centsFromDecimal } from './money';
 
 /** Line codes an examiner may correct: every code the rules read (not the tot.* lines or the refund, which are worked out). */
@@ -70,6 +71,11 @@ export interface CorrectedReturn {
   figures: { key: 'income' | 'deductions' | 'taxable' | 'tax' | 'withheld' | 'refund'; label: string; filed: number; corrected: number; difference: number }[];
   /** Corrected tax minus tax as filed: the case's adjusted amount. Negative when the tax goes down. */
   taxDifference: number;
+}
+
+/** A difference with its sign, as the side-by-side shows it: "+1,800.00", "−250.00", "0.00". */
+export function signedMoney(cents: number): string {
+  return cents > 0 ? `+${money(cents)}` : money(cents);
 }
 
 const FIGURE_LABELS = {

@@ -165,3 +165,26 @@ export const FACTORS: Readonly<Record<ComponentKey, FactorRecord>> = {
     run: (r) => r.repeatResult,
   },
 };
+
+/**
+ * The components that add points to a score: every one outside a group, and in each group
+ * only the member with the most points at full strength (`full` = weight × strength; on a tie
+ * the first in the order given). The one place the {@link GROUPS} rule is applied: scoring
+ * (score-return.ts) and the Scoring screen's preview (shared/programme/selection.ts) both count
+ * through it.
+ */
+export function countedComponents(raw: readonly { key: ComponentKey; full: number }[]): Set<ComponentKey> {
+  const counted = new Set<ComponentKey>();
+  const bestOfGroup = new Map<GroupKey, { key: ComponentKey; full: number }>();
+  for (const r of raw) {
+    const g = FACTORS[r.key].group;
+    if (!g) {
+      counted.add(r.key);
+      continue;
+    }
+    const best = bestOfGroup.get(g);
+    if (!best || r.full > best.full) bestOfGroup.set(g, r);
+  }
+  for (const b of bestOfGroup.values()) counted.add(b.key);
+  return counted;
+}

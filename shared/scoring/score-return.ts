@@ -26,7 +26,7 @@ import {
 import { money } from './format';
 import type { PooledDigits } from './pools';
 import { collapseRecurring, describeRecurring, type CollapsedAmounts, type RecurrenceRates } from './recurring';
-import { FACTORS, GROUPS, type GroupKey } from './registry';
+import { countedComponents, FACTORS, GROUPS } from './registry';
 import { COMPONENT_LABELS, COMPONENTS, type ComponentKey, type ScoringSettings } from './settings';
 
 /**
@@ -297,19 +297,7 @@ export function scoreReturn(facts: ReturnFacts, ctx: ScoreContext): ReturnScore 
   };
 
   // A group adds only its strongest member's points.
-  const raw = COMPONENTS.map((key) => ({ key, points: settings.weights[key] * results[key].strength }));
-  const counted = new Set<ComponentKey>();
-  const bestOfGroup = new Map<GroupKey, { key: ComponentKey; points: number }>();
-  for (const r of raw) {
-    const g = FACTORS[r.key].group;
-    if (!g) {
-      counted.add(r.key);
-      continue;
-    }
-    const best = bestOfGroup.get(g);
-    if (!best || r.points > best.points) bestOfGroup.set(g, r);
-  }
-  for (const b of bestOfGroup.values()) counted.add(b.key);
+  const counted = countedComponents(COMPONENTS.map((key) => ({ key, full: settings.weights[key] * results[key].strength })));
 
   const components: ComponentResult[] = COMPONENTS.map((key) => {
     const r = results[key];

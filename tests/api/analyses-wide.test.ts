@@ -3,23 +3,10 @@
  * an independent computation (tests/unit/digits/wide-reference.ts: BigInt digits, log10
  * proportions, jstat's chi-square), as JSON and as an uploaded file.
  */
-import { digitProfileSchema, type DigitProfileJson } from '../../shared/digits';
+import { digitProfileSchema } from '../../shared/digits';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { createTestContext, type TestContext } from '../helpers/test-app';
-import { powersOfTwo, referenceTests, scientificValues, type ReferenceAmount } from '../unit/digits/wide-reference';
-
-const TESTS = ['firstDigit', 'secondDigit', 'firstTwo', 'lastTwo'] as const;
-
-function expectAgreement(p: DigitProfileJson, amounts: ReferenceAmount[]): void {
-  const ref = referenceTests(amounts);
-  expect(p.count).toBe(amounts.length);
-  for (const t of TESTS) {
-    expect(p[t].counts).toEqual(ref[t].counts);
-    expect(p[t].mad).toBeCloseTo(ref[t].mad, 12);
-    expect(p[t].chiSquare).toBeCloseTo(ref[t].chiSquare, 8);
-    expect(p[t].pValue).toBeCloseTo(ref[t].pValue, 8);
-  }
-}
+import { expectAgreement, powersOfTwo, scientificValues } from '../unit/digits/wide-reference';
 
 describe('POST /api/analyses/digits: amounts of any size', () => {
   let ctx: TestContext;

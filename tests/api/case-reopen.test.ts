@@ -4,10 +4,10 @@
  * reopen with its reason, and nobody else may reopen (403 from the policy table's
  * `reopenCases`, shared/permissions.ts).
  */
-import { CaseChangedSchema, CaseDetailSchema } from '../../shared/case-api';
+import { CaseChangedSchema } from '../../shared/case-api';
 import { REOPEN_STATE } from '../../shared/cases';
-import { signIn, type SignedIn } from '../helpers/auth';
-import { caseInState, openCaseIds } from '../helpers/cases';
+import { postAs as post, signIn, type SignedIn } from '../helpers/auth';
+import { caseDetailAs as detail, caseInState, openCaseIds, takeCase } from '../helpers/cases';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
 
@@ -18,11 +18,7 @@ describe('reopening a finished case (POST /api/cases/:id/reopen)', () => {
   let examiner: SignedIn;
   let supervisor: SignedIn;
   let pool: string[];
-  const take = () => {
-    const id = pool.shift();
-    if (!id) throw new Error('the fixture ran out of open cases');
-    return id;
-  };
+  const take = () => takeCase(pool);
 
   beforeAll(async () => {
     ctx = await createTestContext();
@@ -35,8 +31,6 @@ describe('reopening a finished case (POST /api/cases/:id/reopen)', () => {
     await ctx?.close();
   });
 
-  const post = (who: SignedIn, path: string, body: object = {}) => who.agent.post(path).set('X-CSRF-Token', who.csrf).send(body);
-  const detail = async (who: SignedIn, id: string) => CaseDetailSchema.parse((await who.agent.get(`/api/cases/${id}`)).body);
   const REASON = 'The taxpayer sent the missing receipts after the closing';
 
   it('puts the case back in review with its examiner, keeps the reason in the history and logs it', async () => {

@@ -3,9 +3,9 @@
  * refused, closing with the outcome, who may act, notes (append-only), and assignment.
  */
 import { CASE_STATES, CASE_TRANSITIONS, type CaseState } from '../../shared/cases';
-import { CaseChangedSchema, CaseDetailSchema, CaseNoteSchema, MOVES_ELSEWHERE } from '../../shared/case-api';
-import { signIn, type SignedIn } from '../helpers/auth';
-import { caseInState, openCaseIds } from '../helpers/cases';
+import { CaseChangedSchema, CaseNoteSchema, MOVES_ELSEWHERE } from '../../shared/case-api';
+import { postAs as post, signIn, type SignedIn } from '../helpers/auth';
+import { caseDetailAs as detail, caseInState, openCaseIds, takeCase } from '../helpers/cases';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
 
@@ -17,11 +17,7 @@ describe('case workflow through the API', () => {
   let examiner2: SignedIn;
   let supervisor: SignedIn;
   let pool: string[];
-  const take = () => {
-    const id = pool.shift();
-    if (!id) throw new Error('the fixture ran out of open cases');
-    return id;
-  };
+  const take = () => takeCase(pool);
 
   beforeAll(async () => {
     ctx = await createTestContext();
@@ -35,8 +31,6 @@ describe('case workflow through the API', () => {
     await ctx?.close();
   });
 
-  const post = (who: SignedIn, path: string, body: object = {}) => who.agent.post(path).set('X-CSRF-Token', who.csrf).send(body);
-  const detail = async (who: SignedIn, id: string) => CaseDetailSchema.parse((await who.agent.get(`/api/cases/${id}`)).body);
   const stateOf = async (id: string): Promise<CaseState> => (await ctx.dataSource.query(`SELECT state FROM exam_case WHERE id = $1`, [id]))[0].state;
   /** A valid body for a move to `to` (closing needs an outcome, adjusted its corrected figures). */
   const bodyFor = (to: CaseState) => ({

@@ -155,6 +155,24 @@ describe('my cases, search and saved views', () => {
       expect(await needs(other)).toMatchObject({ expired: 0 });
     });
 
+    it('writes nothing when the examiner opens a case again with nothing new on it, and notes an opening after news', async () => {
+      const [caseId] = await openCaseIds(ctx.dataSource, 1);
+      await caseInState(ctx.dataSource, caseId, 'in_review', other);
+      const seenAt = async (): Promise<{ seen: Date; xmin: string }> =>
+        (await ctx.dataSource.query(`SELECT assignee_seen_at AS seen, xmin::text FROM case_attention WHERE case_id = $1`, [caseId]))[0];
+      await open(other, caseId);
+      const first = await seenAt();
+      expect(first.seen).toBeInstanceOf(Date);
+      // A quiet case: the row keeps its version, so nothing was written (xmin is the id of the
+      // transaction that wrote the row: PostgreSQL documentation, "System Columns").
+      await open(other, caseId);
+      expect(await seenAt()).toEqual(first);
+      // A case event after the last opening (a request that ran out) is news: the next opening notes it.
+      await ctx.dataSource.transaction((m) => endReplyWait(m, caseId, 'reply-overdue', { dueDate: '2099-01-31' }, false));
+      await open(other, caseId);
+      expect((await seenAt()).seen.getTime()).toBeGreaterThan(first.seen.getTime());
+    });
+
     it(`counts their cases whose assessment deadline is within ${NEEDS_DEADLINE_DAYS} days, not others'`, async () => {
       const mine = (await list(other, 'assignee=me')).items.map((i) => i.id);
       expect(mine.length).toBeGreaterThanOrEqual(2);

@@ -10,13 +10,11 @@ import os from 'node:os';
 import path from 'node:path';
 import ExcelJS from 'exceljs';
 import { digitProfileSchema, type DigitProfileJson } from '../../shared/digits';
-import { powersOfTwo, referenceTests, scientificValues, type ReferenceAmount } from '../unit/digits/wide-reference';
+import { expectAgreement, powersOfTwo, scientificValues } from '../unit/digits/wide-reference';
 
 const ROOT = path.resolve(__dirname, '../..');
 const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 const CLI = path.join(ROOT, 'scripts/digits.ts');
-const TESTS = ['firstDigit', 'secondDigit', 'firstTwo', 'lastTwo'] as const;
-
 let dir: string;
 beforeAll(() => {
   dir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-digits-wide-'));
@@ -30,17 +28,6 @@ function runJson(...args: string[]): DigitProfileJson {
   expect(r.stderr).toBe('');
   expect(r.status).toBe(0);
   return digitProfileSchema.parse(JSON.parse(r.stdout));
-}
-
-function expectAgreement(p: DigitProfileJson, amounts: ReferenceAmount[]): void {
-  const ref = referenceTests(amounts);
-  expect(p.count).toBe(amounts.length);
-  for (const t of TESTS) {
-    expect(p[t].counts).toEqual(ref[t].counts);
-    expect(p[t].mad).toBeCloseTo(ref[t].mad, 12);
-    expect(p[t].chiSquare).toBeCloseTo(ref[t].chiSquare, 8);
-    expect(p[t].pValue).toBeCloseTo(ref[t].pValue, 8);
-  }
 }
 
 describe('npm run digits: amounts of any size', () => {

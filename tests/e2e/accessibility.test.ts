@@ -23,6 +23,7 @@ import {
   waitForText,
   WAIT_MS,
 } from '../helpers/browser';
+import { takeCase } from '../helpers/cases';
 import { uniqueAddress } from '../helpers/letter-cases';
 import { waitForMail } from '../helpers/maildev';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
@@ -65,11 +66,7 @@ describe('accessibility: axe-core on every screen, and the keyboard (browser)', 
     await s?.close();
   });
 
-  const nextCase = () => {
-    const id = openCases.shift();
-    if (!id) throw new Error('no open case left for this test: load a bigger batch');
-    return id;
-  };
+  const nextCase = () => takeCase(openCases);
 
   async function signOut(page: Page) {
     await page.getByTestId('sign-out').click();

@@ -11,7 +11,7 @@ import type { Browser } from 'playwright-core';
 import { createRng } from '../../shared/demo/prng';
 import { createDataSource } from '../../server/db/data-source';
 import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
-import { launchBrowser, screenshot, signInThroughUi, VIEWPORTS, waitForText } from '../helpers/browser';
+import { launchBrowser, screenshot, SCREENSHOT_DIR, signInThroughUi, VIEWPORTS, waitForText } from '../helpers/browser';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
 
 jest.setTimeout(300_000);
@@ -107,19 +107,28 @@ describe('programme screen (supervisor, browser)', () => {
       await waitForText(page.getByTestId('profile-preview'), 'Would select 24 of 800 returns');
       await waitForText(page.getByTestId('preview-counts'), /\d+ stay · \d+ leave · \d+ join/);
       await page.getByTestId('profile-note').fill('Capacity of the team for the spring');
-      await page.getByTestId('save-profile').click();
-      await waitForText(page.getByTestId('confirm-save'), 'the 24 highest-scoring returns of each batch');
-      const files = [await screenshot(page, `scoring-${name}`)];
-      for (const id of ['weight-suggestion', 'back-test', 'profile-preview', 'confirm-save']) {
+      // The parts of the screen are taken before the confirmation, whose dialog dims the page.
+      const parts: string[] = [];
+      for (const id of ['weight-suggestion', 'back-test', 'profile-preview']) {
         const el = page.getByTestId(id);
         await el.scrollIntoViewIfNeeded();
-        const file = path.join(path.dirname(files[0]), `scoring-${name}-${id}.png`);
+        const file = path.join(SCREENSHOT_DIR, `scoring-${name}-${id}.png`);
         await el.screenshot({ path: file });
-        files.push(file);
+        parts.push(file);
       }
-      // Activating an older version asks first, with what it changes in words (issue 14).
+      await page.getByTestId('save-profile').click();
+      await waitForText(page.getByTestId('confirm-save'), 'the 24 highest-scoring returns of each batch');
+      const saveFile = path.join(SCREENSHOT_DIR, `scoring-${name}-confirm-save.png`);
+      await page.getByTestId('confirm-save').screenshot({ path: saveFile });
+      const files = [await screenshot(page, `scoring-${name}`), ...parts, saveFile];
+      // Activating an older version asks first, with what it changes in words (issue 14): the
+      // save's dialog is left first (the shared dialog keeps the page behind it out of reach).
+      await page.getByTestId('confirm-save-cancel').click();
+      await page.getByTestId('confirm-save').waitFor({ state: 'detached' });
       await page.getByTestId('activate-1').click();
-      await waitForText(page.getByTestId('confirm-activate-1'), 'Make version 1 the active one? Every batch loaded from now on is scored with it');
+      // Question and consequence are separate lines of the shared dialog, read one after the other.
+      await waitForText(page.getByTestId('confirm-activate-1-title'), 'Make version 1 the active one?');
+      await waitForText(page.getByTestId('confirm-activate-1-consequence'), /^Every batch loaded from now on is scored with it/);
       const confirm = page.getByTestId('confirm-activate-1');
       await confirm.scrollIntoViewIfNeeded();
       const file = path.join(path.dirname(files[0]), `scoring-${name}-confirm-activate.png`);

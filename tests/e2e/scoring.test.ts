@@ -25,8 +25,11 @@ describe('scoring profile screen (supervisor, browser)', () => {
     await page.getByTestId('profile-note').fill('Less weight on cash-heavy trades');
     await page.getByTestId('save-profile').click();
     // Saving makes the version active for every new batch: it asks first, in words (issue 14).
-    await waitForText(page.getByTestId('confirm-save'), /make it active\? From then on every batch loaded is scored with it/);
-    await page.getByTestId('confirm-save-yes').click();
+    // The confirmation is the shared dialog (components/ui/confirm-dialog.tsx): its question and
+    // its consequence are separate lines, read one after the other.
+    await waitForText(page.getByTestId('confirm-save-title'), /make it active\?$/);
+    await waitForText(page.getByTestId('confirm-save-consequence'), /^From then on every batch loaded is scored with it/);
+    await page.getByTestId('confirm-save-confirm').click();
     // The new version is one past the newest the migrations installed (not a fixed number:
     // a migration may add a version of the defaults).
     const saved = page.getByText(/^Saved as version \d+; new batches are scored with it\.$/);

@@ -4,6 +4,7 @@
  * has a genuine history behind it.
  */
 import type { DataSource } from 'typeorm';
+import { CaseDetailSchema, type CaseDetail } from '../../shared/case-api';
 import type { CaseState } from '../../shared/cases';
 import type { SessionUser } from '../../server/auth/access';
 import { claimCase, moveCase } from '../../server/cases/case-workflow';
@@ -24,6 +25,18 @@ export async function openCaseIds(ds: DataSource, limit = 1000): Promise<string[
     limit,
   ]);
   return rows.map((r) => r.id);
+}
+
+/** Takes the next id off a pool of {@link openCaseIds}, so each test works a case of its own. */
+export function takeCase(pool: string[]): string {
+  const id = pool.shift();
+  if (!id) throw new Error('the fixture ran out of open cases');
+  return id;
+}
+
+/** A case as `who` sees it (GET /api/cases/:id), read through the shared schema. */
+export async function caseDetailAs(who: SignedIn, id: string): Promise<CaseDetail> {
+  return CaseDetailSchema.parse((await who.agent.get(`/api/cases/${id}`)).body);
 }
 
 /** The path from open to each state through the workflow (the letters feature's moves included). */

@@ -90,15 +90,15 @@ export function processEnv(databaseUrl: string, port?: number): Record<string, s
 }
 
 /**
- * The real server on a free port. The port is free when chosen but not held, so another
- * process (several test runs share this machine) may take it before the server binds it:
- * then a new port is tried.
+ * The real server on a free port (with `env` added to {@link processEnv}'s). The port is free
+ * when chosen but not held, so another process (several test runs share this machine) may
+ * take it before the server binds it: then a new port is tried.
  */
-export async function startServer(databaseUrl: string): Promise<RunningProcess & { baseUrl: string }> {
+export async function startServer(databaseUrl: string, env: Record<string, string> = {}): Promise<RunningProcess & { baseUrl: string }> {
   for (let attempt = 1; ; attempt++) {
     const port = await freePort();
     try {
-      const p = await startTsx('server/main.ts', processEnv(databaseUrl, port), /listening on/);
+      const p = await startTsx('server/main.ts', { ...processEnv(databaseUrl, port), ...env }, /listening on/);
       return { ...p, baseUrl: `http://127.0.0.1:${port}` };
     } catch (e) {
       if (attempt >= 3 || !String(e).includes('EADDRINUSE')) throw e;

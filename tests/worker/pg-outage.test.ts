@@ -5,27 +5,23 @@
  * scored exactly once. The cluster is this test's own (a fresh one on a free port), so
  * stopping it disturbs no other test.
  */
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
 import type { DataSource } from 'typeorm';
 import { prepareAppDatabase } from '../../scripts/lib/app-database';
 import { startCluster, stopCluster, type ClusterSpec } from '../../scripts/lib/pg';
 import { createDataSource } from '../../server/db/data-source';
 import { createBoss, QUEUES } from '../../server/queue/queues';
-import { freePort, processEnv, startTsx, waitFor, type RunningProcess } from '../helpers/processes';
+import { startPrivateCluster, type PrivateCluster } from '../helpers/private-cluster';
+import { processEnv, startServer, startTsx, waitFor, type RunningProcess } from '../helpers/processes';
 import { loadGeneratedBatch } from '../helpers/scored-batch';
-import { testCluster } from '../helpers/test-db';
 
 jest.setTimeout(600_000);
 
-let dir: string;
+let cluster: PrivateCluster;
 let spec: ClusterSpec;
 let appUrl: string;
 let ownerUrl: string;
-let server: RunningProcess;
+let server: RunningProcess & { baseUrl: string };
 let worker: RunningProcess;
-let port: number;
 
 interface Health {
   status: number;
@@ -34,7 +30,7 @@ interface Health {
 
 async function health(): Promise<Health> {
   try {
-    const r = await fetch(`http://127.0.0.1:${port}/api/health`);
+    const r = await fetch(`${server.baseUrl}/api/health`);
     return { status: r.status, body: (await r.json()) as Health['body'] };
   } catch {
     return { status: 0, body: null }; // the server itself did not answer
@@ -42,30 +38,18 @@ async function health(): Promise<Health> {
 }
 
 beforeAll(async () => {
-  dir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-outage-'));
-  const c = testCluster();
-  spec = {
-    dataDir: path.join(dir, 'data'),
-    port: await freePort(),
-    database: 'plumbline_outage',
-    user: c.user,
-    password: c.password,
-    owner: c.owner,
-    app: c.app,
-  };
-  await startCluster(spec, () => undefined);
+  cluster = await startPrivateCluster('plumbline_outage');
+  ({ spec } = cluster);
   ({ appUrl, ownerUrl } = await prepareAppDatabase(spec));
-  port = await freePort();
-  const env = { ...processEnv(appUrl, port), SCORING_CHUNK_SIZE: '100', QUEUE_MAINTENANCE_SECONDS: '1' };
-  server = await startTsx('server/main.ts', env, /listening on/, 180_000);
-  worker = await startTsx('worker/main.ts', env, /\[worker\] ready/, 180_000);
+  const env = { SCORING_CHUNK_SIZE: '100', QUEUE_MAINTENANCE_SECONDS: '1' };
+  server = await startServer(appUrl, env);
+  worker = await startTsx('worker/main.ts', { ...processEnv(appUrl), ...env }, /\[worker\] ready/);
 });
 
 afterAll(async () => {
   await worker?.stop();
   await server?.stop();
-  stopCluster(spec, () => undefined);
-  fs.rmSync(dir, { recursive: true, force: true });
+  cluster?.remove();
 });
 
 it('health says 503 with the reason while PostgreSQL is down, 200 again after; a batch queued before the outage is scored exactly once', async () => {

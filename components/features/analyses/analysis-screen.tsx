@@ -9,7 +9,17 @@ import * as DocumentPicker from 'expo-document-picker';
 import { useState } from 'react';
 import { ScrollView, View } from 'react-native';
 import { CAUTIONS } from '../../../shared/cautions';
-import { DIGIT_LABELS, type DigitResultJson, type DigitTestName } from '../../../shared/digits';
+import {
+  DIGIT_TEST_TITLES as TITLES,
+  fixedOrDash as fixed,
+  goodnessWords,
+  groupsByZ,
+  largestDeviations,
+  pValueText as pv,
+  percentOrDash as pct,
+  type DigitResultJson,
+  type DigitTestName,
+} from '../../../shared/digits';
 import { space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
@@ -20,24 +30,12 @@ import { DigitChart } from '../cases/digit-chart';
 import { TestChart } from './test-chart';
 import { uploadForAnalysis, type PickedAmountsFile } from './use-digit-analysis';
 
-const TITLES: Record<DigitTestName, string> = {
-  firstDigit: 'First digit',
-  secondDigit: 'Second digit',
-  firstTwo: 'First two digits',
-  lastTwo: 'Last two digits',
-};
-
 const VERDICT: Record<string, string> = {
   within_expected: 'within the expected range for this many amounts',
   elevated: 'above the expected range for this many amounts',
   high: 'well above the expected range for this many amounts',
   too_few: 'too few amounts to judge',
 };
-
-const fixed = (x: number | null, d: number) => (x === null ? '—' : x.toFixed(d));
-const pct = (x: number | null) => (x === null ? '—' : `${(100 * x).toFixed(1)} %`);
-const pv = (p: number | null) => (p === null ? '—' : p < 0.0001 ? '< 0.0001' : p.toFixed(4));
-const ks = (v: string | null) => (v === null ? '—' : v === 'not_rejected' ? 'not rejected' : v === 'rejected_5' ? 'rejected at 5 %' : 'rejected at 1 %');
 
 function TestBlock({ test, r }: { test: DigitTestName; r: DigitResultJson }) {
   const t = r[test];
@@ -46,14 +44,8 @@ function TestBlock({ test, r }: { test: DigitTestName; r: DigitResultJson }) {
     t.conformity === 'too_few'
       ? `n = ${t.n.toLocaleString('en-GB')} · MAD ${fixed(t.mad, 4)}: ${VERDICT[s.verdict]} (expected ${fixed(s.expectedMad, 4)} ± ${fixed(s.sdMad, 4)}, z ${fixed(s.zScore, 2)})`
       : `n = ${t.n.toLocaleString('en-GB')} · MAD ${fixed(t.mad, 4)}: ${t.conformity} (published conformity range)`;
-  const top = t.z
-    .map((z, i) => ({ z: z ?? 0, i }))
-    .sort((a, b) => b.z - a.z || a.i - b.i)
-    .slice(0, 5)
-    .map(
-      ({ z, i }) =>
-        `${test === 'lastTwo' ? String(DIGIT_LABELS[test][i]).padStart(2, '0') : DIGIT_LABELS[test][i]}: ${pct(t.counts[i] / (t.n || 1))} vs ${pct(t.expected[i])} (Z ${z.toFixed(2)})`,
-    );
+  // Only shown when the test has amounts (n > 0).
+  const top = t.n > 0 ? largestDeviations(test, t).map((d) => `${d.label}: ${pct(d.observed)} vs ${pct(d.expected)} (Z ${d.z.toFixed(2)})`) : [];
   return (
     <Card style={{ gap: space.sm, flexBasis: 300, flexGrow: 1, minWidth: 0 }} testID={`analysis-${test}`}>
       {test === 'firstDigit' ? (
@@ -64,7 +56,7 @@ function TestBlock({ test, r }: { test: DigitTestName; r: DigitResultJson }) {
       {t.n > 0 && (
         <>
           <Txt variant="small">{`Chi-square ${fixed(t.chiSquare, 2)}, df ${t.df}, p ${pv(t.pValue)}${t.chiSquareValid ? '' : ' (expected counts below 5)'}`}</Txt>
-          <Txt variant="small">{`KS ${fixed(t.ks, 4)} (${ks(t.ksVerdict)}) · Kuiper ${fixed(t.kuiper, 4)} (${ks(t.kuiperVerdict)})`}</Txt>
+          <Txt variant="small">{`KS ${fixed(t.ks, 4)} (${goodnessWords(t.ksVerdict)}) · Kuiper ${fixed(t.kuiper, 4)} (${goodnessWords(t.kuiperVerdict)})`}</Txt>
           <Txt variant="small" tone="soft">{`Largest deviations: ${top.join(' · ')}`}</Txt>
         </>
       )}
@@ -154,8 +146,7 @@ export function AnalysisScreen() {
           {r.split && (
             <Card style={{ gap: space.xs }} testID="analysis-split">
               <Txt bold>{`By ${r.split.column} (${r.split.groups.length} groups; first digit, highest size-aware z first)`}</Txt>
-              {[...r.split.groups]
-                .sort((a, b) => (b.sizeAware.zScore ?? -Infinity) - (a.sizeAware.zScore ?? -Infinity))
+              {groupsByZ(r.split.groups)
                 .slice(0, 50)
                 .map((g) => (
                   <Txt

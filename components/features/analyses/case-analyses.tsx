@@ -13,9 +13,8 @@ import { Field } from '../../ui/field';
 import { Txt } from '../../ui/text';
 import { Section } from '../cases/case-section';
 import { useLetters } from '../letters/use-letters';
+import { dataFileEnding } from '../../../shared/analyses';
 import { analysisPdfUrl, useCaseAnalyses, useSaveAnalysis } from './use-analyses';
-
-const DATA_TYPES = ['text/csv', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet'];
 
 const VERDICT: Record<string, string> = {
   within_expected: 'within the expected range',
@@ -34,7 +33,7 @@ export function CaseAnalyses({ caseId, canAct }: { caseId: string; canAct: boole
   const list = useCaseAnalyses(caseId);
   const letters = useLetters(caseId);
   const save = useSaveAnalysis(caseId);
-  const files = (letters.data?.items ?? []).flatMap((l) => l.documentRequest?.uploads ?? []).filter((u) => DATA_TYPES.includes(u.contentType));
+  const files = (letters.data?.items ?? []).flatMap((l) => l.documentRequest?.uploads ?? []).filter((u) => dataFileEnding(u.contentType) !== null);
   const [uploadId, setUploadId] = useState<string | undefined>(undefined);
   const [column, setColumn] = useState('');
   const [by, setBy] = useState('');

@@ -5,7 +5,7 @@
  * others, whose 10 to 100 groups need thinner bars and sparser labels.
  */
 import Svg, { Polyline, Rect, Text as SvgText } from 'react-native-svg';
-import { DIGIT_LABELS, type DigitTestName } from '../../../shared/digits';
+import { binLabel, type DigitTestName } from '../../../shared/digits';
 import { colours, fonts } from '../../theme';
 import { ChartFrame, ChartGrid, LegendItem } from '../../ui/chart-parts';
 
@@ -34,7 +34,7 @@ export function TestChart({
   const step = top > 0.2 ? 0.1 : top > 0.06 ? 0.02 : 0.01;
   const ticks = Array.from({ length: Math.floor(top / step + 1e-9) + 1 }, (_, k) => k * step);
   const pct = (v: number) => `${Math.round(v * 1000) / 10}%`;
-  const label = (i: number) => (test === 'lastTwo' ? String(DIGIT_LABELS[test][i]).padStart(2, '0') : String(DIGIT_LABELS[test][i]));
+  const label = (i: number) => binLabel(test, i);
   const every = counts.length > 20 ? 10 : 1;
   const summary = `${title}. ${n} amounts. ${observed.map((o, i) => `${label(i)}: ${pct(o)} observed, ${pct(expected[i])} expected`).join('; ')}`;
   return (

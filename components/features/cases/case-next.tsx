@@ -32,6 +32,13 @@ export function CaseNext({ caseId, state, trail, onShown }: { caseId: string; st
     };
   }, [caseId, trail]);
   const queueHref = { pathname: '/queue' as const, params: Object.fromEntries(new URLSearchParams(found?.qs ?? '')) };
+  const backToQueue = (
+    <Link href={queueHref} testID="case-next-queue">
+      <Txt variant="small" bold tone="brass">
+        Back to the queue
+      </Txt>
+    </Link>
+  );
   return (
     <View
       testID="case-next"
@@ -66,11 +73,7 @@ export function CaseNext({ caseId, state, trail, onShown }: { caseId: string; st
               testID="case-next-open"
               onPress={() => found.next && router.push({ pathname: '/cases/[id]', params: { id: found.next.id } })}
             />
-            <Link href={queueHref} testID="case-next-queue">
-              <Txt variant="small" bold tone="brass">
-                Back to the queue
-              </Txt>
-            </Link>
+            {backToQueue}
           </View>
         </View>
       )}
@@ -79,11 +82,7 @@ export function CaseNext({ caseId, state, trail, onShown }: { caseId: string; st
           <Txt variant="small" testID="case-next-none">
             No other case is being worked in this view of the queue.
           </Txt>
-          <Link href={queueHref} testID="case-next-queue">
-            <Txt variant="small" bold tone="brass">
-              Back to the queue
-            </Txt>
-          </Link>
+          {backToQueue}
         </View>
       )}
     </View>

@@ -16,6 +16,7 @@ import { CaseHistory } from './case-history';
 import { CaseNext } from './case-next';
 import { CaseNotes } from './case-notes';
 import { CaseRelated } from './case-related';
+import { ReplyFlagBanner } from './reply-flag-banner';
 import { findTrail } from './queue-trail';
 import { useCase } from './use-cases';
 
@@ -118,6 +119,8 @@ export function CaseScreen() {
   if (wide) {
     return (
       <View style={{ gap: space.lg }} testID="case-screen">
+        {/* First in both layouts, so a change of width keeps what it remembers. */}
+        <ReplyFlagBanner d={d} />
         <CaseHeader d={d} />
         <CaseScoreSummary d={d} />
         <View style={{ flexDirection: 'row', gap: space.lg, alignItems: 'flex-start' }}>
@@ -138,6 +141,8 @@ export function CaseScreen() {
   }
   return (
     <View style={{ gap: space.lg }} testID="case-screen">
+      {/* First in both layouts, so a change of width keeps what it remembers. */}
+      <ReplyFlagBanner d={d} />
       <CaseHeader d={d} />
       <CaseActionBar d={d} onChanged={setNotice} onClosing={setClosing} onReopen={() => setReopening(true)} />
       {actions}

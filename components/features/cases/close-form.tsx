@@ -11,7 +11,7 @@ import { useMemo, useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { View } from 'react-native';
 import { TransitionRequestSchema, type TransitionRequest } from '../../../shared/cases';
-import { applyCorrections, CORRECTABLE_LINE_CODES, CorrectionSchema, type Correction } from '../../../shared/returns/corrections';
+import { applyCorrections, CORRECTABLE_LINE_CODES, CorrectionSchema, signedMoney, type Correction } from '../../../shared/returns/corrections';
 import { LINE_CODE_DEFS, type CentsLine, type LineCode } from '../../../shared/returns/line-codes';
 import { centsFromDecimal } from '../../../shared/returns/money';
 import { money } from '../../../shared/scoring/format';
@@ -21,12 +21,10 @@ import { Field } from '../../ui/field';
 import { FormField } from '../../ui/form-field';
 import { useIsWide } from '../../ui/layout';
 import { Txt } from '../../ui/text';
-import { LetterText } from '../letters/letter-text';
-import { usePreviewClosingLetter } from '../letters/use-letters';
+import { LetterPreviewBox } from '../letters/letter-text';
+import { usePreviewClosingLetter, usePreviewFirst } from '../letters/use-letters';
 import type { CloseFormProps } from './case-actions';
 import { useCase } from './use-cases';
-
-const signed = (cents: number) => (cents > 0 ? `+${money(cents)}` : money(cents));
 
 /** The return's lines as filed, in cents (from the case the screen already holds). */
 function useFiledLines(caseId: string): CentsLine[] {
@@ -60,7 +58,7 @@ function FigureRow({ label, filed, corrected, bold, testID }: { label: string; f
       <View style={{ flexDirection: 'row', gap: space.xs }}>
         {figure(money(filed))}
         {figure(money(corrected))}
-        {figure(signed(d), d === 0 ? 'soft' : 'ink')}
+        {figure(signedMoney(d), d === 0 ? 'soft' : 'ink')}
       </View>
     </View>
   );
@@ -78,10 +76,9 @@ export function CloseForm({ caseId, to, onSubmit, onCancel }: CloseFormProps) {
   });
   // Typed amounts by code; the form's `corrections` holds the ones filled in, in form order.
   const [typed, setTyped] = useState<Partial<Record<LineCode, string>>>({});
-  const [previewed, setPreviewed] = useState<string | null>(null);
   const values = form.watch();
-  const key = JSON.stringify(values);
   // A preview stands for the values it was made from: any change asks for a new one.
+  const { ready, submit } = usePreviewFirst(form, preview, onSubmit);
 
   const filedByCode = useMemo(() => {
     const m = new Map<LineCode, number>();
@@ -106,12 +103,6 @@ export function CloseForm({ caseId, to, onSubmit, onCancel }: CloseFormProps) {
   const figures = to === 'closed_adjusted' ? applyCorrections(filedLines, usable) : null;
   const correctionsError = (form.formState.errors.corrections as { message?: string } | undefined)?.message;
   const sameTax = figures !== null && usable.length > 0 && figures.taxDifference === 0;
-
-  const submit = form.handleSubmit((v) => {
-    if (previewed === key && preview.data) return onSubmit(v);
-    preview.mutate(v, { onSuccess: () => setPreviewed(key) });
-  });
-  const ready = previewed === key && !!preview.data;
 
   return (
     <View style={{ gap: space.md, paddingTop: space.md, borderTopWidth: 1, borderTopColor: colours.line }} testID="close-form">
@@ -186,7 +177,7 @@ export function CloseForm({ caseId, to, onSubmit, onCancel }: CloseFormProps) {
               ? 'No corrected figure yet.'
               : sameTax
                 ? 'These corrections do not change the tax: close with no change instead, or check the amounts.'
-                : `Adjusted amount: ${signed(figures.taxDifference)} (the tax ${figures.taxDifference > 0 ? 'rises' : 'falls'} from ${money(figures.filed.tax)} to ${money(figures.corrected.tax)})`}
+                : `Adjusted amount: ${signedMoney(figures.taxDifference)} (the tax ${figures.taxDifference > 0 ? 'rises' : 'falls'} from ${money(figures.filed.tax)} to ${money(figures.corrected.tax)})`}
           </Txt>
         </View>
       )}
@@ -195,20 +186,7 @@ export function CloseForm({ caseId, to, onSubmit, onCancel }: CloseFormProps) {
           {preview.error.message}
         </Txt>
       )}
-      {ready && preview.data && (
-        <View style={{ gap: space.xs, padding: space.md, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID="close-letter-preview">
-          <Txt variant="small" bold>
-            The letter the taxpayer will receive
-          </Txt>
-          <Txt variant="small" tone="soft" testID="close-letter-to">
-            {preview.data.to ? `By e-mail to ${preview.data.to}, with the PDF` : 'No e-mail address is on file: the letter is kept with the case for post.'}
-          </Txt>
-          <Txt variant="small" bold>
-            {preview.data.subject}
-          </Txt>
-          <LetterText text={preview.data.text} testID="close-letter-text" />
-        </View>
-      )}
+      {ready && preview.data && <LetterPreviewBox preview={preview.data} testID="close-letter-preview" partsID="close-letter" />}
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm }}>
         <Button
           label={ready ? 'Close the case and send the letter…' : 'Preview the letter'}

@@ -9,8 +9,7 @@
  * the view. A case opened with no queue behind it (a link, a bookmark) follows the default
  * queue: cases being worked, by priority.
  */
-import { useQueryClient, type QueryClient } from '@tanstack/react-query';
-import { useState } from 'react';
+import type { QueryClient } from '@tanstack/react-query';
 import { Platform } from 'react-native';
 import { apiGet } from '../../../hooks/api-client';
 import { CaseListSchema, type CaseList, type CaseListItem } from '../../../shared/case-api';
@@ -67,13 +66,6 @@ export function findTrail(qc: QueryClient, caseId: string): QueueTrail | null {
   }
   const t = stored();
   return t && t.ids.includes(caseId) ? t : null;
-}
-
-/** The trail of the case screen, found once when it opens. */
-export function useQueueTrail(caseId: string): QueueTrail | null {
-  const qc = useQueryClient();
-  const [trail] = useState(() => findTrail(qc, caseId));
-  return trail;
 }
 
 /** What the case screen offers after a closing or a referral. */

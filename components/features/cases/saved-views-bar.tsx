@@ -1,8 +1,9 @@
 import { useState } from 'react';
 import { Pressable, View } from 'react-native';
 import { SavedViewCreateSchema, type SavedViewFilters } from '../../../shared/saved-views';
-import { colours, radius, space } from '../../theme';
+import { space } from '../../theme';
 import { Button } from '../../ui/button';
+import { Chip } from '../../ui/choice-row';
 import { Field } from '../../ui/field';
 import { Txt } from '../../ui/text';
 import { useDeleteView, useSaveView, useSavedViews } from './use-my-cases';
@@ -11,29 +12,6 @@ import { useDeleteView, useSaveView, useSavedViews } from './use-my-cases';
 export function sameFilters(a: SavedViewFilters, b: SavedViewFilters): boolean {
   const keys = new Set([...Object.keys(a), ...Object.keys(b)] as (keyof SavedViewFilters)[]);
   return [...keys].every((k) => (a[k] ?? undefined) === (b[k] ?? undefined));
-}
-
-function Chip({ label, on, onPress, testID }: { label: string; on?: boolean; onPress(): void; testID?: string }) {
-  return (
-    <Pressable
-      role="button"
-      aria-pressed={on}
-      testID={testID}
-      onPress={onPress}
-      style={{
-        paddingHorizontal: space.md,
-        paddingVertical: space.xs + 2,
-        borderRadius: radius.lg,
-        borderWidth: 1.5,
-        borderColor: on ? colours.ink : colours.control,
-        backgroundColor: on ? colours.ink : colours.surface,
-      }}
-    >
-      <Txt variant="small" bold={on} tone={on ? 'white' : 'ink'}>
-        {label}
-      </Txt>
-    </Pressable>
-  );
 }
 
 /** Props for {@link SavedViewsBar}. */

@@ -1,4 +1,6 @@
-import { ScrollView } from 'react-native';
+import { ScrollView, View } from 'react-native';
+import type { LetterPreview } from '../../../shared/letters';
+import { colours, radius, space } from '../../theme';
 import { Txt } from '../../ui/text';
 
 /**
@@ -13,5 +15,31 @@ export function LetterText({ text, testID }: { text: string; testID: string }) {
         {text}
       </Txt>
     </ScrollView>
+  );
+}
+
+/**
+ * A letter (or memo) as it will be sent, read before anything is stored or sent: where it
+ * goes, its subject and its text. `partsID` names the recipient line (`<partsID>-to`) and the
+ * text (`<partsID>-text`); it defaults to `testID`.
+ */
+export function LetterPreviewBox({ preview, testID, partsID = testID }: { preview: LetterPreview; testID: string; partsID?: string }) {
+  return (
+    <View style={{ gap: space.xs, padding: space.md, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID={testID}>
+      <Txt variant="small" bold>
+        {preview.kind === 'referral_memo' ? 'The memo as it will be written' : 'The letter as it will be sent'}
+      </Txt>
+      <Txt variant="small" tone="soft" testID={`${partsID}-to`}>
+        {preview.kind === 'referral_memo'
+          ? 'Kept with the case for the unit; its PDF also charts the return’s first digits'
+          : preview.to
+            ? `By e-mail to ${preview.to}, with the PDF attached`
+            : 'No e-mail address on file: kept with the case for post'}
+      </Txt>
+      <Txt variant="small" bold>
+        {preview.subject}
+      </Txt>
+      <LetterText text={preview.text} testID={`${partsID}-text`} />
+    </View>
   );
 }

@@ -25,7 +25,6 @@ import {
   type DocumentRequestState,
   type LetterContext,
   type LetterDto,
-  type LetterPreview,
   type ReferralInput,
 } from '../../../shared/letters';
 import { colours, radius, space } from '../../theme';
@@ -36,13 +35,14 @@ import { ConfirmDialog } from '../../ui/confirm-dialog';
 import { Field } from '../../ui/field';
 import { FormField } from '../../ui/form-field';
 import { Txt } from '../../ui/text';
-import { LetterText } from './letter-text';
+import { LetterPreviewBox } from './letter-text';
 import {
   letterPdfUrl,
   replyUploadUrl,
   useLetterContext,
   useLetters,
   usePreviewDocumentRequest,
+  usePreviewFirst,
   usePreviewReferral,
   useSendDocumentRequest,
   useSendReferral,
@@ -136,28 +136,6 @@ interface FormProps<T> {
   error: Error | null;
 }
 
-/** The letter as it will go: where, the subject and the text, read before it is sent (issue 14). */
-function LetterPreviewBox({ preview, testID }: { preview: LetterPreview; testID: string }) {
-  return (
-    <View style={{ gap: space.xs, padding: space.md, borderWidth: 1, borderColor: colours.line, borderRadius: radius.md }} testID={testID}>
-      <Txt variant="small" bold>
-        {preview.kind === 'referral_memo' ? 'The memo as it will be written' : 'The letter as it will be sent'}
-      </Txt>
-      <Txt variant="small" tone="soft" testID={`${testID}-to`}>
-        {preview.kind === 'referral_memo'
-          ? 'Kept with the case for the unit; its PDF also charts the return’s first digits'
-          : preview.to
-            ? `By e-mail to ${preview.to}, with the PDF attached`
-            : 'No e-mail address: kept with the case for post'}
-      </Txt>
-      <Txt variant="small" bold>
-        {preview.subject}
-      </Txt>
-      <LetterText text={preview.text} testID={`${testID}-text`} />
-    </View>
-  );
-}
-
 function DocumentRequestForm({ caseId, context, onSubmit, busy, error }: FormProps<DocumentRequestInput> & { caseId: string; context: LetterContext }) {
   // The due-date window by the office's clock, not the browser's (issue 14); with no address
   // on file the form asks for one before Send.
@@ -168,18 +146,12 @@ function DocumentRequestForm({ caseId, context, onSubmit, busy, error }: FormPro
     defaultValues: { items: [''], dueDate: addDays(context.today, 21), email: '' },
   });
   const preview = usePreviewDocumentRequest(caseId);
-  const [previewed, setPreviewed] = useState<string | null>(null);
+  const { ready, submit, change } = usePreviewFirst(form, preview, onSubmit);
   // Items are plain strings (the API's shape), so add and remove work on the array itself
   // instead of useFieldArray, which needs objects.
   const items = form.watch('items');
-  const key = JSON.stringify(form.watch());
-  const ready = previewed === key && !!preview.data;
   const setItems = (next: string[]) => form.setValue('items', next, { shouldDirty: true, shouldValidate: true });
   const itemsError = form.formState.errors.items;
-  const submit = form.handleSubmit((v) => {
-    if (ready) return onSubmit(v);
-    preview.mutate(v, { onSuccess: () => setPreviewed(key) });
-  });
   return (
     <View style={{ gap: space.md }} testID="document-request-form">
       <Txt variant="lead" bold>
@@ -290,7 +262,7 @@ function DocumentRequestForm({ caseId, context, onSubmit, busy, error }: FormPro
           onPress={submit}
           busy={busy || preview.isPending}
         />
-        {ready && <Button kind="quiet" label="Change it" testID="request-edit" onPress={() => setPreviewed(null)} />}
+        {ready && <Button kind="quiet" label="Change it" testID="request-edit" onPress={change} />}
       </View>
     </View>
   );

@@ -4,7 +4,9 @@
  * (['case', caseId], which also covers the letters list kept under it) and the queue and
  * workload views that count cases by state.
  */
-import { useMutation, useQuery, useQueryClient, type QueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient, type QueryClient, type UseMutationResult } from '@tanstack/react-query';
+import { useState } from 'react';
+import type { FieldValues, UseFormReturn } from 'react-hook-form';
 import { API_BASE, apiGet, apiSend } from '../../../hooks/api-client';
 import type { TransitionRequest } from '../../../shared/cases';
 import {
@@ -13,6 +15,7 @@ import {
   LetterListSchema,
   LetterPreviewSchema,
   type DocumentRequestInput,
+  type LetterPreview,
   type ReferralInput,
 } from '../../../shared/letters';
 
@@ -91,4 +94,24 @@ export function usePreviewClosingLetter(caseId: string) {
   return useMutation({
     mutationFn: (input: TransitionRequest) => apiSend('POST', `/api/cases/${caseId}/closing-letter/preview`, input, LetterPreviewSchema),
   });
+}
+
+/**
+ * Read first, then act (issue 14): the form's button first asks for the preview of its values;
+ * once that preview is shown for exactly these values, the button submits. Any change to the
+ * form asks for a new preview, so what is sent is what was read.
+ */
+export function usePreviewFirst<T extends FieldValues>(
+  form: UseFormReturn<T>,
+  preview: UseMutationResult<LetterPreview, Error, T>,
+  onSubmit: (values: T) => void,
+) {
+  const [previewed, setPreviewed] = useState<string | null>(null);
+  const key = JSON.stringify(form.watch());
+  const ready = previewed === key && !!preview.data;
+  const submit = form.handleSubmit((v) => {
+    if (ready) return onSubmit(v);
+    preview.mutate(v, { onSuccess: () => setPreviewed(key) });
+  });
+  return { ready, submit, change: () => setPreviewed(null) };
 }

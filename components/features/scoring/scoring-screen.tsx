@@ -1,6 +1,6 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useEffect, useState } from 'react';
-import { Controller, useForm, useWatch } from 'react-hook-form';
+import { useEffect, useState, type ReactNode } from 'react';
+import { Controller, useForm, useWatch, type Control, type FieldPath } from 'react-hook-form';
 import { View } from 'react-native';
 import type { z } from 'zod';
 import type { Preview, WeightFitDto } from '../../../shared/programme/api';
@@ -13,6 +13,7 @@ import { colours, space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';
 import { ChoiceRow } from '../../ui/choice-row';
+import { ConfirmDialog } from '../../ui/confirm-dialog';
 import { Field } from '../../ui/field';
 import { FormField } from '../../ui/form-field';
 import { useIsWide } from '../../ui/layout';
@@ -32,6 +33,35 @@ export function selectionInWords(s: Pick<ScoringSettings, 'selectionCut' | 'capa
 }
 
 type FormIn = z.input<typeof NewProfileSchema>;
+
+/** One numeric setting of the form, in a column as wide as its neighbours. */
+function NumberField({ control, name, testID, label }: { control: Control<FormIn>; name: FieldPath<FormIn>; testID: string; label: string }) {
+  const wide = useIsWide();
+  return (
+    <View style={{ width: wide ? 230 : '100%' }}>
+      <FormField control={control} name={name} toValue={num} testID={testID} label={label} keyboardType="numeric" />
+    </View>
+  );
+}
+
+/** A factor's row in the suggestion and performance lists: its name, then its figures beside it (wide) or under it. */
+function FactorRow({ label, children }: { label: string; children: ReactNode }) {
+  const wide = useIsWide();
+  return (
+    <View
+      style={{
+        flexDirection: wide ? 'row' : 'column',
+        gap: wide ? space.md : 0,
+        paddingVertical: space.xs,
+        borderTopWidth: 1,
+        borderTopColor: colours.line,
+      }}
+    >
+      <Txt style={{ flex: 1 }}>{label}</Txt>
+      {children}
+    </View>
+  );
+}
 
 function PreviewPanel({ preview }: { preview: Preview }) {
   return (
@@ -93,16 +123,7 @@ function WeightsForm({ active, learned }: { active: ProfileVersion; learned: Wei
       </Txt>
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.md }}>
         {COMPONENTS.map((key) => (
-          <View key={key} style={{ width: wide ? 230 : '100%' }}>
-            <FormField
-              control={form.control}
-              name={`settings.weights.${key}`}
-              toValue={num}
-              testID={`weight-${key}`}
-              label={COMPONENT_LABELS[key]}
-              keyboardType="numeric"
-            />
-          </View>
+          <NumberField key={key} control={form.control} name={`settings.weights.${key}`} testID={`weight-${key}`} label={COMPONENT_LABELS[key]} />
         ))}
       </View>
       <ChoiceRow
@@ -123,38 +144,11 @@ function WeightsForm({ active, learned }: { active: ProfileVersion; learned: Wei
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.md }}>
         {capacity ? (
           <>
-            <View style={{ width: wide ? 230 : '100%' }}>
-              <FormField
-                control={form.control}
-                name="settings.capacity.casesPerMonth"
-                toValue={num}
-                testID="capacity-per-month"
-                label="Cases the team can take a month"
-                keyboardType="numeric"
-              />
-            </View>
-            <View style={{ width: wide ? 230 : '100%' }}>
-              <FormField
-                control={form.control}
-                name="settings.capacity.months"
-                toValue={num}
-                testID="capacity-months"
-                label="Months one batch should feed"
-                keyboardType="numeric"
-              />
-            </View>
+            <NumberField control={form.control} name="settings.capacity.casesPerMonth" testID="capacity-per-month" label="Cases the team can take a month" />
+            <NumberField control={form.control} name="settings.capacity.months" testID="capacity-months" label="Months one batch should feed" />
           </>
         ) : (
-          <View style={{ width: wide ? 230 : '100%' }}>
-            <FormField
-              control={form.control}
-              name="settings.selectionCut"
-              toValue={num}
-              testID="selection-cut"
-              label="Open a case at or above (score)"
-              keyboardType="numeric"
-            />
-          </View>
+          <NumberField control={form.control} name="settings.selectionCut" testID="selection-cut" label="Open a case at or above (score)" />
         )}
         <View style={{ width: wide ? 230 : '100%' }}>
           <Controller
@@ -196,29 +190,25 @@ function WeightsForm({ active, learned }: { active: ProfileVersion; learned: Wei
         {preview.data && <PreviewPanel preview={preview.data} />}
       </View>
       <FormField control={form.control} name="note" testID="profile-note" label="Why the change" />
-      {add.error && <Txt tone="alert">{add.error.message}</Txt>}
       {add.isSuccess && <Txt tone="ok">Saved as version {add.data.version}; new batches are scored with it.</Txt>}
-      {pending ? (
-        <View style={{ gap: space.sm, padding: space.sm, borderWidth: 1, borderColor: colours.brass }} testID="confirm-save">
-          <Txt>
-            Save these settings as a new version and make it active? From then on every batch loaded is scored with it: a case is opened for{' '}
-            {selectionInWords(pending.settings)}. Batches already scored keep their scores and cases until someone re-scores them.
-          </Txt>
-          <View style={{ flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' }}>
-            <Button
-              testID="confirm-save-yes"
-              label="Yes, save and make active"
-              busy={add.isPending}
-              onPress={() => add.mutate(pending, { onSettled: () => setPending(null) })}
-            />
-            <Button kind="quiet" label="Go back" onPress={() => setPending(null)} />
-          </View>
-        </View>
-      ) : (
-        <View style={{ flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' }}>
-          <Button testID="save-profile" label="Save as new version" onPress={submit} />
-          {fit && <Button kind="secondary" testID="apply-suggestions" label="Fill in the suggested weights" onPress={applySuggestions} />}
-        </View>
+      <View style={{ flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' }}>
+        <Button testID="save-profile" label="Save as new version" onPress={submit} />
+        {fit && <Button kind="secondary" testID="apply-suggestions" label="Fill in the suggested weights" onPress={applySuggestions} />}
+      </View>
+      {pending && (
+        <ConfirmDialog
+          testID="confirm-save"
+          title="Save these settings as a new version and make it active?"
+          consequence={`From then on every batch loaded is scored with it: a case is opened for ${selectionInWords(pending.settings)}. Batches already scored keep their scores and cases until someone re-scores them.`}
+          confirmLabel="Save and make active"
+          busy={add.isPending}
+          error={add.error?.message}
+          onConfirm={() => add.mutate(pending, { onSuccess: () => setPending(null) })}
+          onCancel={() => {
+            add.reset();
+            setPending(null);
+          }}
+        />
       )}
     </Card>
   );
@@ -226,7 +216,6 @@ function WeightsForm({ active, learned }: { active: ProfileVersion; learned: Wei
 
 /** The outcome model's suggested weights with intervals, and the back-test. */
 function SuggestionCard({ learned }: { learned: WeightFitDto }) {
-  const wide = useIsWide();
   const fit = learned.fit;
   return (
     <Card style={{ gap: space.sm }} testID="weight-suggestion">
@@ -247,17 +236,7 @@ function SuggestionCard({ learned }: { learned: WeightFitDto }) {
             version.
           </Txt>
           {fit.suggestions.map((s) => (
-            <View
-              key={s.key}
-              style={{
-                flexDirection: wide ? 'row' : 'column',
-                gap: wide ? space.md : 0,
-                paddingVertical: space.xs,
-                borderTopWidth: 1,
-                borderTopColor: colours.line,
-              }}
-            >
-              <Txt style={{ flex: 1 }}>{s.label}</Txt>
+            <FactorRow key={s.key} label={s.label}>
               <Txt
                 variant="small"
                 figures
@@ -270,7 +249,7 @@ function SuggestionCard({ learned }: { learned: WeightFitDto }) {
               <Txt variant="small" figures={s.enoughData} tone="soft" style={{ width: 190 }}>
                 {s.enoughData ? `95 %: ${s.low} to ${s.high}` : 'kept: too few cases with this factor to say'}
               </Txt>
-            </View>
+            </FactorRow>
           ))}
           <View style={{ gap: 2, paddingTop: space.xs, borderTopWidth: 1, borderTopColor: colours.line }} testID="back-test">
             <Txt bold>Back-test on {fit.heldBack} closed cases held back from the fit</Txt>
@@ -290,7 +269,6 @@ function SuggestionCard({ learned }: { learned: WeightFitDto }) {
 }
 
 function PerformanceTable({ p }: { p: Performance }) {
-  const wide = useIsWide();
   return (
     <Card style={{ gap: space.sm }} testID="factor-performance">
       <Txt variant="title" bold>
@@ -302,21 +280,11 @@ function PerformanceTable({ p }: { p: Performance }) {
         the suggestion above corrects for that.
       </Txt>
       {p.factors.map((f) => (
-        <View
-          key={f.key}
-          style={{
-            flexDirection: wide ? 'row' : 'column',
-            gap: wide ? space.md : 0,
-            paddingVertical: space.xs,
-            borderTopWidth: 1,
-            borderTopColor: colours.line,
-          }}
-        >
-          <Txt style={{ flex: 1 }}>{f.label}</Txt>
+        <FactorRow key={f.key} label={f.label}>
           <Txt variant="small" figures style={{ width: 170 }}>
             {f.adjusted}/{f.flagged} adjusted{f.adjustedRate !== null ? ` (${Math.round(f.adjustedRate * 100)} %)` : ''}
           </Txt>
-        </View>
+        </FactorRow>
       ))}
     </Card>
   );
@@ -328,7 +296,7 @@ export function ScoringScreen() {
   const performance = usePerformance();
   const activate = useActivateProfile();
   const wide = useIsWide();
-  const [confirming, setConfirming] = useState<number | null>(null);
+  const [confirming, setConfirming] = useState<ProfileVersion | null>(null);
   const active = profiles.data?.items.find((p) => p.active);
   return (
     <View style={{ gap: space.lg }}>
@@ -351,7 +319,6 @@ export function ScoringScreen() {
           <Txt variant="title" bold>
             Versions
           </Txt>
-          {activate.error && <Txt tone="alert">{activate.error.message}</Txt>}
           {profiles.data?.items.map((p) => (
             <View key={p.version} style={{ paddingVertical: space.sm, borderTopWidth: 1, borderTopColor: colours.line, gap: 2 }}>
               <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.sm }}>
@@ -363,9 +330,7 @@ export function ScoringScreen() {
                     active
                   </Txt>
                 ) : (
-                  confirming !== p.version && (
-                    <Button kind="quiet" testID={`activate-${p.version}`} label="Make active" onPress={() => setConfirming(p.version)} />
-                  )
+                  <Button kind="quiet" testID={`activate-${p.version}`} label="Make active" onPress={() => setConfirming(p)} />
                 )}
               </View>
               <Txt variant="small">{p.note}</Txt>
@@ -373,26 +338,25 @@ export function ScoringScreen() {
                 {p.authorName ?? 'set up with the product'} · {p.createdAt.slice(0, 10)} ·{' '}
                 {p.settings.capacity ? `capacity ${capacityTarget(p.settings.capacity)} a batch` : `cut ${p.settings.selectionCut}`}
               </Txt>
-              {confirming === p.version && (
-                <View style={{ gap: space.sm, padding: space.sm, borderWidth: 1, borderColor: colours.brass }} testID={`confirm-activate-${p.version}`}>
-                  <Txt variant="small">
-                    Make version {p.version} the active one? Every batch loaded from now on is scored with it: a case is opened for{' '}
-                    {selectionInWords(p.settings)}. Batches already scored keep their scores and cases until someone re-scores them.
-                  </Txt>
-                  <View style={{ flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' }}>
-                    <Button
-                      label={`Yes, make version ${p.version} active`}
-                      busy={activate.isPending}
-                      onPress={() => activate.mutate(p.version, { onSettled: () => setConfirming(null) })}
-                    />
-                    <Button kind="quiet" label="Go back" onPress={() => setConfirming(null)} />
-                  </View>
-                </View>
-              )}
             </View>
           ))}
         </Card>
       </View>
+      {confirming && (
+        <ConfirmDialog
+          testID={`confirm-activate-${confirming.version}`}
+          title={`Make version ${confirming.version} the active one?`}
+          consequence={`Every batch loaded from now on is scored with it: a case is opened for ${selectionInWords(confirming.settings)}. Batches already scored keep their scores and cases until someone re-scores them.`}
+          confirmLabel={`Make version ${confirming.version} active`}
+          busy={activate.isPending}
+          error={activate.error?.message}
+          onConfirm={() => activate.mutate(confirming.version, { onSuccess: () => setConfirming(null) })}
+          onCancel={() => {
+            activate.reset();
+            setConfirming(null);
+          }}
+        />
+      )}
     </View>
   );
 }

@@ -76,7 +76,7 @@ async function main(job: UploadJob): Promise<void> {
       // eslint-disable-next-line @typescript-eslint/no-require-imports
       const amounts = require('../../analyses/amount-file') as typeof import('../../analyses/amount-file');
       AmountFileError = amounts.AmountFileError;
-      const { cents, wide, what, groups } = await amounts.readAmountsFile(job.file, job.column, job.kind, job.caps, job.by ?? null);
+      const { cents, wide, what, groups } = await amounts.readAmountsFile(job.file, job.column, job.kind, job.caps, job.by);
       const copy = new Float64Array(cents); // its own buffer, handed over without a copy
       port.postMessage({ type: 'amounts', cents: copy, wide, what, groups }, [copy.buffer]);
     }

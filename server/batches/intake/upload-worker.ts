@@ -17,7 +17,7 @@ export const UPLOAD_THREAD_HEAP_MB = 256;
 /** What the thread is asked to do. */
 export type UploadJob =
   | { job: 'tables'; upload: BatchUpload; caps: ReadCaps }
-  | { job: 'amounts'; file: string; column: string | null; kind: 'csv' | 'xlsx' | 'text'; caps: ReadCaps; by?: string | null };
+  | { job: 'amounts'; file: string; column: string | null; kind: 'csv' | 'xlsx' | 'text'; caps: ReadCaps; by: string | null };
 
 /** An error as it crosses from the thread. */
 export type ThreadError =

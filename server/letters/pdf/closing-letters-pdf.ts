@@ -8,23 +8,11 @@
  */
 import type { SendMailOptions } from 'nodemailer';
 import { longDate, OFFICE, PROPOSAL_ANSWER_DAYS } from '../../../shared/letters';
-import type { CorrectedReturn } from '../../../shared/returns/corrections';
+import { signedMoney, type CorrectedReturn } from '../../../shared/returns/corrections';
 import { money } from '../../../shared/scoring/format';
-import { callout, contentWidth, F, footers, heading, letterClosing, letterhead, letterOpening, newPdf, pdfBytes, printable, table } from './pdf-base';
-
-/** What every closing letter knows about its case. */
-interface LetterBase {
-  reference: string;
-  /** Date of the letter (YYYY-MM-DD). */
-  date: string;
-  taxpayerName: string;
-  postalAddress: string | null;
-  taxYear: number;
-  returnRef: string;
-}
+import { callout, contentWidth, F, heading, letterClosing, printable, quoteReference, renderTaxpayerLetter, table, type TaxpayerLetterBase } from './pdf-base';
 
 const help = `If you have a question, please contact us: telephone ${OFFICE.phone} (${OFFICE.hours}) or e-mail ${OFFICE.email}. You can also write to us at ${OFFICE.address.join(', ')}.`;
-const quote = (reference: string) => `Please quote our reference ${reference} in any message.`;
 
 /** A file size in words for a letter: "12 KB", "2.4 MB". */
 export function sizeWords(bytes: number): string {
@@ -35,7 +23,7 @@ export function sizeWords(bytes: number): string {
 // ---------------------------------------------------------------- acknowledgement
 
 /** An acknowledgement of one send through the reply link. */
-export interface AcknowledgementLetter extends LetterBase {
+export interface AcknowledgementLetter extends TaxpayerLetterBase {
   /** Reference of the request the records answer. */
   requestReference: string;
   /** When the send arrived (ISO instant) and which send it was (1, 2, …). */
@@ -67,35 +55,31 @@ export function acknowledgementText(l: AcknowledgementLetter): string[] {
 }
 
 /** Renders the acknowledgement as a PDF. */
-export async function renderAcknowledgementPdf(l: AcknowledgementLetter): Promise<Buffer> {
+export function renderAcknowledgementPdf(l: AcknowledgementLetter): Promise<Buffer> {
   const w = acknowledgementWording;
-  const subject = w.subject(l);
-  const doc = newPdf({ title: subject, subject: `Reference ${l.reference}`, author: OFFICE.name });
-  letterhead(doc, [`Our reference: ${l.reference}`]);
-  letterOpening(doc, { ...l, subject });
-  const width = contentWidth(doc);
-  doc.text(w.opening(l), { width, lineGap: 1.5 });
-  doc.moveDown(0.4);
-  if (l.files.length)
-    table(
-      doc,
-      [
-        { header: 'File', width: width - 90 },
-        { header: 'Size', width: 90, align: 'right' },
-      ],
-      l.files.map((f) => [printable(f.fileName), sizeWords(f.size)]),
-    );
-  doc.moveDown(0.6);
-  callout(doc, l.complete ? 'You have sent everything' : 'You can still send more', w.next(l));
-  letterClosing(doc, [w.onlyReceipt, help, quote(l.reference), w.thanks]);
-  footers(doc, `${OFFICE.name} · ${OFFICE.phone} · Reference ${l.reference}`);
-  return pdfBytes(doc);
+  return renderTaxpayerLetter(l, w.subject(l), (doc) => {
+    const width = contentWidth(doc);
+    doc.text(w.opening(l), { width, lineGap: 1.5 });
+    doc.moveDown(0.4);
+    if (l.files.length)
+      table(
+        doc,
+        [
+          { header: 'File', width: width - 90 },
+          { header: 'Size', width: 90, align: 'right' },
+        ],
+        l.files.map((f) => [printable(f.fileName), sizeWords(f.size)]),
+      );
+    doc.moveDown(0.6);
+    callout(doc, l.complete ? 'You have sent everything' : 'You can still send more', w.next(l));
+    letterClosing(doc, [w.onlyReceipt, help, quoteReference(l.reference), w.thanks]);
+  });
 }
 
 // ---------------------------------------------------------------- no change
 
 /** The no-change letter. */
-export interface NoChangeLetter extends LetterBase {
+export interface NoChangeLetter extends TaxpayerLetterBase {
   /** The taxpayer sent records during the review. */
   recordsReceived: boolean;
   signedBy: string;
@@ -119,35 +103,26 @@ export function noChangeText(l: NoChangeLetter): string[] {
 }
 
 /** Renders the no-change letter as a PDF. */
-export async function renderNoChangePdf(l: NoChangeLetter): Promise<Buffer> {
+export function renderNoChangePdf(l: NoChangeLetter): Promise<Buffer> {
   const w = noChangeWording;
-  const subject = w.subject(l);
-  const doc = newPdf({ title: subject, subject: `Reference ${l.reference}`, author: OFFICE.name });
-  letterhead(doc, [`Our reference: ${l.reference}`]);
-  letterOpening(doc, { ...l, subject });
-  doc.text(w.opening(l), { width: contentWidth(doc), lineGap: 1.5 });
-  doc.moveDown(0.6);
-  callout(doc, 'No change to your return', w.ordinary);
-  letterClosing(doc, [w.keep, help, quote(l.reference), w.thanks(l)], l.signedBy);
-  footers(doc, `${OFFICE.name} · ${OFFICE.phone} · Reference ${l.reference}`);
-  return pdfBytes(doc);
+  return renderTaxpayerLetter(l, w.subject(l), (doc) => {
+    doc.text(w.opening(l), { width: contentWidth(doc), lineGap: 1.5 });
+    doc.moveDown(0.6);
+    callout(doc, 'No change to your return', w.ordinary);
+    letterClosing(doc, [w.keep, help, quoteReference(l.reference), w.thanks(l)], l.signedBy);
+  });
 }
 
 // ---------------------------------------------------------------- adjustment proposal
 
 /** The adjustment proposal. */
-export interface AdjustmentProposalLetter extends LetterBase {
+export interface AdjustmentProposalLetter extends TaxpayerLetterBase {
   figures: CorrectedReturn;
   /** Last day to answer (YYYY-MM-DD): PROPOSAL_ANSWER_DAYS after the letter's date. */
   answerBy: string;
   /** The office's wording of the taxpayer's rights and how to disagree (a setting). */
   rights: string;
   signedBy: string;
-}
-
-/** A difference with its sign: "+1,800.00", "−250.00", "0.00". */
-export function signedMoney(cents: number): string {
-  return cents > 0 ? `+${money(cents)}` : money(cents);
 }
 
 /** The paragraphs of the proposal. */
@@ -207,36 +182,31 @@ export function proposalText(l: AdjustmentProposalLetter): string[] {
 }
 
 /** Renders the proposal as a PDF. */
-export async function renderAdjustmentProposalPdf(l: AdjustmentProposalLetter): Promise<Buffer> {
+export function renderAdjustmentProposalPdf(l: AdjustmentProposalLetter): Promise<Buffer> {
   const w = proposalWording;
-  const subject = w.subject(l);
-  const doc = newPdf({ title: subject, subject: `Reference ${l.reference}`, author: OFFICE.name });
-  letterhead(doc, [`Our reference: ${l.reference}`]);
-  letterOpening(doc, { ...l, subject });
-  const width = contentWidth(doc);
-  doc.text(w.opening(l), { width, lineGap: 1.5 });
-  const cols = (first: string) => [
-    { header: first, width: width - 3 * 95 },
-    { header: 'As filed', width: 95, align: 'right' as const, figures: true },
-    { header: 'As corrected', width: 95, align: 'right' as const, figures: true },
-    { header: 'Difference', width: 95, align: 'right' as const, figures: true },
-  ];
-  heading(doc, w.linesHeading);
-  table(doc, cols('Line'), lineRows(l));
-  heading(doc, w.figuresHeading);
-  const rows = figureRows(l);
-  table(doc, cols('Figure'), rows, { bold: (i) => l.figures.figures[i]?.key === 'tax' });
-  doc.moveDown(0.3);
-  doc.font(F.body).fontSize(9.5).text(w.rulesNote, { width });
-  doc.moveDown(0.6);
-  doc.font(F.bold).fontSize(10.5).text(w.effect(l), { width });
-  doc.font(F.body);
-  doc.moveDown(0.6);
-  callout(doc, `This is a proposal: please answer by ${longDate(l.answerBy)}`, w.proposal(l));
-  heading(doc, 'Your rights and how to disagree', 11.5);
-  letterClosing(doc, [l.rights, help, quote(l.reference), w.thanks], l.signedBy);
-  footers(doc, `${OFFICE.name} · ${OFFICE.phone} · Reference ${l.reference}`);
-  return pdfBytes(doc);
+  return renderTaxpayerLetter(l, w.subject(l), (doc) => {
+    const width = contentWidth(doc);
+    doc.text(w.opening(l), { width, lineGap: 1.5 });
+    const cols = (first: string) => [
+      { header: first, width: width - 3 * 95 },
+      { header: 'As filed', width: 95, align: 'right' as const, figures: true },
+      { header: 'As corrected', width: 95, align: 'right' as const, figures: true },
+      { header: 'Difference', width: 95, align: 'right' as const, figures: true },
+    ];
+    heading(doc, w.linesHeading);
+    table(doc, cols('Line'), lineRows(l));
+    heading(doc, w.figuresHeading);
+    table(doc, cols('Figure'), figureRows(l), { bold: (i) => l.figures.figures[i]?.key === 'tax' });
+    doc.moveDown(0.3);
+    doc.font(F.body).fontSize(9.5).text(w.rulesNote, { width });
+    doc.moveDown(0.6);
+    doc.font(F.bold).fontSize(10.5).text(w.effect(l), { width });
+    doc.font(F.body);
+    doc.moveDown(0.6);
+    callout(doc, `This is a proposal: please answer by ${longDate(l.answerBy)}`, w.proposal(l));
+    heading(doc, 'Your rights and how to disagree', 11.5);
+    letterClosing(doc, [l.rights, help, quoteReference(l.reference), w.thanks], l.signedBy);
+  });
 }
 
 // ---------------------------------------------------------------- mail
@@ -246,7 +216,7 @@ export async function renderAdjustmentProposalPdf(l: AdjustmentProposalLetter): 
  * opens the attachment knows what it says) and the letter attached. The caller adds `from`.
  */
 export function closingLetterMail(
-  l: LetterBase & { taxpayerName: string },
+  l: Pick<TaxpayerLetterBase, 'reference' | 'taxpayerName'>,
   subject: string,
   body: string[],
   signedBy: string | null,

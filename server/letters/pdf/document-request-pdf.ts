@@ -4,18 +4,21 @@
  * mentions scores, digit tests or anything that reads as suspicion (docs/design.md#cautions).
  */
 import { OFFICE, REPLY_FILE_WORDS, REPLY_MAX_FILE_BYTES, REPLY_MAX_FILES } from '../../../shared/letters';
-import { callout, contentWidth, F, footers, INK, letterClosing, letterhead, letterOpening, newPdf, numberedItems, pdfBytes, replyLinkBox } from './pdf-base';
+import {
+  callout,
+  contentWidth,
+  F,
+  INK,
+  letterClosing,
+  numberedItems,
+  quoteReference,
+  renderTaxpayerLetter,
+  replyLinkBox,
+  type TaxpayerLetterBase,
+} from './pdf-base';
 
 /** Everything the letter says. */
-export interface DocumentRequestLetter {
-  /** Our reference, e.g. "DR-3F2A9C1B", quoted back by the taxpayer. */
-  reference: string;
-  /** Date of the letter (YYYY-MM-DD). */
-  date: string;
-  taxpayerName: string;
-  postalAddress: string | null;
-  taxYear: number;
-  returnRef: string;
+export interface DocumentRequestLetter extends TaxpayerLetterBase {
   items: readonly string[];
   dueDate: string;
   /** The reply link as printed: the real one in the mailed copy, a masked one in the office copy. */
@@ -39,30 +42,21 @@ export const letterWording = {
 };
 
 /** Renders the letter as a PDF. */
-export async function renderDocumentRequestPdf(l: DocumentRequestLetter): Promise<Buffer> {
-  const subject = letterWording.subject(l);
-  const doc = newPdf({ title: subject, subject: `Reference ${l.reference}`, author: OFFICE.name });
-  letterhead(doc, [`Our reference: ${l.reference}`]);
-  letterOpening(doc, { ...l, subject });
-  doc.text(letterWording.opening(l), { width: contentWidth(doc), lineGap: 1.5 });
-  doc.moveDown(0.6);
-  callout(doc, 'This is a request for records, not a decision', letterWording.notADecision.replace(/^This is a request for records, not a decision\. /, ''));
+export function renderDocumentRequestPdf(l: DocumentRequestLetter): Promise<Buffer> {
+  return renderTaxpayerLetter(l, letterWording.subject(l), (doc) => {
+    doc.text(letterWording.opening(l), { width: contentWidth(doc), lineGap: 1.5 });
+    doc.moveDown(0.6);
+    callout(doc, 'This is a request for records, not a decision', letterWording.notADecision.replace(/^This is a request for records, not a decision\. /, ''));
 
-  doc.moveDown(0.3);
-  doc
-    .font(F.bold)
-    .fontSize(11)
-    .fillColor(INK)
-    .text('Please send us copies of:', doc.page.margins.left, doc.y, { width: contentWidth(doc) });
-  doc.moveDown(0.3);
-  numberedItems(doc, l.items);
-  replyLinkBox(doc, l.dueDate, letterWording.howToSend, l.replyUrl);
-  letterClosing(
-    doc,
-    [letterWording.missing, letterWording.help, `Please quote our reference ${l.reference} in any message.`, letterWording.thanks],
-    l.signedBy,
-  );
-
-  footers(doc, `${OFFICE.name} · ${OFFICE.phone} · Reference ${l.reference}`);
-  return pdfBytes(doc);
+    doc.moveDown(0.3);
+    doc
+      .font(F.bold)
+      .fontSize(11)
+      .fillColor(INK)
+      .text('Please send us copies of:', doc.page.margins.left, doc.y, { width: contentWidth(doc) });
+    doc.moveDown(0.3);
+    numberedItems(doc, l.items);
+    replyLinkBox(doc, l.dueDate, letterWording.howToSend, l.replyUrl);
+    letterClosing(doc, [letterWording.missing, letterWording.help, quoteReference(l.reference), letterWording.thanks], l.signedBy);
+  });
 }

@@ -314,6 +314,18 @@ export function letterhead(doc: Pdf, right: string[] = []): void {
   doc.font(F.body).fontSize(10.5).fillColor(INK);
 }
 
+/** What every letter to a taxpayer knows about its case. */
+export interface TaxpayerLetterBase {
+  /** Our reference, e.g. "DR-3F2A9C1B", quoted back by the taxpayer. */
+  reference: string;
+  /** Date of the letter (YYYY-MM-DD). */
+  date: string;
+  taxpayerName: string;
+  postalAddress: string | null;
+  taxYear: number;
+  returnRef: string;
+}
+
 /** What the top of a letter to a taxpayer says. */
 export interface LetterHead {
   taxpayerName: string;
@@ -322,6 +334,23 @@ export interface LetterHead {
   date: string;
   subject: string;
   returnRef: string;
+}
+
+/** The line that asks the taxpayer to quote our reference. */
+export const quoteReference = (reference: string) => `Please quote our reference ${reference} in any message.`;
+
+/**
+ * A letter to a taxpayer as a PDF: the frame every such letter shares (document info,
+ * letterhead with our reference, address, date, subject and "Dear …", the footers), with
+ * `body` writing what lies between.
+ */
+export function renderTaxpayerLetter(l: TaxpayerLetterBase, subject: string, body: (doc: Pdf) => void): Promise<Buffer> {
+  const doc = newPdf({ title: subject, subject: `Reference ${l.reference}`, author: OFFICE.name });
+  letterhead(doc, [`Our reference: ${l.reference}`]);
+  letterOpening(doc, { ...l, subject });
+  body(doc);
+  footers(doc, `${OFFICE.name} · ${OFFICE.phone} · Reference ${l.reference}`);
+  return pdfBytes(doc);
 }
 
 /**

@@ -8,20 +8,14 @@
  */
 import type { SendMailOptions } from 'nodemailer';
 import { longDate, OFFICE } from '../../../shared/letters';
-import { contentWidth, F, footers, letterClosing, letterhead, letterOpening, newPdf, numberedItems, pdfBytes, replyLinkBox } from './pdf-base';
+import { contentWidth, F, letterClosing, numberedItems, quoteReference, renderTaxpayerLetter, replyLinkBox, type TaxpayerLetterBase } from './pdf-base';
 
 /** Everything the reminder says. */
-export interface ReminderLetter {
-  reference: string;
+export interface ReminderLetter extends TaxpayerLetterBase {
   /** Reference of the first letter. */
   firstReference: string;
-  /** Date of the reminder and of the first letter (YYYY-MM-DD). */
-  date: string;
+  /** Date of the first letter (YYYY-MM-DD). */
   firstDate: string;
-  taxpayerName: string;
-  postalAddress: string | null;
-  taxYear: number;
-  returnRef: string;
   items: readonly string[];
   dueDate: string;
   /** The new reply link (the real one in the mailed copy, masked in the office copy). */
@@ -40,21 +34,17 @@ export const reminderWording = {
 };
 
 /** Renders the reminder as a PDF. */
-export async function renderReminderPdf(l: ReminderLetter): Promise<Buffer> {
-  const subject = reminderWording.subject(l);
-  const doc = newPdf({ title: subject, subject: `Reference ${l.reference}`, author: OFFICE.name });
-  letterhead(doc, [`Our reference: ${l.reference}`]);
-  letterOpening(doc, { ...l, subject });
-  const w = contentWidth(doc);
-  doc.text(reminderWording.opening(l), { width: w, lineGap: 1.5 });
-  doc.moveDown(0.6);
-  doc.font(F.bold).text(reminderWording.same, { width: w });
-  doc.moveDown(0.3);
-  numberedItems(doc, l.items);
-  replyLinkBox(doc, l.dueDate, reminderWording.link, l.replyUrl);
-  letterClosing(doc, [reminderWording.help, `Please quote our reference ${l.reference} in any message.`, reminderWording.thanks]);
-  footers(doc, `${OFFICE.name} · ${OFFICE.phone} · Reference ${l.reference}`);
-  return pdfBytes(doc);
+export function renderReminderPdf(l: ReminderLetter): Promise<Buffer> {
+  return renderTaxpayerLetter(l, reminderWording.subject(l), (doc) => {
+    const w = contentWidth(doc);
+    doc.text(reminderWording.opening(l), { width: w, lineGap: 1.5 });
+    doc.moveDown(0.6);
+    doc.font(F.bold).text(reminderWording.same, { width: w });
+    doc.moveDown(0.3);
+    numberedItems(doc, l.items);
+    replyLinkBox(doc, l.dueDate, reminderWording.link, l.replyUrl);
+    letterClosing(doc, [reminderWording.help, quoteReference(l.reference), reminderWording.thanks]);
+  });
 }
 
 /** The e-mail that carries the reminder (the caller adds `from`). */

@@ -26,6 +26,9 @@ export interface ReferenceTest {
   pValue: number;
 }
 
+type TestName = 'firstDigit' | 'secondDigit' | 'firstTwo' | 'lastTwo';
+const TEST_NAMES: readonly TestName[] = ['firstDigit', 'secondDigit', 'firstTwo', 'lastTwo'];
+
 function benfordFirst(): number[] {
   return Array.from({ length: 9 }, (_, i) => Math.log10(1 + 1 / (i + 1)));
 }
@@ -57,7 +60,7 @@ function figures(counts: number[], expected: number[]): ReferenceTest {
  * The four digit tests of whole-unit amounts: first digit of every non-zero amount; second
  * and first two of amounts >= 10; last two whole-unit digits of amounts >= 1,000.
  */
-export function referenceTests(amounts: readonly ReferenceAmount[]): Record<'firstDigit' | 'secondDigit' | 'firstTwo' | 'lastTwo', ReferenceTest> {
+export function referenceTests(amounts: readonly ReferenceAmount[]): Record<TestName, ReferenceTest> {
   const first = new Array<number>(9).fill(0);
   const second = new Array<number>(10).fill(0);
   const firstTwo = new Array<number>(90).fill(0);
@@ -78,6 +81,28 @@ export function referenceTests(amounts: readonly ReferenceAmount[]): Record<'fir
     firstTwo: figures(firstTwo, benfordFirstTwo()),
     lastTwo: figures(lastTwo, new Array<number>(100).fill(0.01)),
   };
+}
+
+/** The four tests' figures as a profile JSON carries them (shared/digits/schema.ts). */
+type ProfileFigures = { count: number } & Record<
+  TestName,
+  { n: number; counts: number[]; mad: number | null; chiSquare: number | null; pValue: number | null }
+>;
+
+/**
+ * Expects a digit profile of `amounts` to agree with {@link referenceTests}: the count, each
+ * test's n and counts exactly, MAD to 12 decimals, chi-square and its p-value to 8.
+ */
+export function expectAgreement(p: ProfileFigures, amounts: readonly ReferenceAmount[]): void {
+  const ref = referenceTests(amounts);
+  expect(p.count).toBe(amounts.length);
+  for (const t of TEST_NAMES) {
+    expect(p[t].counts).toEqual(ref[t].counts);
+    expect(p[t].n).toBe(ref[t].n);
+    expect(p[t].mad).toBeCloseTo(ref[t].mad, 12);
+    expect(p[t].chiSquare).toBeCloseTo(ref[t].chiSquare, 8);
+    expect(p[t].pValue).toBeCloseTo(ref[t].pValue, 8);
+  }
 }
 
 /** 2^0 .. 2^k: integers running to hundreds of digits (2^1000 has 302). */
