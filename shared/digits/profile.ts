@@ -415,7 +415,11 @@ function distortionFactor(counter: DigitCounter): DistortionFactor {
  * and list absolute values in ascending order (second-order test, Nigrini & Miller 2009).
  * Zeros have no key and are left out of both.
  */
-function orderedScan(sorted: Uint32Array | Float64Array, top: number, wide: readonly WideAmount[]): { duplicates: DuplicateAmount[]; secondOrder: SecondOrder } {
+function orderedScan(
+  sorted: Uint32Array | Float64Array,
+  top: number,
+  wide: readonly WideAmount[],
+): { duplicates: DuplicateAmount[]; secondOrder: SecondOrder } {
   // Imported bindings as locals: module loaders (tsx, jest) compile them to getter calls.
   const digitCount = decimalDigitCount;
   const pow10 = POW10;
