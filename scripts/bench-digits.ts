@@ -8,7 +8,7 @@
  * path (one reused DigitCounter, 30 amounts a return). One core: nothing here runs in
  * parallel. Each figure is the best of 3 runs, so start-up and JIT warm-up are left out.
  *
- * Parse-only for text is parseAmountColumn, the any-size reader profileAmounts uses (ordinary
+ * Parse-only for text is parseAmountColumn, whose reading loop profileAmounts runs a block at a time (ordinary
  * amounts on the cents fast path); the strict cents-only parseAmounts is shown beside it. A
  * last phase times amounts too large for cents (integers of 20 to 300 digits and scientific
  * notation), which are read from their digits (shared/digits/wide.ts).

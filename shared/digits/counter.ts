@@ -173,15 +173,19 @@ export class DigitCounter {
   }
 
   /**
-   * Count amounts and, in the same pass, write the sort key 2|c| + (c < 0 ? 1 : 0) of every
-   * non-zero amount into `keys` (for the duplication and second-order tests, profile.ts).
+   * Count amounts[from..to) and, in the same pass, write the sort key 2|c| + (c < 0 ? 1 : 0)
+   * of every non-zero amount into `keys` from index 0 (for the duplication and second-order
+   * tests, profile.ts). `keys` may be `cents` itself: key j is written after amount i >= j
+   * is read, so a block can be turned into its keys in place.
    *
    * @param cents signed integer cents
-   * @param keys receives the keys in input order, one per non-zero amount; length >= cents.length
+   * @param keys receives the keys in input order, one per non-zero amount; length >= to - from
+   * @param from first index (default 0)
+   * @param to end index, exclusive (default cents.length)
    * @returns the largest key written (0 if none)
    */
-  addAllWithKeys(cents: ArrayLike<number>, keys: Float64Array): number {
-    return countRange(this, cents, 0, cents.length, keys);
+  addAllWithKeys(cents: ArrayLike<number>, keys: Float64Array, from = 0, to: number = cents.length): number {
+    return countRange(this, cents, from, to, keys);
   }
 
   /** @internal Add to the zero count (countRange only). */

@@ -159,17 +159,51 @@ export interface ParseColumnOptions {
  * @throws AmountParseError at the first value that is not an amount
  */
 export function parseAmountColumn(values: ArrayLike<unknown>, options: ParseColumnOptions = {}): AmountColumn {
-  const positionOf = options.positionOf ?? ((i: number) => `index ${i}`);
+  const positionOf = options.positionOf ?? defaultPosition;
   const n = values.length;
   const out = new Float64Array(n);
   const wide: WideAmount[] = [];
+  const j = readAmountsInto(values, 0, n, out, wide, positionOf);
+  return { cents: j === n ? out : out.subarray(0, j), wide };
+}
+
+/** `index ${i}`: the position of a value of a list in error messages. */
+export function defaultPosition(i: number): string {
+  return `index ${i}`;
+}
+
+/**
+ * The reading loop of {@link parseAmountColumn}, for a block of a list: the profile reads
+ * a long list a block at a time, so that no array of every amount's cents is needed.
+ *
+ * @param values numbers or decimal strings (plain or scientific notation)
+ * @param from first index
+ * @param to end index, exclusive
+ * @param out receives the cents of the ordinary amounts, in order, from index 0
+ * @param wide receives the amounts too large for cents, in order
+ * @param positionOf names value i in error messages
+ * @returns how many cents were written to `out`
+ * @throws AmountParseError at the first value that is not an amount
+ */
+export function readAmountsInto(
+  values: ArrayLike<unknown>,
+  from: number,
+  to: number,
+  out: Float64Array,
+  wide: WideAmount[],
+  positionOf: (index: number) => string,
+): number {
+  // Imported bindings as locals: module loaders (tsx, jest) compile them to getter calls.
+  const decimalCents = centsFromDecimal;
+  const maxCents = MAX_ABS_CENTS;
+  const limit = AMOUNT_LIMIT;
   let j = 0;
-  for (let i = 0; i < n; i++) {
+  for (let i = from; i < to; i++) {
     const v = values[i];
     // Inline fast path for ordinary numbers and decimal strings (as parse.ts parseAmounts).
     if (typeof v === 'number') {
       const a = abs(v);
-      if (a < AMOUNT_LIMIT) {
+      if (a < limit) {
         const c = round(a * 100);
         if (c / 100 === a) {
           out[j++] = v < 0 ? -c : c;
@@ -177,7 +211,7 @@ export function parseAmountColumn(values: ArrayLike<unknown>, options: ParseColu
         }
       }
     } else if (typeof v === 'string') {
-      const c = centsFromDecimal(v, MAX_ABS_CENTS);
+      const c = decimalCents(v, maxCents);
       if (c === c) {
         out[j++] = c;
         continue;
@@ -187,7 +221,7 @@ export function parseAmountColumn(values: ArrayLike<unknown>, options: ParseColu
     if (typeof a === 'number') out[j++] = a;
     else wide.push(a);
   }
-  return { cents: j === n ? out : out.subarray(0, j), wide };
+  return j;
 }
 
 /** One problem found by {@link findAmountErrors}. */

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { mulberry32 } from '../../../shared/digits';
-import { sortIntegerKeys } from '../../../shared/digits/sort';
+import { IntegerKeyList, sortIntegerKeys } from '../../../shared/digits/sort';
 
 /** The reference: the native numeric TypedArray sort. */
 function sameAsNative(keys: Float64Array, knownMax?: number): boolean {
@@ -37,5 +37,29 @@ describe('radix sort of integer keys (against the native sort)', () => {
       ),
       { numRuns: 20 },
     );
+  });
+});
+
+describe('keys gathered in blocks (IntegerKeyList)', () => {
+  it('keep 32-bit keys until a larger one comes, then sort like the native sort', () => {
+    const keys = randomKeys(11, 30_000, 2 ** 32);
+    keys[25_000] = 2 ** 40 + 3; // the first key of 2^32 or more, in the last block
+    const list = new IntegerKeyList(keys.length);
+    for (let from = 0; from < keys.length; from += 4096) {
+      const block = keys.slice(from, from + 4096);
+      list.append(block, block.length, Math.max(...block));
+    }
+    const got = list.sorted();
+    expect(got).toBeInstanceOf(Float64Array);
+    expect(Array.from(got)).toEqual(Array.from(keys.slice().sort()));
+  });
+
+  it('stay 32-bit when every key fits', () => {
+    const keys = randomKeys(12, 20_000, 2 ** 32);
+    const list = new IntegerKeyList(keys.length);
+    list.append(keys, keys.length, Math.max(...keys));
+    const got = list.sorted();
+    expect(got).toBeInstanceOf(Uint32Array);
+    expect(Array.from(got)).toEqual(Array.from(keys.slice().sort()));
   });
 });
