@@ -92,12 +92,21 @@ export function createApp(deps: AppDeps): Express {
 /**
  * Serves the exported web app and, for any other GET, its index.html (single-page
  * output: the router runs in the browser). Express 5 has no bare `*`, hence app.use.
+ * Each screen's code is a file of its own under /_expo/static/js/, fetched on the first
+ * visit (docs/design.md#web-bundle); the CSP's default 'self' already allows those scripts.
  */
 function serveWebBuild(app: Express, dist: string): void {
   const index = path.join(dist, 'index.html');
   app.use(express.static(dist, { index: false, maxAge: '1h', setHeaders: noCacheForHtml }));
   app.use((req, res, next) => {
     if (req.method !== 'GET' && req.method !== 'HEAD') return next();
+    // A script the build does not hold (a screen's chunk named by an older build still open in
+    // a tab) is a 404, not the page: HTML in its place would fail as a script with no clear
+    // reason, while a 404 lets the router's error screen say the screen could not be loaded.
+    if (req.path.startsWith('/_expo/')) {
+      res.status(404).type('text/plain').send(`No such file in the web build: ${req.path}. Reload the page to get the current build.`);
+      return;
+    }
     if (!fs.existsSync(index)) {
       res.status(503).type('text/plain').send('The web app has not been built yet. Run `npm start` (it builds it) or `npm run build:web`.');
       return;

@@ -9,7 +9,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { projectRoot } from './local-services';
 
-const SOURCES = ['app', 'components', 'hooks', 'shared', 'assets', 'fonts', 'app.json', 'package.json', 'babel.config.js'];
+const SOURCES = ['app', 'components', 'hooks', 'shared', 'web', 'assets', 'fonts', 'app.json', 'package.json', 'babel.config.js', 'metro.config.js'];
 export const distDir = path.join(projectRoot, 'dist');
 const stamp = path.join(distDir, 'index.html');
 /** Where builds are made before they replace dist/ (gitignored; the same file system, so a rename moves them). */

@@ -4,7 +4,9 @@
  * person can read, and (where it can) an estimate of the income an adjustment could add.
  * A factor that does not apply says so with strength 0, so the breakdown explains every line.
  */
-import { binomialUpperTail } from '../digits';
+// From the one file, not the engine's index: the scoring settings (and so every screen) import
+// this module, and the index would bring the whole digit engine into the web bundle.
+import { binomialUpperTail } from '../digits/stats';
 import { formatP, poissonBinomialUpperTail, poissonUpperTail, simes, strengthFromP } from './calibration';
 import { LINE_CODE_DEFS, STATEMENT_KIND_LINE, type CentsLine, type LineCode, type ReturnTotals, type StatementKind } from '../returns/line-codes';
 import { clamp01, money, pct } from './format';

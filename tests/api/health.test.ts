@@ -1,3 +1,5 @@
+import fs from 'node:fs';
+import path from 'node:path';
 import { Client } from 'pg';
 import request from 'supertest';
 import { createTestContext, type TestContext } from '../helpers/test-app';
@@ -96,6 +98,23 @@ describe('API fallbacks', () => {
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toMatch(/text\/html/);
     expect(res.text).toContain('<div id="root">');
+  });
+
+  it("serves each screen's own script from the build, and a 404 (not the page) for a script it does not hold", async () => {
+    // Async routes (docs/design.md#web-bundle): besides the scripts index.html names, the build
+    // holds one file per screen, fetched on the first visit to that screen.
+    const jsDir = path.join(ctx.config.WEB_DIST, '_expo', 'static', 'js', 'web');
+    const html = fs.readFileSync(path.join(ctx.config.WEB_DIST, 'index.html'), 'utf8');
+    const screenChunks = fs.readdirSync(jsDir).filter((f) => f.endsWith('.js') && !html.includes(`/${f}`));
+    expect(screenChunks.length).toBeGreaterThan(5);
+    const chunk = await request(ctx.app).get(`/_expo/static/js/web/${encodeURIComponent(screenChunks[0])}`);
+    expect(chunk.status).toBe(200);
+    expect(chunk.headers['content-type']).toMatch(/javascript/);
+
+    const missing = await request(ctx.app).get('/_expo/static/js/web/queue-0000000000000000.js');
+    expect(missing.status).toBe(404);
+    expect(missing.headers['content-type']).toMatch(/text\/plain/);
+    expect(missing.text).toContain('/_expo/static/js/web/queue-0000000000000000.js');
   });
 
   it('sends security headers', async () => {

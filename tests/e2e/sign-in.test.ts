@@ -50,6 +50,40 @@ describe('signing in as each demo role (browser)', () => {
     });
   }
 
+  it("fetches a screen's own script on its first visit, from the server and within its Content-Security-Policy", async () => {
+    // Async routes (docs/design.md#web-bundle): the page loads the shared scripts, and each
+    // screen's code arrives when the screen is first opened, without a page load.
+    const page = await browser.newPage({ viewport: VIEWPORTS.wide });
+    const problems: string[] = [];
+    page.on('pageerror', (e) => problems.push(e.message));
+    // Chromium reports a blocked script on the console ("Refused to load the script ... because
+    // it violates the following Content Security Policy directive"); failed API calls such as
+    // the signed-out /api/auth/me are reported there too and are expected.
+    page.on('console', (m) => {
+      if (/Content Security Policy|Refused to/i.test(m.text())) problems.push(m.text());
+    });
+    const scripts: { path: string; status: number }[] = [];
+    page.on('response', (r) => {
+      const { pathname } = new URL(r.url());
+      if (pathname.startsWith('/_expo/static/js/')) scripts.push({ path: pathname, status: r.status() });
+    });
+    await signInThroughUi(page, s.server.baseUrl, 'admin', DEMO_PASSWORD);
+    await page.getByTestId('user-examiner2').waitFor();
+    const isAccessLog = (p: string) => /\/access-log-[0-9a-f]+\.js$/.test(p);
+    if (scripts.some((x) => isAccessLog(x.path)))
+      throw new Error(`the access log's script was loaded before its screen was opened: ${JSON.stringify(scripts)}`);
+    const pageLoads = await page.evaluate(() => performance.getEntriesByType('navigation').length);
+
+    await page.getByRole('navigation').getByRole('link', { name: 'Access log', exact: true }).click();
+    await page.getByTestId('log-filter-user').waitFor();
+    const fetched = scripts.filter((x) => isAccessLog(x.path));
+    if (fetched.length !== 1 || fetched[0].status !== 200) throw new Error(`expected the access log's script once with 200, got ${JSON.stringify(scripts)}`);
+    // The same document: the screen came by client-side navigation, not a page load.
+    if ((await page.evaluate(() => performance.getEntriesByType('navigation').length)) !== pageLoads) throw new Error('the page was reloaded');
+    if (problems.length > 0) throw new Error(`errors in the page: ${problems.join(' | ')}`);
+    await page.close();
+  });
+
   it('lets the administrator see the accounts and the access log with the sign-ins', async () => {
     for (const [name, viewport] of Object.entries(VIEWPORTS)) {
       const page = await browser.newPage({ viewport });

@@ -17,9 +17,9 @@ import {
   largestDeviations,
   pValueText as pv,
   percentOrDash as pct,
-  type DigitResultJson,
-  type DigitTestName,
-} from '../../../shared/digits';
+} from '../../../shared/digits/words';
+import type { DigitTestName } from '../../../shared/digits/expected';
+import type { DigitResultJson } from '../../../shared/digits/schema';
 import { space } from '../../theme';
 import { Button } from '../../ui/button';
 import { Card } from '../../ui/card';

@@ -5,7 +5,8 @@
  * others, whose 10 to 100 groups need thinner bars and sparser labels.
  */
 import Svg, { Polyline, Rect, Text as SvgText } from 'react-native-svg';
-import { binLabel, type DigitTestName } from '../../../shared/digits';
+import type { DigitTestName } from '../../../shared/digits/expected';
+import { binLabel } from '../../../shared/digits/words';
 import { colours, fonts } from '../../theme';
 import { ChartFrame, ChartGrid, LegendItem } from '../../ui/chart-parts';
 

@@ -5,7 +5,7 @@
  */
 import { API_BASE, getCsrfToken } from '../../../hooks/api-client';
 import { CSRF_HEADER } from '../../../shared/auth';
-import { digitResultSchema, type DigitResultJson } from '../../../shared/digits';
+import { digitResultSchema, type DigitResultJson } from '../../../shared/digits/schema';
 
 /** A file picked on the web (expo-document-picker gives the Blob). */
 export interface PickedAmountsFile {

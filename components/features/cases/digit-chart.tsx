@@ -5,7 +5,7 @@
  * shared chart frame (components/ui/chart-parts.tsx), which measures the width it has.
  */
 import Svg, { Circle, Line, Polyline, Rect, Text as SvgText } from 'react-native-svg';
-import { FIRST_DIGIT_EXPECTED } from '../../../shared/digits';
+import { FIRST_DIGIT_EXPECTED } from '../../../shared/digits/expected';
 import { colours, fonts } from '../../theme';
 import { ChartFrame, ChartGrid, LegendItem } from '../../ui/chart-parts';
 import { Txt } from '../../ui/text';
