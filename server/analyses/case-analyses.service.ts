@@ -103,7 +103,14 @@ export async function saveCaseAnalysis(ds: DataSource, audit: StaffAudit, caseId
   const { uploadId, pool } = req.source;
   if (pool) return savePoolAnalysis(ds, audit, caseId, pool);
   return ds.transaction(async (m) => {
-    const { c, file, read } = await readReplyColumn(m, audit, caseId, { source: { uploadId: uploadId! }, column: req.column }, req.by ?? null, 'digit analysis');
+    const { c, file, read } = await readReplyColumn(
+      m,
+      audit,
+      caseId,
+      { source: { uploadId: uploadId! }, column: req.column },
+      req.by ?? null,
+      'digit analysis',
+    );
     const result = digitResultSchema.parse(JSON.parse(JSON.stringify(digitResult(read, read.groups))));
     const row = await insertCaseAnalysis(m, {
       caseId,

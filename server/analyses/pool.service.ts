@@ -17,15 +17,7 @@ import { taxpayerLabelOf } from '../cases/case-workflow';
 import { officeDate } from '../clock';
 import type { Db } from '../db/db';
 import { HttpError } from '../http/errors';
-import {
-  countPoolAmounts,
-  findPoolBatch,
-  findPoolBatches,
-  findPoolPreparers,
-  findPreparer,
-  findTaxpayerName,
-  readPoolAmounts,
-} from './pool.repository';
+import { countPoolAmounts, findPoolBatch, findPoolBatches, findPoolPreparers, findPreparer, findTaxpayerName, readPoolAmounts } from './pool.repository';
 
 /** A pool as read: its amounts, what was read, its description and the access-log line. */
 export interface PoolRead {

@@ -92,6 +92,8 @@ export const COMPONENTS = {
   DigitProfile: digitProfileSchema,
   SavedAnalysis: SavedAnalysisSchema,
   SavedAnalysisList: SavedAnalysisListSchema,
+  PoolAnalysis: PoolAnalysisSchema,
+  PoolChoices: PoolChoicesSchema,
   Reconciliation: ReconciliationSchema,
   ProfileVersion: ProfileVersionSchema,
   ProfileList: ProfileListSchema,

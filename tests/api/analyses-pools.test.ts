@@ -49,7 +49,10 @@ describe('digit analysis pools', () => {
   });
 
   async function amountsOf(sql: string, params: unknown[]): Promise<string[]> {
-    const rows: { a: string }[] = await ctx.dataSource.query(`SELECT l.amount::text AS a FROM line_item l JOIN tax_return r ON r.id = l.return_id WHERE ${sql}`, params);
+    const rows: { a: string }[] = await ctx.dataSource.query(
+      `SELECT l.amount::text AS a FROM line_item l JOIN tax_return r ON r.id = l.return_id WHERE ${sql}`,
+      params,
+    );
     return rows.map((r) => r.a);
   }
 
@@ -93,7 +96,13 @@ describe('digit analysis pools', () => {
       [p.id],
     );
     expect(log).toEqual([
-      { action: 'view', record_type: 'line_item', record_id: p.id, route: 'POST /api/analyses/digits/pool', detail: `digit analysis pool: ${whole.description}` },
+      {
+        action: 'view',
+        record_type: 'line_item',
+        record_id: p.id,
+        route: 'POST /api/analyses/digits/pool',
+        detail: `digit analysis pool: ${whole.description}`,
+      },
       { action: 'view', record_type: 'line_item', record_id: p.id, route: 'POST /api/analyses/digits/pool', detail: `digit analysis pool: ${one.description}` },
     ]);
   });
@@ -130,7 +139,11 @@ describe('digit analysis pools', () => {
   });
 
   it('bad pools: 422 with the path of each mistake, 404 for what does not exist, nothing logged', async () => {
-    const send = (body: unknown) => examiner.agent.post('/api/analyses/digits/pool').set('X-CSRF-Token', examiner.csrf).send(body as object);
+    const send = (body: unknown) =>
+      examiner.agent
+        .post('/api/analyses/digits/pool')
+        .set('X-CSRF-Token', examiner.csrf)
+        .send(body as object);
     const before = Number((await ctx.dataSource.query(`SELECT count(*) AS n FROM access_log WHERE record_type = 'line_item'`))[0].n);
     const both = await send({ pool: { kind: 'lineCode', lineCode: 'inc.wages', batchId: batch.batchId, taxYear: 2024 } });
     expect(both.status).toBe(422);
@@ -255,8 +268,12 @@ describe('digit analysis pools', () => {
     // A reply file's name is the taxpayer's: one starting with "=" must not become a formula.
     const { renderWorkingPaperXlsx } = await import('../../server/analyses/working-paper-xlsx');
     const saved = SavedAnalysisSchema.parse(
-      (await examiner.agent.post(`/api/cases/${caseId}/analyses`).set('X-CSRF-Token', examiner.csrf).send({ source: { pool: { kind: 'taxpayer', taxpayerId } } }))
-        .body,
+      (
+        await examiner.agent
+          .post(`/api/cases/${caseId}/analyses`)
+          .set('X-CSRF-Token', examiner.csrf)
+          .send({ source: { pool: { kind: 'taxpayer', taxpayerId } } })
+      ).body,
     );
     const bytes = await renderWorkingPaperXlsx(
       {
