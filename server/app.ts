@@ -68,7 +68,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(authRoutes({ dataSource, throttle, passport }));
   api.use(userRoutes({ dataSource, throttle }));
   api.use(accessLogRoutes({ dataSource }));
-  api.use(analysesRoutes());
+  api.use(analysesRoutes({ dataSource }));
   api.use(caseAnalysesRoutes({ dataSource }));
   api.use(scoringProfileRoutes({ dataSource, boss }));
   api.use(batchRoutes({ config, dataSource, boss }));

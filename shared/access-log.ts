@@ -26,6 +26,8 @@ export const ACCESS_RECORD_TYPES = [
   'saved_view',
   /** The access log itself: its export is logged (issue 14). */
   'access-log',
+  /** Amounts of returns read as a pool for a digit analysis (a preparer's, a line code's, a taxpayer's years). */
+  'line_item',
 ] as const;
 export const AccessRecordTypeSchema = z.enum(ACCESS_RECORD_TYPES);
 export type AccessRecordType = z.infer<typeof AccessRecordTypeSchema>;
@@ -165,6 +167,7 @@ export function describeAccess(g: AccessGroup): string {
       if (g.route === 'GET /api/cases') return `Looked through the queue (${g.cases} case${g.cases === 1 ? '' : 's'} shown)`;
       if (g.route.startsWith('GET /api/programme')) return `Opened the random review list (${g.cases} case${g.cases === 1 ? '' : 's'})`;
       if (g.recordType === 'filing_batch') return "Read a rejected batch's report";
+      if (g.recordType === 'line_item') return `Read amounts of returns for a digit analysis${plus}`;
       if (g.recordType === 'document_request')
         return g.anonymous ? `The taxpayer opened the reply link of ${caseName}` : `Looked at the request of ${caseName}`;
       const parts = [...new Set(g.routes.map((r) => CASE_PARTS.find(([re]) => re.test(r))?.[1]).filter((p): p is string => !!p))];

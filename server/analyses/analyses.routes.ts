@@ -1,10 +1,13 @@
 import multer from 'multer';
-import { DigitAnalysisRequestSchema } from '../../shared/analyses';
+import { DigitAnalysisRequestSchema, PoolAnalysisRequestSchema } from '../../shared/analyses';
+import { staffAuditOf } from '../access-log/audit-context';
+import type { AppDeps } from '../app-deps';
 import { allow, secureRouter } from '../auth/access';
 import { removeSpooled, spoolStorage } from '../batches/intake/upload-spool';
 import { HttpError } from '../http/errors';
 import { validate } from '../http/validate';
 import { analyseAmounts, analyseFile } from './analyses.service';
+import { analysePool, listPoolChoices } from './pool.service';
 
 /** Largest file for an ad-hoc digit analysis. */
 const MAX_FILE_BYTES = 50 * 1024 * 1024;
@@ -13,11 +16,23 @@ const MAX_FILE_BYTES = 50 * 1024 * 1024;
  * `POST /api/analyses/digits`: JSON {amounts} or multipart `file` (+ optional `column`, and
  * `by`: a column to split by, which adds `split` to the answer).
  * The file waits in the upload spool (server/batches/intake/upload-spool.ts) and is read in
- * a worker thread under reading caps; it is removed when the answer is sent. It needs none of
- * the application's dependencies: the analysis reads the file and stores nothing.
+ * a worker thread under reading caps; it is removed when the answer is sent. The analysis
+ * stores nothing.
+ *
+ * `POST /api/analyses/digits/pool` {pool}: the same analysis of a pool of the returns on file
+ * (server/analyses/pool.service.ts), logged as a read; `GET /api/analyses/pools` lists what
+ * the pool pickers offer (preparers, batches, tax years).
  */
-export function analysesRoutes() {
+export function analysesRoutes({ dataSource: ds }: Pick<AppDeps, 'dataSource'>) {
   const r = secureRouter();
+  r.post('/analyses/digits/pool', allow('analyse'), validate(PoolAnalysisRequestSchema), async (req, res) => {
+    res.setHeader('Cache-Control', 'no-store');
+    res.json(await analysePool(ds, staffAuditOf(req), req.body.pool));
+  });
+  r.get('/analyses/pools', allow('analyse'), async (_req, res) => {
+    res.setHeader('Cache-Control', 'no-store');
+    res.json(await listPoolChoices(ds));
+  });
   const upload = multer({ storage: spoolStorage(), limits: { fileSize: MAX_FILE_BYTES, files: 1, fields: 5 } }).single('file');
   r.post(
     '/analyses/digits',

@@ -1,15 +1,16 @@
 /**
  * Digit analyses kept with a case as working papers (issue 15): run on a file the taxpayer
  * sent through a reply link, stored with the result JSON of `npm run digits -- --json`, never
- * changed afterwards, and exported as a PDF working paper. Every save and read is in the
- * access log, like any taxpayer data.
+ * changed afterwards, and exported as a PDF or XLSX working paper; or run on a pool of the
+ * returns on file (server/analyses/pool.service.ts). Every save and read is in the access
+ * log, like any taxpayer data.
  */
 import fs from 'node:fs';
 import type { DataSource, EntityManager } from 'typeorm';
 import { digitResult, digitResultSchema, type DigitResultJson } from '../../shared/digits';
 import {
   dataFileEnding,
-  type AnalysisSource,
+  type AnalysisPool,
   type Reconciliation,
   type ReconciliationRequest,
   type SaveAnalysisRequest,
@@ -25,6 +26,7 @@ import { now } from '../clock';
 import { isUuid } from '../../shared/ids';
 import { HttpError } from '../http/errors';
 import { readColumn } from './analyses.service';
+import { readPool } from './pool.service';
 import {
   findCaseAnalyses,
   findCaseAnalysis,
@@ -33,7 +35,8 @@ import {
   insertCaseAnalysis,
   type CaseAnalysisRow,
 } from './case-analyses.repository';
-import { renderWorkingPaperPdf } from './working-paper-pdf';
+import { renderWorkingPaperPdf, type WorkingPaper } from './working-paper-pdf';
+import { renderWorkingPaperXlsx } from './working-paper-xlsx';
 
 function toDto(r: CaseAnalysisRow): SavedAnalysis {
   return {
@@ -60,7 +63,7 @@ async function readReplyColumn(
   m: EntityManager,
   audit: StaffAudit,
   caseId: string,
-  req: { source: AnalysisSource; column?: string | null },
+  req: { source: { uploadId: string }; column?: string | null },
   by: string | null,
   purpose: string,
 ) {
@@ -97,8 +100,17 @@ async function logCaseAccess(m: EntityManager, audit: StaffAudit, c: ExamCase, a
  *   422 (a file that holds no data, a missing column, a value that is not an amount)
  */
 export async function saveCaseAnalysis(ds: DataSource, audit: StaffAudit, caseId: string, req: SaveAnalysisRequest): Promise<SavedAnalysis> {
+  const { uploadId, pool } = req.source;
+  if (pool) return savePoolAnalysis(ds, audit, caseId, pool);
   return ds.transaction(async (m) => {
-    const { c, file, read } = await readReplyColumn(m, audit, caseId, req, req.by ?? null, 'digit analysis');
+    const { c, file, read } = await readReplyColumn(
+      m,
+      audit,
+      caseId,
+      { source: { uploadId: uploadId! }, column: req.column },
+      req.by ?? null,
+      'digit analysis',
+    );
     const result = digitResultSchema.parse(JSON.parse(JSON.stringify(digitResult(read, read.groups))));
     const row = await insertCaseAnalysis(m, {
       caseId,
@@ -118,6 +130,38 @@ export async function saveCaseAnalysis(ds: DataSource, audit: StaffAudit, caseId
   });
 }
 
+/**
+ * Runs the digit analysis of a pool of the returns on file and keeps it with the case: the
+ * pool and its description (with the count of amounts) stand where a file's name and hash
+ * would. Two access-log lines: the pool's amounts read, and the case changed.
+ * @throws HttpError 404 (no such case, or what the pool names), 403 (not the case's examiner),
+ *   413 (a pool too large), 422 (a pool without amounts)
+ */
+async function savePoolAnalysis(ds: DataSource, audit: StaffAudit, caseId: string, pool: AnalysisPool): Promise<SavedAnalysis> {
+  return ds.transaction(async (m) => {
+    const c = await lockCase(m, caseId);
+    assertMayAct(audit.actor, c);
+    const p = await readPool(m, pool);
+    const result = digitResultSchema.parse(JSON.parse(JSON.stringify(digitResult(p.column))));
+    const row = await insertCaseAnalysis(m, {
+      caseId,
+      createdBy: audit.actor.id,
+      createdAt: now(),
+      source: { pool },
+      sourceLabel: p.description,
+      fileName: null,
+      sha256: null,
+      amountColumn: null,
+      splitColumn: null,
+      what: p.what,
+      result,
+    });
+    await recordAccess(m, audit, p.event);
+    await logCaseAccess(m, audit, c, 'change', `digit analysis ${row.id} saved (${p.description})`);
+    return toDto(row);
+  });
+}
+
 /** The working papers of a case, logged as a read of the case's data. */
 export async function listCaseAnalyses(ds: DataSource, audit: StaffAudit, caseId: string): Promise<SavedAnalysis[]> {
   return ds.transaction(async (m) => {
@@ -128,15 +172,24 @@ export async function listCaseAnalyses(ds: DataSource, audit: StaffAudit, caseId
   });
 }
 
-/** One working paper as a PDF, logged. */
-export async function caseAnalysisPdf(ds: DataSource, audit: StaffAudit, caseId: string, analysisId: string): Promise<{ fileName: string; pdf: Buffer }> {
+/**
+ * One working paper as a PDF or an XLSX workbook, logged as an export of the case's data.
+ * @throws HttpError 404 (no such case, or no such analysis on it)
+ */
+export async function caseAnalysisPaper(
+  ds: DataSource,
+  audit: StaffAudit,
+  caseId: string,
+  analysisId: string,
+  format: 'pdf' | 'xlsx',
+): Promise<{ fileName: string; bytes: Buffer }> {
   return ds.transaction(async (m) => {
     const c = await lockCase(m, caseId);
     const row = isUuid(analysisId) ? await findCaseAnalysis(m, caseId, analysisId) : null;
     if (!row) throw new HttpError(404, 'No such analysis on this case.');
-    await logCaseAccess(m, audit, c, 'export', `digit analysis ${row.id} working paper`);
+    await logCaseAccess(m, audit, c, 'export', `digit analysis ${row.id} working paper${format === 'xlsx' ? ' (XLSX)' : ''}`);
     const result = row.result as DigitResultJson;
-    const pdf = await renderWorkingPaperPdf({
+    const wp: WorkingPaper = {
       caseRef: `Case ${c.id}`,
       sourceLabel: row.sourceLabel,
       fileName: row.fileName,
@@ -146,8 +199,9 @@ export async function caseAnalysisPdf(ds: DataSource, audit: StaffAudit, caseId:
       ranAt: row.createdAt,
       profile: result as never,
       split: result.split,
-    });
-    return { fileName: `working-paper-${row.createdAt.toISOString().slice(0, 10)}-${row.id.slice(0, 8)}.pdf`, pdf };
+    };
+    const bytes = format === 'pdf' ? await renderWorkingPaperPdf(wp) : await renderWorkingPaperXlsx(wp, result);
+    return { fileName: `working-paper-${row.createdAt.toISOString().slice(0, 10)}-${row.id.slice(0, 8)}.${format}`, bytes };
   });
 }
 

@@ -10,6 +10,9 @@
 import { z } from 'zod';
 import {
   DigitAnalysisRequestSchema,
+  PoolAnalysisRequestSchema,
+  PoolAnalysisSchema,
+  PoolChoicesSchema,
   ReconciliationRequestSchema,
   ReconciliationSchema,
   SaveAnalysisRequestSchema,
@@ -89,6 +92,8 @@ export const COMPONENTS = {
   DigitProfile: digitProfileSchema,
   SavedAnalysis: SavedAnalysisSchema,
   SavedAnalysisList: SavedAnalysisListSchema,
+  PoolAnalysis: PoolAnalysisSchema,
+  PoolChoices: PoolChoicesSchema,
   Reconciliation: ReconciliationSchema,
   ProfileVersion: ProfileVersionSchema,
   ProfileList: ProfileListSchema,
@@ -319,6 +324,28 @@ export const API_ROUTES: readonly ApiRoute[] = [
     },
     responses: { 200: json(digitProfileSchema, 'The digit profile.'), 413: error('The file is over the size or reading limit.') },
   },
+  {
+    method: 'post',
+    path: '/api/analyses/digits/pool',
+    operationId: 'analysePool',
+    tag: 'analyses',
+    summary: "Digit analysis of a pool of the returns on file: one preparer's returns, one line code in a batch or tax year, one taxpayer's years",
+    description: 'Kept nowhere; the read of the amounts is in the access log.',
+    body: PoolAnalysisRequestSchema,
+    responses: {
+      200: json(PoolAnalysisSchema, 'The pool in words with its count of amounts, and the result.'),
+      404: error('No such preparer, batch or taxpayer.'),
+      413: error('The pool holds more amounts than one analysis reads; the message says how to narrow it.'),
+    },
+  },
+  {
+    method: 'get',
+    path: '/api/analyses/pools',
+    operationId: 'listPoolChoices',
+    tag: 'analyses',
+    summary: 'What the pool pickers offer: preparers, batches with their tax years, and the tax years on file',
+    responses: { 200: json(PoolChoicesSchema, 'The choices.') },
+  },
 
   // server/analyses/case-analyses.routes.ts
   {
@@ -326,11 +353,12 @@ export const API_ROUTES: readonly ApiRoute[] = [
     path: '/api/cases/:id/analyses',
     operationId: 'saveCaseAnalysis',
     tag: 'analyses',
-    summary: "Run a digit analysis of a reply file's column and keep it with the case (never changed afterwards)",
+    summary: "Run a digit analysis of a reply file's column, or of a pool of the returns on file, and keep it with the case (never changed afterwards)",
     body: SaveAnalysisRequestSchema,
     responses: {
       201: json(SavedAnalysisSchema, 'The saved working paper; result is the JSON of npm run digits -- --json.'),
-      404: error('No such case or reply file.'),
+      404: error('No such case, reply file, preparer, batch or taxpayer.'),
+      413: error('The pool holds more amounts than one analysis reads.'),
     },
   },
   {
@@ -348,6 +376,14 @@ export const API_ROUTES: readonly ApiRoute[] = [
     tag: 'analyses',
     summary: 'A saved digit analysis as a PDF working paper',
     responses: { 200: file(['application/pdf'], 'The PDF.'), 404: error('No such analysis on this case.') },
+  },
+  {
+    method: 'get',
+    path: '/api/cases/:id/analyses/:analysisId/xlsx',
+    operationId: 'getCaseAnalysisXlsx',
+    tag: 'analyses',
+    summary: 'A saved digit analysis as an XLSX working paper: a cover sheet and one sheet per test',
+    responses: { 200: file([XLSX], 'The workbook.'), 404: error('No such analysis on this case.') },
   },
   {
     method: 'post',

@@ -11,8 +11,11 @@ import { returnedRows } from '../db/returned-rows';
 
 /** First significant digit of a numeric amount, in SQL (zero amounts must be filtered out). */
 const FIRST_DIGIT_SQL = `substr(ltrim(replace(abs(li.amount)::text, '.', ''), '0'), 1, 1)::int`;
-/** Lines that are bookkeeping figures (totals and the refund are derived from others). */
-const ITEMISED_SQL = `li.line_code NOT LIKE 'tot.%' AND li.line_code <> 'tax.refund' AND li.amount <> 0`;
+/**
+ * The itemised, non-zero lines (alias `li`): totals and the refund are bookkeeping figures
+ * derived from other lines. The digit pools of the analysis screen read the same lines.
+ */
+export const ITEMISED_SQL = `li.line_code NOT LIKE 'tot.%' AND li.line_code <> 'tax.refund' AND li.amount <> 0`;
 
 // The active-profile query has one home, with the other profile queries.
 export { activeProfileVersion } from './scoring-profile.repository';

@@ -50,9 +50,12 @@ const EXPECTED: Record<string, typeof PUBLIC | readonly Role[]> = {
   'POST /api/batches/:id/rescore': SUPERVISOR,
 
   'POST /api/analyses/digits': CASE_WORK,
+  'POST /api/analyses/digits/pool': CASE_WORK,
+  'GET /api/analyses/pools': CASE_WORK,
   'POST /api/cases/:id/analyses': CASE_WORK,
   'GET /api/cases/:id/analyses': CASE_WORK,
   'GET /api/cases/:id/analyses/:analysisId/pdf': CASE_WORK,
+  'GET /api/cases/:id/analyses/:analysisId/xlsx': CASE_WORK,
   'POST /api/cases/:id/reconciliation': CASE_WORK,
   'GET /api/scoring/profiles': CASE_WORK,
   'POST /api/scoring/profiles': SUPERVISOR,

@@ -1,14 +1,18 @@
 /**
  * The Digit analysis screen in a browser (issue 15): an examiner uploads a CSV ledger, splits
- * it by account, and reads the four tests as charts with their figures and the caution.
+ * it by account, and reads the four tests as charts with their figures and the caution; and,
+ * opened from a case, chooses a pool of the returns on file (one line code in the batch),
+ * keeps its analysis with the case and finds it on the case screen.
  * Screenshots at 390x844 and 1280x800 (tests/e2e/screenshots/analysis-*.png).
  */
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import type { Browser } from 'playwright-core';
+import { createDataSource } from '../../server/db/data-source';
 import { DEMO_PASSWORD } from '../../server/seed/demo-seed';
 import { expectNoSeriousAxeViolations, launchBrowser, screenshot, signInThroughUi, VIEWPORTS, waitForText } from '../helpers/browser';
+import { caseInReview } from '../helpers/letter-cases';
 import { startSeededServer, type SeededServer } from '../helpers/seeded-server';
 
 jest.setTimeout(300_000);
@@ -18,7 +22,7 @@ describe('Digit analysis screen (browser)', () => {
   let browser: Browser;
   let dir: string;
   beforeAll(async () => {
-    s = await startSeededServer();
+    s = await startSeededServer({ scoredBatch: { seed: 'e2e-analysis', returns: 200, plantShare: 0.1 } });
     browser = await launchBrowser();
     dir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-analysis-e2e-'));
   });
@@ -60,5 +64,38 @@ describe('Digit analysis screen (browser)', () => {
       await screenshot(page, `analysis-charts-${name}`);
       await page.close();
     }
+  });
+
+  it('opened from a case, analyses a pool of one line code in the batch, keeps it with the case and shows it there', async () => {
+    const ds = createDataSource(s.db.url, { poolSize: 1 });
+    await ds.initialize();
+    let caseId: string;
+    try {
+      const [u] = await ds.query(`SELECT id FROM app_user WHERE username = 'examiner'`);
+      ({ caseId } = await caseInReview(ds, { user: { id: u.id, username: 'examiner', role: 'examiner' } }));
+    } finally {
+      await ds.destroy();
+    }
+    const batchId = s.batch!.batchId;
+    const page = await browser.newPage({ viewport: VIEWPORTS.phone });
+    await signInThroughUi(page, s.server.baseUrl, 'examiner', DEMO_PASSWORD);
+    await page.goto(`${s.server.baseUrl}/cases/${caseId}`, { waitUntil: 'networkidle' });
+    await page.getByTestId('case-analyses-open-screen').click();
+    await page.getByTestId('analysis-case').waitFor({ timeout: 60_000 });
+    await page.getByTestId('analysis-source-pool').click();
+    await page.getByTestId('analysis-pool-kind-lineCode').click();
+    await page.getByTestId('analysis-line-code-inc.wages').click();
+    await page.getByTestId(`analysis-batch-${batchId}`).click();
+    await expectNoSeriousAxeViolations(page, 'digit analysis, a pool chosen, opened from a case');
+    await page.getByTestId('analysis-keep').click();
+    await waitForText(page.getByTestId('analysis-source-label'), 'kept with the case');
+    await waitForText(page.getByTestId('analysis-source-label'), 'Line Wages (inc.wages), Batch');
+    await page.getByTestId('analysis-firstDigit').waitFor();
+    await expectNoSeriousAxeViolations(page, 'digit analysis of a pool with its results');
+    await screenshot(page, 'analysis-pool-phone');
+    await page.getByText('← Back to the case').click();
+    await waitForText(page.getByTestId('case-analyses'), 'Line Wages (inc.wages), Batch');
+    await page.getByTestId('case-analysis-xlsx').waitFor();
+    await page.close();
   });
 });

@@ -1,9 +1,12 @@
 /**
  * Saved digit analyses (working papers) on the case screen (issue 15): the list with each
- * paper's source, who ran it and when, and its headline figures, a link to the PDF, and for
- * the case's examiner a form to analyse a column of a CSV or XLSX file the taxpayer sent.
+ * paper's source, who ran it and when, and its headline figures, links to the PDF and the
+ * XLSX workbook, and for the case's examiner a form to analyse a column of a CSV or XLSX file
+ * the taxpayer sent, and a link to the Digit analysis screen opened for this case (a pool of
+ * the returns on file, or a reply file, kept with the case from there).
  * Mounted in the case screen with one line: `<CaseAnalyses caseId={d.id} canAct={d.actions.canAct} />`.
  */
+import { Link } from 'expo-router';
 import { useState } from 'react';
 import { Linking, Platform, View } from 'react-native';
 import { space } from '../../theme';
@@ -14,7 +17,7 @@ import { Txt } from '../../ui/text';
 import { Section } from '../cases/case-section';
 import { useLetters } from '../letters/use-letters';
 import { dataFileEnding } from '../../../shared/analyses';
-import { analysisPdfUrl, useCaseAnalyses, useSaveAnalysis } from './use-analyses';
+import { analysisPaperUrl, useCaseAnalyses, useSaveAnalysis } from './use-analyses';
 
 const VERDICT: Record<string, string> = {
   within_expected: 'within the expected range',
@@ -23,7 +26,7 @@ const VERDICT: Record<string, string> = {
   too_few: 'too few amounts to judge',
 };
 
-function openPdf(url: string): void {
+function openPaper(url: string): void {
   if (Platform.OS === 'web') window.open(url, '_blank', 'noopener');
   else void Linking.openURL(url);
 }
@@ -57,11 +60,21 @@ export function CaseAnalyses({ caseId, canAct }: { caseId: string; canAct: boole
             <Txt
               variant="small"
               tone="soft"
-            >{`${a.createdBy.name}, ${a.createdAt.slice(0, 16).replace('T', ' ')} UTC · SHA-256 ${a.sha256?.slice(0, 12) ?? '—'}…`}</Txt>
-            <Button kind="quiet" label="Working paper (PDF)" onPress={() => openPdf(analysisPdfUrl(caseId, a.id))} />
+            >{`${a.createdBy.name}, ${a.createdAt.slice(0, 16).replace('T', ' ')} UTC${a.sha256 ? ` · SHA-256 ${a.sha256.slice(0, 12)}…` : ''}`}</Txt>
+            <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.sm }}>
+              <Button kind="quiet" label="Working paper (PDF)" onPress={() => openPaper(analysisPaperUrl(caseId, a.id, 'pdf'))} />
+              <Button kind="quiet" label="Working paper (XLSX)" onPress={() => openPaper(analysisPaperUrl(caseId, a.id, 'xlsx'))} testID="case-analysis-xlsx" />
+            </View>
           </View>
         );
       })}
+      {canAct && (
+        <Link href={{ pathname: '/analysis', params: { caseId } }} testID="case-analyses-open-screen">
+          <Txt tone="brass" bold>
+            Analyse a pool of returns or a reply file for this case →
+          </Txt>
+        </Link>
+      )}
       {canAct && files.length > 0 && (
         <View style={{ gap: space.sm }}>
           <ChoiceRow

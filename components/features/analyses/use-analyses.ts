@@ -1,6 +1,16 @@
-/** react-query hooks of the working papers kept with a case (server/analyses/case-analyses.routes.ts). */
+/**
+ * react-query hooks of the working papers kept with a case (server/analyses/case-analyses.routes.ts)
+ * and of the pools from the returns on file (server/analyses/analyses.routes.ts).
+ */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { SavedAnalysisListSchema, SavedAnalysisSchema, type SaveAnalysisRequest } from '../../../shared/analyses';
+import {
+  PoolAnalysisSchema,
+  PoolChoicesSchema,
+  SavedAnalysisListSchema,
+  SavedAnalysisSchema,
+  type AnalysisPool,
+  type SaveAnalysisRequest,
+} from '../../../shared/analyses';
 import { apiGet, apiSend } from '../../../hooks/api-client';
 
 const key = (caseId: string) => ['case-analyses', caseId];
@@ -19,7 +29,17 @@ export function useSaveAnalysis(caseId: string) {
   });
 }
 
-/** Where the PDF working paper of a saved analysis is downloaded. */
-export function analysisPdfUrl(caseId: string, analysisId: string): string {
-  return `/api/cases/${caseId}/analyses/${analysisId}/pdf`;
+/** Where the working paper of a saved analysis is downloaded, as PDF or XLSX. */
+export function analysisPaperUrl(caseId: string, analysisId: string, format: 'pdf' | 'xlsx'): string {
+  return `/api/cases/${caseId}/analyses/${analysisId}/${format}`;
+}
+
+/** What the pool pickers offer (preparers, batches, tax years). */
+export function usePoolChoices(enabled: boolean) {
+  return useQuery({ queryKey: ['analysis-pools'], queryFn: () => apiGet('/api/analyses/pools', PoolChoicesSchema), enabled });
+}
+
+/** Runs the digit analysis of a pool without keeping it. */
+export function useAnalysePool() {
+  return useMutation({ mutationFn: (pool: AnalysisPool) => apiSend('POST', '/api/analyses/digits/pool', { pool }, PoolAnalysisSchema) });
 }

@@ -32,8 +32,8 @@ function refreshAfterMove(qc: QueryClient, caseId: string) {
 }
 
 /** The letters kept with a case, newest first. */
-export function useLetters(caseId: string) {
-  return useQuery({ queryKey: lettersKey(caseId), queryFn: () => apiGet(`/api/cases/${caseId}/letters`, LetterListSchema) });
+export function useLetters(caseId: string, enabled = true) {
+  return useQuery({ queryKey: lettersKey(caseId), queryFn: () => apiGet(`/api/cases/${caseId}/letters`, LetterListSchema), enabled: enabled && !!caseId });
 }
 
 /** Sends a document request (e-mail with the PDF); the case moves to awaiting reply. */
