@@ -12,7 +12,7 @@ import { createUser } from '../helpers/auth';
 import { freePort, processEnv, startServer, startTsx, waitFor, type RunningProcess } from '../helpers/processes';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 
-jest.setTimeout(900_000);
+jest.setTimeout(1_200_000);
 
 type Server = RunningProcess & { baseUrl: string };
 
@@ -33,6 +33,22 @@ async function login(server: Server, username: string, pw: string): Promise<{ st
 
 async function start(env: Record<string, string> = {}): Promise<Server> {
   const s = await startServer(db.url, env);
+  started.push(s);
+  return s;
+}
+
+/**
+ * A cluster start compiles the server three times at once (the primary and two workers under
+ * tsx), which on a busy two-core machine has taken over three minutes: a longer wait than
+ * startServer's.
+ */
+const CLUSTER_START_MS = 480_000;
+
+async function startCluster(port: number): Promise<Server> {
+  const s = {
+    ...(await startTsx('server/main.ts', { ...processEnv(db.url, port), WEB_CONCURRENCY: '2' }, /listening on/, CLUSTER_START_MS)),
+    baseUrl: `http://127.0.0.1:${port}`,
+  };
   started.push(s);
   return s;
 }
@@ -95,7 +111,7 @@ describe('the sign-in throttle across server processes', () => {
 
 describe('WEB_CONCURRENCY=2', () => {
   it('serves through two cluster workers, starts a killed worker again, and stops them all on SIGTERM', async () => {
-    const server = await start({ WEB_CONCURRENCY: '2' });
+    const server = await startCluster(await freePort());
     expect(server.output()).toMatch(/listening on http:\/\/127\.0\.0\.1:\d+ \(2 processes\)/);
     const workers = readyWorkers(server.output());
     expect(workers.map((w) => w.worker).sort()).toEqual(['1', '2']);
@@ -110,8 +126,10 @@ describe('WEB_CONCURRENCY=2', () => {
     // Kill one worker: the other goes on serving, and the primary starts a new one.
     const victim = workers[0];
     process.kill(victim.pid, 'SIGKILL');
-    await waitFor(`worker ${victim.worker} restarted`, async () =>
-      readyWorkers(server.output()).find((w) => w.worker === victim.worker && w.pid !== victim.pid),
+    await waitFor(
+      `worker ${victim.worker} restarted`,
+      async () => readyWorkers(server.output()).find((w) => w.worker === victim.worker && w.pid !== victim.pid),
+      CLUSTER_START_MS,
     );
     expect(server.output()).toMatch(new RegExp(`worker ${victim.worker} \\(pid ${victim.pid}\\) was killed by SIGKILL; starting it again`));
     for (let i = 0; i < 4; i++) expect((await login(server, 'cluster-user', pw)).status).toBe(200);
@@ -126,7 +144,7 @@ describe('WEB_CONCURRENCY=2', () => {
     const holder = net.createServer();
     await new Promise<void>((resolve) => holder.listen(port, '127.0.0.1', resolve));
     try {
-      const failed = await startTsx('server/main.ts', { ...processEnv(db.url, port), WEB_CONCURRENCY: '2' }, /listening on/).then(
+      const failed = await startCluster(port).then(
         () => null,
         (e: Error) => e,
       );
