@@ -54,7 +54,7 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api', express.urlencoded({ extended: false, limit: '100kb' }));
 
   const passport = createPassport(deps.dataSource);
-  const throttle = deps.throttle ?? new LoginThrottle();
+  const throttle = deps.throttle ?? new LoginThrottle(deps.dataSource);
   const api = express.Router();
   api.use(sessionMiddleware(deps.config, deps.dataSource));
   api.use(passport.initialize());

@@ -64,6 +64,16 @@ const ConfigSchema = z.object({
   BATCH_MAX_FILE_MB: z.coerce.number().positive('must be a positive number of megabytes').default(100),
   /** Proxies trusted for X-Forwarded-For (see TrustProxySchema); unset: none. */
   TRUST_PROXY: TrustProxySchema,
+  /**
+   * Server processes sharing the port (node:cluster, server/cluster.ts); 1 is one process
+   * without a primary. Each process has its own database connections.
+   */
+  WEB_CONCURRENCY: z.coerce
+    .number({ error: 'must be a whole number of server processes, e.g. 2' })
+    .int('must be a whole number of server processes, e.g. 2')
+    .min(1, 'must be at least 1')
+    .max(32, 'must be at most 32 (each process holds its own database connections)')
+    .default(1),
   /** Most data rows in one batch file or sheet; the default is what one Excel sheet holds under its header. */
   BATCH_MAX_ROWS: z.coerce.number().int().positive('must be a positive whole number').default(1_048_575),
 });

@@ -4,19 +4,10 @@
  * a log line each time. Used by `npm start` for the server, the worker and MailDev, so one
  * crash takes down neither the rest nor itself for good (issue 12).
  */
+import { DEFAULT_BACK_OFF, nextBackOff, type BackOff } from '../../server/back-off';
 import { stopProcess, type Managed } from './processes';
 
-/** Back-off settings; the defaults are for `npm start`, tests pass small ones. */
-export interface BackOff {
-  /** Wait before the first restart. */
-  initialDelayMs: number;
-  /** Longest wait between restarts. */
-  maxDelayMs: number;
-  /** A run at least this long counts as healthy: the next crash waits initialDelayMs again. */
-  resetAfterMs: number;
-}
-
-export const DEFAULT_BACK_OFF: BackOff = { initialDelayMs: 1000, maxDelayMs: 30_000, resetAfterMs: 60_000 };
+export { DEFAULT_BACK_OFF, type BackOff };
 
 /** A supervised child. */
 export interface Supervised {
@@ -70,10 +61,9 @@ export function supervise(
     m.child.once('exit', (code, signal) => {
       if (stopping) return;
       const upFor = now() - startedAt;
-      // A run that lasted long enough was healthy: start the back-off from the beginning.
-      if (upFor >= backOff.resetAfterMs) delay = backOff.initialDelayMs;
-      const wait = delay;
-      delay = Math.min(delay * 2, backOff.maxDelayMs);
+      // A run that lasted long enough was healthy: the back-off starts from the beginning.
+      const { wait, next } = nextBackOff(backOff, delay, upFor);
+      delay = next;
       log(`${name} ${ending(code, signal)} after ${seconds(upFor)}; restarting in ${seconds(wait)} (restart ${restarts + 1})`);
       timer = setTimeout(() => {
         timer = null;

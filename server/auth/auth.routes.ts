@@ -41,7 +41,7 @@ export function authRoutes(deps: Pick<AppDeps, 'dataSource'> & { throttle: Login
   r.post('/auth/login', publicAccess, jsonOnly, validate(LoginRequestSchema), async (req, res) => {
     const { username, password } = req.body as { username: string; password: string };
     const address = req.ip ?? 'unknown';
-    const attempt = deps.throttle.begin(username, address);
+    const attempt = await deps.throttle.begin(username, address);
     if ('scope' in attempt) {
       const blocked = attempt;
       const minutes = Math.ceil(blocked.retryAfterSeconds / 60);
@@ -65,7 +65,7 @@ export function authRoutes(deps: Pick<AppDeps, 'dataSource'> & { throttle: Login
       );
       throw new HttpError(401, check.reason === 'inactive' ? 'This account is deactivated. Ask an administrator.' : 'The user name or password is wrong.');
     }
-    deps.throttle.succeed(username, address, attempt.at);
+    await deps.throttle.succeed(username, address);
     await logIn(req, check.user);
     await recordAccess(ds, { ...auditOf(req), actor: check.user }, { action: 'sign-in', recordType: 'user', recordId: check.user.id });
     res.json(answer(req));

@@ -18,7 +18,8 @@ export const BCRYPT_ROUNDS = 10;
 /** How locks are read: the sign-in throttle, or none (then no account shows as locked). */
 export type LockSource = Pick<LoginThrottle, 'accountLockedFor'> | null;
 
-export function toUserDto(u: User, locks: LockSource = null): UserDto {
+/** A user as the API shows it; `lockedForSeconds` from the sign-in throttle (null: not locked). */
+export function toUserDto(u: User, lockedForSeconds: number | null = null): UserDto {
   return {
     id: u.id,
     username: u.username,
@@ -26,12 +27,13 @@ export function toUserDto(u: User, locks: LockSource = null): UserDto {
     role: u.role,
     active: u.active,
     createdAt: u.createdAt.toISOString(),
-    lockedForSeconds: locks?.accountLockedFor(u.username) ?? null,
+    lockedForSeconds,
   };
 }
 
 export async function getUsers(ds: DataSource, locks: LockSource = null): Promise<UserDto[]> {
-  return (await listUsers(ds)).map((u) => toUserDto(u, locks));
+  const users = await listUsers(ds);
+  return Promise.all(users.map(async (u) => toUserDto(u, (await locks?.accountLockedFor(u.username)) ?? null)));
 }
 
 /**
@@ -42,9 +44,9 @@ export async function getUsers(ds: DataSource, locks: LockSource = null): Promis
 export async function unlockUser(ds: DataSource, audit: StaffAudit, throttle: LoginThrottle, id: string): Promise<UserDto> {
   const user = await findUserById(ds, id);
   if (!user) throw new HttpError(404, 'No such user.');
-  if (throttle.unlockAccount(user.username))
+  if (await throttle.unlockAccount(user.username))
     await recordAccess(ds, audit, { action: 'change', recordType: 'user', recordId: id, detail: `${user.username}: unlocked after failed sign-ins` });
-  return toUserDto(user, throttle);
+  return toUserDto(user, await throttle.accountLockedFor(user.username));
 }
 
 export async function createUser(ds: DataSource, audit: StaffAudit, input: CreateUserInput): Promise<UserDto> {

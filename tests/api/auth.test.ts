@@ -104,9 +104,9 @@ describe('sign-in throttling', () => {
   let ctx: TestContext;
   let now = 1_000_000;
   beforeAll(async () => {
-    const throttle = new LoginThrottle({ perAccount: 3, perAddress: 5, windowMs: 60_000 }, () => now);
     ctx = await createTestContext();
     // Rebuild the app with a throttle whose clock the test controls.
+    const throttle = new LoginThrottle(ctx.dataSource, { perAccount: 3, perAddress: 5, windowMs: 60_000 }, () => now);
     const { createApp } = await import('../../server/app');
     ctx.app = createApp({ config: ctx.config, dataSource: ctx.dataSource, boss: ctx.boss, mailer: ctx.mailer, throttle });
   });

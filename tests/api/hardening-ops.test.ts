@@ -23,15 +23,23 @@ describe('hardening: sign-in and free text', () => {
     await ctx.close();
   });
 
-  /** A fresh app (own throttle, default limits: 20 failures per address) with the given config overrides. */
-  function appWith(overrides: Record<string, string> = {}) {
+  /**
+   * A fresh app (default limits: 20 failures per address) with the given config overrides.
+   * The throttle's counts live in the database, so the ones earlier tests left are cleared.
+   */
+  async function appWith(overrides: Record<string, string> = {}) {
+    await clearThrottle();
     return createApp({
       config: testConfig(ctx.db.url, overrides),
       dataSource: ctx.dataSource,
       boss: ctx.boss,
       mailer: ctx.mailer,
-      throttle: new LoginThrottle(),
+      throttle: new LoginThrottle(ctx.dataSource),
     });
+  }
+
+  async function clearThrottle() {
+    await ctx.dataSource.query(`DELETE FROM login_throttle`);
   }
 
   /** Thirty failed sign-ins, each for another user name and with another forged X-Forwarded-For. */
@@ -48,7 +56,7 @@ describe('hardening: sign-in and free text', () => {
   }
 
   it('throttles thirty failed sign-ins with thirty different forged X-Forwarded-For values (no TRUST_PROXY)', async () => {
-    const statuses = await thirtyForgedAttempts(appWith());
+    const statuses = await thirtyForgedAttempts(await appWith());
     // 20 per address in 15 minutes (server/auth/throttle.ts): the socket address counts.
     expect(statuses.slice(0, 20)).toEqual(Array(20).fill(401));
     expect(statuses.slice(20)).toEqual(Array(10).fill(429));
@@ -57,14 +65,15 @@ describe('hardening: sign-in and free text', () => {
   it('believes X-Forwarded-For only from a proxy TRUST_PROXY names', async () => {
     // The test client connects over loopback, so naming loopback makes it the proxy: each
     // forwarded address is then a client of its own and none reaches the limit.
-    const statuses = await thirtyForgedAttempts(appWith({ TRUST_PROXY: 'loopback' }));
+    const statuses = await thirtyForgedAttempts(await appWith({ TRUST_PROXY: 'loopback' }));
     expect(statuses).toEqual(Array(30).fill(401));
     // A proxy elsewhere: loopback clients are not it, so their header is ignored again.
-    const elsewhere = await thirtyForgedAttempts(appWith({ TRUST_PROXY: '10.0.0.5' }));
+    const elsewhere = await thirtyForgedAttempts(await appWith({ TRUST_PROXY: '10.0.0.5' }));
     expect(elsewhere.filter((s) => s === 429)).toHaveLength(10);
   });
 
   it('takes sign-in as JSON only: a form post from another site cannot sign a browser in', async () => {
+    await clearThrottle(); // the tests above locked this (loopback) address
     const { user, password } = await createUser(ctx, 'clerk');
     const form = await request(ctx.app).post('/api/auth/login').type('form').send({ username: user.username, password });
     expect(form.status).toBe(415);

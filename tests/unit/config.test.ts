@@ -22,6 +22,16 @@ describe('loadConfig', () => {
     expect(msg).toMatch(/SESSION_SECRET: must be at least 16 characters/);
   });
 
+  it('runs one server process unless WEB_CONCURRENCY asks for more, and refuses a count that is not one', () => {
+    const base = { DATABASE_URL: 'postgres://u:p@127.0.0.1:54329/plumbline' };
+    expect(loadConfig(base).WEB_CONCURRENCY).toBe(1);
+    expect(loadConfig({ ...base, WEB_CONCURRENCY: '2' }).WEB_CONCURRENCY).toBe(2);
+    expect(() => loadConfig({ ...base, WEB_CONCURRENCY: '0' })).toThrow(/WEB_CONCURRENCY: must be at least 1/);
+    expect(() => loadConfig({ ...base, WEB_CONCURRENCY: '1.5' })).toThrow(/WEB_CONCURRENCY: must be a whole number of server processes/);
+    expect(() => loadConfig({ ...base, WEB_CONCURRENCY: 'two' })).toThrow(/WEB_CONCURRENCY: must be a whole number of server processes/);
+    expect(() => loadConfig({ ...base, WEB_CONCURRENCY: '100' })).toThrow(/WEB_CONCURRENCY: must be at most 32/);
+  });
+
   it('requires DATABASE_URL', () => {
     expect(() => loadConfig({})).toThrow(/DATABASE_URL: is required/);
   });
