@@ -106,16 +106,18 @@ describe('programme screen (supervisor, browser)', () => {
       // 12 a month for 2 months: the preview selects 24 of the batch.
       await waitForText(page.getByTestId('profile-preview'), 'Would select 24 of 800 returns');
       await waitForText(page.getByTestId('preview-counts'), /\d+ stay · \d+ leave · \d+ join/);
-      await page.getByTestId('profile-note').fill('Capacity of the team for the spring');
-      // The parts of the screen are taken before the confirmation, whose dialog dims the page.
+      // The parts of the screen are taken before the confirmation, whose dialog dims the page;
+      // the preview first, right after its figures were read (one run on a loaded machine
+      // found it gone once the note had been typed: cause not yet found, see the closing note).
       const parts: string[] = [];
-      for (const id of ['weight-suggestion', 'back-test', 'profile-preview']) {
+      for (const id of ['profile-preview', 'weight-suggestion', 'back-test']) {
         const el = page.getByTestId(id);
         await el.scrollIntoViewIfNeeded();
         const file = path.join(SCREENSHOT_DIR, `scoring-${name}-${id}.png`);
         await el.screenshot({ path: file });
         parts.push(file);
       }
+      await page.getByTestId('profile-note').fill('Capacity of the team for the spring');
       await page.getByTestId('save-profile').click();
       await waitForText(page.getByTestId('confirm-save'), 'the 24 highest-scoring returns of each batch');
       const saveFile = path.join(SCREENSHOT_DIR, `scoring-${name}-confirm-save.png`);
