@@ -96,6 +96,15 @@ describe('Digit analysis screen (browser)', () => {
     await page.getByText('← Back to the case').click();
     await waitForText(page.getByTestId('case-analyses'), 'Line Wages (inc.wages), Batch');
     await page.getByTestId('case-analysis-xlsx').waitFor();
+    // The saved working paper as the case shows it, at both sizes, for a person to look at.
+    await page.getByTestId('case-analyses').scrollIntoViewIfNeeded();
+    await screenshot(page, 'case-working-paper-phone');
+    // The wide layout is a different tree: load it afresh rather than catch it mid-change.
+    await page.setViewportSize(VIEWPORTS.wide);
+    await page.reload({ waitUntil: 'networkidle' });
+    await waitForText(page.getByTestId('case-analyses'), 'Line Wages (inc.wages), Batch');
+    await page.getByTestId('case-analyses').scrollIntoViewIfNeeded();
+    await screenshot(page, 'case-working-paper-wide');
     await page.close();
   });
 });
