@@ -16,6 +16,7 @@ import { BatchLabel1766050000000 } from './1766050000000-batch-label';
 import { MyCases1766040000000 } from './1766040000000-my-cases';
 import { ClosingLetters1766020000000 } from './1766020000000-closing-letters';
 import { CaseAnalyses1766070000000 } from './1766070000000-case-analyses';
+import { PartitionByYear1766100000000 } from './1766100000000-partition-by-year';
 
 export const migrations = [
   Foundation1764600000000,
@@ -32,4 +33,5 @@ export const migrations = [
   MyCases1766040000000,
   BatchLabel1766050000000,
   CaseAnalyses1766070000000,
+  PartitionByYear1766100000000,
 ];
