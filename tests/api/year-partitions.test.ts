@@ -2,17 +2,18 @@
  * line_item and return_score partitioned by tax year (docs/design.md#partitions-by-tax-year):
  * intake makes a new year's partitions and its rows land there, scores and cases follow,
  * two callers racing for one new year both succeed, rows that went to DEFAULT move into a
- * year's partition when it is made, and the migration moves existing rows both ways.
+ * year's partition when it is made, the migration moves existing rows both ways, and an old
+ * year is archived by detaching its partitions.
  */
 import { Client } from 'pg';
 import { BatchCreatedSchema } from '../../shared/returns/batch-rows';
 import { createDataSource } from '../../server/db/data-source';
-import { ensureYearPartitions, listYearPartitions } from '../../server/returns/year-partitions.repository';
+import { detachYear, ensureYearPartitions, listYearPartitions } from '../../server/returns/year-partitions.repository';
 import { scoreBatchNow } from '../../server/scoring/scoring.service';
 import { signedInContext } from '../helpers/auth';
 import { csvBatch, upload } from '../helpers/batches';
 import { createTestDatabase } from '../helpers/test-db';
-import { loadScoredBatch } from '../helpers/scored-batch';
+import { loadGeneratedBatch, loadScoredBatch } from '../helpers/scored-batch';
 
 jest.setTimeout(120_000);
 
@@ -202,6 +203,47 @@ describe('tax-year partitions: the migration with rows in the tables', () => {
       expect(idx.map((r: { n: number }) => r.n)).toEqual([3, 3, 3]);
     } finally {
       await ds.destroy();
+      await db.drop();
+    }
+  });
+});
+
+describe('tax-year partitions: archiving a year', () => {
+  it('detaches a year without cases into archive tables, refuses one with cases, and a late return of the detached year gets fresh partitions', async () => {
+    const db = await createTestDatabase();
+    const app = createDataSource(db.url, { poolSize: 2 });
+    const owner = createDataSource(db.ownerUrl, { poolSize: 1 });
+    await app.initialize();
+    await owner.initialize();
+    try {
+      const old = await loadGeneratedBatch(app, { seed: 'partition-archive-old', returns: 6, years: [2017] });
+      await loadScoredBatch(app, { seed: 'partition-archive-new', returns: 20, plantShare: 0.5, years: [2024] });
+      expect((await app.query(`SELECT count(*)::int AS n FROM exam_case WHERE tax_year = 2024`))[0].n).toBeGreaterThan(0);
+
+      await expect(detachYear(owner, 2024)).rejects.toThrow(/case.* of 2024 still refer to that year's scores.*Nothing was changed/);
+      await expect(detachYear(owner, 2011)).rejects.toThrow(/no partitions of 2011/);
+      expect((await listYearPartitions(app)).filter((p) => p.year === 2024)).toHaveLength(2);
+
+      const r = await detachYear(owner, 2017);
+      expect(r).toEqual({
+        year: 2017,
+        tables: [
+          { table: 'archive_line_item_y2017', rows: old.generated.lineItems.length },
+          { table: 'archive_return_score_y2017', rows: 0 },
+        ],
+      });
+      expect((await listYearPartitions(app)).filter((p) => p.year === 2017)).toEqual([]);
+      expect((await app.query(`SELECT count(*)::int AS n FROM line_item WHERE tax_year = 2017`))[0].n).toBe(0);
+
+      // An amended 2017 return arrives later: its rows get new partitions, not DEFAULT.
+      const late = await loadGeneratedBatch(app, { seed: 'partition-archive-late', returns: 2, years: [2017] });
+      const by = await rowsByPartition(app);
+      expect(by['line_item:line_item_y2017']).toBe(late.generated.lineItems.length);
+      expect(by['line_item:line_item_default']).toBeUndefined();
+      expect((await app.query(`SELECT count(*)::int AS n FROM archive_line_item_y2017`))[0].n).toBe(old.generated.lineItems.length);
+    } finally {
+      await app.destroy();
+      await owner.destroy();
       await db.drop();
     }
   });
