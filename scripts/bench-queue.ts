@@ -135,15 +135,17 @@ async function fill(url: string, cases: number, clients: number): Promise<{ exam
          JOIN taxpayer t ON t.tin = lpad((1 + (g - 1) % $3)::text, 9, '0')`,
       [batch, cases, taxpayers],
     );
+    // The years' partitions first, as intake does (docs/design.md#partitions-by-tax-year).
+    await c.query(`SELECT ensure_tax_year_partitions(y) FROM (SELECT DISTINCT tax_year AS y FROM tax_return WHERE batch_id = $1) t`, [batch]);
     await c.query(
-      `INSERT INTO return_score (return_id, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown)
-       SELECT id, $1, 1, 'scored', s, a, round(s * a, 2), $2::jsonb
-         FROM (SELECT id, round((35 + random() * 65)::numeric, 1) AS s, round((exp(random() * 11.5))::numeric, 2) AS a FROM tax_return WHERE batch_id = $1) x`,
+      `INSERT INTO return_score (return_id, tax_year, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown)
+       SELECT id, tax_year, $1, 1, 'scored', s, a, round(s * a, 2), $2::jsonb
+         FROM (SELECT id, tax_year, round((35 + random() * 65)::numeric, 1) AS s, round((exp(random() * 11.5))::numeric, 2) AS a FROM tax_return WHERE batch_id = $1) x`,
       [batch, JSON.stringify(benchBreakdown())],
     );
     await c.query(
-      `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority, state, assignee_id, due_date, opened_at, updated_at)
-       SELECT s.return_id, r.taxpayer_id, $1, s.id, s.risk_score, s.amount_at_stake, s.priority, st,
+      `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, tax_year, risk_score, amount_at_stake, priority, state, assignee_id, due_date, opened_at, updated_at)
+       SELECT s.return_id, r.taxpayer_id, $1, s.id, s.tax_year, s.risk_score, s.amount_at_stake, s.priority, st,
               CASE WHEN st = 'open' THEN NULL ELSE ex[1 + floor(random() * array_length(ex, 1))::int] END,
               CASE WHEN st = 'awaiting_reply' THEN current_date + (floor(random() * 60)::int - 20) END,
               opened, opened

@@ -1,14 +1,17 @@
 /**
  * Database lifecycle for the local cluster:
- * `npm run db -- start|stop|status|psql|reset|backup FILE|restore FILE [--test] [--database NAME]`.
+ * `npm run db -- start|stop|status|psql|reset|backup FILE|restore FILE|detach-year YEAR [--test] [--database NAME]`.
  * `--test` acts on the test cluster instead of the start command's; `--database` names another
- * database on it than the application's (docs/operations.md#backup-and-restore).
+ * database on it than the application's (docs/operations.md#backup-and-restore);
+ * `detach-year` archives a tax year's partitions (docs/operations.md#archiving-a-tax-year).
  */
 import { BackupInputError, backupDatabase, restoreDatabase } from './lib/backup';
-import { clusterStatus, destroyCluster, psql, startCluster, stopCluster } from './lib/pg';
+import { clusterStatus, connectionString, destroyCluster, psql, startCluster, stopCluster } from './lib/pg';
+import { createDataSource } from '../server/db/data-source';
+import { DetachYearRefused, detachYear } from '../server/returns/year-partitions.repository';
 import { startSetup, testSetup } from './lib/local-services';
 
-const USAGE = 'Usage: npm run db -- start|stop|status|psql|reset|backup FILE|restore FILE [--test] [--database NAME]';
+const USAGE = 'Usage: npm run db -- start|stop|status|psql|reset|backup FILE|restore FILE|detach-year YEAR [--test] [--database NAME]';
 
 /** Reads `--database NAME` out of the arguments. */
 function takeDatabase(args: string[]): { database?: string; rest: string[] } {
@@ -60,6 +63,24 @@ async function main(): Promise<number> {
       await startCluster(spec, () => undefined);
       const r = await restoreDatabase(spec, database, more[0]);
       console.log(`Restored ${r.file} into "${database}" in ${r.seconds.toFixed(1)} s. Start the product as usual; migrations newer than the backup run then.`);
+      return 0;
+    }
+    case 'detach-year': {
+      if (more.length !== 1 || !/^\d{4}$/.test(more[0]))
+        throw new BackupInputError(`detach-year needs one four-digit tax year, e.g. detach-year 2016.\n${USAGE}`);
+      await startCluster(spec, () => undefined);
+      const ds = createDataSource(connectionString(spec, database, 'owner'), { poolSize: 1, applicationName: 'plumbline-db' });
+      await ds.initialize();
+      try {
+        const r = await detachYear(ds, Number(more[0]));
+        for (const t of r.tables) console.log(`Detached ${t.table} (${t.rows.toLocaleString('en-GB')} rows).`);
+        console.log(`Tax year ${r.year} is out of line_item and return_score. Dump the tables with pg_dump --table, then DROP them (docs/operations.md).`);
+      } catch (e) {
+        if (e instanceof DetachYearRefused) throw new BackupInputError(e.message);
+        throw e;
+      } finally {
+        await ds.destroy();
+      }
       return 0;
     }
     default:

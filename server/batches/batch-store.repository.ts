@@ -224,9 +224,12 @@ export class IntakeTransaction {
     );
   }
 
-  /** COPY into line_item: return id, line number, code, amount. */
+  /**
+   * COPY into line_item: return id, the return's tax year (the partition key:
+   * docs/design.md#partitions-by-tax-year), line number, code, amount.
+   */
   openLineItemCopy(): CopyWriter {
-    return new CopyWriter(this.client, `COPY line_item (return_id, line_no, line_code, amount) FROM STDIN`);
+    return new CopyWriter(this.client, `COPY line_item (return_id, tax_year, line_no, line_code, amount) FROM STDIN`);
   }
 
   /** COPY into third_party_statement. */

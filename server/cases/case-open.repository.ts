@@ -28,12 +28,14 @@ export interface SelectedScore {
 export async function openCasesForScores(m: EntityManager, batchId: string, version: number, selected: SelectedScore[]): Promise<void> {
   if (!selected.length) return;
   const rows: { id: string; inserted: boolean }[] = await m.query(
-    `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority)
-     SELECT u.return_id, u.taxpayer_id, $1, u.score_id, u.risk_score, u.stake / 100.0, u.priority
+    // The score's tax year goes with its id: together they are its key (docs/design.md#partitions-by-tax-year).
+    `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, tax_year, risk_score, amount_at_stake, priority)
+     SELECT u.return_id, u.taxpayer_id, $1, u.score_id, s.tax_year, u.risk_score, u.stake / 100.0, u.priority
        FROM unnest($2::uuid[], $3::uuid[], $4::bigint[], $5::numeric[], $6::bigint[], $7::numeric[])
             AS u(return_id, taxpayer_id, score_id, risk_score, stake, priority)
+       JOIN return_score s ON s.id = u.score_id
      ON CONFLICT (return_id) DO UPDATE
-       SET score_id = EXCLUDED.score_id, risk_score = EXCLUDED.risk_score,
+       SET score_id = EXCLUDED.score_id, tax_year = EXCLUDED.tax_year, risk_score = EXCLUDED.risk_score,
            amount_at_stake = EXCLUDED.amount_at_stake, priority = EXCLUDED.priority, updated_at = now()
        WHERE exam_case.state <> ALL($8::text[])
      RETURNING id, (xmax = 0) AS inserted`,
@@ -86,8 +88,8 @@ export interface RandomPick {
 export async function openRandomCases(m: EntityManager, batchId: string, version: number, picks: RandomPick[]): Promise<string[]> {
   if (!picks.length) return [];
   const rows: { id: string }[] = await m.query(
-    `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority, selection)
-     SELECT u.return_id, u.taxpayer_id, $1, s.id, s.risk_score, s.amount_at_stake, s.priority, 'random'
+    `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, tax_year, risk_score, amount_at_stake, priority, selection)
+     SELECT u.return_id, u.taxpayer_id, $1, s.id, s.tax_year, s.risk_score, s.amount_at_stake, s.priority, 'random'
        FROM unnest($2::uuid[], $3::uuid[], $4::bigint[]) AS u(return_id, taxpayer_id, score_id)
        JOIN return_score s ON s.id = u.score_id
      ON CONFLICT (return_id) DO NOTHING

@@ -112,7 +112,8 @@ function where(f: CaseFilter, params: unknown[]): string {
   if (f.batch) parts.push(`c.batch_id = ${p(f.batch)}`);
   if (f.assessByUpTo) parts.push(`c.assess_by <= ${p(f.assessByUpTo)}::date`);
   if (f.needs) parts.push(needsCondition(f.needs.kind, p, f.needs.me, f.needs.today));
-  if (f.taxYear !== undefined) parts.push(`EXISTS (SELECT 1 FROM tax_return r WHERE r.id = c.return_id AND r.tax_year = ${p(f.taxYear)})`);
+  // A case carries its return's year (the key of its score: docs/design.md#partitions-by-tax-year).
+  if (f.taxYear !== undefined) parts.push(`c.tax_year = ${p(f.taxYear)}`);
   if (f.activity) parts.push(`EXISTS (SELECT 1 FROM taxpayer t WHERE t.id = c.taxpayer_id AND t.activity_code = ${p(f.activity)})`);
   if (f.q) {
     const digits = f.q.replace(/[\s-]/g, '');

@@ -75,7 +75,7 @@ export async function findCaseDetail(db: Db, caseId: string): Promise<CaseDetail
        FROM exam_case c
        JOIN tax_return r ON r.id = c.return_id
        JOIN taxpayer t ON t.id = c.taxpayer_id
-       JOIN return_score s ON s.id = c.score_id
+       JOIN return_score s ON s.id = c.score_id AND s.tax_year = c.tax_year
        LEFT JOIN preparer p ON p.id = r.preparer_id
        LEFT JOIN app_user u ON u.id = c.assignee_id
       WHERE c.id = $1`,

@@ -23,6 +23,10 @@ export class ExamCase {
   @Column({ name: 'score_id', type: 'bigint' })
   scoreId: string;
 
+  /** The return's tax year: with `scoreId`, the key of its score in the year-partitioned return_score. */
+  @Column({ name: 'tax_year', type: 'smallint' })
+  taxYear: number;
+
   @Column({ name: 'risk_score', type: 'numeric', precision: 5, scale: 1 })
   riskScore: string;
 

@@ -119,5 +119,8 @@ export function applicationGrantsSql(database: string, app: string): string[] {
     ...APPEND_ONLY_TABLES.map((t) => `REVOKE UPDATE, DELETE, TRUNCATE, REFERENCES, TRIGGER ON ${ident(t)} FROM ${a}, PUBLIC`),
     // Only migrations (the owner) record migrations.
     `REVOKE INSERT, UPDATE, DELETE, TRUNCATE ON migrations FROM ${a}, PUBLIC`,
+    // Intake makes a new tax year's partitions through this owner's function, and nothing else
+    // of the schema (docs/design.md#partitions-by-tax-year).
+    `GRANT EXECUTE ON FUNCTION ensure_tax_year_partitions(smallint) TO ${a}`,
   ];
 }

@@ -46,7 +46,7 @@ export async function findCaseContext(db: Db, caseId: string): Promise<CaseConte
        JOIN tax_return r ON r.id = c.return_id
        JOIN taxpayer t ON t.id = c.taxpayer_id
        JOIN filing_batch b ON b.id = c.batch_id
-       JOIN return_score s ON s.id = c.score_id
+       JOIN return_score s ON s.id = c.score_id AND s.tax_year = c.tax_year
        LEFT JOIN preparer p ON p.id = r.preparer_id
        LEFT JOIN app_user a ON a.id = c.assignee_id
       WHERE c.id = $1`,

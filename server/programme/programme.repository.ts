@@ -193,7 +193,7 @@ export async function closedCasesForFit(db: Db): Promise<ClosedForFit[]> {
             run.random_sample->>'rate' AS rate,
             (SELECT jsonb_agg(jsonb_build_object('key', x->>'key', 'strength', (x->>'strength')::numeric)) FROM jsonb_array_elements(s.breakdown->'components') x) AS components
        FROM exam_case c
-       JOIN return_score s ON s.id = c.score_id
+       JOIN return_score s ON s.id = c.score_id AND s.tax_year = c.tax_year
        LEFT JOIN scoring_run run ON run.batch_id = s.batch_id AND run.profile_version = s.profile_version
       WHERE c.state IN ('closed_adjusted', 'closed_no_change')
       ORDER BY c.id`,

@@ -1,11 +1,18 @@
-import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';
+import { Column, Entity, PrimaryColumn, PrimaryGeneratedColumn } from 'typeorm';
 import type { ScoreBreakdown } from '../../shared/scoring/breakdown';
 
-/** One return's score under one profile version, with everything needed to explain it. */
+/**
+ * One return's score under one profile version, with everything needed to explain it.
+ * Partitioned by `taxYear`, the return's year (docs/design.md#partitions-by-tax-year).
+ */
 @Entity({ name: 'return_score' })
 export class ReturnScore {
   @PrimaryGeneratedColumn({ type: 'bigint' })
   id: string;
+
+  /** The return's tax year: the partition key, so part of the primary key (id alone is unique too). */
+  @PrimaryColumn({ name: 'tax_year', type: 'smallint' })
+  taxYear: number;
 
   @Column({ name: 'return_id', type: 'uuid' })
   returnId: string;

@@ -120,7 +120,7 @@ export async function finishedCaseCounts(db: Db): Promise<{ closed: number; adju
 export async function flaggedFinishedCases(db: Db): Promise<{ key: string; flagged: number; adjusted: number }[]> {
   return db.query(
     `SELECT comp->>'key' AS key, count(*)::int AS flagged, count(*) FILTER (WHERE c.state = 'closed_adjusted')::int AS adjusted
-       FROM exam_case c JOIN return_score s ON s.id = c.score_id,
+       FROM exam_case c JOIN return_score s ON s.id = c.score_id AND s.tax_year = c.tax_year,
             jsonb_array_elements(s.breakdown->'components') AS comp
       WHERE c.state = ANY($1::text[]) AND (comp->>'points')::numeric > 0
       GROUP BY 1`,

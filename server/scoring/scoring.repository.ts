@@ -77,7 +77,7 @@ export async function unscoredReturns(db: Db, batchId: string, version: number, 
     `SELECT r.id, r.taxpayer_id, r.preparer_id, r.tax_year, t.activity_code, t.tin
        FROM tax_return r JOIN taxpayer t ON t.id = r.taxpayer_id
       WHERE r.batch_id = $1 AND r.id BETWEEN $2 AND $3
-        AND NOT EXISTS (SELECT 1 FROM return_score s WHERE s.return_id = r.id AND s.profile_version = $4)
+        AND NOT EXISTS (SELECT 1 FROM return_score s WHERE s.return_id = r.id AND s.profile_version = $4 AND s.tax_year = r.tax_year)
       ORDER BY r.id`,
     [batchId, fromId, toId, version],
   );
@@ -418,11 +418,13 @@ export async function insertScores(m: EntityManager, batchId: string, version: n
   // One JSON document for the slice: an array parameter of 500 JSON texts would be quoted and
   // escaped into a PostgreSQL array literal, which cost more than the insert itself.
   const inserted: { id: string; return_id: string }[] = await m.query(
-    `INSERT INTO return_score (return_id, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown, failure_reason)
-     SELECT (e->>'r')::uuid, $1, $2, e->>'s', (e->>'rs')::numeric, (e->>'st')::numeric / 100, (e->>'p')::numeric,
+    // tax_year (the partition key, docs/design.md#partitions-by-tax-year) from the return; a
+    // LEFT JOIN, so a return that is gone fails the slice (NOT NULL) instead of being skipped.
+    `INSERT INTO return_score (return_id, tax_year, batch_id, profile_version, status, risk_score, amount_at_stake, priority, breakdown, failure_reason)
+     SELECT (e->>'r')::uuid, r.tax_year, $1, $2, e->>'s', (e->>'rs')::numeric, (e->>'st')::numeric / 100, (e->>'p')::numeric,
             nullif((e->'b')::jsonb, 'null'::jsonb), e->>'f'
-       FROM json_array_elements($3::json) AS e
-     ON CONFLICT (return_id, profile_version) DO NOTHING
+       FROM json_array_elements($3::json) AS e LEFT JOIN tax_return r ON r.id = (e->>'r')::uuid
+     ON CONFLICT (return_id, profile_version, tax_year) DO NOTHING
      RETURNING id, return_id`,
     [batchId, version, JSON.stringify(rows)],
   );

@@ -28,8 +28,8 @@ describe('programme screen (supervisor, browser)', () => {
       const users: { id: string }[] = await ds.query(`SELECT id FROM app_user WHERE username IN ('examiner', 'examiner2') ORDER BY username`);
       // 40 more random review cases from returns below the cut (fixture: the run drew 8).
       await ds.query(
-        `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, risk_score, amount_at_stake, priority, selection)
-         SELECT s.return_id, r.taxpayer_id, s.batch_id, s.id, s.risk_score, s.amount_at_stake, s.priority, 'random'
+        `INSERT INTO exam_case (return_id, taxpayer_id, batch_id, score_id, tax_year, risk_score, amount_at_stake, priority, selection)
+         SELECT s.return_id, r.taxpayer_id, s.batch_id, s.id, s.tax_year, s.risk_score, s.amount_at_stake, s.priority, 'random'
            FROM return_score s JOIN tax_return r ON r.id = s.return_id
           WHERE s.status = 'scored' AND NOT (s.breakdown->>'selected')::boolean AND NOT EXISTS (SELECT 1 FROM exam_case c WHERE c.return_id = s.return_id)
           ORDER BY s.id LIMIT 40`,

@@ -9,6 +9,7 @@ import { generate, type GeneratedBatch, type GenerateOptions } from '../../share
 import { computeTotals, type LineCode } from '../../shared/returns/line-codes';
 import { centsFromDecimal, formatCents } from '../../shared/returns/money';
 import { uuid7Factory } from '../../server/batches/intake/uuid7';
+import { ensureYearPartitions } from '../../server/returns/year-partitions.repository';
 import { scoreBatchNow } from '../../server/scoring/scoring.service';
 
 const uuid7 = uuid7Factory();
@@ -89,7 +90,13 @@ export async function loadGeneratedBatch(ds: DataSource, opts: GenerateOptions):
             AS u(id, tp, pr, ref, yr, row, lc, ri, rd, rr, w, i, rc, ex, ci, cd)`,
     [batchId, ...cols],
   );
-  const li: [string[], number[], string[], string[]] = [[], [], [], []];
+  // As intake does: the years' partitions first, and each line with its return's year.
+  await ensureYearPartitions(
+    ds,
+    g.returns.map((r) => Number(r.tax_year)),
+  );
+  const yearOf = new Map(g.returns.map((r) => [r.return_ref, Number(r.tax_year)]));
+  const li: [string[], number[], string[], string[], number[]] = [[], [], [], [], []];
   const lineNo = new Map<string, number>();
   for (const l of g.lineItems) {
     const id = returnIdOf.get(l.return_ref)!;
@@ -99,9 +106,10 @@ export async function loadGeneratedBatch(ds: DataSource, opts: GenerateOptions):
     li[1].push(n);
     li[2].push(l.line_code);
     li[3].push(l.amount);
+    li[4].push(yearOf.get(l.return_ref)!);
   }
   await ds.query(
-    `INSERT INTO line_item (return_id, line_no, line_code, amount) SELECT * FROM unnest($1::uuid[], $2::smallint[], $3::text[], $4::numeric[])`,
+    `INSERT INTO line_item (return_id, line_no, line_code, amount, tax_year) SELECT * FROM unnest($1::uuid[], $2::smallint[], $3::text[], $4::numeric[], $5::smallint[])`,
     li,
   );
   if (g.statements.length) {

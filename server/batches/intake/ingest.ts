@@ -33,6 +33,7 @@ import { LINE_CODE_DEFS, LINE_CODE_INDEX, LINE_CODES, totalsFromSums, type LineS
 import { formatCents, MAX_LINES_PER_RETURN } from '../../../shared/returns/money';
 import { maskTin } from '../../../shared/access-log';
 import { copyText, IntakeTransaction, type CopyWriter, type TotalsRow } from '../batch-store.repository';
+import { ensureYearPartitions } from '../../returns/year-partitions.repository';
 import type { DataSource } from 'typeorm';
 import { SourceError, type RawRow, type TableSource } from './source-types';
 import { ensureUploadSpool } from './upload-spool';
@@ -487,6 +488,12 @@ class Intake {
     this.lineCounts = new Uint16Array(n);
     if (this.errors.count > 0 || n === 0) return;
 
+    // Each year's partitions before the batch's transaction (docs/design.md#partitions-by-tax-year):
+    // made in a short transaction of their own, so their lock is not held while the batch loads.
+    await ensureYearPartitions(
+      this.opts.dataSource,
+      this.returns.map((r) => r.taxYear),
+    );
     this.tx = await IntakeTransaction.begin(this.opts.dataSource);
     const tx = this.tx;
     if (await this.refuseRefsOfOthers(tx)) {
@@ -580,8 +587,8 @@ class Intake {
     const refIndex = this.refIndex;
     const checkRefs = this.returnsUsable;
     const errors = this.errors;
-    // COPY text pieces made once: "<return id>\t" per return, "\t<code>\t" per code.
-    const idTab = copy ? returns.map((r) => `${r.id}\t`) : [];
+    // COPY text pieces made once: "<return id>\t<tax year>\t" per return, "\t<code>\t" per code.
+    const idTab = copy ? returns.map((r) => `${r.id}\t${r.taxYear}\t`) : [];
     const codeTab = LINE_CODES.map((c) => `\t${c}\t`);
     /** One line item that passed the schema (or its exact fast path). */
     const onLine = (returnRef: string, code: number, cents: number, row: number): Promise<void> | undefined => {

@@ -17,6 +17,7 @@ import { MyCases1766040000000 } from './1766040000000-my-cases';
 import { ClosingLetters1766020000000 } from './1766020000000-closing-letters';
 import { CaseAnalyses1766070000000 } from './1766070000000-case-analyses';
 import { LoginThrottle1766090000000 } from './1766090000000-login-throttle';
+import { PartitionByYear1766100000000 } from './1766100000000-partition-by-year';
 
 export const migrations = [
   Foundation1764600000000,
@@ -34,4 +35,5 @@ export const migrations = [
   BatchLabel1766050000000,
   CaseAnalyses1766070000000,
   LoginThrottle1766090000000,
+  PartitionByYear1766100000000,
 ];
