@@ -29,7 +29,11 @@ export interface WeightSuggestion {
   suggested: number;
   low: number;
   high: number;
-  /** False when the interval is wider than {@link MAX_INTERVAL_POINTS}: too few cases where the factor counted. */
+  /**
+   * False when the interval is wider than {@link MAX_INTERVAL_POINTS} and reaches into the 0–100
+   * scale: too few cases where the factor counted. An interval wholly above 100 (or below 0)
+   * says where the weight belongs, at the cap (or at 0), however wide it is.
+   */
   enoughData: boolean;
 }
 
@@ -94,7 +98,11 @@ export function suggestWeights(
     const low = Math.round(slopes[j].low * scale * 10) / 10;
     const high = Math.round(slopes[j].high * scale * 10) / 10;
     // An interval wider than the whole 0–100 scale says nothing: the weight stays as it is.
-    const enoughData = high - low <= MAX_INTERVAL_POINTS;
+    // Unless it lies wholly beyond one end of the scale: a factor that decides nearly every
+    // outcome has a large slope with a wide interval (near separation), and every value in it
+    // puts the weight at 100, so the suggestion is 100 whatever the width.
+    const beyondScale = low >= 100 || high <= 0;
+    const enoughData = high - low <= MAX_INTERVAL_POINTS || beyondScale;
     const fitted = Math.min(100, Math.round(Math.max(0, slopes[j].estimate) * scale * 10) / 10);
     return { key, current: current[j], suggested: enoughData ? fitted : current[j], low, high, enoughData };
   });

@@ -83,8 +83,12 @@ describe('scoring profiles', () => {
     }
     // The only factor that decides the outcome here gets the largest suggested weight. Others
     // may tie with it at the cap of 100 (the random sample, drawn afresh each run, weighs 100×),
-    // so the check is that none is above it, not the order of a sort among equals.
+    // so the check is that none is above it, not the order of a sort among equals. Its interval
+    // is wide (near separation, and the heavy random cases) but lies wholly above 100, so the
+    // fit says 100 rather than keeping the current weight (it did keep it, once, in CI).
     const totalsFit = fit.suggestions.find((x) => x.key === 'totalsMismatch')!;
+    expect(totalsFit.low).toBeGreaterThan(100);
+    expect(totalsFit.enoughData).toBe(true);
     expect(totalsFit.suggested).toBe(Math.max(...fit.suggestions.map((x) => x.suggested)));
     expect(fit.backTest.suggested.k).toBe(fit.backTest.current.k);
     expect(fit.backTest.suggested.precisionAtK).toBeGreaterThanOrEqual(fit.backTest.current.precisionAtK);

@@ -35,3 +35,35 @@ describe('suggestWeights', () => {
     expect(fit.backTest.suggested.yieldCents).toBeGreaterThan(fit.backTest.current.yieldCents);
   });
 });
+
+describe('suggestWeights: a factor that decides nearly every outcome', () => {
+  // Near separation (computed here): 'decides' is set on 97 % of the adjusted cases and 1 % of
+  // the others, so its slope is large and its interval wide; 'thin' counted on 8 cases only.
+  // Current weights summing to 385 put the scaled slopes on a scale like a real profile's.
+  const rng = createRng('weights-separation');
+  const cases: FitCase[] = [];
+  for (let i = 0; i < 600; i++) {
+    const adjusted = rng.chance(0.3);
+    const decides = adjusted ? (rng.chance(0.97) ? 1 : 0) : rng.chance(0.01) ? 1 : 0;
+    const s = [decides, rng.next(), rng.next(), rng.next(), rng.next(), i < 8 ? 1 : 0];
+    cases.push({ id: `s${i}`, strengths: s, adjusted, adjustedCents: adjusted ? 50_000 : 0, weight: 1 });
+  }
+  const fit = suggestWeights(['decides', 'a', 'b', 'c', 'd', 'thin'], [35, 80, 80, 80, 80, 30], cases);
+  const of = (key: string) => fit.suggestions.find((x) => x.key === key)!;
+
+  it('suggests 100 when the whole interval lies above 100, however wide it is', () => {
+    const d = of('decides');
+    expect(d.high - d.low).toBeGreaterThan(100);
+    expect(d.low).toBeGreaterThan(100);
+    expect(d.enoughData).toBe(true);
+    expect(d.suggested).toBe(100);
+  });
+
+  it('keeps the current weight when a wide interval reaches into the scale', () => {
+    const t = of('thin');
+    expect(t.high - t.low).toBeGreaterThan(100);
+    expect(t.low).toBeLessThan(100);
+    expect(t.enoughData).toBe(false);
+    expect(t.suggested).toBe(30);
+  });
+});
