@@ -1,5 +1,8 @@
 /**
  * `npm run bench:queue [-- --cases 100000 --clients 32 --seconds 15 --pages 40 --json]`
+ * `npm run bench:queue -- --cases 100k,1M` measures each size in turn (a fresh database filled
+ * to that size, a fresh server) and prints the queue's p95 at each and the largest over the
+ * smallest (issue 16's aim: within ×1.5 from 100k to 1M cases).
  *
  * The examination queue under load: a throw-away database with 100,000 cases (filled with
  * SQL generate_series: taxpayers, one batch, returns, scores, cases and their 'opened'
@@ -38,6 +41,7 @@ import { Client } from 'pg';
 import { ScoreBreakdownSchema, type ScoreBreakdown } from '../shared/scoring/breakdown';
 import { COMPONENT_LABELS, COMPONENTS } from '../shared/scoring/settings';
 import { prepareAppDatabase } from './lib/app-database';
+import { optionText, parseSizes, type BenchSize } from './lib/sizes';
 import { projectRoot } from './lib/local-services';
 import { clusterStatus, connectionString, findPgBin, isReady, recreateDatabase, startCluster, stopCluster, type ClusterSpec } from './lib/pg';
 import { startMaildev, startProcess, stopProcess, tsxArgs, waitForPort, type Managed } from './lib/processes';
@@ -245,45 +249,53 @@ const ms = (x: number) => `${x.toFixed(1).padStart(6)} ms`;
 const line = (name: string, f: Figures) =>
   `  ${name.padEnd(40)} ${Math.round(f.rps).toLocaleString('en-GB').padStart(7)} req/s   p50 ${ms(f.p50)}   p95 ${ms(f.p95)}   p99 ${ms(f.p99)}   server CPU ${f.serverCpuMs.toFixed(1)} ms/req   (${f.requests.toLocaleString('en-GB')} requests${f.non2xx ? `, ${f.non2xx} not 2xx` : ''}${f.errors ? `, ${f.errors} errors` : ''})`;
 
-async function main() {
-  const cases = arg('cases', 100_000);
-  const clients = arg('clients', 32);
-  const seconds = arg('seconds', 15);
-  const pages = arg('pages', 40);
-  const spec = BENCH_CLUSTER;
-  const bin = findPgBin();
-  const wasRunning = bin ? isReady(bin, spec) : false;
-  let server: Managed | null = null;
-  let mail: Managed | null = null;
-  const mailDir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-bench-mail-'));
-  try {
-    await startCluster(spec, log);
-    log(`PostgreSQL ${clusterStatus(spec)}`);
-    await recreateDatabase(spec, DB);
-    const { appUrl } = await prepareAppDatabase(spec, DB);
-    const url = connectionString(spec, DB);
-    const t0 = performance.now();
-    const { examiners } = await fill(url, cases, clients);
-    log(`filled ${cases.toLocaleString('en-GB')} cases (with their returns, scores and taxpayers) in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+/** One size's figures. */
+interface SizeFigures {
+  size: BenchSize;
+  fillSeconds: number;
+  queue: Figures;
+  health: Figures;
+  me: Figures;
+  alone: Figures;
+  logged: number;
+}
 
-    const [httpPort, smtpPort, mailWebPort] = [await freePort(), await freePort(), await freePort()];
-    mail = startMaildev(smtpPort, mailWebPort, mailDir, true);
-    await waitForPort(smtpPort);
-    const [node, nodeArgs] = tsxArgs('server/main.ts');
-    const profile = process.argv.includes('--cpu-prof') ? ['--cpu-prof', '--cpu-prof-dir', path.join(projectRoot, 'bench-output', 'profile')] : [];
-    server = startProcess('server', node, [...profile, ...nodeArgs], {
-      cwd: projectRoot,
-      quiet: true,
-      env: {
-        ...process.env,
-        DATABASE_URL: appUrl,
-        PORT: String(httpPort),
-        HOST: '127.0.0.1',
-        SMTP_PORT: String(smtpPort),
-        NODE_ENV: 'production',
-        SESSION_SECRET: 'bench-queue-secret-bench-queue-secret',
-      },
-    });
+/**
+ * Fills a fresh database with `cases` cases, starts the server on it and measures the queue,
+ * health, the signed-in baseline and one client alone; stops the server again.
+ */
+async function measureSize(
+  spec: ClusterSpec,
+  size: BenchSize,
+  opts: { clients: number; seconds: number; pages: number; smtpPort: number },
+): Promise<SizeFigures> {
+  const { clients, seconds, pages } = opts;
+  const cases = size.n;
+  await recreateDatabase(spec, DB);
+  const { appUrl } = await prepareAppDatabase(spec, DB);
+  const url = connectionString(spec, DB);
+  const t0 = performance.now();
+  const { examiners } = await fill(url, cases, clients);
+  const fillSeconds = (performance.now() - t0) / 1000;
+  log(`filled ${cases.toLocaleString('en-GB')} cases (with their returns, scores and taxpayers) in ${fillSeconds.toFixed(1)} s`);
+
+  const httpPort = await freePort();
+  const [node, nodeArgs] = tsxArgs('server/main.ts');
+  const profile = process.argv.includes('--cpu-prof') ? ['--cpu-prof', '--cpu-prof-dir', path.join(projectRoot, 'bench-output', 'profile')] : [];
+  const server = startProcess('server', node, [...profile, ...nodeArgs], {
+    cwd: projectRoot,
+    quiet: true,
+    env: {
+      ...process.env,
+      DATABASE_URL: appUrl,
+      PORT: String(httpPort),
+      HOST: '127.0.0.1',
+      SMTP_PORT: String(opts.smtpPort),
+      NODE_ENV: 'production',
+      SESSION_SECRET: 'bench-queue-secret-bench-queue-secret',
+    },
+  });
+  try {
     await waitForPort(httpPort, '127.0.0.1', 60_000);
     const base = `http://127.0.0.1:${httpPort}`;
     const health = await fetch(`${base}/api/health`);
@@ -306,15 +318,15 @@ async function main() {
       ctx.page = (ctx.page! % pages) + 1;
       return { ...req, path: `/api/cases?sort=priority&page=${ctx.page}&pageSize=25`, headers: { ...(req.headers ?? {}), cookie: ctx.cookie } };
     };
-
-    log(`warming up (3 s of each)…`);
-    const pid = server.child.pid!;
     // The signed-in baseline: the same session, CSRF and user checks, no queue work.
     const meRequest: autocannon.Request['setupRequest'] = (req, context) => {
       const ctx = context as { cookie?: string };
       if (!ctx.cookie) ctx.cookie = cookies[next++ % cookies.length];
       return { ...req, path: '/api/auth/me', headers: { ...(req.headers ?? {}), cookie: ctx.cookie } };
     };
+
+    log(`warming up (3 s of each)…`);
+    const pid = server.child.pid!;
     await load(`${base}/api/cases`, clients, 3, pid, queueRequest);
     await load(`${base}/api/health`, clients, 3, pid);
     log(`measuring: ${clients} connections, ${seconds} s each`);
@@ -323,35 +335,80 @@ async function main() {
     const me = await load(`${base}/api/auth/me`, clients, seconds, pid, meRequest);
     // What one examiner alone sees (no queueing behind other clients).
     const alone = await load(`${base}/api/cases`, 1, Math.min(seconds, 5), pid, queueRequest);
-    const logged = await (async () => {
-      const c = new Client({ connectionString: url });
-      await c.connect();
-      try {
-        return (await c.query(`SELECT count(*)::int AS n FROM access_log WHERE route = 'GET /api/cases'`)).rows[0].n as number;
-      } finally {
-        await c.end();
-      }
-    })();
+    const c = new Client({ connectionString: url });
+    await c.connect();
+    const logged = await c
+      .query(`SELECT count(*)::int AS n FROM access_log WHERE route = 'GET /api/cases'`)
+      .then((r) => r.rows[0].n as number)
+      .finally(() => c.end());
+    return { size, fillSeconds, queue, health: healthFig, me, alone, logged };
+  } finally {
+    await stopProcess(server);
+  }
+}
 
-    console.log(
-      [
+async function main() {
+  const sizes = parseSizes(optionText('cases') ?? '100000', 'cases');
+  const clients = arg('clients', 32);
+  const seconds = arg('seconds', 15);
+  const pages = arg('pages', 40);
+  const spec = BENCH_CLUSTER;
+  const bin = findPgBin();
+  const wasRunning = bin ? isReady(bin, spec) : false;
+  let mail: Managed | null = null;
+  const mailDir = fs.mkdtempSync(path.join(os.tmpdir(), 'plumbline-bench-mail-'));
+  const measured: SizeFigures[] = [];
+  try {
+    await startCluster(spec, log);
+    log(`PostgreSQL ${clusterStatus(spec)}`);
+    const [smtpPort, mailWebPort] = [await freePort(), await freePort()];
+    mail = startMaildev(smtpPort, mailWebPort, mailDir, true);
+    await waitForPort(smtpPort);
+    for (const size of sizes) {
+      log(`size ${size.label}: ${size.n.toLocaleString('en-GB')} cases`);
+      measured.push(await measureSize(spec, size, { clients, seconds, pages, smtpPort }));
+    }
+
+    const report: string[] = [''];
+    for (const m of measured) {
+      report.push(
+        `  bench:queue  ${m.size.n.toLocaleString('en-GB')} cases, ${clients} signed-in clients, ${seconds} s per route, ${os.cpus().length} CPUs (filled in ${m.fillSeconds.toFixed(1)} s)`,
+        line(`GET /api/cases?sort=priority (p1–${pages})`, m.queue),
+        line('GET /api/health', m.health),
+        line('GET /api/auth/me (signed-in baseline)', m.me),
+        line('GET /api/cases, one client alone', m.alone),
+        `  queue p95 / health p95                    ×${(m.queue.p95 / m.health.p95).toFixed(2)}   (aim: p95 under 50 ms and within ×3 of health)`,
+        `  access-log lines written for queue views: ${m.logged.toLocaleString('en-GB')} (one per case shown)`,
         '',
-        `  bench:queue  ${cases.toLocaleString('en-GB')} cases, ${clients} signed-in clients, ${seconds} s per route, ${os.cpus().length} CPUs`,
-        line(`GET /api/cases?sort=priority (p1–${pages})`, queue),
-        line('GET /api/health', healthFig),
-        line('GET /api/auth/me (signed-in baseline)', me),
-        line('GET /api/cases, one client alone', alone),
-        `  queue p95 / health p95                    ×${(queue.p95 / healthFig.p95).toFixed(2)}   (aim: p95 under 50 ms and within ×3 of health)`,
-        `  access-log lines written for queue views: ${logged.toLocaleString('en-GB')} (one per case shown)`,
+      );
+    }
+    const first = measured[0];
+    const last = measured[measured.length - 1];
+    if (measured.length > 1) {
+      report.push(
+        `  queue p95 by size: ${measured.map((m) => `${m.size.label} ${m.queue.p95.toFixed(1)} ms (alone ${m.alone.p95.toFixed(1)} ms)`).join(' · ')}`,
+        `  queue p95 at the largest size over the smallest: ×${(last.queue.p95 / first.queue.p95).toFixed(2)} (aim ≤ ×1.5)`,
         '',
-      ].join('\n'),
-    );
+      );
+    }
+    console.log(report.join('\n'));
     if (process.argv.includes('--json')) {
-      // The issue-16 shape: p95 by size, so runs at several --cases can be set side by side.
-      console.log(JSON.stringify({ cases, clients, seconds, p95Ms: { [cases]: queue.p95 }, healthP95Ms: healthFig.p95, aloneP95Ms: alone.p95 }));
+      // The issue-16 shape: p95 by size; the other figures are the largest size's.
+      const bySize = <T>(f: (m: SizeFigures) => T) => Object.fromEntries(measured.map((m) => [String(m.size.n), f(m)]));
+      console.log(
+        JSON.stringify({
+          cases: last.size.n,
+          clients,
+          seconds,
+          p95Ms: bySize((m) => m.queue.p95),
+          healthP95Ms: bySize((m) => m.health.p95),
+          aloneP95Ms: bySize((m) => m.alone.p95),
+          rps: bySize((m) => Math.round(m.queue.rps)),
+          p95LargestOverSmallest: Math.round((last.queue.p95 / first.queue.p95) * 100) / 100,
+        }),
+      );
     }
   } finally {
-    if (server) await stopProcess(server);
     if (mail) await stopProcess(mail);
     fs.rmSync(mailDir, { recursive: true, force: true });
     const admin = new Client({ connectionString: connectionString(spec, 'postgres') });
