@@ -17,11 +17,10 @@ import {
   type SavedAnalysis,
 } from '../../shared/analyses';
 import { LINE_CODE_DEFS, LINE_CODES, type LineCode } from '../../shared/returns/line-codes';
-import { recordAccess, type AccessEvent } from '../access-log/access-log.service';
+import { recordAccess } from '../access-log/access-log.service';
 import type { StaffAudit } from '../access-log/audit-context';
 import { removeSpooled, spoolPath } from '../batches/intake/upload-spool';
-import { assertMayAct, lockCase, taxpayerLabelOf } from '../cases/case-workflow';
-import type { ExamCase } from '../cases/exam-case.entity';
+import { assertMayAct, lockCase, logCaseAccess } from '../cases/case-workflow';
 import { now } from '../clock';
 import { isUuid } from '../../shared/ids';
 import { HttpError } from '../http/errors';
@@ -80,18 +79,6 @@ async function readReplyColumn(
   } finally {
     await removeSpooled([{ path: stored }]);
   }
-}
-
-/** One line in the access log about the case (its taxpayer named by the masked TIN). */
-async function logCaseAccess(m: EntityManager, audit: StaffAudit, c: ExamCase, action: AccessEvent['action'], detail: string): Promise<void> {
-  await recordAccess(m, audit, {
-    action,
-    recordType: 'case',
-    recordId: c.id,
-    taxpayerId: c.taxpayerId,
-    taxpayerLabel: await taxpayerLabelOf(m, c.taxpayerId),
-    detail,
-  });
 }
 
 /**

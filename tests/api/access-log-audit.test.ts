@@ -10,17 +10,9 @@ import { UserListSchema, UserSchema } from '../../shared/users';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { binary } from '../helpers/download';
 
 jest.setTimeout(90_000);
-
-/** A binary answer as a Buffer. */
-function binary(req: request.Test) {
-  return req.buffer(true).parse((r, cb) => {
-    const chunks: Buffer[] = [];
-    r.on('data', (c: Buffer) => chunks.push(c));
-    r.on('end', () => cb(null, Buffer.concat(chunks)));
-  });
-}
 
 async function sheetRows(body: unknown): Promise<string[][]> {
   const wb = new ExcelJS.Workbook();

@@ -19,6 +19,7 @@ import { caseInReview, dueIn, uniqueAddress } from '../helpers/letter-cases';
 import { waitForMail } from '../helpers/maildev';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(180_000);
 
@@ -109,14 +110,7 @@ describe('case analyses (working papers)', () => {
     const log = await ctx.dataSource.query(`SELECT action, detail FROM access_log WHERE record_id = $1 AND detail LIKE '%digit analys%' ORDER BY id`, [caseId]);
     expect(log.map((l: { action: string }) => l.action)).toEqual(['change', 'view']);
 
-    const pdf = await examiner.agent
-      .get(`/api/cases/${caseId}/analyses/${saved.id}/pdf`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const pdf = await examiner.agent.get(`/api/cases/${caseId}/analyses/${saved.id}/pdf`).buffer(true).parse(bufferBody);
     expect(pdf.status).toBe(200);
     expect(pdf.headers['content-type']).toBe('application/pdf');
     const text = execFileSync('pdftotext', ['-layout', '-', '-'], { input: pdf.body as Buffer, encoding: 'utf8' });

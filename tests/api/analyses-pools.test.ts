@@ -15,6 +15,7 @@ import { signIn, type SignedIn } from '../helpers/auth';
 import { caseInReview } from '../helpers/letter-cases';
 import { loadScoredBatch, type LoadedBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(180_000);
 
@@ -214,14 +215,7 @@ describe('digit analysis pools', () => {
     const list = SavedAnalysisListSchema.parse((await examiner.agent.get(`/api/cases/${caseId}/analyses`)).body);
     expect(list.analyses.map((a) => a.sourceLabel)).toEqual([saved.sourceLabel]);
 
-    const xlsx = await examiner.agent
-      .get(`/api/cases/${caseId}/analyses/${saved.id}/xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const xlsx = await examiner.agent.get(`/api/cases/${caseId}/analyses/${saved.id}/xlsx`).buffer(true).parse(bufferBody);
     expect(xlsx.status).toBe(200);
     expect(xlsx.headers['content-type']).toBe('application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
     const wb = new ExcelJS.Workbook();

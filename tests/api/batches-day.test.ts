@@ -11,6 +11,7 @@ import { advanceClockDays, resetClock } from '../../server/clock';
 import { signedInContext, signIn, type SignedIn } from '../helpers/auth';
 import { countIntakeRows, csv, LINES_HEADER, RETURNS_HEADER } from '../helpers/batches';
 import { loadScoredBatch } from '../helpers/scored-batch';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(90_000);
 
@@ -118,14 +119,7 @@ describe('a scored batch: cases opened, score bands and a report', () => {
     expect(o.bands.reduce((s, x) => s + x.cases, 0)).toBe(cases);
     for (const x of o.bands) expect(x.cases).toBeLessThanOrEqual(x.returns);
 
-    const report = await env.user.agent
-      .get(`/api/batches/${b.batchId}/report.xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const report = await env.user.agent.get(`/api/batches/${b.batchId}/report.xlsx`).buffer(true).parse(bufferBody);
     expect(report.status).toBe(200);
     const wb = new ExcelJS.Workbook();
     await wb.xlsx.load(report.body as never);

@@ -12,6 +12,7 @@ import { signedInContext, signIn, type SignedIn } from '../helpers/auth';
 import { uploadHash } from '../../server/batches/intake/sources';
 import { countIntakeRows, csv, csvBatch, LINES_HEADER, refusedUpload, RETURNS_HEADER, upload, xlsxBatch } from '../helpers/batches';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(60_000);
 
@@ -237,14 +238,7 @@ describe('batches API: the validation report as XLSX', () => {
       line_items: { name: 'line_items.csv', content: csv([LINES_HEADER, 'R-2,inc.wages,+1000', 'R-2,tot.income,1000.00']) },
     });
     expect(res.status).toBe(422);
-    const report = await clerk.agent
-      .get(`/api/batches/${res.body.batchId}/report.xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const report = await clerk.agent.get(`/api/batches/${res.body.batchId}/report.xlsx`).buffer(true).parse(bufferBody);
     expect(report.status).toBe(200);
     expect(report.headers['content-type']).toMatch(/spreadsheetml/);
     const wb = new ExcelJS.Workbook();

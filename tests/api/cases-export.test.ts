@@ -3,23 +3,15 @@
  * safe against formula injection, written to the access log, for supervisors only.
  */
 import ExcelJS from 'exceljs';
-import type { Response } from 'supertest';
 import { SCREENING_CAUTION } from '../../shared/cautions';
 import { CaseListSchema } from '../../shared/case-api';
 import { signIn, type SignedIn } from '../helpers/auth';
 import { caseInState, openCaseIds } from '../helpers/cases';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(120_000);
-
-/** supertest: collect a binary body into a Buffer. */
-function binary(res: Response & { on?: unknown }, cb: (err: Error | null, body: Buffer) => void) {
-  const chunks: Buffer[] = [];
-  const stream = res as unknown as NodeJS.ReadableStream;
-  stream.on('data', (c: Buffer) => chunks.push(c));
-  stream.on('end', () => cb(null, Buffer.concat(chunks)));
-}
 
 async function workbookOf(body: Buffer): Promise<ExcelJS.Workbook> {
   const wb = new ExcelJS.Workbook();
@@ -50,7 +42,7 @@ describe('queue export (XLSX)', () => {
     await ctx?.close();
   });
 
-  const download = (query = '') => supervisor.agent.get(`/api/cases/export.xlsx${query}`).buffer(true).parse(binary);
+  const download = (query = '') => supervisor.agent.get(`/api/cases/export.xlsx${query}`).buffer(true).parse(bufferBody);
 
   it('writes every case of the filtered queue in queue order, one row each, figures as numbers', async () => {
     const res = await download();

@@ -17,6 +17,7 @@ import { caseInReview, dueIn, uniqueAddress } from '../helpers/letter-cases';
 import { attachment, mailTo, pdfText, waitForMail } from '../helpers/maildev';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(120_000);
 
@@ -105,14 +106,7 @@ describe('the daily pass', () => {
     expect(letters.items.map((l) => l.kind).sort()).toEqual(['acknowledgement', 'document_request', 'reminder']);
     // The office copy keeps the link masked.
     const reminderLetter = letters.items.find((l) => l.kind === 'reminder')!;
-    const office = await examiner.agent
-      .get(`/api/cases/${caseId}/letters/${reminderLetter.id}/pdf`)
-      .buffer(true)
-      .parse((res, cb) => {
-        const chunks: Buffer[] = [];
-        res.on('data', (c: Buffer) => chunks.push(c));
-        res.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const office = await examiner.agent.get(`/api/cases/${caseId}/letters/${reminderLetter.id}/pdf`).buffer(true).parse(bufferBody);
     expect(office.status).toBe(200);
     expect(pdfText(office.body as Buffer)).not.toContain(fresh);
   });

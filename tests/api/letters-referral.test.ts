@@ -11,16 +11,11 @@ import { caseInReview, dueIn, uniqueAddress } from '../helpers/letter-cases';
 import { pdfText } from '../helpers/maildev';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(60_000);
 
 const SUMMARY = 'Reported income is well below the wages and interest reported by third parties for the same year; the taxpayer has not yet replied.';
-
-const binary = (res: request.Response, cb: (err: Error | null, body: Buffer) => void) => {
-  const chunks: Buffer[] = [];
-  res.on('data', (c: Buffer) => chunks.push(c));
-  res.on('end', () => cb(null, Buffer.concat(chunks)));
-};
 
 describe('referral memos', () => {
   let ctx: TestContext;
@@ -89,7 +84,7 @@ describe('referral memos', () => {
       { from_state: 'in_review', to_state: 'referred', detail: expect.objectContaining({ letterId: res.body.letter.id, unit: 'income-matching' }) },
     ]);
 
-    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(binary);
+    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(bufferBody);
     expect(pdf.status).toBe(200);
     expect(pdf.headers['content-type']).toBe('application/pdf');
     const text = pdfText(pdf.body as Buffer);
@@ -148,7 +143,7 @@ describe('referral memos', () => {
     const list = await examiner.agent.get(`/api/cases/${caseId}/letters`);
     expect(list.body.items.map((l: { kind: string }) => l.kind)).toEqual(['referral_memo', 'document_request']);
     // The memo's history shows the request that went before it.
-    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(binary);
+    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(bufferBody);
     expect(pdfText(pdf.body as Buffer)).toContain('Document request sent (from in review to awaiting reply)');
 
     const again = await refer(examiner, caseId, { summary: SUMMARY });

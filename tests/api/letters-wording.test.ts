@@ -23,14 +23,9 @@ import { attachment, mailTo, pdfText, waitForMail, type MailMessage } from '../h
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
 import request from 'supertest';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(90_000);
-
-const binary = (res: request.Response, cb: (err: Error | null, body: Buffer) => void) => {
-  const chunks: Buffer[] = [];
-  res.on('data', (c: Buffer) => chunks.push(c));
-  res.on('end', () => cb(null, Buffer.concat(chunks)));
-};
 
 describe('wording of the documents', () => {
   let ctx: TestContext;
@@ -59,7 +54,7 @@ describe('wording of the documents', () => {
     const pdf = (mail.attachments ?? []).find((a) => a.contentType === 'application/pdf');
     expect(pdf).toBeDefined();
     const sentText = pdfText(await attachment(mail, pdf!.generatedFileName));
-    const office = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(binary);
+    const office = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(bufferBody);
     expect(office.status).toBe(200);
     const officeText = pdfText(office.body as Buffer);
 
@@ -95,7 +90,7 @@ describe('wording of the documents', () => {
       .send({ unit: 'special-investigations', summary: 'The receipts do not cover the expenses claimed; the unit should look at the whole year.' });
     expect(res.status).toBe(201);
     expect(res.body.letter.recipient).toBe(REFERRAL_UNIT_LABELS['special-investigations']);
-    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(binary);
+    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(bufferBody);
     expect(pdf.status).toBe(200);
     const text = pdfText(pdf.body as Buffer);
     expect(text).toContain(SCREENING_CAUTION);
@@ -142,7 +137,7 @@ describe('wording of the documents', () => {
     const list = await examiner.agent.get(`/api/cases/${caseId}/letters`);
     const letter = list.body.items.find((l: { kind: string }) => l.kind === kind);
     expect(letter).toBeDefined();
-    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${letter.id}/pdf`).buffer(true).parse(binary);
+    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${letter.id}/pdf`).buffer(true).parse(bufferBody);
     expect(pdf.status).toBe(200);
     return { letter, text: pdfText(pdf.body as Buffer) };
   };

@@ -14,6 +14,7 @@ import { attachment, mailTo, pdfText, waitForMail } from '../helpers/maildev';
 import { freePort } from '../helpers/processes';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(60_000);
 
@@ -89,14 +90,7 @@ describe('document requests', () => {
     const list = await examiner.agent.get(`/api/cases/${caseId}/letters`);
     expect(list.status).toBe(200);
     expect(list.body.items).toHaveLength(1);
-    const pdf = await examiner.agent
-      .get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const pdf = await examiner.agent.get(`/api/cases/${caseId}/letters/${res.body.letter.id}/pdf`).buffer(true).parse(bufferBody);
     expect(pdf.status).toBe(200);
     expect(pdf.headers['content-type']).toBe('application/pdf');
     const office = pdf.body as Buffer;

@@ -14,6 +14,7 @@ import { caseInReview, dueIn, uniqueAddress } from '../helpers/letter-cases';
 import { attachment, mailTo, pdfText, waitForMail } from '../helpers/maildev';
 import { loadScoredBatch } from '../helpers/scored-batch';
 import { createTestContext, type TestContext } from '../helpers/test-app';
+import { bufferBody } from '../helpers/download';
 
 jest.setTimeout(90_000);
 
@@ -170,14 +171,7 @@ describe('reply links', () => {
     expect(req.state).toBe('answered');
     expect(req.uploads).toHaveLength(3);
     const png = req.uploads.find((u: { contentType: string }) => u.contentType === 'image/png');
-    const file = await examiner.agent
-      .get(`/api/cases/${caseId}/reply-uploads/${png.id}`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (x: Buffer) => chunks.push(x));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const file = await examiner.agent.get(`/api/cases/${caseId}/reply-uploads/${png.id}`).buffer(true).parse(bufferBody);
     expect(file.status).toBe(200);
     expect(file.headers['content-disposition']).toMatch(/^attachment; filename="wage-statement.png"/);
     expect(Buffer.compare(file.body as Buffer, PNG)).toBe(0);

@@ -30,8 +30,7 @@ export class PartitionByYear1766100000000 implements MigrationInterface {
 
     // The plain tables step aside (with the names of their indexes and sequence) for the
     // partitioned ones, which copy their columns, defaults, CHECKs, storage and compression.
-    await q.query(`ALTER TABLE line_item RENAME TO line_item_plain`);
-    await q.query(`ALTER INDEX line_item_pkey RENAME TO line_item_plain_pkey`);
+    await setAside(q, 'line_item', 'plain');
     await q.query(`
       CREATE TABLE line_item (
         LIKE line_item_plain INCLUDING DEFAULTS INCLUDING CONSTRAINTS INCLUDING STORAGE INCLUDING COMPRESSION,
@@ -39,20 +38,12 @@ export class PartitionByYear1766100000000 implements MigrationInterface {
         PRIMARY KEY (return_id, line_no, tax_year)
       ) PARTITION BY LIST (tax_year)`);
 
-    await q.query(`ALTER TABLE return_score RENAME TO return_score_plain`);
-    await q.query(`ALTER INDEX return_score_pkey RENAME TO return_score_plain_pkey`);
-    await q.query(`ALTER INDEX uq_return_score RENAME TO uq_return_score_plain`);
-    await q.query(`ALTER INDEX idx_return_score_batch RENAME TO idx_return_score_plain_batch`);
-    await q.query(`ALTER SEQUENCE return_score_id_seq RENAME TO return_score_plain_id_seq`);
+    await setAside(q, 'return_score', 'plain');
     await q.query(`
       CREATE TABLE return_score (
         LIKE return_score_plain INCLUDING DEFAULTS INCLUDING CONSTRAINTS INCLUDING STORAGE INCLUDING COMPRESSION,
         tax_year smallint NOT NULL,
-        CONSTRAINT return_score_pkey PRIMARY KEY (id, tax_year),
-        CONSTRAINT uq_return_score UNIQUE (return_id, profile_version, tax_year),
-        CONSTRAINT return_score_return_id_fkey FOREIGN KEY (return_id) REFERENCES tax_return (id) ON DELETE CASCADE,
-        CONSTRAINT return_score_batch_id_fkey FOREIGN KEY (batch_id) REFERENCES filing_batch (id),
-        CONSTRAINT return_score_profile_version_fkey FOREIGN KEY (profile_version) REFERENCES scoring_profile (version)
+        ${scoreKeys(', tax_year')}
       ) PARTITION BY LIST (tax_year)`);
     await q.query(`ALTER TABLE return_score ALTER COLUMN id ADD GENERATED ALWAYS AS IDENTITY`);
     // Indexes made on the parent are made on every partition, present and future.
@@ -64,14 +55,7 @@ export class PartitionByYear1766100000000 implements MigrationInterface {
     await q.query(`REVOKE ALL ON FUNCTION ensure_tax_year_partitions(smallint) FROM PUBLIC`);
     await q.query(`SELECT ensure_tax_year_partitions(y) FROM (SELECT DISTINCT tax_year AS y FROM tax_return ORDER BY 1) t`);
 
-    // The same statement-level check as before (docs/design.md#data-model): on the parent, it
-    // sees the rows of every partition a statement wrote.
-    await q.query(`
-      CREATE TRIGGER line_item_return_exists_insert AFTER INSERT ON line_item
-      REFERENCING NEW TABLE AS new_rows FOR EACH STATEMENT EXECUTE FUNCTION line_item_return_exists()`);
-    await q.query(`
-      CREATE TRIGGER line_item_return_exists_update AFTER UPDATE ON line_item
-      REFERENCING NEW TABLE AS new_rows FOR EACH STATEMENT EXECUTE FUNCTION line_item_return_exists()`);
+    await createLineItemChecks(q);
 
     await q.query(`
       INSERT INTO line_item (return_id, line_no, line_code, amount, tax_year)
@@ -98,8 +82,7 @@ export class PartitionByYear1766100000000 implements MigrationInterface {
     await q.query(`ALTER TABLE exam_case DROP CONSTRAINT exam_case_score_fkey`);
     await q.query(`DROP FUNCTION ensure_tax_year_partitions(smallint)`);
 
-    await q.query(`ALTER TABLE line_item RENAME TO line_item_part`);
-    await q.query(`ALTER INDEX line_item_pkey RENAME TO line_item_part_pkey`);
+    await setAside(q, 'line_item', 'part');
     await q.query(`
       CREATE TABLE line_item (
         LIKE line_item_part INCLUDING DEFAULTS INCLUDING CONSTRAINTS INCLUDING STORAGE INCLUDING COMPRESSION
@@ -107,26 +90,13 @@ export class PartitionByYear1766100000000 implements MigrationInterface {
     await q.query(`ALTER TABLE line_item DROP COLUMN tax_year`);
     await q.query(`ALTER TABLE line_item ADD PRIMARY KEY (return_id, line_no)`);
     await q.query(`INSERT INTO line_item (return_id, line_no, line_code, amount) SELECT return_id, line_no, line_code, amount FROM line_item_part`);
-    await q.query(`
-      CREATE TRIGGER line_item_return_exists_insert AFTER INSERT ON line_item
-      REFERENCING NEW TABLE AS new_rows FOR EACH STATEMENT EXECUTE FUNCTION line_item_return_exists()`);
-    await q.query(`
-      CREATE TRIGGER line_item_return_exists_update AFTER UPDATE ON line_item
-      REFERENCING NEW TABLE AS new_rows FOR EACH STATEMENT EXECUTE FUNCTION line_item_return_exists()`);
+    await createLineItemChecks(q);
 
-    await q.query(`ALTER TABLE return_score RENAME TO return_score_part`);
-    await q.query(`ALTER INDEX return_score_pkey RENAME TO return_score_part_pkey`);
-    await q.query(`ALTER INDEX uq_return_score RENAME TO uq_return_score_part`);
-    await q.query(`ALTER INDEX idx_return_score_batch RENAME TO idx_return_score_part_batch`);
-    await q.query(`ALTER SEQUENCE return_score_id_seq RENAME TO return_score_part_id_seq`);
+    await setAside(q, 'return_score', 'part');
     await q.query(`
       CREATE TABLE return_score (
         LIKE return_score_part INCLUDING DEFAULTS INCLUDING CONSTRAINTS INCLUDING STORAGE INCLUDING COMPRESSION,
-        CONSTRAINT return_score_pkey PRIMARY KEY (id),
-        CONSTRAINT uq_return_score UNIQUE (return_id, profile_version),
-        CONSTRAINT return_score_return_id_fkey FOREIGN KEY (return_id) REFERENCES tax_return (id) ON DELETE CASCADE,
-        CONSTRAINT return_score_batch_id_fkey FOREIGN KEY (batch_id) REFERENCES filing_batch (id),
-        CONSTRAINT return_score_profile_version_fkey FOREIGN KEY (profile_version) REFERENCES scoring_profile (version)
+        ${scoreKeys('')}
       )`);
     await q.query(`ALTER TABLE return_score DROP COLUMN tax_year`);
     await q.query(`ALTER TABLE return_score ALTER COLUMN id ADD GENERATED ALWAYS AS IDENTITY`);
@@ -144,6 +114,43 @@ export class PartitionByYear1766100000000 implements MigrationInterface {
     // plain tables by then, an office's archive: docs/operations.md#archiving-a-tax-year).
     await q.query(`DROP TABLE line_item_part`);
     await q.query(`DROP TABLE return_score_part`);
+  }
+}
+
+/**
+ * Renames a table and what is named after it (its primary key, return_score's other indexes
+ * and identity sequence) with a suffix, so a new table of the old name can be made beside it.
+ */
+async function setAside(q: QueryRunner, table: 'line_item' | 'return_score', suffix: string): Promise<void> {
+  await q.query(`ALTER TABLE ${table} RENAME TO ${table}_${suffix}`);
+  await q.query(`ALTER INDEX ${table}_pkey RENAME TO ${table}_${suffix}_pkey`);
+  if (table === 'return_score') {
+    await q.query(`ALTER INDEX uq_return_score RENAME TO uq_return_score_${suffix}`);
+    await q.query(`ALTER INDEX idx_return_score_batch RENAME TO idx_return_score_${suffix}_batch`);
+    await q.query(`ALTER SEQUENCE return_score_id_seq RENAME TO return_score_${suffix}_id_seq`);
+  }
+}
+
+/** return_score's keys and foreign keys; `yearKey` is ', tax_year' on the partitioned table (its keys must hold the partition key). */
+function scoreKeys(yearKey: string): string {
+  return `CONSTRAINT return_score_pkey PRIMARY KEY (id${yearKey}),
+        CONSTRAINT uq_return_score UNIQUE (return_id, profile_version${yearKey}),
+        CONSTRAINT return_score_return_id_fkey FOREIGN KEY (return_id) REFERENCES tax_return (id) ON DELETE CASCADE,
+        CONSTRAINT return_score_batch_id_fkey FOREIGN KEY (batch_id) REFERENCES filing_batch (id),
+        CONSTRAINT return_score_profile_version_fkey FOREIGN KEY (profile_version) REFERENCES scoring_profile (version)`;
+}
+
+/**
+ * The statement-level check that every line item's return exists (made in the intake
+ * migration, docs/design.md#data-model), put on the new line_item in either direction; on the
+ * partitioned parent it sees the rows of every partition a statement wrote. The migration
+ * keeps its own copy of the DDL: a migration is history and must not change when a later one does.
+ */
+async function createLineItemChecks(q: QueryRunner): Promise<void> {
+  for (const op of ['insert', 'update'] as const) {
+    await q.query(`
+      CREATE TRIGGER line_item_return_exists_${op} AFTER ${op.toUpperCase()} ON line_item
+      REFERENCING NEW TABLE AS new_rows FOR EACH STATEMENT EXECUTE FUNCTION line_item_return_exists()`);
   }
 }
 
