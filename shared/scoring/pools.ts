@@ -128,6 +128,21 @@ export function estimateConcentration(pools: readonly { n: number; x2: number }[
 export type PoolNull = { alpha: number } | { scale: number; df: number };
 
 /**
+ * The taxpayers as lists of [code, counts] in code order, sorted by those lists: one order
+ * (of taxpayers and of each one's codes) whatever order they were given in.
+ */
+function canonicalOrder(taxpayers: readonly CodeDigitCounts[]): [string, number[]][][] {
+  const keyed = taxpayers.map((t) => {
+    const entries = Object.keys(t)
+      .sort()
+      .map((code): [string, number[]] => [code, t[code]]);
+    return { entries, key: entries.map(([code, c]) => `${code}:${c.join(',')}`).join(';') };
+  });
+  keyed.sort((a, b) => (a.key < b.key ? -1 : a.key > b.key ? 1 : 0));
+  return keyed.map((k) => k.entries);
+}
+
+/**
  * The chance spread of a preparer's pool when clients, not amounts, are what a preparer
  * gets: a taxpayer's amounts hang together (the same rent and gifts every year, one
  * business's mix of costs), so a pool of 20 clients' 600 amounts varies like far fewer
@@ -140,7 +155,11 @@ export type PoolNull = { alpha: number } | { scale: number; df: number };
  * (Satterthwaite 1946, Biometrics Bulletin 2:110, matching two moments of a scaled
  * chi-square), so the far tail, which a few hundred draws cannot reach, follows the fit.
  *
- * @param taxpayers each taxpayer's per-code first-digit counts in the batch
+ * The draws do not depend on the order the taxpayers come in (they are put in one order of
+ * their counts first): the database hands them over in whatever order its aggregate left
+ * them, and the same batch must give the same null, whichever plan PostgreSQL chose.
+ *
+ * @param taxpayers each taxpayer's per-code first-digit counts in the batch, in any order
  * @param clients pool size in clients
  * @param batch the batch's per-code counts
  * @param draws random client sets
@@ -156,6 +175,7 @@ export function clientPoolNull(
 ): { scale: number; df: number } | null {
   const t = taxpayers.length;
   if (clients < 1 || clients >= t || draws < 10) return null;
+  const ordered = canonicalOrder(taxpayers);
   const rnd = mulberry32((seed ^ Math.imul(clients, 2654435761)) >>> 0);
   const idx = Array.from({ length: t }, (_, i) => i);
   const xs: number[] = [];
@@ -167,7 +187,7 @@ export function clientPoolNull(
       const tmp = idx[i];
       idx[i] = idx[j];
       idx[j] = tmp;
-      for (const [code, c] of Object.entries(taxpayers[idx[i]])) {
+      for (const [code, c] of ordered[idx[i]]) {
         const a = (pool[code] ??= new Array(9).fill(0));
         for (let k = 0; k < 9; k++) a[k] += c[k];
       }

@@ -114,3 +114,29 @@ describe("recurring deductions against the filer's own other years (version 3)",
     expect(deductionsLarge(t, bands, v2, undefined, bill, [year(6_000), year(5_800)]).strength).toBeCloseTo(1, 9);
   });
 });
+
+describe('clientPoolNull: the order the taxpayers come in', () => {
+  // PostgreSQL hands the taxpayers over in its aggregate's order, which a plan change moves;
+  // the same batch must give the same null (a seeded draw over a list in another order did not).
+  it('gives the same fit for the taxpayers in any order, and for each one’s codes in any order', () => {
+    const rng = mulberry32(77);
+    const tps: CodeDigitCounts[] = Array.from({ length: 300 }, (_, i) => {
+      const t: CodeDigitCounts = {};
+      for (const code of ['inc.wages', 'ded.gifts', 'exp.supplies']) {
+        if (rng() < 0.7) t[code] = [...Array(9)].map(() => Math.floor(rng() * 4) + (i % 3));
+      }
+      return t;
+    }).filter((t) => Object.keys(t).length > 0);
+    const batch: CodeDigitCounts = {};
+    for (const t of tps) for (const [code, c] of Object.entries(t)) batch[code] = (batch[code] ?? new Array(9).fill(0)).map((x, k) => x + c[k]);
+    const fit = clientPoolNull(tps, 25, batch)!;
+    expect(fit).not.toBeNull();
+    const reversed = [...tps].reverse().map((t) => Object.fromEntries(Object.entries(t).reverse()));
+    const shuffled = [...tps]
+      .map((t, i) => ({ t, k: mulberry32(i + 5)() }))
+      .sort((a, b) => a.k - b.k)
+      .map((x) => x.t);
+    expect(clientPoolNull(reversed, 25, batch)).toEqual(fit);
+    expect(clientPoolNull(shuffled, 25, batch)).toEqual(fit);
+  });
+});
