@@ -218,29 +218,25 @@ export function AppShell({ nav, accessory, who, children }: AppShellProps) {
         )}
         {accessory}
       </TopBar>
-      {wide ? (
-        <View style={{ flex: 1, flexDirection: 'row' }}>
-          <View role="navigation" aria-label="Screens" style={{ width: 210, borderRightWidth: 1, borderRightColor: colours.line, padding: space.md, gap: 2 }}>
-            {navLinks}
-          </View>
-          <ScrollView role="main" tabIndex={0} style={{ flex: 1 }} contentContainerStyle={{ padding: space.xl }}>
-            <View style={{ width: '100%', maxWidth: MAX_CONTENT_WIDTH }}>{children}</View>
-          </ScrollView>
+      {/* One tree at every width, only its styles change: a width that crosses the breakpoint
+          (a window resized, a tablet turned, a browser taking a screenshot beyond the viewport)
+          must not remount the screen, which would drop its unsaved input and its scroll. */}
+      <View style={{ flex: 1, flexDirection: wide ? 'row' : 'column' }}>
+        <View
+          role="navigation"
+          aria-label="Screens"
+          style={
+            wide
+              ? { width: 210, borderRightWidth: 1, borderRightColor: colours.line, padding: space.md, gap: 2 }
+              : { flexGrow: 0, borderBottomWidth: 1, borderBottomColor: colours.line, backgroundColor: colours.surface }
+          }
+        >
+          {wide ? navLinks : <PhoneNavRow links={navLinks} activeIndex={nav.findIndex((n) => n.href === current)} />}
         </View>
-      ) : (
-        <>
-          <View
-            role="navigation"
-            aria-label="Screens"
-            style={{ flexGrow: 0, borderBottomWidth: 1, borderBottomColor: colours.line, backgroundColor: colours.surface }}
-          >
-            <PhoneNavRow links={navLinks} activeIndex={nav.findIndex((n) => n.href === current)} />
-          </View>
-          <ScrollView role="main" tabIndex={0} style={{ flex: 1 }} contentContainerStyle={{ padding: space.lg }}>
-            {children}
-          </ScrollView>
-        </>
-      )}
+        <ScrollView role="main" tabIndex={0} style={{ flex: 1 }} contentContainerStyle={{ padding: wide ? space.xl : space.lg }}>
+          <View style={{ width: '100%', maxWidth: wide ? MAX_CONTENT_WIDTH : undefined }}>{children}</View>
+        </ScrollView>
+      </View>
     </View>
   );
 }
